@@ -1,0 +1,30 @@
+using System.Linq;
+using DerivGen.Generator.Model;
+using Microsoft.CodeAnalysis;
+using Microsoft.CodeAnalysis.Text;
+
+namespace DerivGen.Generator.Diagnostics;
+
+/// <summary>
+/// A diagnostic as plain data (descriptor ID, file, span, message arguments), so that it can travel between stages and
+/// be compared by value. It becomes a Roslyn <see cref="Diagnostic"/> only when reported.
+/// </summary>
+internal sealed record DiagnosticInfo(string Id, string FilePath, TextSpan Span, LinePositionSpan LineSpan, EquatableArray<string> Arguments)
+{
+    public static DiagnosticInfo Create(DiagnosticDescriptor descriptor, Location? location, params string[] arguments)
+    {
+        location ??= Location.None;
+        FileLinePositionSpan line = location.GetLineSpan();
+        return new DiagnosticInfo(descriptor.Id, line.Path ?? string.Empty, location.SourceSpan, line.Span, arguments.ToEquatableArray());
+    }
+
+    public bool IsError => Descriptor.DefaultSeverity == DiagnosticSeverity.Error;
+
+    public DiagnosticDescriptor Descriptor => DiagnosticDescriptors.All.First(d => d.Id == Id);
+
+    public Diagnostic ToDiagnostic()
+    {
+        Location location = FilePath.Length == 0 ? Location.None : Location.Create(FilePath, Span, LineSpan);
+        return Diagnostic.Create(Descriptor, location, Arguments.Cast<object>().ToArray());
+    }
+}

@@ -1,0 +1,68 @@
+using System.Collections.Generic;
+using System.Linq;
+using DerivGen.Generator.Symbolic;
+
+namespace DerivGen.Generator.Differentiation;
+
+/// <summary>
+/// The gradient by one reverse (adjoint) sweep over the DAG: the adjoint of the output is 1; visiting nodes from the
+/// output towards the inputs (decreasing id is a reverse topological order), each node adds adjoint × local partial
+/// to each argument's adjoint. The cost is a small constant times the size of the DAG — the cheap-gradient principle
+/// (Griewank &amp; Walther, Evaluating Derivatives, 2nd ed., SIAM 2008, ch. 3–4).
+/// </summary>
+internal static class ReverseSweep
+{
+    public static Node[] Gradient(ExpressionBuilder b, Node output, int variableCount)
+    {
+        var gradient = new Node[variableCount];
+        for (int i = 0; i < variableCount; i++)
+        {
+            gradient[i] = b.Zero(output.Type);
+        }
+
+        if (!output.DependsOnVariables)
+        {
+            return gradient;
+        }
+
+        var adjoints = new Dictionary<Node, Node> { [output] = b.One(output.Type) };
+        foreach (Node node in Graph.Reachable(new[] { output }).Where(n => n.DependsOnVariables).OrderByDescending(n => n.Id))
+        {
+            if (!adjoints.TryGetValue(node, out Node? adjoint))
+            {
+                continue;
+            }
+
+            if (node.LocalName is not null && !adjoint.IsLeaf && adjoint.NameHint is null)
+            {
+                adjoint.NameHint = node.LocalName + "Adjoint";
+            }
+
+            if (node.VariableIndex >= 0)
+            {
+                gradient[node.VariableIndex] = adjoint;
+                continue;
+            }
+
+            for (int i = 0; i < node.Arguments.Length; i++)
+            {
+                Node argument = node.Arguments[i];
+                if (!argument.DependsOnVariables || !DerivativeRules.IsFirstOccurrence(node, i))
+                {
+                    continue;
+                }
+
+                Node partial = DerivativeRules.PartialWithRespectTo(b, node, argument);
+                if (partial.IsZero)
+                {
+                    continue;
+                }
+
+                Node contribution = b.Multiply(adjoint, partial);
+                adjoints[argument] = adjoints.TryGetValue(argument, out Node? sum) ? b.Add(sum, contribution) : contribution;
+            }
+        }
+
+        return gradient;
+    }
+}

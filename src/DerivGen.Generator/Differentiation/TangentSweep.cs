@@ -1,0 +1,53 @@
+using System.Collections.Generic;
+using System.Linq;
+using DerivGen.Generator.Symbolic;
+
+namespace DerivGen.Generator.Differentiation;
+
+/// <summary>
+/// Directional (tangent, forward-mode) derivatives of a set of DAG nodes with respect to one variable:
+/// Dⱼ(f) = Σᵢ ∂f/∂xᵢ · Dⱼ(xᵢ), visited in increasing id order (a topological order). Applied to the gradient's
+/// nodes this is forward-over-reverse: Dⱼ(∂f/∂xᵢ) is the Hessian entry Hᵢⱼ, so one sweep per variable gives one
+/// Hessian column, at a cost of a small constant times the gradient's DAG.
+/// </summary>
+internal static class TangentSweep
+{
+    public static Dictionary<Node, Node> Derivatives(ExpressionBuilder b, IReadOnlyList<Node> roots, int variable)
+    {
+        var tangents = new Dictionary<Node, Node>();
+        foreach (Node node in Graph.Reachable(roots).OrderBy(n => n.Id))
+        {
+            if (!node.DependsOnVariables)
+            {
+                tangents[node] = b.Zero(node.Type is Model.ScalarType.Single ? Model.ScalarType.Single : Model.ScalarType.Double);
+                continue;
+            }
+
+            if (node.VariableIndex >= 0)
+            {
+                tangents[node] = node.VariableIndex == variable ? b.One(node.Type) : b.Zero(node.Type);
+                continue;
+            }
+
+            Node sum = b.Zero(node.Type);
+            for (int i = 0; i < node.Arguments.Length; i++)
+            {
+                Node argumentTangent = tangents[node.Arguments[i]];
+                if (argumentTangent.IsZero || !DerivativeRules.IsFirstOccurrence(node, i))
+                {
+                    continue;
+                }
+
+                Node partial = DerivativeRules.PartialWithRespectTo(b, node, node.Arguments[i]);
+                if (!partial.IsZero)
+                {
+                    sum = b.Add(sum, b.Multiply(partial, argumentTangent));
+                }
+            }
+
+            tangents[node] = sum;
+        }
+
+        return tangents;
+    }
+}

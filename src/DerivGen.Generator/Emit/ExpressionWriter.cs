@@ -1,0 +1,232 @@
+using System;
+using System.Collections.Generic;
+using System.Text;
+using DerivGen.Generator.Lowering;
+using DerivGen.Generator.Model;
+using DerivGen.Generator.Symbolic;
+
+namespace DerivGen.Generator.Emit;
+
+/// <summary>
+/// Writes a DAG node as an expression, either as C# (for the code) or in the plain notation of the formulas in
+/// comments. Nodes that have a name (a temporary or a user local) are written as that name; others are written inline.
+/// Parentheses follow C# precedence and keep the tree's exact grouping: floating-point + and * are not associative, so
+/// <c>a + (b + c)</c> keeps its parentheses.
+/// </summary>
+internal sealed class ExpressionWriter
+{
+    private const int Conditional = 1;
+    private const int Relational = 3;
+    private const int Additive = 4;
+    private const int Multiplicative = 5;
+    private const int Unary = 6;
+    private const int Primary = 7;
+
+    private readonly Func<Node, string?> _nameOf;
+    private readonly bool _formula;
+    private readonly int _maxLength;
+
+    /// <param name="nameOf">The name to write for a node, or null to write it inline.</param>
+    /// <param name="formula">Plain notation for comments instead of C#.</param>
+    /// <param name="maxLength">Formulas longer than this are abandoned (<see cref="TryWrite"/> returns null).</param>
+    public ExpressionWriter(Func<Node, string?> nameOf, bool formula, int maxLength = int.MaxValue)
+    {
+        _nameOf = nameOf;
+        _formula = formula;
+        _maxLength = maxLength;
+    }
+
+    public string Write(Node node) => TryWrite(node) ?? throw new InvalidOperationException("Expression too long.");
+
+    public string? TryWrite(Node node)
+    {
+        var text = new StringBuilder();
+        return Write(node, Conditional, text) ? text.ToString() : null;
+    }
+
+    private bool Write(Node node, int minimumPrecedence, StringBuilder text)
+    {
+        if (text.Length > _maxLength)
+        {
+            return false;
+        }
+
+        string? name = node.IsLeaf ? null : _nameOf(node);
+        if (name is not null)
+        {
+            text.Append(name);
+            return true;
+        }
+
+        int precedence = Precedence(node);
+        bool parenthesize = precedence < minimumPrecedence;
+        if (parenthesize)
+        {
+            text.Append('(');
+        }
+
+        bool ok = WriteCore(node, text);
+        if (parenthesize)
+        {
+            text.Append(')');
+        }
+
+        return ok;
+    }
+
+    private bool WriteCore(Node node, StringBuilder text)
+    {
+        switch (node.Kind)
+        {
+            case NodeKind.Constant:
+                text.Append(_formula ? Literals.Plain(node.Value, node.Type) : Literals.CSharp(node.Value, node.Type));
+                return true;
+
+            case NodeKind.Parameter:
+            case NodeKind.External:
+                text.Append(_formula ? Plain(node.Text!) : node.Text);
+                return true;
+
+            case NodeKind.Negate:
+                text.Append('-');
+                return Write(node.Arguments[0], Primary, text);
+
+            case NodeKind.Add:
+            case NodeKind.Subtract:
+            case NodeKind.Multiply:
+            case NodeKind.Divide:
+            {
+                int precedence = Precedence(node);
+                string op = node.Kind switch
+                {
+                    NodeKind.Add => " + ",
+                    NodeKind.Subtract => " - ",
+                    NodeKind.Multiply => _formula ? "·" : " * ",
+                    _ => _formula ? "/" : " / ",
+                };
+                return Write(node.Arguments[0], precedence, text)
+                    && Append(text, op)
+                    && Write(node.Arguments[1], precedence + 1, text);
+            }
+
+            case NodeKind.Convert:
+                if (_formula)
+                {
+                    return Write(node.Arguments[0], Primary, text);
+                }
+
+                text.Append('(').Append(TypeKeyword(node.Type)).Append(')');
+                return Write(node.Arguments[0], Primary, text);
+
+            case NodeKind.Call:
+                text.Append(_formula ? FormulaName(node.Function) : CSharpHost(node) + "." + MathFunctions.CSharpName(node.Function)).Append('(');
+                for (int i = 0; i < node.Arguments.Length; i++)
+                {
+                    if (i > 0)
+                    {
+                        text.Append(", ");
+                    }
+
+                    if (!Write(node.Arguments[i], Conditional, text))
+                    {
+                        return false;
+                    }
+                }
+
+                text.Append(')');
+                return true;
+
+            case NodeKind.Compare:
+                string comparison = node.Comparison switch
+                {
+                    Comparison.Less => " < ",
+                    Comparison.LessOrEqual => _formula ? " ≤ " : " <= ",
+                    Comparison.Greater => " > ",
+                    _ => _formula ? " ≥ " : " >= ",
+                };
+                return Write(node.Arguments[0], Relational + 1, text) && Append(text, comparison) && Write(node.Arguments[1], Relational + 1, text);
+
+            case NodeKind.Select:
+                return Write(node.Arguments[0], Conditional + 1, text)
+                    && Append(text, " ? ") && Write(node.Arguments[1], Conditional + 1, text)
+                    && Append(text, " : ") && Write(node.Arguments[2], Conditional, text);
+
+            default:
+                throw new InvalidOperationException("Unknown node kind " + node.Kind);
+        }
+    }
+
+    private static bool Append(StringBuilder text, string value)
+    {
+        text.Append(value);
+        return true;
+    }
+
+    private int Precedence(Node node)
+    {
+        if (!node.IsLeaf && _nameOf(node) is not null)
+        {
+            return Primary;
+        }
+
+        return node.Kind switch
+        {
+            NodeKind.Constant => Literals.IsNegative(node.Value) && !double.IsNaN(node.Value) ? Unary : Primary,
+            NodeKind.Negate => Unary,
+            NodeKind.Convert => _formula ? Primary : Unary,
+            NodeKind.Add or NodeKind.Subtract => Additive,
+            NodeKind.Multiply or NodeKind.Divide => Multiplicative,
+            NodeKind.Compare => Relational,
+            NodeKind.Select => Conditional,
+            _ => Primary,
+        };
+    }
+
+    internal static string TypeKeyword(ScalarType type) => type switch
+    {
+        ScalarType.Single => "float",
+        ScalarType.Int32 => "int",
+        ScalarType.Boolean => "bool",
+        _ => "double",
+    };
+
+    private static string CSharpHost(Node node)
+    {
+        MathHost host = node.Host;
+        if (host == MathHost.Default)
+        {
+            bool onMath = node.Function != MathFunction.Hypot;
+            host = node.Type == ScalarType.Single ? (onMath ? MathHost.MathF : MathHost.Single) : (onMath ? MathHost.Math : MathHost.Double);
+        }
+
+        return host switch
+        {
+            MathHost.MathF => "global::System.MathF",
+            MathHost.Double => "double",
+            MathHost.Single => "float",
+            _ => "global::System.Math",
+        };
+    }
+
+    private static string FormulaName(MathFunction function) => function switch
+    {
+        MathFunction.LogBase => "log",
+        MathFunction.Log => "ln",
+        MathFunction.FusedMultiplyAdd => "fma",
+        MathFunction.Ceiling => "ceil",
+        MathFunction.Truncate => "trunc",
+        _ => function.ToString().ToLowerInvariant(),
+    };
+
+    private static string Plain(string text)
+    {
+        // Constants from outside the method are shown by their own name: global::Ns.Type.Rate → Type.Rate.
+        if (text.StartsWith("global::", StringComparison.Ordinal))
+        {
+            string[] parts = text.Substring("global::".Length).Split('.');
+            return parts.Length >= 2 ? parts[parts.Length - 2] + "." + parts[parts.Length - 1] : parts[0];
+        }
+
+        return text.StartsWith("@", StringComparison.Ordinal) ? text.Substring(1) : text;
+    }
+}

@@ -1,0 +1,59 @@
+using System;
+using System.Globalization;
+using DerivGen.Generator.Model;
+
+namespace DerivGen.Generator.Emit;
+
+/// <summary>Numeric literals: shortest round-trip form, invariant culture, so the text is the same on every machine.</summary>
+internal static class Literals
+{
+    public static string CSharp(double value, ScalarType type)
+    {
+        switch (type)
+        {
+            case ScalarType.Int32:
+                return ((int)value).ToString(CultureInfo.InvariantCulture);
+            case ScalarType.Single:
+                float single = (float)value;
+                if (float.IsNaN(single))
+                {
+                    return "float.NaN";
+                }
+
+                if (float.IsInfinity(single))
+                {
+                    return single > 0 ? "float.PositiveInfinity" : "float.NegativeInfinity";
+                }
+
+                return single.ToString("R", CultureInfo.InvariantCulture) + "f";
+            default:
+                if (double.IsNaN(value))
+                {
+                    return "double.NaN";
+                }
+
+                if (double.IsInfinity(value))
+                {
+                    return value > 0 ? "double.PositiveInfinity" : "double.NegativeInfinity";
+                }
+
+                string text = value.ToString("R", CultureInfo.InvariantCulture);
+                return text.IndexOfAny(new[] { '.', 'E', 'e' }) >= 0 ? text : text + ".0";
+        }
+    }
+
+    /// <summary>A constant in the plain notation of formulas: no suffixes, shortest round-trip digits.</summary>
+    public static string Plain(double value, ScalarType type)
+    {
+        if (double.IsNaN(value) || double.IsInfinity(value))
+        {
+            return double.IsNaN(value) ? "NaN" : value > 0 ? "∞" : "-∞";
+        }
+
+        return type == ScalarType.Single
+            ? ((float)value).ToString("R", CultureInfo.InvariantCulture)
+            : value.ToString("R", CultureInfo.InvariantCulture);
+    }
+
+    public static bool IsNegative(double value) => value < 0 || (value == 0 && BitConverter.DoubleToInt64Bits(value) != 0);
+}

@@ -1,0 +1,102 @@
+using System;
+using System.Collections.Generic;
+using System.Globalization;
+using DerivGen.Generator.Lowering;
+using DerivGen.Generator.Model;
+using DerivGen.Generator.Symbolic;
+
+namespace DerivGen.Generator.Emit;
+
+/// <summary>
+/// Chooses the names of the locals of one generated method: the user's own local names where a node is one of the
+/// user's locals, otherwise a name saying what the temporary holds (<c>cosTheta</c>, <c>rAdjoint</c>), falling back to
+/// <c>t1, t2, …</c>. Names never collide with the method's parameters or with each other.
+/// </summary>
+internal sealed class TemporaryNames
+{
+    private readonly HashSet<string> _taken = new(StringComparer.Ordinal);
+    private int _counter;
+
+    public TemporaryNames(IEnumerable<string> reserved)
+    {
+        foreach (string name in reserved)
+        {
+            _taken.Add(Unescaped(name));
+        }
+    }
+
+    /// <summary>Reserves and returns <paramref name="wanted"/>, or wanted2, wanted3, … if it is taken.</summary>
+    public string Claim(string wanted)
+    {
+        string bare = Unescaped(wanted);
+        string candidate = bare;
+        for (int suffix = 2; !_taken.Add(candidate); suffix++)
+        {
+            candidate = bare + suffix.ToString(CultureInfo.InvariantCulture);
+        }
+
+        return BodyLowerer.Escape(candidate);
+    }
+
+    /// <summary>A fresh name for a node's temporary, descriptive where the node's shape allows.</summary>
+    public string For(Node node, Func<Node, string?> nameOf)
+    {
+        if (node.LocalName is not null)
+        {
+            return Claim(node.LocalName);
+        }
+
+        if (node.NameHint is not null)
+        {
+            return Claim(node.NameHint);
+        }
+
+        string? operand = node.Arguments.Length > 0 ? SimpleName(node.Arguments[0], nameOf) : null;
+        if (node.Kind == NodeKind.Call && node.Arguments.Length == 1 && operand is not null)
+        {
+            return Claim(Lower(MathFunctions.CSharpName(node.Function)) + Capitalize(operand));
+        }
+
+        if (node.Kind == NodeKind.Multiply && node.Arguments[0] == node.Arguments[1] && operand is not null)
+        {
+            return Claim(operand + "Squared");
+        }
+
+        string name;
+        do
+        {
+            name = "t" + (++_counter).ToString(CultureInfo.InvariantCulture);
+        }
+        while (_taken.Contains(name));
+
+        return Claim(name);
+    }
+
+    private static string? SimpleName(Node node, Func<Node, string?> nameOf)
+    {
+        string? name = node.Kind == NodeKind.Parameter ? node.Text : node.IsLeaf ? null : nameOf(node);
+        if (name is null || name.Length > 24)
+        {
+            return null;
+        }
+
+        name = Unescaped(name);
+        foreach (char c in name)
+        {
+            if (!char.IsLetterOrDigit(c) && c != '_')
+            {
+                return null;
+            }
+        }
+
+        return name;
+    }
+
+    private static string Unescaped(string name) => name.StartsWith("@", StringComparison.Ordinal) ? name.Substring(1) : name;
+
+    private static string Lower(string name) => char.ToLowerInvariant(name[0]) + name.Substring(1);
+
+    private static string Capitalize(string name) => char.ToUpperInvariant(name[0]) + name.Substring(1);
+
+    internal static string TypeOf(ScalarType type) => ExpressionWriter.TypeKeyword(type);
+}

@@ -1,0 +1,494 @@
+using System;
+using System.Collections.Generic;
+using System.Threading;
+using DerivGen.Generator.Diagnostics;
+using DerivGen.Generator.Model;
+using Microsoft.CodeAnalysis;
+using Microsoft.CodeAnalysis.Operations;
+
+namespace DerivGen.Generator.Lowering;
+
+/// <summary>
+/// Lowers the IOperation tree of a method body into the IR. Every construct outside the supported set becomes a DG0001
+/// diagnostic on exactly that construct's span (and lowering goes on, so that one build reports every problem);
+/// non-smooth functions applied to something that depends on a variable become DG0007 warnings.
+/// </summary>
+internal sealed class BodyLowerer
+{
+    /// <summary>Deeper expressions are refused (DG0001) rather than risking the compiler's stack.</summary>
+    public const int MaxDepth = 400;
+
+    private readonly HashSet<string> _variables;
+    private readonly List<DiagnosticInfo> _diagnostics;
+    private readonly CancellationToken _cancellationToken;
+    private readonly Dictionary<ILocalSymbol, string> _localNames = new(SymbolEqualityComparer.Default);
+    private readonly HashSet<string> _usedLocalNames = new(StringComparer.Ordinal);
+    private readonly HashSet<string> _variableDependentLocals = new(StringComparer.Ordinal);
+    private readonly List<IrStatement> _statements = new();
+    private int _depth;
+
+    public BodyLowerer(HashSet<string> variables, List<DiagnosticInfo> diagnostics, CancellationToken cancellationToken)
+    {
+        _variables = variables;
+        _diagnostics = diagnostics;
+        _cancellationToken = cancellationToken;
+    }
+
+    public EquatableArray<IrStatement> Lower(IBlockOperation body)
+    {
+        LowerStatements(body.Operations, isTopLevel: true);
+        return _statements.ToEquatableArray();
+    }
+
+    private void LowerStatements(IEnumerable<IOperation> statements, bool isTopLevel)
+    {
+        bool returned = false;
+        foreach (IOperation statement in statements)
+        {
+            _cancellationToken.ThrowIfCancellationRequested();
+            if (returned)
+            {
+                // Unreachable code after the return: the compiler already warns; nothing to differentiate.
+                break;
+            }
+
+            switch (statement)
+            {
+                case IVariableDeclarationGroupOperation group:
+                    foreach (IVariableDeclarationOperation declaration in group.Declarations)
+                    {
+                        foreach (IVariableDeclaratorOperation declarator in declaration.Declarators)
+                        {
+                            LowerDeclarator(declarator);
+                        }
+                    }
+
+                    break;
+
+                case IExpressionStatementOperation { Operation: var expression }:
+                    LowerExpressionStatement(expression);
+                    break;
+
+                case IReturnOperation { ReturnedValue: { } value } when isTopLevel:
+                    IrExpression? returned_ = LowerExpression(value);
+                    if (returned_ is not null)
+                    {
+                        _statements.Add(new IrReturn(returned_));
+                    }
+
+                    returned = true;
+                    break;
+
+                case IReturnOperation:
+                    Unsupported(statement, "an early return", "return once, at the end of the method; branches come in a later version");
+                    returned = true;
+                    break;
+
+                case IBlockOperation block:
+                    LowerStatements(block.Operations, isTopLevel && IsLast(statement));
+                    break;
+
+                case IEmptyOperation:
+                    break;
+
+                default:
+                    Unsupported(statement, DescribeStatement(statement), HintFor(statement));
+                    break;
+            }
+        }
+    }
+
+    private static bool IsLast(IOperation statement) =>
+        statement.Parent is IBlockOperation parent && parent.Operations[parent.Operations.Length - 1] == statement;
+
+    private void LowerDeclarator(IVariableDeclaratorOperation declarator)
+    {
+        ILocalSymbol local = declarator.Symbol;
+        ScalarType? type = ScalarTypeOf(local.Type);
+        if (type is null)
+        {
+            Unsupported(declarator, $"the local '{local.Name}' of type '{local.Type.ToDisplayString()}'", "locals must be double, float or int");
+            return;
+        }
+
+        string name = DeclareLocal(local);
+        IOperation? initializer = declarator.Initializer?.Value ?? declarator.GetVariableInitializer()?.Value;
+        if (initializer is null)
+        {
+            return; // Assigned later; C# definite assignment guarantees it is assigned before it is read.
+        }
+
+        AssignLocal(name, LowerExpression(initializer));
+    }
+
+    private void LowerExpressionStatement(IOperation expression)
+    {
+        switch (expression)
+        {
+            case ISimpleAssignmentOperation { Target: ILocalReferenceOperation target } assignment:
+                AssignLocal(LocalName(target.Local), LowerExpression(assignment.Value));
+                break;
+
+            case ICompoundAssignmentOperation { Target: ILocalReferenceOperation target } compound
+                when compound.OperatorMethod is null && TryBinaryOperator(compound.OperatorKind, out BinaryOperator op):
+            {
+                // s op= e  is  s = (T)((S)s op e)  with the compiler's own in/out conversions (C# spec §12.21.4).
+                string name = LocalName(target.Local);
+                ScalarType? localType = ScalarTypeOf(target.Local.Type);
+                IrExpression? right = LowerExpression(compound.Value);
+                ScalarType? operationType = compound.InConversion.IsIdentity ? localType : ScalarTypeOfConversion(compound);
+                if (localType is null || right is null || operationType is null)
+                {
+                    if (right is not null)
+                    {
+                        Unsupported(compound, $"the compound assignment '{Text(compound)}'", "use double, float or int locals");
+                    }
+
+                    return;
+                }
+
+                IrExpression left = Convert(new IrLocal(name, localType.Value), operationType.Value);
+                IrExpression combined = new IrBinary(op, left, Convert(right, operationType.Value), operationType.Value);
+                AssignLocal(name, Convert(combined, localType.Value));
+                break;
+            }
+
+            case IAssignmentOperation { Target: IParameterReferenceOperation parameterTarget }:
+                Unsupported(expression, $"the assignment to parameter '{parameterTarget.Parameter.Name}'", "assign the new value to a local instead");
+                break;
+
+            case ISimpleAssignmentOperation or ICompoundAssignmentOperation:
+                Unsupported(expression, $"the assignment '{Text(expression)}'", "only locals of the method can be assigned");
+                break;
+
+            default:
+                Unsupported(expression, $"the statement '{Text(expression)}'", "a differentiable body only declares and assigns locals and returns a value");
+                break;
+        }
+    }
+
+    private static ScalarType? ScalarTypeOfConversion(ICompoundAssignmentOperation compound) =>
+        compound.InConversion.IsNumeric && compound.Value.Type is { } valueType ? ScalarTypeOf(valueType) : null;
+
+    private static IrExpression Convert(IrExpression expression, ScalarType type) =>
+        expression.Type == type ? expression : new IrConvert(expression, type);
+
+    private void AssignLocal(string name, IrExpression? value)
+    {
+        if (value is null)
+        {
+            return;
+        }
+
+        if (DependsOnVariable(value))
+        {
+            _variableDependentLocals.Add(name);
+        }
+        else
+        {
+            _variableDependentLocals.Remove(name);
+        }
+
+        _statements.Add(new IrAssign(name, value));
+    }
+
+    private string DeclareLocal(ILocalSymbol local)
+    {
+        string name = local.Name;
+        for (int suffix = 2; !_usedLocalNames.Add(name); suffix++)
+        {
+            name = local.Name + suffix.ToString(System.Globalization.CultureInfo.InvariantCulture);
+        }
+
+        _localNames[local] = name;
+        return name;
+    }
+
+    private string LocalName(ILocalSymbol local) =>
+        _localNames.TryGetValue(local, out string? name) ? name : DeclareLocal(local);
+
+    /// <summary>Lowers an expression; returns null (after reporting) when it is not supported.</summary>
+    private IrExpression? LowerExpression(IOperation operation)
+    {
+        _cancellationToken.ThrowIfCancellationRequested();
+        if (_depth >= MaxDepth)
+        {
+            Unsupported(operation, "an expression nested more than " + MaxDepth.ToString(System.Globalization.CultureInfo.InvariantCulture) + " levels deep",
+                "split it into locals");
+            return null;
+        }
+
+        _depth++;
+        try
+        {
+            return LowerExpressionCore(operation);
+        }
+        finally
+        {
+            _depth--;
+        }
+    }
+
+    private IrExpression? LowerExpressionCore(IOperation operation)
+    {
+        if (operation.ConstantValue.HasValue && operation.Type is { } constantType && ScalarTypeOf(constantType) is { } scalar
+            && TryConstant(operation.ConstantValue.Value, scalar, out IrConstant? constant))
+        {
+            return constant;
+        }
+
+        switch (operation)
+        {
+            case IParameterReferenceOperation parameter:
+                if (ScalarTypeOf(parameter.Parameter.Type) is { } parameterType)
+                {
+                    return new IrParameter(Escape(parameter.Parameter.Name), parameterType);
+                }
+
+                return Unsupported(operation, $"the use of parameter '{parameter.Parameter.Name}' of type '{parameter.Parameter.Type.ToDisplayString()}'",
+                    "arrays, spans and other types come in a later version; pass double, float or int values");
+
+            case ILocalReferenceOperation local:
+                if (ScalarTypeOf(local.Local.Type) is { } localType)
+                {
+                    return new IrLocal(LocalName(local.Local), localType);
+                }
+
+                return Unsupported(operation, $"the local '{local.Local.Name}'", "locals must be double, float or int");
+
+            case IBinaryOperation binary:
+                return LowerBinary(binary);
+
+            case IUnaryOperation { OperatorKind: UnaryOperatorKind.Minus, OperatorMethod: null, Type: { } unaryType } minus when ScalarTypeOf(unaryType) is { } minusType:
+                return LowerExpression(minus.Operand) is { } negated ? new IrNegate(negated, minusType) : null;
+
+            case IUnaryOperation { OperatorKind: UnaryOperatorKind.Plus, OperatorMethod: null } plus:
+                return LowerExpression(plus.Operand);
+
+            case IConversionOperation conversion:
+                return LowerConversion(conversion);
+
+            case IInvocationOperation invocation:
+                return LowerInvocation(invocation);
+
+            case IFieldReferenceOperation { Field: { IsStatic: true, IsReadOnly: true } field } when ScalarTypeOf(field.Type) is { } fieldType:
+                return new IrExternal(FullyQualified(field.ContainingType) + "." + Escape(field.Name), fieldType);
+
+            case IFieldReferenceOperation field:
+                return Unsupported(operation, $"the field '{field.Field.Name}'",
+                    field.Field.IsStatic ? "only const and static readonly fields are read as constants" : "instance fields come in a later version; pass the value as a parameter");
+
+            case IPropertyReferenceOperation { Property: { IsStatic: true, IsIndexer: false, GetMethod: not null } property } when ScalarTypeOf(property.Type) is { } propertyType:
+                return new IrExternal(FullyQualified(property.ContainingType) + "." + Escape(property.Name), propertyType);
+
+            case IPropertyReferenceOperation property:
+                return Unsupported(operation, $"the property '{property.Property.Name}'", "only static properties of double, float or int type are read as constants");
+
+            case IParenthesizedOperation parenthesized:
+                return LowerExpression(parenthesized.Operand);
+
+            default:
+                return Unsupported(operation, DescribeExpression(operation), HintFor(operation));
+        }
+    }
+
+    private IrExpression? LowerBinary(IBinaryOperation binary)
+    {
+        if (binary.OperatorMethod is not null || !TryBinaryOperator(binary.OperatorKind, out BinaryOperator op)
+            || ScalarTypeOf(binary.Type!) is not { } type || type == ScalarType.Boolean)
+        {
+            string hint = binary.OperatorKind is BinaryOperatorKind.Remainder
+                ? "the remainder operator is not supported"
+                : "only + - * / on double, float and int are supported here; comparisons and branches come in a later version";
+            return Unsupported(binary, $"the operator '{Text(binary)}'", hint);
+        }
+
+        IrExpression? left = LowerExpression(binary.LeftOperand);
+        IrExpression? right = LowerExpression(binary.RightOperand);
+        return left is null || right is null ? null : new IrBinary(op, left, right, type);
+    }
+
+    private static bool TryBinaryOperator(BinaryOperatorKind kind, out BinaryOperator op)
+    {
+        switch (kind)
+        {
+            case BinaryOperatorKind.Add: op = BinaryOperator.Add; return true;
+            case BinaryOperatorKind.Subtract: op = BinaryOperator.Subtract; return true;
+            case BinaryOperatorKind.Multiply: op = BinaryOperator.Multiply; return true;
+            case BinaryOperatorKind.Divide: op = BinaryOperator.Divide; return true;
+            default: op = default; return false;
+        }
+    }
+
+    private IrExpression? LowerConversion(IConversionOperation conversion)
+    {
+        ScalarType? to = conversion.Type is null ? null : ScalarTypeOf(conversion.Type);
+        ScalarType? from = conversion.Operand.Type is null ? null : ScalarTypeOf(conversion.Operand.Type);
+        if (conversion.OperatorMethod is null && to is { } target && from is { } source
+            && target != ScalarType.Boolean && source != ScalarType.Boolean)
+        {
+            IrExpression? operand = LowerExpression(conversion.Operand);
+            return operand is null ? null : Convert(operand, target);
+        }
+
+        return Unsupported(conversion, $"the conversion '{Text(conversion)}'", "only conversions between int, float and double are supported");
+    }
+
+    private IrExpression? LowerInvocation(IInvocationOperation invocation)
+    {
+        IMethodSymbol target = invocation.TargetMethod;
+        MathHost? host = target.ContainingType?.SpecialType switch
+        {
+            SpecialType.System_Double => MathHost.Double,
+            SpecialType.System_Single => MathHost.Single,
+            _ => target.ContainingType?.ToDisplayString() switch
+            {
+                "System.Math" => MathHost.Math,
+                "System.MathF" => MathHost.MathF,
+                _ => null,
+            },
+        };
+
+        if (host is null || !target.IsStatic || !MathFunctions.TryGet(target.Name, invocation.Arguments.Length, out MathFunction function)
+            || ScalarTypeOf(target.ReturnType) is not { } returnType)
+        {
+            return Unsupported(invocation, $"the call to '{target.ContainingType?.ToDisplayString()}.{target.Name}'",
+                "only the functions of System.Math, System.MathF, double and float listed in the README are supported; calls to other methods come in a later version");
+        }
+
+        var arguments = new IrExpression[invocation.Arguments.Length];
+        bool ok = true;
+        foreach (IArgumentOperation argument in invocation.Arguments)
+        {
+            int index = argument.Parameter?.Ordinal ?? -1;
+            ScalarType? parameterType = argument.Parameter is null ? null : ScalarTypeOf(argument.Parameter.Type);
+            if (index < 0 || index >= arguments.Length || parameterType is null or ScalarType.Boolean
+                || (!MathFunctions.ReturnsInt(function) && parameterType != returnType))
+            {
+                return Unsupported(invocation, $"the call to '{target.ContainingType?.ToDisplayString()}.{target.Name}' with these argument types",
+                    "call the double or float overload");
+            }
+
+            IrExpression? lowered = LowerExpression(argument.Value);
+            if (lowered is null)
+            {
+                ok = false;
+                continue;
+            }
+
+            arguments[index] = lowered;
+        }
+
+        if (!ok)
+        {
+            return null;
+        }
+
+        var call = new IrCall(function, host.Value, arguments.ToEquatableArray(), returnType);
+        if (MathFunctions.NonSmoothConvention(function) is { } convention && DependsOnVariable(call))
+        {
+            _diagnostics.Add(DiagnosticInfo.Create(DiagnosticDescriptors.NonSmoothFunction, invocation.Syntax.GetLocation(),
+                target.ContainingType!.Name + "." + target.Name, convention));
+        }
+
+        return call;
+    }
+
+    private bool DependsOnVariable(IrExpression expression) => expression switch
+    {
+        IrParameter parameter => _variables.Contains(parameter.Name),
+        IrLocal local => _variableDependentLocals.Contains(local.Name),
+        IrNegate negate => DependsOnVariable(negate.Operand),
+        IrConvert convert => convert.Type != ScalarType.Int32 && DependsOnVariable(convert.Operand),
+        IrBinary binary => binary.Type != ScalarType.Int32 && (DependsOnVariable(binary.Left) || DependsOnVariable(binary.Right)),
+        IrCall call => AnyDependsOnVariable(call.Arguments),
+        _ => false,
+    };
+
+    private bool AnyDependsOnVariable(EquatableArray<IrExpression> expressions)
+    {
+        foreach (IrExpression expression in expressions)
+        {
+            if (DependsOnVariable(expression))
+            {
+                return true;
+            }
+        }
+
+        return false;
+    }
+
+    private IrExpression? Unsupported(IOperation operation, string construct, string hint)
+    {
+        string described = construct.Length > 0 ? char.ToUpperInvariant(construct[0]) + construct.Substring(1) : construct;
+        _diagnostics.Add(DiagnosticInfo.Create(DiagnosticDescriptors.UnsupportedConstruct, operation.Syntax.GetLocation(), described, hint));
+        return null;
+    }
+
+    internal static ScalarType? ScalarTypeOf(ITypeSymbol type) => type.SpecialType switch
+    {
+        SpecialType.System_Double => ScalarType.Double,
+        SpecialType.System_Single => ScalarType.Single,
+        SpecialType.System_Int32 => ScalarType.Int32,
+        SpecialType.System_Boolean => ScalarType.Boolean,
+        _ => null,
+    };
+
+    private static bool TryConstant(object? value, ScalarType type, out IrConstant? constant)
+    {
+        constant = value switch
+        {
+            double d when type == ScalarType.Double => new IrConstant(BitConverter.DoubleToInt64Bits(d), type),
+            float f when type == ScalarType.Single => new IrConstant(BitConverter.DoubleToInt64Bits(f), type),
+            int i when type == ScalarType.Int32 => new IrConstant(i, type),
+            _ => null,
+        };
+        return constant is not null;
+    }
+
+    internal static string FullyQualified(ITypeSymbol type) => type.ToDisplayString(SymbolDisplayFormat.FullyQualifiedFormat);
+
+    internal static string Escape(string identifier) =>
+        Microsoft.CodeAnalysis.CSharp.SyntaxFacts.GetKeywordKind(identifier) != Microsoft.CodeAnalysis.CSharp.SyntaxKind.None ? "@" + identifier : identifier;
+
+    private static string Text(IOperation operation)
+    {
+        string text = operation.Syntax.ToString().Replace("\r", " ").Replace("\n", " ");
+        return text.Length <= 60 ? text : text.Substring(0, 57) + "...";
+    }
+
+    private static string DescribeStatement(IOperation statement) => statement switch
+    {
+        IForLoopOperation => "the for loop",
+        IForEachLoopOperation => "the foreach loop",
+        IWhileLoopOperation => "the while loop",
+        IConditionalOperation => "the if statement",
+        ISwitchOperation => "the switch statement",
+        ITryOperation => "the try statement",
+        IThrowOperation => "the throw statement",
+        IBranchOperation => "the jump statement '" + Text(statement) + "'",
+        ILocalFunctionOperation => "the local function",
+        IUsingOperation => "the using statement",
+        ILockOperation => "the lock statement",
+        _ => "the statement '" + Text(statement) + "'",
+    };
+
+    private static string DescribeExpression(IOperation expression) => expression switch
+    {
+        IConditionalOperation => "the conditional expression '" + Text(expression) + "'",
+        IArrayElementReferenceOperation => "the element access '" + Text(expression) + "'",
+        IAnonymousFunctionOperation => "the lambda",
+        IObjectCreationOperation => "the object creation '" + Text(expression) + "'",
+        IIncrementOrDecrementOperation => "the increment or decrement '" + Text(expression) + "'",
+        IThrowOperation => "the throw expression",
+        _ => "the expression '" + Text(expression) + "'",
+    };
+
+    private static string HintFor(IOperation operation) => operation switch
+    {
+        IForLoopOperation or IForEachLoopOperation or IWhileLoopOperation or IConditionalOperation or ISwitchOperation or IArrayElementReferenceOperation
+            => "this version differentiates straight-line code; loops, branches and arrays come in a later version",
+        ITryOperation or IThrowOperation => "exceptions cannot be differentiated; validate arguments before calling the method",
+        _ => "a differentiable body uses locals, + - * /, and the math functions listed in the README",
+    };
+}

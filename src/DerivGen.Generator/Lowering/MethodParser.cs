@@ -1,0 +1,321 @@
+using System;
+using System.Collections.Generic;
+using System.Linq;
+using System.Text;
+using System.Threading;
+using DerivGen.Generator.Diagnostics;
+using DerivGen.Generator.Model;
+using Microsoft.CodeAnalysis;
+using Microsoft.CodeAnalysis.CSharp;
+using Microsoft.CodeAnalysis.CSharp.Syntax;
+using Microsoft.CodeAnalysis.Operations;
+
+namespace DerivGen.Generator.Lowering;
+
+/// <summary>The outcome of lowering one method: its spec when it can be generated, and its diagnostics.</summary>
+internal sealed record LoweringResult(MethodSpec? Spec, EquatableArray<DiagnosticInfo> Diagnostics);
+
+/// <summary>
+/// The Lower stage for one <c>[Differentiate]</c> method: checks the declaration (return type, partial types,
+/// variables, names) and lowers the body. Pure function of its inputs; shared by the generator and the analyzer.
+/// </summary>
+internal static class MethodParser
+{
+    public const string AttributeMetadataName = "DerivGen.DifferentiateAttribute";
+    public const string GradientSuffix = "Gradient";
+    public const string HessianSuffix = "Hessian";
+    private const string GeneratorToolName = "DerivGen";
+
+    public static LoweringResult Lower(IMethodSymbol method, MethodDeclarationSyntax syntax, AttributeData attribute,
+        SemanticModel semanticModel, CancellationToken cancellationToken)
+    {
+        var diagnostics = new List<DiagnosticInfo>();
+        try
+        {
+            MethodSpec? spec = LowerCore(method, syntax, attribute, semanticModel, diagnostics, cancellationToken);
+            bool hasErrors = diagnostics.Any(d => d.IsError);
+            return new LoweringResult(hasErrors ? null : spec, diagnostics.ToEquatableArray());
+        }
+        catch (OperationCanceledException)
+        {
+            throw;
+        }
+        catch (Exception exception)
+        {
+            // A bug of ours must never crash the compiler: report it on the method and generate nothing.
+            diagnostics.Add(DiagnosticInfo.Create(DiagnosticDescriptors.InternalError, syntax.Identifier.GetLocation(),
+                method.Name, exception.GetType().Name + ": " + exception.Message));
+            return new LoweringResult(null, diagnostics.ToEquatableArray());
+        }
+    }
+
+    private static MethodSpec? LowerCore(IMethodSymbol method, MethodDeclarationSyntax syntax, AttributeData attribute,
+        SemanticModel semanticModel, List<DiagnosticInfo> diagnostics, CancellationToken cancellationToken)
+    {
+        Location nameLocation = syntax.Identifier.GetLocation();
+
+        ScalarType? returnType = BodyLowerer.ScalarTypeOf(method.ReturnType);
+        if (returnType is not (ScalarType.Double or ScalarType.Single))
+        {
+            diagnostics.Add(DiagnosticInfo.Create(DiagnosticDescriptors.ReturnTypeNotFloatingPoint, syntax.ReturnType.GetLocation(),
+                method.Name, method.ReturnType.ToDisplayString()));
+        }
+
+        foreach (TypeDeclarationSyntax type in syntax.Ancestors().OfType<TypeDeclarationSyntax>())
+        {
+            if (!type.Modifiers.Any(SyntaxKind.PartialKeyword))
+            {
+                diagnostics.Add(DiagnosticInfo.Create(DiagnosticDescriptors.TypeNotPartial, nameLocation, type.Identifier.ValueText, method.Name));
+            }
+        }
+
+        if (method.IsGenericMethod)
+        {
+            diagnostics.Add(DiagnosticInfo.Create(DiagnosticDescriptors.UnsupportedConstruct, syntax.TypeParameterList?.GetLocation() ?? nameLocation,
+                "The generic method '" + method.Name + "'", "differentiated methods cannot have type parameters; make the containing type generic instead"));
+        }
+
+        foreach (IParameterSymbol parameter in method.Parameters.Where(p => p.RefKind == RefKind.Out))
+        {
+            diagnostics.Add(DiagnosticInfo.Create(DiagnosticDescriptors.UnsupportedConstruct, parameter.Locations.FirstOrDefault(),
+                "The out parameter '" + parameter.Name + "'", "a differentiated method returns its one value"));
+        }
+
+        HashSet<string> variables = SelectVariables(method, attribute, diagnostics, nameLocation, cancellationToken);
+        bool emitHessian = attribute.NamedArguments.FirstOrDefault(a => a.Key == "Hessian").Value.Value is not false;
+
+        CheckGeneratedNames(method, emitHessian, nameLocation, diagnostics);
+
+        EquatableArray<IrStatement> body = EquatableArray<IrStatement>.Empty;
+        if (syntax.Body is null && syntax.ExpressionBody is null)
+        {
+            diagnostics.Add(DiagnosticInfo.Create(DiagnosticDescriptors.UnsupportedConstruct, nameLocation,
+                "The method '" + method.Name + "' without a body", "DerivGen differentiates the body of the method it is applied to"));
+        }
+        else if (semanticModel.GetOperation(syntax, cancellationToken) is IMethodBodyOperation { BlockBody: var block, ExpressionBody: var expression })
+        {
+            var lowerer = new BodyLowerer(new HashSet<string>(variables.Select(BodyLowerer.Escape), StringComparer.Ordinal), diagnostics, cancellationToken);
+            body = lowerer.Lower((block ?? expression)!);
+        }
+
+        if (returnType is not (ScalarType.Double or ScalarType.Single) || diagnostics.Any(d => d.IsError))
+        {
+            return null;
+        }
+
+        return new MethodSpec(
+            HintName: HintName(method),
+            Namespace: method.ContainingNamespace is { IsGlobalNamespace: false } ns ? ns.ToDisplayString() : null,
+            ContainingTypes: ContainingTypes(method.ContainingType),
+            Name: BodyLowerer.Escape(method.Name),
+            Accessibility: AccessibilityText(method.DeclaredAccessibility),
+            IsStatic: method.IsStatic,
+            ReturnType: returnType.Value,
+            Parameters: method.Parameters.Select(p => new ParameterSpec(
+                BodyLowerer.Escape(p.Name),
+                Modifiers(p, method),
+                p.Type.ToDisplayString(SymbolDisplayFormat.FullyQualifiedFormat.AddMiscellaneousOptions(SymbolDisplayMiscellaneousOptions.IncludeNullableReferenceTypeModifier)),
+                variables.Contains(p.Name))).ToEquatableArray(),
+            EmitHessian: emitHessian,
+            DisplayName: method.ToDisplayString(HeaderFormat),
+            Cref: method.Name + "(" + string.Join(", ", method.Parameters.Select(p => CrefType(p))) + ")",
+            Body: body);
+    }
+
+    private static HashSet<string> SelectVariables(IMethodSymbol method, AttributeData attribute, List<DiagnosticInfo> diagnostics,
+        Location nameLocation, CancellationToken cancellationToken)
+    {
+        var variables = new HashSet<string>(StringComparer.Ordinal);
+        var names = new List<(string? Name, int Index)>();
+        if (attribute.ConstructorArguments.Length == 1 && attribute.ConstructorArguments[0].Kind == TypedConstantKind.Array)
+        {
+            ImmutableArrayIndexed(attribute.ConstructorArguments[0], names);
+        }
+
+        IReadOnlyList<AttributeArgumentSyntax> argumentSyntax =
+            (attribute.ApplicationSyntaxReference?.GetSyntax(cancellationToken) as AttributeSyntax)?.ArgumentList?.Arguments
+            .Where(a => a.NameEquals is null).ToList() ?? (IReadOnlyList<AttributeArgumentSyntax>)Array.Empty<AttributeArgumentSyntax>();
+
+        if (names.Count == 0)
+        {
+            foreach (IParameterSymbol parameter in method.Parameters)
+            {
+                if (IsFloatingPoint(parameter.Type) && parameter.RefKind is RefKind.None or RefKind.In)
+                {
+                    variables.Add(parameter.Name);
+                }
+            }
+        }
+
+        foreach ((string? name, int index) in names)
+        {
+            Location location = index < argumentSyntax.Count ? argumentSyntax[index].GetLocation() : nameLocation;
+            IParameterSymbol? parameter = method.Parameters.FirstOrDefault(p => p.Name == name);
+            if (name is null || parameter is null)
+            {
+                diagnostics.Add(DiagnosticInfo.Create(DiagnosticDescriptors.UnknownVariable, location, name ?? "null", method.Name));
+            }
+            else if (!IsFloatingPoint(parameter.Type) || parameter.RefKind is not (RefKind.None or RefKind.In))
+            {
+                string refKind = parameter.RefKind is RefKind.None or RefKind.In ? string.Empty
+                    : " and is passed by " + parameter.RefKind.ToString().ToLowerInvariant();
+                diagnostics.Add(DiagnosticInfo.Create(DiagnosticDescriptors.VariableNotFloatingPoint, location,
+                    parameter.Name, parameter.Type.ToDisplayString(), refKind));
+            }
+            else if (!variables.Add(name))
+            {
+                diagnostics.Add(DiagnosticInfo.Create(DiagnosticDescriptors.DuplicateVariable, location, name));
+            }
+        }
+
+        if (names.Count == 0 && variables.Count == 0)
+        {
+            diagnostics.Add(DiagnosticInfo.Create(DiagnosticDescriptors.NoVariables, nameLocation, method.Name));
+        }
+
+        return variables;
+    }
+
+    private static void ImmutableArrayIndexed(TypedConstant array, List<(string? Name, int Index)> names)
+    {
+        for (int i = 0; i < array.Values.Length; i++)
+        {
+            names.Add((array.Values[i].Value as string, i));
+        }
+    }
+
+    private static void CheckGeneratedNames(IMethodSymbol method, bool emitHessian, Location location, List<DiagnosticInfo> diagnostics)
+    {
+        INamedTypeSymbol type = method.ContainingType;
+        var generated = new List<string> { method.Name + GradientSuffix };
+        if (emitHessian)
+        {
+            generated.Add(method.Name + HessianSuffix);
+        }
+
+        foreach (string name in generated)
+        {
+            // The analyzer sees the compilation with our own output in it: those members are ours, not a collision.
+            if (type.GetMembers(name).Any(member => !IsGeneratedByUs(member)))
+            {
+                diagnostics.Add(DiagnosticInfo.Create(DiagnosticDescriptors.GeneratedNameTaken, location, type.Name, name, method.Name));
+            }
+        }
+    }
+
+    private static bool IsGeneratedByUs(ISymbol member) => member.GetAttributes().Any(a =>
+        a.AttributeClass?.ToDisplayString() == "System.CodeDom.Compiler.GeneratedCodeAttribute"
+        && a.ConstructorArguments.Length > 0 && a.ConstructorArguments[0].Value is GeneratorToolName);
+
+    private static bool IsFloatingPoint(ITypeSymbol type) => type.SpecialType is SpecialType.System_Double or SpecialType.System_Single;
+
+    private static string Modifiers(IParameterSymbol parameter, IMethodSymbol method)
+    {
+        var text = new StringBuilder();
+        if (parameter.Ordinal == 0 && method.IsExtensionMethod)
+        {
+            text.Append("this ");
+        }
+
+        text.Append(parameter.RefKind switch
+        {
+            RefKind.Ref => "ref ",
+            RefKind.In => "in ",
+            RefKind.RefReadOnlyParameter => "ref readonly ",
+            _ => string.Empty,
+        });
+        return text.ToString();
+    }
+
+    private static string CrefType(IParameterSymbol parameter)
+    {
+        string prefix = parameter.RefKind switch
+        {
+            RefKind.Ref => "ref ",
+            RefKind.In => "in ",
+            RefKind.RefReadOnlyParameter => "ref readonly ",
+            _ => string.Empty,
+        };
+        return prefix + parameter.Type.ToDisplayString(SymbolDisplayFormat.FullyQualifiedFormat).Replace('<', '{').Replace('>', '}');
+    }
+
+    private static EquatableArray<ContainingTypeSpec> ContainingTypes(INamedTypeSymbol innermost)
+    {
+        var types = new List<ContainingTypeSpec>();
+        for (INamedTypeSymbol? type = innermost; type is not null; type = type.ContainingType)
+        {
+            string keyword = type switch
+            {
+                { IsRecord: true, TypeKind: TypeKind.Struct } => "record struct",
+                { IsRecord: true } => "record",
+                { TypeKind: TypeKind.Interface } => "interface",
+                { TypeKind: TypeKind.Struct, IsRefLikeType: true } => "ref struct",
+                { TypeKind: TypeKind.Struct } => "struct",
+                _ => "class",
+            };
+            string name = BodyLowerer.Escape(type.Name);
+            if (type.TypeParameters.Length > 0)
+            {
+                name += "<" + string.Join(", ", type.TypeParameters.Select(t => BodyLowerer.Escape(t.Name))) + ">";
+            }
+
+            types.Insert(0, new ContainingTypeSpec(keyword, name));
+        }
+
+        return types.ToEquatableArray();
+    }
+
+    private static string AccessibilityText(Accessibility accessibility) => accessibility switch
+    {
+        Accessibility.Public => "public",
+        Accessibility.Internal => "internal",
+        Accessibility.Protected => "protected",
+        Accessibility.ProtectedOrInternal => "protected internal",
+        Accessibility.ProtectedAndInternal => "private protected",
+        _ => "private",
+    };
+
+    private static readonly SymbolDisplayFormat HeaderFormat = new(
+        globalNamespaceStyle: SymbolDisplayGlobalNamespaceStyle.Omitted,
+        typeQualificationStyle: SymbolDisplayTypeQualificationStyle.NameAndContainingTypesAndNamespaces,
+        genericsOptions: SymbolDisplayGenericsOptions.IncludeTypeParameters,
+        memberOptions: SymbolDisplayMemberOptions.IncludeContainingType | SymbolDisplayMemberOptions.IncludeParameters,
+        parameterOptions: SymbolDisplayParameterOptions.IncludeType | SymbolDisplayParameterOptions.IncludeName | SymbolDisplayParameterOptions.IncludeParamsRefOut,
+        miscellaneousOptions: SymbolDisplayMiscellaneousOptions.UseSpecialTypes | SymbolDisplayMiscellaneousOptions.EscapeKeywordIdentifiers);
+
+    /// <summary>
+    /// "Namespace.Outer.Inner.Method.g.cs"; when the type has overloads of the method, the parameter types are appended
+    /// so that every marked overload gets its own file.
+    /// </summary>
+    private static string HintName(IMethodSymbol method)
+    {
+        var name = new StringBuilder();
+        if (method.ContainingNamespace is { IsGlobalNamespace: false } ns)
+        {
+            name.Append(ns.ToDisplayString()).Append('.');
+        }
+
+        var types = new List<string>();
+        for (INamedTypeSymbol? type = method.ContainingType; type is not null; type = type.ContainingType)
+        {
+            types.Insert(0, type.TypeParameters.Length > 0 ? type.Name + "_" + type.TypeParameters.Length.ToString(System.Globalization.CultureInfo.InvariantCulture) : type.Name);
+        }
+
+        name.Append(string.Join(".", types)).Append('.').Append(method.Name);
+        if (method.ContainingType.GetMembers(method.Name).Length > 1)
+        {
+            foreach (IParameterSymbol parameter in method.Parameters)
+            {
+                name.Append('_').Append(parameter.Type.ToDisplayString(SymbolDisplayFormat.MinimallyQualifiedFormat));
+            }
+        }
+
+        var safe = new StringBuilder(name.Length + 5);
+        foreach (char c in name.ToString())
+        {
+            safe.Append(char.IsLetterOrDigit(c) || c is '.' or '_' ? c : '_');
+        }
+
+        return safe.Append(".g.cs").ToString();
+    }
+}

@@ -1,0 +1,70 @@
+namespace DerivGen.Generator.Model;
+
+// The intermediate representation (IR) of a differentiable method body: what Lowering produces from Roslyn's
+// IOperation tree and Differentiation consumes. Records of strings, numbers, enums and EquatableArrays only, so it
+// compares by value and can sit in the incremental cache. No Roslyn type may be reachable from here.
+
+/// <summary>The scalar types the IR computes with.</summary>
+internal enum ScalarType
+{
+    Int32,
+    Single,
+    Double,
+    Boolean,
+}
+
+internal enum BinaryOperator
+{
+    Add,
+    Subtract,
+    Multiply,
+    Divide,
+}
+
+/// <summary>Which type a math function was called on; the value code calls exactly what the user called.</summary>
+internal enum MathHost
+{
+    /// <summary>Chosen by the emitter (Math for double, MathF for float); used by derivative code.</summary>
+    Default,
+    Math,
+    MathF,
+    Double,
+    Single,
+}
+
+/// <summary>An expression of the IR. <see cref="Type"/> is the C# type of its value.</summary>
+internal abstract record IrExpression(ScalarType Type);
+
+/// <summary>A numeric constant. <paramref name="Bits"/> holds the IEEE bits of the value as a double
+/// (so that 0.0 and -0.0 differ), or the integer itself for <see cref="ScalarType.Int32"/>.</summary>
+internal sealed record IrConstant(long Bits, ScalarType Type) : IrExpression(Type);
+
+/// <summary>A read of a method parameter (a differentiation variable or a constant of the call).</summary>
+internal sealed record IrParameter(string Name, ScalarType Type) : IrExpression(Type);
+
+/// <summary>A read of a local variable, by its unique IR name.</summary>
+internal sealed record IrLocal(string Name, ScalarType Type) : IrExpression(Type);
+
+/// <summary>A value read from outside the method that is constant with respect to the variables (a static readonly
+/// field or a static property), as a fully qualified C# expression.</summary>
+internal sealed record IrExternal(string Text, ScalarType Type) : IrExpression(Type);
+
+internal sealed record IrNegate(IrExpression Operand, ScalarType Type) : IrExpression(Type);
+
+internal sealed record IrBinary(BinaryOperator Operator, IrExpression Left, IrExpression Right, ScalarType Type)
+    : IrExpression(Type);
+
+/// <summary>A numeric conversion between int, float and double.</summary>
+internal sealed record IrConvert(IrExpression Operand, ScalarType Type) : IrExpression(Type);
+
+internal sealed record IrCall(MathFunction Function, MathHost Host, EquatableArray<IrExpression> Arguments, ScalarType Type)
+    : IrExpression(Type);
+
+/// <summary>A statement of the IR.</summary>
+internal abstract record IrStatement;
+
+/// <summary>Assigns a local (a declaration with initializer, an assignment or a lowered compound assignment).</summary>
+internal sealed record IrAssign(string Local, IrExpression Value) : IrStatement;
+
+/// <summary>Returns the method's value. In straight-line bodies it is the last statement.</summary>
+internal sealed record IrReturn(IrExpression Value) : IrStatement;

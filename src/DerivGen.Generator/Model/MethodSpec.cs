@@ -1,0 +1,42 @@
+namespace DerivGen.Generator.Model;
+
+/// <summary>
+/// Everything the later stages need to generate the derivatives of one <c>[Differentiate]</c> method, and the
+/// incremental cache boundary: the generator regenerates a method's file only when its spec changes. Strings, numbers,
+/// enums and <see cref="EquatableArray{T}"/> only — never a symbol, syntax node, location or compilation.
+/// </summary>
+/// <param name="HintName">Name of the generated file, unique in the compilation.</param>
+/// <param name="Namespace">Containing namespace, or null for the global namespace.</param>
+/// <param name="ContainingTypes">The containing types, outermost first.</param>
+/// <param name="Name">The method's name (escaped if it is a keyword).</param>
+/// <param name="Accessibility">C# accessibility modifiers of the method, e.g. "public" or "private protected".</param>
+/// <param name="IsStatic">Whether the method is static.</param>
+/// <param name="ReturnType">double or float.</param>
+/// <param name="Parameters">The method's parameters, in declaration order.</param>
+/// <param name="EmitHessian">Whether the Hessian method is generated as well.</param>
+/// <param name="DisplayName">Fully qualified name with parameters, for the file header.</param>
+/// <param name="Cref">The method as a documentation cref inside its type, e.g. "Loss(double, double)".</param>
+/// <param name="Body">The lowered body.</param>
+internal sealed record MethodSpec(
+    string HintName,
+    string? Namespace,
+    EquatableArray<ContainingTypeSpec> ContainingTypes,
+    string Name,
+    string Accessibility,
+    bool IsStatic,
+    ScalarType ReturnType,
+    EquatableArray<ParameterSpec> Parameters,
+    bool EmitHessian,
+    string DisplayName,
+    string Cref,
+    EquatableArray<IrStatement> Body);
+
+/// <summary>A containing type: its declaration keyword(s) ("class", "record struct", ...) and name with type parameters.</summary>
+internal sealed record ContainingTypeSpec(string Keyword, string Name);
+
+/// <summary>A parameter of the differentiated method.</summary>
+/// <param name="Name">The name as written in C# (escaped with @ when it is a keyword).</param>
+/// <param name="Modifiers">Modifiers copied to the generated signature, e.g. "in " or "this ".</param>
+/// <param name="TypeName">The fully qualified type.</param>
+/// <param name="IsVariable">Whether this is a differentiation variable.</param>
+internal sealed record ParameterSpec(string Name, string Modifiers, string TypeName, bool IsVariable);

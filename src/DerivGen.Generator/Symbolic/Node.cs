@@ -1,0 +1,103 @@
+using System;
+using DerivGen.Generator.Model;
+
+namespace DerivGen.Generator.Symbolic;
+
+internal enum NodeKind
+{
+    Constant,
+    Parameter,
+    External,
+    Negate,
+    Add,
+    Subtract,
+    Multiply,
+    Divide,
+    Convert,
+    Call,
+    Compare,
+    Select,
+}
+
+internal enum Comparison
+{
+    Less,
+    LessOrEqual,
+    Greater,
+    GreaterOrEqual,
+}
+
+/// <summary>
+/// A node of the hash-consed expression DAG. Nodes are immutable and unique: the builder returns the existing node for
+/// an expression it has seen, so equal subexpressions are one object (common subexpression elimination by
+/// construction). <see cref="Id"/> grows with creation, so children always have smaller ids than their parents.
+/// Lives only inside one run of the Differentiate and Emit stages; never cached.
+/// </summary>
+internal sealed class Node
+{
+    internal Node(int id, NodeKind kind, ScalarType type, Node[] arguments, double value, string? text,
+        MathFunction function, MathHost host, Comparison comparison, int variableIndex)
+    {
+        Id = id;
+        Kind = kind;
+        Type = type;
+        Arguments = arguments;
+        Value = value;
+        Text = text;
+        Function = function;
+        Host = host;
+        Comparison = comparison;
+        VariableIndex = variableIndex;
+        foreach (Node argument in arguments)
+        {
+            DependsOnVariables |= argument.DependsOnVariables;
+        }
+
+        DependsOnVariables |= variableIndex >= 0;
+        if (type == ScalarType.Int32)
+        {
+            DependsOnVariables = false; // An int value is flat: its derivative is 0 wherever it exists.
+        }
+    }
+
+    public int Id { get; }
+
+    public NodeKind Kind { get; }
+
+    public ScalarType Type { get; }
+
+    public Node[] Arguments { get; }
+
+    /// <summary>The value of a <see cref="NodeKind.Constant"/> (a float constant holds its exact float value).</summary>
+    public double Value { get; }
+
+    /// <summary>The C# text of a <see cref="NodeKind.Parameter"/> or <see cref="NodeKind.External"/> leaf.</summary>
+    public string? Text { get; }
+
+    public MathFunction Function { get; }
+
+    public MathHost Host { get; }
+
+    public Comparison Comparison { get; }
+
+    /// <summary>The index of a differentiation variable in the gradient, or -1.</summary>
+    public int VariableIndex { get; }
+
+    public bool DependsOnVariables { get; }
+
+    /// <summary>The user's local name for the value this node computes, if the user gave it one.</summary>
+    public string? LocalName { get; set; }
+
+    /// <summary>A readable name suggested for a temporary holding this node (not a user name).</summary>
+    public string? NameHint { get; set; }
+
+    public bool IsLeaf => Kind is NodeKind.Constant or NodeKind.Parameter or NodeKind.External;
+
+    public bool IsConstant(double value) => Kind == NodeKind.Constant && Value.Equals(value) && !IsNegativeZero;
+
+    public bool IsZero => Kind == NodeKind.Constant && Value == 0;
+
+    private bool IsNegativeZero => Value == 0 && BitConverter.DoubleToInt64Bits(Value) != 0;
+
+    public override string ToString() => Kind + "#" + Id.ToString(System.Globalization.CultureInfo.InvariantCulture);
+}
