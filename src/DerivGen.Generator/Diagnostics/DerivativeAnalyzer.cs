@@ -53,7 +53,7 @@ public sealed class DerivativeAnalyzer : DiagnosticAnalyzer
         LoweringResult result = MethodParser.Lower(method, syntax, attribute, context.SemanticModel, context.CancellationToken);
         foreach (DiagnosticInfo diagnostic in result.Diagnostics)
         {
-            context.ReportDiagnostic(diagnostic.ToDiagnostic());
+            context.ReportDiagnostic(diagnostic.ToDiagnostic(syntax.SyntaxTree));
         }
     }
 }

@@ -22,9 +22,13 @@ internal sealed record DiagnosticInfo(string Id, string FilePath, TextSpan Span,
 
     public DiagnosticDescriptor Descriptor => DiagnosticDescriptors.All.First(d => d.Id == Id);
 
-    public Diagnostic ToDiagnostic()
+    /// <summary>The Roslyn diagnostic, located in <paramref name="tree"/> when it is the file the data names (so that
+    /// <c>#pragma warning disable</c> and suppressions apply), else by path and line.</summary>
+    public Diagnostic ToDiagnostic(SyntaxTree? tree)
     {
-        Location location = FilePath.Length == 0 ? Location.None : Location.Create(FilePath, Span, LineSpan);
+        Location location = FilePath.Length == 0 ? Location.None
+            : tree is not null && tree.FilePath == FilePath ? Location.Create(tree, Span)
+            : Location.Create(FilePath, Span, LineSpan);
         return Diagnostic.Create(Descriptor, location, Arguments.Cast<object>().ToArray());
     }
 }

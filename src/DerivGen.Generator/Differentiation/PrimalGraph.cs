@@ -15,6 +15,16 @@ internal static class PrimalGraph
     public static Node Build(ExpressionBuilder builder, MethodSpec spec, IReadOnlyDictionary<string, int> variableIndex)
     {
         var locals = new Dictionary<string, Node>(StringComparer.Ordinal);
+        var displayNames = new HashSet<string>(StringComparer.Ordinal);
+        foreach (IrStatement statement in spec.Body)
+        {
+            if (statement is IrAssign first)
+            {
+                displayNames.Add(first.Local);
+            }
+        }
+
+        var assigned = new HashSet<string>(StringComparer.Ordinal);
         Node? result = null;
         foreach (IrStatement statement in spec.Body)
         {
@@ -24,7 +34,12 @@ internal static class PrimalGraph
                     Node value = Build(builder, assign.Value, locals, variableIndex);
                     if (!value.IsLeaf && value.LocalName is null)
                     {
-                        value.LocalName = assign.Local;
+                        // A reassigned local gets a versioned name (s, s2, s3, …), the same in code and formulas.
+                        value.LocalName = assigned.Add(assign.Local) ? assign.Local : NextVersion(assign.Local, displayNames);
+                    }
+                    else
+                    {
+                        assigned.Add(assign.Local);
                     }
 
                     locals[assign.Local] = value;
@@ -36,6 +51,17 @@ internal static class PrimalGraph
         }
 
         return result ?? throw new InvalidOperationException("The lowered body has no return statement.");
+    }
+
+    private static string NextVersion(string name, HashSet<string> taken)
+    {
+        string candidate = name;
+        for (int version = 2; !taken.Add(candidate); version++)
+        {
+            candidate = name + version.ToString(System.Globalization.CultureInfo.InvariantCulture);
+        }
+
+        return candidate;
     }
 
     private static Node Build(ExpressionBuilder b, IrExpression expression, Dictionary<string, Node> locals, IReadOnlyDictionary<string, int> variableIndex)

@@ -58,6 +58,11 @@ internal sealed class ExpressionWriter
             return true;
         }
 
+        if (_formula && node.Kind == NodeKind.Convert)
+        {
+            return Write(node.Arguments[0], minimumPrecedence, text); // Formulas are about values, not C# types.
+        }
+
         int precedence = Precedence(node);
         bool parenthesize = precedence < minimumPrecedence;
         if (parenthesize)

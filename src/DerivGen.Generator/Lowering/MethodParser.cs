@@ -92,7 +92,8 @@ internal static class MethodParser
             diagnostics.Add(DiagnosticInfo.Create(DiagnosticDescriptors.UnsupportedConstruct, nameLocation,
                 "The method '" + method.Name + "' without a body", "DerivGen differentiates the body of the method it is applied to"));
         }
-        else if (semanticModel.GetOperation(syntax, cancellationToken) is IMethodBodyOperation { BlockBody: var block, ExpressionBody: var expression })
+        else if (returnType is (ScalarType.Double or ScalarType.Single)
+            && semanticModel.GetOperation(syntax, cancellationToken) is IMethodBodyOperation { BlockBody: var block, ExpressionBody: var expression })
         {
             var lowerer = new BodyLowerer(new HashSet<string>(variables.Select(BodyLowerer.Escape), StringComparer.Ordinal), diagnostics, cancellationToken);
             body = lowerer.Lower((block ?? expression)!);

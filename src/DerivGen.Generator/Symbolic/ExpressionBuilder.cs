@@ -294,6 +294,10 @@ internal sealed class ExpressionBuilder
                 return a.Arguments[0];
             case NodeKind.Subtract:
                 return Subtract(a.Arguments[1], a.Arguments[0]);
+            case NodeKind.Multiply when a.Arguments[1].Kind == NodeKind.Subtract:
+                return Multiply(a.Arguments[0], Negate(a.Arguments[1]));   // −(a·(p − q)) = a·(q − p)
+            case NodeKind.Multiply when a.Arguments[0].Kind == NodeKind.Constant:
+                return Multiply(Constant(-a.Arguments[0].Value, a.Arguments[0].Type), a.Arguments[1]);   // −(k·y) = (−k)·y
             case NodeKind.Select when IsConstantSelect(a):
                 return Select(a.Arguments[0], Negate(a.Arguments[1]), Negate(a.Arguments[2]));
             default:
