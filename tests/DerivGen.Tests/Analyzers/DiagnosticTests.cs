@@ -1,0 +1,218 @@
+using System.Threading.Tasks;
+using Xunit;
+using static DerivGen.Tests.Analyzers.AnalyzerVerifier;
+
+namespace DerivGen.Tests.Analyzers;
+
+/// <summary>One or more cases per diagnostic DG0001-DG0009, each on the exact span the spec names.</summary>
+public sealed class DiagnosticTests
+{
+    private const string Usings = "using System;\nusing DerivGen;\n\n";
+
+    [Fact]
+    public Task SupportedMethodHasNoDiagnostic() => VerifyAsync(Usings + """
+        public static partial class C
+        {
+            private static readonly double K = 2.0;
+
+            [Differentiate(nameof(a))]
+            public static double F(double a, double t, int n)
+            {
+                double s = a * t + K;
+                s *= n;
+                return Math.Exp(-s) + Math.Pow(a, 2);
+            }
+        }
+        """);
+
+    [Fact]
+    public Task DG0001CallToAUserMethod() => VerifyAsync(Usings + """
+        public static partial class C
+        {
+            private static double Helper(double v) => v * v;
+
+            [Differentiate]
+            public static double F(double x) => 2.0 * {|DG0001:Helper(x)|};
+        }
+        """);
+
+    [Fact]
+    public Task DG0001ConditionalExpression() => VerifyAsync(Usings + """
+        public static partial class C
+        {
+            [Differentiate]
+            public static double F(double x) => {|DG0001:x > 0 ? x : -x|};
+        }
+        """);
+
+    [Fact]
+    public Task DG0001LoopStatement() => VerifyAsync(Usings + """
+        public static partial class C
+        {
+            [Differentiate]
+            public static double F(double x)
+            {
+                double s = 0;
+                {|DG0001:for (int i = 0; i < 3; i++)
+                {
+                    s += x;
+                }|}
+                return s;
+            }
+        }
+        """);
+
+    [Fact]
+    public Task DG0002TypeNotPartial() => VerifyAsync(Usings + """
+        public static class C
+        {
+            [Differentiate]
+            public static double {|DG0002:F|}(double x) => x * x;
+        }
+        """);
+
+    [Fact]
+    public Task DG0002NestedInANonPartialType() => VerifyAsync(Usings + """
+        public class Outer
+        {
+            public partial class Inner
+            {
+                [Differentiate]
+                public double {|DG0002:F|}(double x) => x * x;
+            }
+        }
+        """);
+
+    [Fact]
+    public Task DG0003UnknownParameterName() => VerifyAsync(Usings + """
+        public static partial class C
+        {
+            [Differentiate(nameof(x), {|DG0003:"z"|})]
+            public static double F(double x, double y) => x * y;
+        }
+        """);
+
+    [Fact]
+    public Task DG0004IntParameterNamed() => VerifyAsync(Usings + """
+        public static partial class C
+        {
+            [Differentiate({|DG0004:nameof(n)|})]
+            public static double F(double x, int n) => x * n;
+        }
+        """);
+
+    [Fact]
+    public Task DG0004RefParameterNamed() => VerifyAsync(Usings + """
+        public static partial class C
+        {
+            [Differentiate(nameof(x), {|DG0004:nameof(y)|})]
+            public static double F(double x, ref double y) => x * y;
+        }
+        """);
+
+    [Fact]
+    public Task DG0005ReturnTypeNotFloatingPoint() => VerifyAsync(Usings + """
+        public static partial class C
+        {
+            [Differentiate]
+            public static {|DG0005:int|} F(double x) => 1;
+        }
+        """);
+
+    [Fact]
+    public Task DG0006GeneratedNameAlreadyTaken() => VerifyAsync(Usings + """
+        public static partial class C
+        {
+            public static int FGradient() => 0;
+
+            [Differentiate]
+            public static double {|DG0006:F|}(double x) => x * x;
+        }
+        """);
+
+    [Fact]
+    public Task DG0006HessianNameTaken() => VerifyAsync(Usings + """
+        public partial class C
+        {
+            public string FHessian = "";
+
+            [Differentiate]
+            public double {|DG0006:F|}(double x) => x * x;
+        }
+        """);
+
+    [Fact]
+    public Task DG0006NotReportedWhenTheHessianIsNotGenerated() => VerifyAsync(Usings + """
+        public partial class C
+        {
+            public string FHessian = "";
+
+            [Differentiate(Hessian = false)]
+            public double F(double x) => x * x;
+        }
+        """);
+
+    [Fact]
+    public Task DG0007NonSmoothFunctionOfAVariable() => VerifyAsync(Usings + """
+        public static partial class C
+        {
+            [Differentiate(nameof(x))]
+            public static double F(double x, double c) =>
+                {|DG0007:Math.Abs(x)|} + {|DG0007:Math.Max(x, c)|} + {|DG0007:Math.Floor(2 * x)|} + Math.Abs(c) + Math.Round(1.5);
+        }
+        """);
+
+    [Fact]
+    public Task DG0007ThroughALocal() => VerifyAsync(Usings + """
+        public static partial class C
+        {
+            [Differentiate]
+            public static double F(double x)
+            {
+                double u = x * 3;
+                return {|DG0007:Math.Sign(u)|} * u;
+            }
+        }
+        """);
+
+    [Fact]
+    public Task DG0007CanBeSuppressedWithPragma() => VerifySuppressibleAsync(Usings + """
+        public static partial class C
+        {
+            [Differentiate]
+            public static double F(double x) => {|DG0007:Math.Abs(x)|};
+        }
+        """);
+
+    [Fact]
+    public Task DG0007SuppressedByPragmaIsNotReported() => VerifyAsync(Usings + """
+        public static partial class C
+        {
+            [Differentiate]
+            public static double F(double x)
+            {
+        #pragma warning disable DG0007 // the kink at 0 is intended
+                return Math.Abs(x);
+        #pragma warning restore DG0007
+            }
+        }
+        """);
+
+    [Fact]
+    public Task DG0008NoFloatingPointParameter() => VerifyAsync(Usings + """
+        public static partial class C
+        {
+            [Differentiate]
+            public static double {|DG0008:F|}(int n, int m) => n * m;
+        }
+        """);
+
+    [Fact]
+    public Task DG0009ParameterNamedTwice() => VerifyAsync(Usings + """
+        public static partial class C
+        {
+            [Differentiate(nameof(x), nameof(y), {|DG0009:nameof(x)|})]
+            public static double F(double x, double y) => x * y;
+        }
+        """);
+}

@@ -1,0 +1,86 @@
+using DerivGen.Tests.Infrastructure;
+using Xunit;
+
+namespace DerivGen.Tests.Approved;
+
+/// <summary>
+/// The generated text of four representative methods, reviewed by a person and kept as baselines in this folder.
+/// A change to the emitter shows up here as a readable diff.
+/// </summary>
+public sealed class ApprovedOutputTests
+{
+    [Fact]
+    public void Rosenbrock() => Approvals.Verify(nameof(Rosenbrock), GeneratorHarness.Run("""
+        using DerivGen;
+
+        namespace Samples.Optimization;
+
+        public static partial class TestFunctions
+        {
+            /// <summary>Rosenbrock's banana function (Nocedal &amp; Wright, ch. 2).</summary>
+            [Differentiate]
+            public static double Rosenbrock(double x, double y) => (1 - x) * (1 - x) + 100 * (y - x * x) * (y - x * x);
+        }
+        """).Source("Samples.Optimization.TestFunctions.Rosenbrock.g.cs"));
+
+    [Fact]
+    public void TrigExpWithLocals() => Approvals.Verify(nameof(TrigExpWithLocals), GeneratorHarness.Run("""
+        using System;
+        using DerivGen;
+
+        namespace Samples.Signals;
+
+        public static partial class Damped
+        {
+            [Differentiate(nameof(amplitude), nameof(decay), nameof(phase))]
+            public static double Residual(double amplitude, double decay, double phase, double t, double observed)
+            {
+                double envelope = amplitude * Math.Exp(-decay * t);
+                double wave = Math.Cos(2.0 * Math.PI * t + phase);
+                double r = envelope * wave - observed;
+                r *= 0.5;
+                return r * r;
+            }
+        }
+        """).Source("Samples.Signals.Damped.Residual.g.cs"));
+
+    [Fact]
+    public void FloatMethod() => Approvals.Verify(nameof(FloatMethod), GeneratorHarness.Run("""
+        using System;
+        using DerivGen;
+
+        namespace Samples.Graphics;
+
+        internal static partial class Falloff
+        {
+            [Differentiate(Hessian = false)]
+            internal static float Light(float x, float y) => 1f / (1f + x * x + y * y) + 0.25f * MathF.Tanh(x - y);
+        }
+        """).Source("Samples.Graphics.Falloff.Light.g.cs"));
+
+    [Fact]
+    public void InstanceMethodInNestedType() => Approvals.Verify(nameof(InstanceMethodInNestedType), GeneratorHarness.Run("""
+        using System;
+        using DerivGen;
+
+        namespace Samples.Robotics;
+
+        public partial class Arm
+        {
+            private static readonly double Link1 = 1.0;
+            private static readonly double Link2 = 0.8;
+
+            public partial struct Target
+            {
+                // Squared distance from the tip of a two-link planar arm to the point (px, py).
+                [Differentiate(nameof(q1), nameof(q2))]
+                public double Miss(double q1, double q2, double px, double py)
+                {
+                    double ex = Link1 * Math.Cos(q1) + Link2 * Math.Cos(q1 + q2) - px;
+                    double ey = Link1 * Math.Sin(q1) + Link2 * Math.Sin(q1 + q2) - py;
+                    return ex * ex + ey * ey;
+                }
+            }
+        }
+        """).Source("Samples.Robotics.Arm.Target.Miss.g.cs"));
+}
