@@ -218,26 +218,20 @@ internal static class MethodParser
             text.Append("this ");
         }
 
-        text.Append(parameter.RefKind switch
-        {
-            RefKind.Ref => "ref ",
-            RefKind.In => "in ",
-            RefKind.RefReadOnlyParameter => "ref readonly ",
-            _ => string.Empty,
-        });
-        return text.ToString();
+        return text.Append(RefKindPrefix(parameter)).ToString();
     }
+
+    private static string RefKindPrefix(IParameterSymbol parameter) => parameter.RefKind switch
+    {
+        RefKind.Ref => "ref ",
+        RefKind.In => "in ",
+        RefKind.RefReadOnlyParameter => "ref readonly ",
+        _ => string.Empty,
+    };
 
     private static string CrefType(IParameterSymbol parameter)
     {
-        string prefix = parameter.RefKind switch
-        {
-            RefKind.Ref => "ref ",
-            RefKind.In => "in ",
-            RefKind.RefReadOnlyParameter => "ref readonly ",
-            _ => string.Empty,
-        };
-        return prefix + parameter.Type.ToDisplayString(SymbolDisplayFormat.FullyQualifiedFormat).Replace('<', '{').Replace('>', '}');
+        return RefKindPrefix(parameter) + parameter.Type.ToDisplayString(SymbolDisplayFormat.FullyQualifiedFormat).Replace('<', '{').Replace('>', '}');
     }
 
     private static EquatableArray<ContainingTypeSpec> ContainingTypes(INamedTypeSymbol innermost)
