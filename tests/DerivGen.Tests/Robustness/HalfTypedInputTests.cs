@@ -1,0 +1,78 @@
+using System;
+using System.Collections.Immutable;
+using System.Linq;
+using System.Threading;
+using System.Threading.Tasks;
+using DerivGen.Generator;
+using DerivGen.Generator.Diagnostics;
+using DerivGen.Tests.Infrastructure;
+using Microsoft.CodeAnalysis;
+using Microsoft.CodeAnalysis.CSharp;
+using Microsoft.CodeAnalysis.Diagnostics;
+using Xunit;
+
+namespace DerivGen.Tests.Robustness;
+
+/// <summary>
+/// The generator and the analyzer run on every keystroke, so they must survive code as it is being typed: every prefix
+/// of a real method is fed to both, and neither may throw (common practice for Roslyn components: an exception in a
+/// generator is CS8785, in an analyzer AD0001, and both break the user's build). Cancellation must be honoured.
+/// </summary>
+public sealed class HalfTypedInputTests
+{
+    private const string Method = """
+        using System;
+        using DerivGen;
+
+        public static partial class Fit
+        {
+            [Differentiate(nameof(a), nameof(k))]
+            public static double Residual(double a, double k, double t, double y)
+            {
+                double model = a * Math.Exp(-k * t) + Math.Sqrt(1 + t * t);
+                double r = model - y;
+                r *= 0.5;
+                return r * r + Math.Abs(a) * 1e-3;
+            }
+        }
+        """;
+
+    [Fact]
+    public async Task EveryPrefixOfAMethodLeavesGeneratorAndAnalyzerStanding()
+    {
+        int tried = 0;
+        for (int length = 0; length <= Method.Length; length += 3)
+        {
+            string prefix = Method.Substring(0, length);
+            CSharpCompilation compilation = GeneratorHarness.CreateCompilation(prefix);
+
+            GeneratorDriver driver = GeneratorHarness.CreateDriver().RunGenerators(compilation);
+            GeneratorRunResult result = Assert.Single(driver.GetRunResult().Results);
+            Assert.True(result.Exception is null, $"The generator threw on a prefix of {length} characters: {result.Exception}");
+
+            ImmutableArray<Diagnostic> analyzerDiagnostics = await compilation
+                .WithAnalyzers(ImmutableArray.Create<DiagnosticAnalyzer>(new DerivativeAnalyzer()))
+                .GetAllDiagnosticsAsync();
+            Assert.DoesNotContain(analyzerDiagnostics, d => d.Id == "AD0001");
+            Assert.DoesNotContain(analyzerDiagnostics, d => d.Id == DiagnosticDescriptors.InternalError.Id);
+            tried++;
+        }
+
+        Assert.True(tried > 100, "the prefixes were actually tried");
+    }
+
+    [Fact]
+    public void CancelledRunThrowsOperationCanceledAndProducesNothingHalfWritten()
+    {
+        CSharpCompilation compilation = GeneratorHarness.CreateCompilation(Method);
+        using var cancelled = new CancellationTokenSource();
+        cancelled.Cancel();
+
+        Assert.ThrowsAny<OperationCanceledException>(() =>
+            GeneratorHarness.CreateDriver().RunGenerators(compilation, cancelled.Token));
+
+        // The same driver state, not cancelled, still generates the method's file.
+        GeneratorDriver driver = GeneratorHarness.CreateDriver().RunGenerators(compilation);
+        Assert.Contains(driver.GetRunResult().GeneratedTrees, t => t.FilePath.EndsWith("Fit.Residual.g.cs", StringComparison.Ordinal));
+    }
+}
