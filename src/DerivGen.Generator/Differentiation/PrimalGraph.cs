@@ -35,7 +35,7 @@ internal static class PrimalGraph
                     if (!value.IsLeaf && value.LocalName is null)
                     {
                         // A reassigned local gets a versioned name (s, s2, s3, …), the same in code and formulas.
-                        value.LocalName = assigned.Add(assign.Local) ? assign.Local : NextVersion(assign.Local, displayNames);
+                        value.LocalName = assigned.Add(assign.Local) ? assign.Local : Identifiers.Unique(assign.Local, displayNames);
                     }
                     else
                     {
@@ -51,17 +51,6 @@ internal static class PrimalGraph
         }
 
         return result ?? throw new InvalidOperationException("The lowered body has no return statement.");
-    }
-
-    private static string NextVersion(string name, HashSet<string> taken)
-    {
-        string candidate = name;
-        for (int version = 2; !taken.Add(candidate); version++)
-        {
-            candidate = name + version.ToString(System.Globalization.CultureInfo.InvariantCulture);
-        }
-
-        return candidate;
     }
 
     private static Node Build(ExpressionBuilder b, IrExpression expression, Dictionary<string, Node> locals, IReadOnlyDictionary<string, int> variableIndex)

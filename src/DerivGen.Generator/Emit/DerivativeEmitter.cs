@@ -78,7 +78,7 @@ internal static class DerivativeEmitter
         int n = program.Variables.Length;
         string type = ExpressionWriter.TypeKeyword(spec.ReturnType);
         string methodName = context.BareName + (withHessian ? Lowering.MethodParser.HessianSuffix : Lowering.MethodParser.GradientSuffix);
-        string variableList = string.Join(", ", program.Variables.Select(Unescaped));
+        string variableList = string.Join(", ", program.Variables.Select(Identifiers.Unescape));
 
         // Documentation.
         writer.Line("/// <summary>");
@@ -96,7 +96,7 @@ internal static class DerivativeEmitter
         writer.Line("/// </remarks>");
         foreach (ParameterSpec parameter in spec.Parameters)
         {
-            writer.Line("/// <param name=\"" + Xml(Unescaped(parameter.Name)) + "\">"
+            writer.Line("/// <param name=\"" + Xml(Identifiers.Unescape(parameter.Name)) + "\">"
                 + (parameter.IsVariable ? "A differentiation variable." : "Passed to the method unchanged; held constant.") + "</param>");
         }
 
@@ -232,8 +232,6 @@ internal static class DerivativeEmitter
 
     private static string Count(int value) => value.ToString(CultureInfo.InvariantCulture);
 
-    private static string Unescaped(string name) => name.StartsWith("@", System.StringComparison.Ordinal) ? name.Substring(1) : name;
-
     private static string Xml(string text) => text.Replace("&", "&amp;").Replace("<", "&lt;").Replace(">", "&gt;").Replace("\"", "&quot;");
 
     /// <summary>What the writers of one file share: names, and the formulas in plain notation.</summary>
@@ -243,7 +241,7 @@ internal static class DerivativeEmitter
         {
             Spec = spec;
             Program = program;
-            BareName = Unescaped(spec.Name);
+            BareName = Identifiers.Unescape(spec.Name);
             var names = new TemporaryNames(spec.Parameters.Select(p => p.Name));
             GradientName = names.Claim("gradient");
             HessianName = names.Claim("hessian");
@@ -259,11 +257,11 @@ internal static class DerivativeEmitter
 
         public string HessianName { get; }
 
-        public string PartialName(int i) => "∂" + BareName + "/∂" + Unescaped(Program.Variables[i]);
+        public string PartialName(int i) => "∂" + BareName + "/∂" + Identifiers.Unescape(Program.Variables[i]);
 
         public string SecondPartialName(int i, int j) => i == j
-            ? "∂²" + BareName + "/∂" + Unescaped(Program.Variables[i]) + "²"
-            : "∂²" + BareName + "/∂" + Unescaped(Program.Variables[i]) + "∂" + Unescaped(Program.Variables[j]);
+            ? "∂²" + BareName + "/∂" + Identifiers.Unescape(Program.Variables[i]) + "²"
+            : "∂²" + BareName + "/∂" + Identifiers.Unescape(Program.Variables[i]) + "∂" + Identifiers.Unescape(Program.Variables[j]);
 
         /// <summary>The method's locals and value, its partial derivatives and (optionally) its Hessian, one per line.</summary>
         public IEnumerable<string> FormulaLines(bool includeHessian)
@@ -273,7 +271,7 @@ internal static class DerivativeEmitter
             {
                 if (local != value)
                 {
-                    yield return Unescaped(local.LocalName!) + " = " + Formula(local);
+                    yield return Identifiers.Unescape(local.LocalName!) + " = " + Formula(local);
                 }
             }
 
@@ -308,7 +306,7 @@ internal static class DerivativeEmitter
 
         private static string Formula(Node node)
         {
-            var writer = new ExpressionWriter(x => x != node && x.LocalName is not null ? Unescaped(x.LocalName) : null, formula: true, MaxFormulaLength);
+            var writer = new ExpressionWriter(x => x != node && x.LocalName is not null ? Identifiers.Unescape(x.LocalName) : null, formula: true, MaxFormulaLength);
             return writer.TryWrite(node) ?? "(too long to show here; see the code)";
         }
     }

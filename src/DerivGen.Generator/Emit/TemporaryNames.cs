@@ -21,21 +21,14 @@ internal sealed class TemporaryNames
     {
         foreach (string name in reserved)
         {
-            _taken.Add(Unescaped(name));
+            _taken.Add(Identifiers.Unescape(name));
         }
     }
 
     /// <summary>Reserves and returns <paramref name="wanted"/>, or wanted2, wanted3, … if it is taken.</summary>
     public string Claim(string wanted)
     {
-        string bare = Unescaped(wanted);
-        string candidate = bare;
-        for (int suffix = 2; !_taken.Add(candidate); suffix++)
-        {
-            candidate = bare + suffix.ToString(CultureInfo.InvariantCulture);
-        }
-
-        return BodyLowerer.Escape(candidate);
+        return Identifiers.Escape(Identifiers.Unique(Identifiers.Unescape(wanted), _taken));
     }
 
     /// <summary>A fresh name for a node's temporary, descriptive where the node's shape allows.</summary>
@@ -80,7 +73,7 @@ internal sealed class TemporaryNames
             return null;
         }
 
-        name = Unescaped(name);
+        name = Identifiers.Unescape(name);
         foreach (char c in name)
         {
             if (!char.IsLetterOrDigit(c) && c != '_')
@@ -91,8 +84,6 @@ internal sealed class TemporaryNames
 
         return name;
     }
-
-    private static string Unescaped(string name) => name.StartsWith("@", StringComparison.Ordinal) ? name.Substring(1) : name;
 
     private static string Lower(string name) => char.ToLowerInvariant(name[0]) + name.Substring(1);
 

@@ -194,12 +194,7 @@ internal sealed class BodyLowerer
 
     private string DeclareLocal(ILocalSymbol local)
     {
-        string name = local.Name;
-        for (int suffix = 2; !_usedLocalNames.Add(name); suffix++)
-        {
-            name = local.Name + suffix.ToString(System.Globalization.CultureInfo.InvariantCulture);
-        }
-
+        string name = Identifiers.Unique(local.Name, _usedLocalNames);
         _localNames[local] = name;
         return name;
     }
@@ -242,7 +237,7 @@ internal sealed class BodyLowerer
             case IParameterReferenceOperation parameter:
                 if (ScalarTypeOf(parameter.Parameter.Type) is { } parameterType)
                 {
-                    return new IrParameter(Escape(parameter.Parameter.Name), parameterType);
+                    return new IrParameter(Identifiers.Escape(parameter.Parameter.Name), parameterType);
                 }
 
                 return Unsupported(operation, $"the use of parameter '{parameter.Parameter.Name}' of type '{parameter.Parameter.Type.ToDisplayString()}'",
@@ -272,14 +267,14 @@ internal sealed class BodyLowerer
                 return LowerInvocation(invocation);
 
             case IFieldReferenceOperation { Field: { IsStatic: true, IsReadOnly: true } field } when ScalarTypeOf(field.Type) is { } fieldType:
-                return new IrExternal(FullyQualified(field.ContainingType) + "." + Escape(field.Name), fieldType);
+                return new IrExternal(FullyQualified(field.ContainingType) + "." + Identifiers.Escape(field.Name), fieldType);
 
             case IFieldReferenceOperation field:
                 return Unsupported(operation, $"the field '{field.Field.Name}'",
                     field.Field.IsStatic ? "only const and static readonly fields are read as constants" : "instance fields come in a later version; pass the value as a parameter");
 
             case IPropertyReferenceOperation { Property: { IsStatic: true, IsIndexer: false, GetMethod: not null } property } when ScalarTypeOf(property.Type) is { } propertyType:
-                return new IrExternal(FullyQualified(property.ContainingType) + "." + Escape(property.Name), propertyType);
+                return new IrExternal(FullyQualified(property.ContainingType) + "." + Identifiers.Escape(property.Name), propertyType);
 
             case IPropertyReferenceOperation property:
                 return Unsupported(operation, $"the property '{property.Property.Name}'", "only static properties of double, float or int type are read as constants");
@@ -447,9 +442,6 @@ internal sealed class BodyLowerer
     }
 
     internal static string FullyQualified(ITypeSymbol type) => type.ToDisplayString(SymbolDisplayFormat.FullyQualifiedFormat);
-
-    internal static string Escape(string identifier) =>
-        Microsoft.CodeAnalysis.CSharp.SyntaxFacts.GetKeywordKind(identifier) != Microsoft.CodeAnalysis.CSharp.SyntaxKind.None ? "@" + identifier : identifier;
 
     private static string Text(IOperation operation)
     {

@@ -95,7 +95,7 @@ internal static class MethodParser
         else if (returnType is (ScalarType.Double or ScalarType.Single)
             && semanticModel.GetOperation(syntax, cancellationToken) is IMethodBodyOperation { BlockBody: var block, ExpressionBody: var expression })
         {
-            var lowerer = new BodyLowerer(new HashSet<string>(variables.Select(BodyLowerer.Escape), StringComparer.Ordinal), diagnostics, cancellationToken);
+            var lowerer = new BodyLowerer(new HashSet<string>(variables.Select(Identifiers.Escape), StringComparer.Ordinal), diagnostics, cancellationToken);
             body = lowerer.Lower((block ?? expression)!);
         }
 
@@ -108,12 +108,12 @@ internal static class MethodParser
             HintName: HintName(method),
             Namespace: method.ContainingNamespace is { IsGlobalNamespace: false } ns ? ns.ToDisplayString() : null,
             ContainingTypes: ContainingTypes(method.ContainingType),
-            Name: BodyLowerer.Escape(method.Name),
+            Name: Identifiers.Escape(method.Name),
             Accessibility: AccessibilityText(method.DeclaredAccessibility),
             IsStatic: method.IsStatic,
             ReturnType: returnType.Value,
             Parameters: method.Parameters.Select(p => new ParameterSpec(
-                BodyLowerer.Escape(p.Name),
+                Identifiers.Escape(p.Name),
                 Modifiers(p, method),
                 p.Type.ToDisplayString(SymbolDisplayFormat.FullyQualifiedFormat.AddMiscellaneousOptions(SymbolDisplayMiscellaneousOptions.IncludeNullableReferenceTypeModifier)),
                 variables.Contains(p.Name))).ToEquatableArray(),
@@ -248,10 +248,10 @@ internal static class MethodParser
                 { TypeKind: TypeKind.Struct } => "struct",
                 _ => "class",
             };
-            string name = BodyLowerer.Escape(type.Name);
+            string name = Identifiers.Escape(type.Name);
             if (type.TypeParameters.Length > 0)
             {
-                name += "<" + string.Join(", ", type.TypeParameters.Select(t => BodyLowerer.Escape(t.Name))) + ">";
+                name += "<" + string.Join(", ", type.TypeParameters.Select(t => Identifiers.Escape(t.Name))) + ">";
             }
 
             types.Insert(0, new ContainingTypeSpec(keyword, name));
