@@ -1,3 +1,4 @@
+using System;
 using System.Collections.Generic;
 using System.Linq;
 using DerivGen.Generator.Model;
@@ -5,21 +6,73 @@ using DerivGen.Generator.Symbolic;
 
 namespace DerivGen.Generator.Differentiation;
 
-/// <summary>The value, gradient and (lower triangle of the) Hessian of one method, as nodes of one DAG.</summary>
+/// <summary>
+/// The running derivatives of one loop-carried local: locals of the generated code holding ∂s/∂vₖ (and ∂²s/∂vₖ∂vⱼ),
+/// initialised before the loop and updated at the end of every iteration from the local's update by the chain rule.
+/// This is forward mode through the loop (each carried value carries its gradient), with each iteration's local
+/// derivatives taken by a reverse sweep of its body — so sums, products and recurrences are all handled the same way.
+/// </summary>
+internal sealed class StateDerivatives
+{
+    public StateDerivatives(LoopState state, string[] gradientNames, Node[] current, Node[] final)
+    {
+        State = state;
+        GradientNames = gradientNames;
+        CurrentGradient = current;
+        FinalGradient = final;
+    }
+
+    public LoopState State { get; }
+
+    /// <summary>Names of the locals holding ∂s/∂vₖ.</summary>
+    public string[] GradientNames { get; }
+
+    /// <summary>Leaves reading those locals inside the loop, and after it.</summary>
+    public Node[] CurrentGradient { get; }
+
+    public Node[] FinalGradient { get; }
+
+    /// <summary>Values before the loop and at the end of an iteration.</summary>
+    public Node[] InitialGradient { get; set; } = Array.Empty<Node>();
+
+    public Node[] NextGradient { get; set; } = Array.Empty<Node>();
+
+    /// <summary>The same for ∂²s/∂vₖ∂vⱼ, j ≤ k (Hessian method only; null otherwise).</summary>
+    public string[][]? HessianNames { get; set; }
+
+    public Node[][]? CurrentHessian { get; set; }
+
+    public Node[][]? FinalHessian { get; set; }
+
+    public Node[][]? InitialHessian { get; set; }
+
+    public Node[][]? NextHessian { get; set; }
+}
+
+/// <summary>The value, gradient and (lower triangle of the) Hessian of one method, as nodes of one DAG, plus its loops.</summary>
 internal sealed class DerivativeProgram
 {
-    private DerivativeProgram(ExpressionBuilder builder, Node value, Node[] gradient, Node[][]? hessian, string[] variables)
+    private DerivativeProgram(ExpressionBuilder builder, ProgramGraph graph, Node[] gradient, Node[][]? hessian, string[] variables,
+        IReadOnlyDictionary<LoopState, StateDerivatives> states)
     {
         Builder = builder;
-        Value = value;
+        Value = graph.Value;
+        Loops = graph.Loops;
         Gradient = gradient;
         Hessian = hessian;
         Variables = variables;
+        States = states;
     }
 
     public ExpressionBuilder Builder { get; }
 
     public Node Value { get; }
+
+    /// <summary>The method's loops, in order.</summary>
+    public IReadOnlyList<LoopSegment> Loops { get; }
+
+    /// <summary>The running derivatives of every active loop-carried local.</summary>
+    public IReadOnlyDictionary<LoopState, StateDerivatives> States { get; }
 
     /// <summary>∂f/∂vᵢ in variable order.</summary>
     public Node[] Gradient { get; }
@@ -30,41 +83,178 @@ internal sealed class DerivativeProgram
     /// <summary>The variables' parameter names, in order.</summary>
     public string[] Variables { get; }
 
-    /// <summary>The Differentiate stage: IR → value DAG → gradient by a reverse sweep → Hessian by tangent sweeps.</summary>
+    /// <summary>Names of the locals that hold loop-carried values and their running derivatives.</summary>
+    public IEnumerable<string> StateNames =>
+        Loops.SelectMany(l => l.States).Select(s => s.Name)
+            .Concat(States.Values.SelectMany(d => d.GradientNames.Concat(d.HessianNames?.SelectMany(r => r) ?? Enumerable.Empty<string>())));
+
+    /// <summary>The Differentiate stage: IR → value DAG → gradient by reverse sweeps → Hessian by tangent sweeps.</summary>
     public static DerivativeProgram Create(MethodSpec spec, System.Threading.CancellationToken cancellationToken)
     {
         var builder = new ExpressionBuilder(cancellationToken);
         string[] variables = spec.Parameters.Where(p => p.IsVariable).Select(p => p.Name).ToArray();
-        var index = new Dictionary<string, int>(System.StringComparer.Ordinal);
-        for (int i = 0; i < variables.Length; i++)
+        int n = variables.Length;
+        var index = new Dictionary<string, int>(StringComparer.Ordinal);
+        for (int i = 0; i < n; i++)
         {
             index[variables[i]] = i;
         }
 
-        Node value = PrimalGraph.Build(builder, spec, index);
-        Node[] gradient = ReverseSweep.Gradient(builder, value, variables.Length);
+        ProgramGraph graph = ProgramGraph.Build(builder, spec, index);
+
+        // Names for the running derivatives, clear of every parameter and local of the method.
+        var taken = new HashSet<string>(spec.Parameters.Select(p => Identifiers.Unescape(p.Name)), StringComparer.Ordinal) { "gradient", "hessian", "value" };
+        foreach (LoopState state in graph.Loops.SelectMany(l => l.States))
+        {
+            taken.Add(state.Name);
+        }
+
+        CollectNames(spec.Body, taken);
+        var states = new Dictionary<LoopState, StateDerivatives>();
+        var leafGradient = new Dictionary<Node, Node[]>();
+        var leafHessian = new Dictionary<Node, Node[][]>();
+        var gradientLeafOf = new Dictionary<Node, (Node Leaf, int K)>();
+        var gradientNamesOf = new Dictionary<string, string[]>(StringComparer.Ordinal);
+        var hessianNamesOf = new Dictionary<string, string[][]>(StringComparer.Ordinal);
+        foreach (LoopSegment loop in graph.Loops)
+        {
+            foreach (LoopState state in loop.States.Where(s => s.IsActive))
+            {
+                // A local carried through several loops keeps the same running-derivative locals in all of them.
+                if (!gradientNamesOf.TryGetValue(state.Name, out string[]? names))
+                {
+                    names = variables.Select(v => Identifiers.Unique("d" + Capital(state.Name) + "_d" + Capital(v), taken)).ToArray();
+                    gradientNamesOf[state.Name] = names;
+                }
+
+                var derivatives = new StateDerivatives(state, names,
+                    names.Select(name => builder.StageLeaf(name, state.Type, loop.InsideStage, isActive: true)).ToArray(),
+                    names.Select(name => builder.StageLeaf(name, state.Type, loop.InsideStage + 1, isActive: true)).ToArray());
+                if (spec.EmitHessian)
+                {
+                    if (!hessianNamesOf.TryGetValue(state.Name, out string[][]? hessianNames))
+                    {
+                        hessianNames = Enumerable.Range(0, n).Select(k => Enumerable.Range(0, k + 1).Select(j =>
+                            Identifiers.Unique("d2" + Capital(state.Name) + "_d" + Capital(variables[k]) + (j == k ? "2" : "d" + Capital(variables[j])), taken)).ToArray()).ToArray();
+                        hessianNamesOf[state.Name] = hessianNames;
+                    }
+
+                    derivatives.HessianNames = hessianNames;
+                    derivatives.CurrentHessian = derivatives.HessianNames.Select(row => row.Select(name => builder.StageLeaf(name, state.Type, loop.InsideStage, true)).ToArray()).ToArray();
+                    derivatives.FinalHessian = derivatives.HessianNames.Select(row => row.Select(name => builder.StageLeaf(name, state.Type, loop.InsideStage + 1, true)).ToArray()).ToArray();
+                    Register(state.Current, derivatives.CurrentGradient, derivatives.CurrentHessian);
+                    Register(state.Final, derivatives.FinalGradient, derivatives.FinalHessian);
+                }
+                else
+                {
+                    leafGradient[state.Current] = derivatives.CurrentGradient;
+                    leafGradient[state.Final] = derivatives.FinalGradient;
+                }
+
+                states[state] = derivatives;
+            }
+        }
+
+        void Register(Node leaf, Node[] gradientLeaves, Node[][] hessianLeaves)
+        {
+            leafGradient[leaf] = gradientLeaves;
+            leafHessian[leaf] = hessianLeaves;
+            for (int k = 0; k < gradientLeaves.Length; k++)
+            {
+                gradientLeafOf[gradientLeaves[k]] = (leaf, k);
+            }
+        }
+
+        Node[]? KnownGradient(Node leaf) => leafGradient.TryGetValue(leaf, out Node[]? known) ? known : null;
+
+        // First order: reverse sweeps, with the chain rule through loop-carried values.
+        foreach (StateDerivatives d in states.Values)
+        {
+            d.InitialGradient = Typed(ReverseSweep.Gradient(builder, d.State.Initial, n, KnownGradient), d.State.Type);
+            d.NextGradient = Typed(ReverseSweep.Gradient(builder, d.State.Next, n, KnownGradient), d.State.Type);
+        }
+
+        Node[] gradient = ReverseSweep.Gradient(builder, graph.Value, n, KnownGradient);
+
+        // Second order: one tangent sweep per variable over every first-order expression (forward over reverse).
         Node[][]? hessian = null;
         if (spec.EmitHessian)
         {
-            hessian = new Node[variables.Length][];
-            for (int i = 0; i < variables.Length; i++)
+            hessian = Enumerable.Range(0, n).Select(i => new Node[i + 1]).ToArray();
+            foreach (StateDerivatives d in states.Values)
             {
-                hessian[i] = new Node[i + 1];
+                d.InitialHessian = Enumerable.Range(0, n).Select(k => new Node[k + 1]).ToArray();
+                d.NextHessian = Enumerable.Range(0, n).Select(k => new Node[k + 1]).ToArray();
             }
 
-            for (int j = 0; j < variables.Length; j++)
+            var roots = gradient.Concat(states.Values.SelectMany(d => d.InitialGradient.Concat(d.NextGradient))).ToList();
+            for (int j = 0; j < n; j++)
             {
                 cancellationToken.ThrowIfCancellationRequested();
-                Dictionary<Node, Node> column = TangentSweep.Derivatives(builder, gradient, j);
-                for (int i = j; i < variables.Length; i++)
+                int column = j;
+                Node? LeafTangent(Node leaf)
                 {
-                    hessian[i][j] = builder.Convert(column[gradient[i]], spec.ReturnType);   // ∂(∂f/∂vᵢ)/∂vⱼ, j ≤ i
+                    if (leafGradient.TryGetValue(leaf, out Node[]? first))
+                    {
+                        return first[column];                                   // D_j(s) = ∂s/∂v_j
+                    }
+
+                    if (gradientLeafOf.TryGetValue(leaf, out var of))
+                    {
+                        Node[][] second = leafHessian[of.Leaf];                // D_j(∂s/∂v_k) = ∂²s/∂v_k∂v_j
+                        return of.K >= column ? second[of.K][column] : second[column][of.K];
+                    }
+
+                    return null;
+                }
+
+                Dictionary<Node, Node> tangents = TangentSweep.Derivatives(builder, roots, j, LeafTangent);
+                for (int i = j; i < n; i++)
+                {
+                    hessian[i][j] = builder.Convert(tangents[gradient[i]], spec.ReturnType);   // ∂(∂f/∂vᵢ)/∂vⱼ, j ≤ i
+                }
+
+                foreach (StateDerivatives d in states.Values)
+                {
+                    for (int k = j; k < n; k++)
+                    {
+                        d.InitialHessian![k][j] = builder.Convert(tangents[d.InitialGradient[k]], d.State.Type);
+                        d.NextHessian![k][j] = builder.Convert(tangents[d.NextGradient[k]], d.State.Type);
+                    }
                 }
             }
         }
 
         // Mixed float/double code can give a derivative of the wider type; the spans hold the method's own type.
-        gradient = gradient.Select(g => builder.Convert(g, spec.ReturnType)).ToArray();
-        return new DerivativeProgram(builder, value, gradient, hessian, variables);
+        return new DerivativeProgram(builder, graph, Typed(gradient, spec.ReturnType), hessian, variables, states);
+
+        Node[] Typed(Node[] nodes, ScalarType type) => nodes.Select(g => builder.Convert(g, type)).ToArray();
+    }
+
+    private static string Capital(string name)
+    {
+        string bare = Identifiers.Unescape(name);
+        return bare.Length == 0 ? bare : char.ToUpperInvariant(bare[0]) + bare.Substring(1);
+    }
+
+    private static void CollectNames(EquatableArray<IrStatement> statements, HashSet<string> names)
+    {
+        foreach (IrStatement statement in statements)
+        {
+            switch (statement)
+            {
+                case IrAssign assign:
+                    names.Add(assign.Local);
+                    break;
+                case IrIf branch:
+                    CollectNames(branch.Then, names);
+                    CollectNames(branch.Else, names);
+                    break;
+                case IrFor loop:
+                    names.Add(loop.Index);
+                    CollectNames(loop.Body, names);
+                    break;
+            }
+        }
     }
 }

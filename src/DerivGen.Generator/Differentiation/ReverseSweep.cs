@@ -1,3 +1,4 @@
+using System;
 using System.Collections.Generic;
 using System.Linq;
 using DerivGen.Generator.Symbolic;
@@ -9,10 +10,15 @@ namespace DerivGen.Generator.Differentiation;
 /// output towards the inputs (decreasing id is a reverse topological order), each node adds adjoint × local partial
 /// to each argument's adjoint. The cost is a small constant times the size of the DAG — the cheap-gradient principle
 /// (Griewank &amp; Walther, Evaluating Derivatives, 2nd ed., SIAM 2008, ch. 3–4).
+/// <para>
+/// Leaves that stand for values computed elsewhere (a loop-carried local, whose own gradient is kept in running
+/// locals) contribute through their known gradient by the chain rule: ∂f/∂vₖ += adjoint(leaf) · ∂leaf/∂vₖ.
+/// </para>
 /// </summary>
 internal static class ReverseSweep
 {
-    public static Node[] Gradient(ExpressionBuilder b, Node output, int variableCount)
+    /// <param name="leafGradient">For an active leaf that is not a variable, its gradient (one node per variable).</param>
+    public static Node[] Gradient(ExpressionBuilder b, Node output, int variableCount, Func<Node, Node[]?>? leafGradient = null)
     {
         var gradient = new Node[variableCount];
         for (int i = 0; i < variableCount; i++)
@@ -40,7 +46,19 @@ internal static class ReverseSweep
 
             if (node.VariableIndex >= 0)
             {
-                gradient[node.VariableIndex] = adjoint;
+                gradient[node.VariableIndex] = b.Add(gradient[node.VariableIndex], adjoint);
+                continue;
+            }
+
+            if (node.Arguments.Length == 0)
+            {
+                Node[] known = leafGradient?.Invoke(node)
+                    ?? throw new InvalidOperationException("No gradient is known for the active leaf " + node.Text + ".");
+                for (int k = 0; k < variableCount; k++)
+                {
+                    gradient[k] = b.Add(gradient[k], b.Multiply(adjoint, known[k]));
+                }
+
                 continue;
             }
 

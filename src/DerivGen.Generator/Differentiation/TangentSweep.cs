@@ -1,5 +1,7 @@
+using System;
 using System.Collections.Generic;
 using System.Linq;
+using DerivGen.Generator.Model;
 using DerivGen.Generator.Symbolic;
 
 namespace DerivGen.Generator.Differentiation;
@@ -8,24 +10,32 @@ namespace DerivGen.Generator.Differentiation;
 /// Directional (tangent, forward-mode) derivatives of a set of DAG nodes with respect to one variable:
 /// Dⱼ(f) = Σᵢ ∂f/∂xᵢ · Dⱼ(xᵢ), visited in increasing id order (a topological order). Applied to the gradient's
 /// nodes this is forward-over-reverse: Dⱼ(∂f/∂xᵢ) is the Hessian entry Hᵢⱼ, so one sweep per variable gives one
-/// Hessian column, at a cost of a small constant times the gradient's DAG.
+/// Hessian column, at a cost of a small constant times the gradient's DAG. Active leaves that are not variables
+/// (loop-carried values and their running derivatives) take their tangent from <c>leafTangent</c>.
 /// </summary>
 internal static class TangentSweep
 {
-    public static Dictionary<Node, Node> Derivatives(ExpressionBuilder b, IReadOnlyList<Node> roots, int variable)
+    public static Dictionary<Node, Node> Derivatives(ExpressionBuilder b, IReadOnlyList<Node> roots, int variable, Func<Node, Node?>? leafTangent = null)
     {
         var tangents = new Dictionary<Node, Node>();
         foreach (Node node in Graph.Reachable(roots).OrderBy(n => n.Id))
         {
             if (!node.DependsOnVariables)
             {
-                tangents[node] = b.Zero(node.Type is Model.ScalarType.Single ? Model.ScalarType.Single : Model.ScalarType.Double);
+                tangents[node] = b.Zero(node.Type is ScalarType.Single ? ScalarType.Single : ScalarType.Double);
                 continue;
             }
 
             if (node.VariableIndex >= 0)
             {
                 tangents[node] = node.VariableIndex == variable ? b.One(node.Type) : b.Zero(node.Type);
+                continue;
+            }
+
+            if (node.Arguments.Length == 0)
+            {
+                tangents[node] = leafTangent?.Invoke(node)
+                    ?? throw new InvalidOperationException("No tangent is known for the active leaf " + node.Text + ".");
                 continue;
             }
 

@@ -1,3 +1,4 @@
+using System;
 using System.Collections.Generic;
 using System.Globalization;
 using System.Linq;
@@ -144,39 +145,70 @@ internal static class DerivativeEmitter
         writer.Line();
     }
 
+    /// <summary>One assignment of a loop-carried local (or of one of its running derivatives) in the generated code.</summary>
+    private readonly record struct StateUpdate(string Target, ScalarType Type, Node Value);
+
     private static void WriteBody(IndentedWriter writer, EmitContext context, bool withHessian)
     {
         DerivativeProgram program = context.Program;
         int n = program.Variables.Length;
-        var roots = new List<Node> { program.Value };
-        roots.AddRange(program.Gradient);
+        int finalStage = 2 * program.Loops.Count;
+
+        // Every expression the method needs, with the stage at which it is used.
+        var roots = new List<(Node Node, int UseStage)> { (program.Value, finalStage) };
+        roots.AddRange(program.Gradient.Select(g => (g, finalStage)));
         if (withHessian)
         {
-            roots.AddRange(program.Hessian!.SelectMany(row => row));
+            roots.AddRange(program.Hessian!.SelectMany(row => row).Select(h => (h, finalStage)));
         }
 
-        // Which nodes get a local: the user's named locals, the value, and every node used more than once.
+        var initial = new Dictionary<LoopSegment, List<StateUpdate>>();
+        var next = new Dictionary<LoopSegment, List<StateUpdate>>();
+        foreach (LoopSegment loop in program.Loops)
+        {
+            initial[loop] = StateUpdates(program, loop, withHessian, before: true);
+            next[loop] = StateUpdates(program, loop, withHessian, before: false);
+            roots.Add((loop.Start, loop.InsideStage - 1));
+            roots.Add((loop.End, loop.InsideStage - 1));
+            roots.AddRange(initial[loop].Select(u => (u.Value, loop.InsideStage - 1)));
+            roots.AddRange(next[loop].Select(u => (u.Value, loop.InsideStage)));
+        }
+
+        // Which nodes get a local: the user's named locals, the value, every node used more than once, and every node
+        // used at a later stage than its own (computed once before a loop rather than in every iteration).
         var uses = new Dictionary<Node, int>();
-        HashSet<Node> reachable = Graph.Reachable(roots);
+        var hoisted = new HashSet<Node>();
+        HashSet<Node> reachable = Graph.Reachable(roots.Select(r => r.Node));
         foreach (Node node in reachable)
         {
             foreach (Node argument in node.Arguments)
             {
                 uses[argument] = uses.TryGetValue(argument, out int count) ? count + 1 : 1;
+                if (argument.Stage < node.Stage)
+                {
+                    hoisted.Add(argument);
+                }
             }
         }
 
-        foreach (Node root in roots)
+        foreach ((Node root, int useStage) in roots)
         {
             uses[root] = uses.TryGetValue(root, out int count) ? count + 1 : 1;
+            if (root.Stage < useStage)
+            {
+                hoisted.Add(root);
+            }
         }
 
         List<Node> temporaries = reachable
-            .Where(node => !node.IsLeaf && (node == program.Value || node.LocalName is not null || uses[node] >= 2))
+            .Where(node => !node.IsLeaf && (node == program.Value || node.LocalName is not null || uses[node] >= 2 || hoisted.Contains(node)))
             .OrderBy(node => node.Id)
             .ToList();
 
-        var reserved = context.Spec.Parameters.Select(p => p.Name).Concat(new[] { context.GradientName, context.HessianName });
+        var reserved = context.Spec.Parameters.Select(p => p.Name)
+            .Concat(new[] { context.GradientName, context.HessianName })
+            .Concat(program.StateNames)
+            .Concat(program.Loops.Select(l => l.Index));
         var names = new TemporaryNames(reserved);
         var nameOf = new Dictionary<Node, string>();
         if (!program.Value.IsLeaf && program.Value.LocalName is null)
@@ -195,18 +227,71 @@ internal static class DerivativeEmitter
         }
 
         var code = new ExpressionWriter(node => nameOf.TryGetValue(node, out string? name) ? name : null, formula: false);
-        foreach (Node node in temporaries)
+        var declared = new HashSet<string>(StringComparer.Ordinal);
+
+        void WriteTemporaries(int stage)
         {
-            // A temporary is written with its own definition, not its name.
-            string definition = new ExpressionWriter(x => x == node ? null : nameOf.TryGetValue(x, out string? name) ? name : null, formula: false).Write(node);
-            writer.Line(ExpressionWriter.TypeKeyword(node.Type) + " " + nameOf[node] + " = " + definition + ";");
+            foreach (Node node in temporaries.Where(t => t.Stage == stage))
+            {
+                // A temporary is written with its own definition, not its name.
+                string definition = new ExpressionWriter(x => x == node ? null : nameOf.TryGetValue(x, out string? name) ? name : null, formula: false).Write(node);
+                writer.Line(ExpressionWriter.TypeKeyword(node.Type) + " " + nameOf[node] + " = " + definition + ";");
+            }
         }
 
-        if (temporaries.Count > 0)
+        WriteTemporaries(0);
+        foreach (LoopSegment loop in program.Loops)
         {
-            writer.Line();
+            // Before the loop: the carried locals and their running derivatives start from their values here.
+            foreach (StateUpdate update in initial[loop])
+            {
+                if (IsSameLocal(update))
+                {
+                    continue; // Carried on from an earlier loop unchanged.
+                }
+
+                string prefix = declared.Add(update.Target) ? ExpressionWriter.TypeKeyword(update.Type) + " " : string.Empty;
+                writer.Line(prefix + update.Target + " = " + code.Write(update.Value) + ";");
+            }
+
+            string index = loop.Index;
+            using (writer.Block("for (int " + index + " = " + code.Write(loop.Start) + "; " + index + (loop.Inclusive ? " <= " : " < ") + code.Write(loop.End) + "; " + index + "++)"))
+            {
+                WriteTemporaries(loop.InsideStage);
+
+                // The end of an iteration: every new value is computed from the old ones before any is assigned.
+                var assignments = new List<(string Target, string Source)>();
+                foreach (StateUpdate update in next[loop])
+                {
+                    if (IsSameLocal(update))
+                    {
+                        continue;
+                    }
+
+                    string source;
+                    if (nameOf.TryGetValue(update.Value, out string? existing) || update.Value.Kind == NodeKind.Constant)
+                    {
+                        source = existing ?? code.Write(update.Value);
+                    }
+                    else
+                    {
+                        source = names.Claim(Identifiers.Unescape(update.Target) + "Next");
+                        writer.Line(ExpressionWriter.TypeKeyword(update.Type) + " " + source + " = " + code.Write(update.Value) + ";");
+                    }
+
+                    assignments.Add((update.Target, source));
+                }
+
+                foreach ((string target, string source) in assignments)
+                {
+                    writer.Line(target + " = " + source + ";");
+                }
+            }
+
+            WriteTemporaries(loop.InsideStage + 1);
         }
 
+        writer.Line();
         for (int i = 0; i < n; i++)
         {
             writer.Line(context.GradientName + "[" + Count(i) + "] = " + code.Write(program.Gradient[i]) + "; // " + context.PartialName(i));
@@ -228,6 +313,44 @@ internal static class DerivativeEmitter
 
         writer.Line();
         writer.Line("return " + code.Write(program.Value) + ";");
+    }
+
+    /// <summary>An update that only reads the local it assigns (a local carried on unchanged).</summary>
+    private static bool IsSameLocal(StateUpdate update) =>
+        update.Value.Kind == NodeKind.Parameter && update.Value.Text == update.Target;
+
+    /// <summary>The assignments of a loop's carried locals and running derivatives, before the loop or at the end of an iteration.</summary>
+    private static List<StateUpdate> StateUpdates(DerivativeProgram program, LoopSegment loop, bool withHessian, bool before)
+    {
+        var updates = new List<StateUpdate>();
+        foreach (LoopState state in loop.States)
+        {
+            updates.Add(new StateUpdate(state.Name, state.Type, before ? state.Initial : state.Next));
+            if (!program.States.TryGetValue(state, out StateDerivatives? d))
+            {
+                continue;
+            }
+
+            Node[] gradient = before ? d.InitialGradient : d.NextGradient;
+            for (int k = 0; k < gradient.Length; k++)
+            {
+                updates.Add(new StateUpdate(d.GradientNames[k], state.Type, gradient[k]));
+            }
+
+            if (withHessian)
+            {
+                Node[][] hessian = (before ? d.InitialHessian : d.NextHessian)!;
+                for (int k = 0; k < hessian.Length; k++)
+                {
+                    for (int j = 0; j <= k; j++)
+                    {
+                        updates.Add(new StateUpdate(d.HessianNames![k][j], state.Type, hessian[k][j]));
+                    }
+                }
+            }
+        }
+
+        return updates;
     }
 
     private static string Count(int value) => value.ToString(CultureInfo.InvariantCulture);

@@ -16,11 +16,14 @@ namespace DerivGen.Generator.Emit;
 internal sealed class ExpressionWriter
 {
     private const int Conditional = 1;
-    private const int Relational = 3;
-    private const int Additive = 4;
-    private const int Multiplicative = 5;
-    private const int Unary = 6;
-    private const int Primary = 7;
+    private const int ConditionalOr = 2;
+    private const int ConditionalAnd = 3;
+    private const int Equality = 4;
+    private const int Relational = 5;
+    private const int Additive = 6;
+    private const int Multiplicative = 7;
+    private const int Unary = 8;
+    private const int Primary = 9;
 
     private readonly Func<Node, string?> _nameOf;
     private readonly bool _formula;
@@ -142,14 +145,45 @@ internal sealed class ExpressionWriter
                 return true;
 
             case NodeKind.Compare:
+            {
                 string comparison = node.Comparison switch
                 {
                     Comparison.Less => " < ",
                     Comparison.LessOrEqual => _formula ? " ≤ " : " <= ",
                     Comparison.Greater => " > ",
-                    _ => _formula ? " ≥ " : " >= ",
+                    Comparison.GreaterOrEqual => _formula ? " ≥ " : " >= ",
+                    Comparison.Equal => " == ",
+                    _ => _formula ? " ≠ " : " != ",
                 };
-                return Write(node.Arguments[0], Relational + 1, text) && Append(text, comparison) && Write(node.Arguments[1], Relational + 1, text);
+                int precedence = Precedence(node);
+                return Write(node.Arguments[0], precedence + 1, text) && Append(text, comparison) && Write(node.Arguments[1], precedence + 1, text);
+            }
+
+            case NodeKind.And:
+            case NodeKind.Or:
+            {
+                int precedence = Precedence(node);
+                return Write(node.Arguments[0], precedence, text)
+                    && Append(text, node.Kind == NodeKind.And ? " && " : " || ")
+                    && Write(node.Arguments[1], precedence + 1, text);
+            }
+
+            case NodeKind.Not:
+                text.Append('!');
+                return Write(node.Arguments[0], Primary, text);
+
+            case NodeKind.Element:
+                text.Append(node.Text).Append('[');
+                for (int i = 0; i < node.Arguments.Length; i++)
+                {
+                    if ((i > 0 && !Append(text, ", ")) || !Write(node.Arguments[i], Conditional, text))
+                    {
+                        return false;
+                    }
+                }
+
+                text.Append(']');
+                return true;
 
             case NodeKind.Select:
                 return Write(node.Arguments[0], Conditional + 1, text)
@@ -181,7 +215,10 @@ internal sealed class ExpressionWriter
             NodeKind.Convert => _formula ? Primary : Unary,
             NodeKind.Add or NodeKind.Subtract => Additive,
             NodeKind.Multiply or NodeKind.Divide => Multiplicative,
-            NodeKind.Compare => Relational,
+            NodeKind.Compare => node.Comparison is Comparison.Equal or Comparison.NotEqual ? Equality : Relational,
+            NodeKind.And => ConditionalAnd,
+            NodeKind.Or => ConditionalOr,
+            NodeKind.Not => Unary,
             NodeKind.Select => Conditional,
             _ => Primary,
         };

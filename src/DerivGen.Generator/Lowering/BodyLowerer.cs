@@ -1,5 +1,7 @@
 using System;
 using System.Collections.Generic;
+using System.Collections.Immutable;
+using System.Linq;
 using System.Threading;
 using DerivGen.Generator.Diagnostics;
 using DerivGen.Generator.Model;
@@ -24,8 +26,9 @@ internal sealed class BodyLowerer
     private readonly Dictionary<ILocalSymbol, string> _localNames = new(SymbolEqualityComparer.Default);
     private readonly HashSet<string> _usedLocalNames = new(StringComparer.Ordinal);
     private readonly HashSet<string> _variableDependentLocals = new(StringComparer.Ordinal);
-    private readonly List<IrStatement> _statements = new();
+    private List<IrStatement> _statements = new();
     private int _depth;
+    private int _loopDepth;
 
     public BodyLowerer(HashSet<string> variables, List<DiagnosticInfo> diagnostics, CancellationToken cancellationToken)
     {
@@ -80,8 +83,16 @@ internal sealed class BodyLowerer
                     break;
 
                 case IReturnOperation:
-                    Unsupported(statement, "an early return", "return once, at the end of the method; branches come in a later version");
+                    Unsupported(statement, "an early return", "return once, at the end of the method; assign the result to a local in the branches instead");
                     returned = true;
+                    break;
+
+                case IConditionalOperation branch:
+                    LowerIf(branch);
+                    break;
+
+                case IForLoopOperation loop:
+                    LowerFor(loop);
                     break;
 
                 case IBlockOperation block:
@@ -98,6 +109,131 @@ internal sealed class BodyLowerer
         }
     }
 
+    /// <summary>Lowers statements into a fresh list (the body of a branch or loop).</summary>
+    private EquatableArray<IrStatement> LowerNested(IOperation? statement)
+    {
+        List<IrStatement> outer = _statements;
+        _statements = new List<IrStatement>();
+        try
+        {
+            if (statement is IBlockOperation block)
+            {
+                LowerStatements(block.Operations, isTopLevel: false);
+            }
+            else if (statement is not null)
+            {
+                LowerStatements(new[] { statement }, isTopLevel: false);
+            }
+
+            return _statements.ToEquatableArray();
+        }
+        finally
+        {
+            _statements = outer;
+        }
+    }
+
+    private void LowerIf(IConditionalOperation branch)
+    {
+        IrExpression? condition = LowerCondition(branch.Condition);
+        EquatableArray<IrStatement> whenTrue = LowerNested(branch.WhenTrue);
+        EquatableArray<IrStatement> whenFalse = LowerNested(branch.WhenFalse);
+        if (condition is not null)
+        {
+            _statements.Add(new IrIf(condition, whenTrue, whenFalse));
+        }
+    }
+
+    /// <summary>A branch condition; a condition that depends on a variable is a kink (DG0007).</summary>
+    private IrExpression? LowerCondition(IOperation operation)
+    {
+        IrExpression? condition = LowerExpression(operation);
+        if (condition is not null && DependsOnVariable(condition))
+        {
+            _diagnostics.Add(DiagnosticInfo.Create(DiagnosticDescriptors.NonSmoothFunction, operation.Syntax.GetLocation(),
+                "if (" + Text(operation) + ")",
+                "the condition depends on a differentiation variable, so the derivative is that of the branch taken and jumps where the condition changes"));
+        }
+
+        return condition;
+    }
+
+    private void LowerFor(IForLoopOperation loop)
+    {
+        if (_loopDepth > 0)
+        {
+            Unsupported(loop, "the nested for loop", "this version differentiates loops one after another, not loops inside loops");
+            return;
+        }
+
+        // for (int i = start; i < end; i++) — the one loop form supported, with bounds that are ints (so they cannot depend on a variable).
+        IVariableDeclaratorOperation? declarator = loop.Before.Length == 1
+            && loop.Before[0] is IVariableDeclarationGroupOperation { Declarations.Length: 1 } group
+            && group.Declarations[0].Declarators.Length == 1 ? group.Declarations[0].Declarators[0] : null;
+        if (declarator is null
+            || declarator.Symbol.Type.SpecialType != SpecialType.System_Int32 || declarator.GetVariableInitializer()?.Value is not { } startValue
+            || loop.Condition is not IBinaryOperation { OperatorKind: BinaryOperatorKind.LessThan or BinaryOperatorKind.LessThanOrEqual, LeftOperand: ILocalReferenceOperation conditionLocal } condition
+            || !SymbolEqualityComparer.Default.Equals(conditionLocal.Local, declarator.Symbol)
+            || loop.AtLoopBottom.Length != 1 || !IsIncrementByOne(loop.AtLoopBottom[0], declarator.Symbol)
+            || AssignsLocal(loop.Body, declarator.Symbol))
+        {
+            Unsupported(loop, "the for loop '" + Text(loop).Split('{')[0].Trim() + "'",
+                "write the loop as 'for (int i = start; i < end; i++)' with int bounds that do not depend on a variable, and do not assign i in the body");
+            return;
+        }
+
+        IrExpression? start = LowerExpression(startValue);
+        IrExpression? end = LowerExpression(condition.RightOperand);
+        string index = DeclareLocal(declarator.Symbol);
+        _loopDepth++;
+        EquatableArray<IrStatement> body;
+        try
+        {
+            body = LowerNested(loop.Body);
+        }
+        finally
+        {
+            _loopDepth--;
+        }
+
+        if (start is not null && end is not null)
+        {
+            _statements.Add(new IrFor(index, start, end, condition.OperatorKind == BinaryOperatorKind.LessThanOrEqual, body));
+        }
+    }
+
+    private static bool IsIncrementByOne(IOperation operation, ILocalSymbol index)
+    {
+        IOperation expression = operation is IExpressionStatementOperation statement ? statement.Operation : operation;
+        return expression switch
+        {
+            IIncrementOrDecrementOperation { Kind: OperationKind.Increment, Target: ILocalReferenceOperation target } =>
+                SymbolEqualityComparer.Default.Equals(target.Local, index),
+            ICompoundAssignmentOperation { OperatorKind: BinaryOperatorKind.Add, Target: ILocalReferenceOperation target, Value.ConstantValue: { HasValue: true, Value: 1 } } =>
+                SymbolEqualityComparer.Default.Equals(target.Local, index),
+            _ => false,
+        };
+    }
+
+    private static bool AssignsLocal(IOperation body, ILocalSymbol local)
+    {
+        foreach (IOperation operation in body.DescendantsAndSelf())
+        {
+            IOperation? target = operation switch
+            {
+                IAssignmentOperation assignment => assignment.Target,
+                IIncrementOrDecrementOperation increment => increment.Target,
+                _ => null,
+            };
+            if (target is ILocalReferenceOperation reference && SymbolEqualityComparer.Default.Equals(reference.Local, local))
+            {
+                return true;
+            }
+        }
+
+        return false;
+    }
+
     private static bool IsLast(IOperation statement) =>
         statement.Parent is IBlockOperation parent && parent.Operations[parent.Operations.Length - 1] == statement;
 
@@ -107,7 +243,7 @@ internal sealed class BodyLowerer
         ScalarType? type = ScalarTypeOf(local.Type);
         if (type is null)
         {
-            Unsupported(declarator, $"the local '{local.Name}' of type '{local.Type.ToDisplayString()}'", "locals must be double, float or int");
+            Unsupported(declarator, $"the local '{local.Name}' of type '{local.Type.ToDisplayString()}'", "locals must be double, float, int or bool");
             return;
         }
 
@@ -182,11 +318,7 @@ internal sealed class BodyLowerer
 
         if (DependsOnVariable(value))
         {
-            _variableDependentLocals.Add(name);
-        }
-        else
-        {
-            _variableDependentLocals.Remove(name);
+            _variableDependentLocals.Add(name); // Never removed: another path or iteration may still carry the dependence.
         }
 
         _statements.Add(new IrAssign(name, value));
@@ -249,7 +381,7 @@ internal sealed class BodyLowerer
                     return new IrLocal(LocalName(local.Local), localType);
                 }
 
-                return Unsupported(operation, $"the local '{local.Local.Name}'", "locals must be double, float or int");
+                return Unsupported(operation, $"the local '{local.Local.Name}'", "locals must be double, float, int or bool");
 
             case IBinaryOperation binary:
                 return LowerBinary(binary);
@@ -268,6 +400,33 @@ internal sealed class BodyLowerer
 
             case IFieldReferenceOperation { Field: { IsStatic: true, IsReadOnly: true } field } when ScalarTypeOf(field.Type) is { } fieldType:
                 return new IrExternal(FullyQualified(field.ContainingType) + "." + Identifiers.Escape(field.Name), fieldType);
+
+            case IFieldReferenceOperation { Instance: IInstanceReferenceOperation, Field: var instanceField } when ScalarTypeOf(instanceField.Type) is { } instanceFieldType:
+                return new IrExternal("this." + Identifiers.Escape(instanceField.Name), instanceFieldType);
+
+            case IPropertyReferenceOperation { Instance: IInstanceReferenceOperation, Property: { IsIndexer: false, GetMethod: not null } instanceProperty }
+                when ScalarTypeOf(instanceProperty.Type) is { } instancePropertyType:
+                return new IrExternal("this." + Identifiers.Escape(instanceProperty.Name), instancePropertyType);
+
+            case IArrayElementReferenceOperation element:
+                return LowerElement(element, element.ArrayReference, element.Indices);
+
+            case IPropertyReferenceOperation { Property.IsIndexer: true, Instance: { } spanInstance } indexer when IsSpan(spanInstance.Type):
+                return LowerElement(indexer, spanInstance, indexer.Arguments.Select(a => a.Value).ToImmutableArray());
+
+            case IPropertyReferenceOperation { Property.Name: "Length", Instance: { } lengthOf } when DataText(lengthOf) is { } lengthData:
+                return new IrExternal(lengthData + ".Length", ScalarType.Int32);
+
+            case IConditionalOperation { WhenFalse: not null } conditional when conditional.Type is { } conditionalType && ScalarTypeOf(conditionalType) is { } resultType:
+            {
+                IrExpression? condition = LowerCondition(conditional.Condition);
+                IrExpression? whenTrue = LowerExpression(conditional.WhenTrue);
+                IrExpression? whenFalse = LowerExpression(conditional.WhenFalse);
+                return condition is null || whenTrue is null || whenFalse is null ? null : new IrConditional(condition, whenTrue, whenFalse, resultType);
+            }
+
+            case IUnaryOperation { OperatorKind: UnaryOperatorKind.Not, OperatorMethod: null } not:
+                return LowerExpression(not.Operand) is { } negatedCondition ? new IrLogical(LogicalOperator.Not, negatedCondition, null) : null;
 
             case IFieldReferenceOperation field:
                 return Unsupported(operation, $"the field '{field.Field.Name}'",
@@ -289,12 +448,28 @@ internal sealed class BodyLowerer
 
     private IrExpression? LowerBinary(IBinaryOperation binary)
     {
+        if (binary.OperatorMethod is null && ComparisonOf(binary.OperatorKind) is { } comparison
+            && binary.LeftOperand.Type is { } leftType && ScalarTypeOf(leftType) is ScalarType.Double or ScalarType.Single or ScalarType.Int32)
+        {
+            IrExpression? compareLeft = LowerExpression(binary.LeftOperand);
+            IrExpression? compareRight = LowerExpression(binary.RightOperand);
+            return compareLeft is null || compareRight is null ? null : new IrCompare(comparison, compareLeft, compareRight);
+        }
+
+        if (binary.OperatorMethod is null && binary.OperatorKind is BinaryOperatorKind.ConditionalAnd or BinaryOperatorKind.ConditionalOr)
+        {
+            IrExpression? logicalLeft = LowerExpression(binary.LeftOperand);
+            IrExpression? logicalRight = LowerExpression(binary.RightOperand);
+            return logicalLeft is null || logicalRight is null ? null
+                : new IrLogical(binary.OperatorKind == BinaryOperatorKind.ConditionalAnd ? LogicalOperator.And : LogicalOperator.Or, logicalLeft, logicalRight);
+        }
+
         if (binary.OperatorMethod is not null || !TryBinaryOperator(binary.OperatorKind, out BinaryOperator op)
             || ScalarTypeOf(binary.Type!) is not { } type || type == ScalarType.Boolean)
         {
             string hint = binary.OperatorKind is BinaryOperatorKind.Remainder
                 ? "the remainder operator is not supported"
-                : "only + - * / on double, float and int are supported here; comparisons and branches come in a later version";
+                : "only + - * / on double, float and int, comparisons, && and || are supported";
             return Unsupported(binary, $"the operator '{Text(binary)}'", hint);
         }
 
@@ -302,6 +477,71 @@ internal sealed class BodyLowerer
         IrExpression? right = LowerExpression(binary.RightOperand);
         return left is null || right is null ? null : new IrBinary(op, left, right, type);
     }
+
+    private static ComparisonOperator? ComparisonOf(BinaryOperatorKind kind) => kind switch
+    {
+        BinaryOperatorKind.LessThan => ComparisonOperator.Less,
+        BinaryOperatorKind.LessThanOrEqual => ComparisonOperator.LessOrEqual,
+        BinaryOperatorKind.GreaterThan => ComparisonOperator.Greater,
+        BinaryOperatorKind.GreaterThanOrEqual => ComparisonOperator.GreaterOrEqual,
+        BinaryOperatorKind.Equals => ComparisonOperator.Equal,
+        BinaryOperatorKind.NotEquals => ComparisonOperator.NotEqual,
+        _ => null,
+    };
+
+    /// <summary>An element of data read with int indices (which, being ints, cannot depend on a variable).</summary>
+    private IrExpression? LowerElement(IOperation element, IOperation data, IReadOnlyList<IOperation> indices)
+    {
+        if (DataText(data) is not { } text || element.Type is null || ScalarTypeOf(element.Type) is not (ScalarType.Double or ScalarType.Single or ScalarType.Int32) || indices.Count == 0)
+        {
+            return Unsupported(element, $"the element access '{Text(element)}'",
+                "read elements of double, float or int arrays and spans that are parameters (not variables), fields of this instance or static readonly fields");
+        }
+
+        var lowered = new List<IrExpression>();
+        foreach (IOperation index in indices)
+        {
+            IrExpression? loweredIndex = LowerExpression(index);
+            if (loweredIndex is null)
+            {
+                return null;
+            }
+
+            if (loweredIndex.Type != ScalarType.Int32)
+            {
+                return Unsupported(index, $"the index '{Text(index)}'", "indices must be int expressions");
+            }
+
+            lowered.Add(loweredIndex);
+        }
+
+        return new IrElement(text, lowered.ToEquatableArray(), ScalarTypeOf(element.Type)!.Value);
+    }
+
+    /// <summary>The C# text naming data (an array or span that is not a variable), or null when it is not data.</summary>
+    private string? DataText(IOperation data) => data switch
+    {
+        IParameterReferenceOperation parameter when IsData(parameter.Parameter.Type) && !_variables.Contains(Identifiers.Escape(parameter.Parameter.Name)) =>
+            Identifiers.Escape(parameter.Parameter.Name),
+        IFieldReferenceOperation { Instance: IInstanceReferenceOperation, Field: var field } when IsData(field.Type) => "this." + Identifiers.Escape(field.Name),
+        IFieldReferenceOperation { Field: { IsStatic: true, IsReadOnly: true } field } when IsData(field.Type) =>
+            FullyQualified(field.ContainingType) + "." + Identifiers.Escape(field.Name),
+        IPropertyReferenceOperation { Instance: IInstanceReferenceOperation, Property: { IsIndexer: false } property } when IsData(property.Type) =>
+            "this." + Identifiers.Escape(property.Name),
+        _ => null,
+    };
+
+    private static bool IsData(ITypeSymbol type) => type switch
+    {
+        IArrayTypeSymbol array => ScalarTypeOf(array.ElementType) is ScalarType.Double or ScalarType.Single or ScalarType.Int32,
+        _ => IsSpan(type),
+    };
+
+    private static bool IsSpan(ITypeSymbol? type) =>
+        type is INamedTypeSymbol { IsGenericType: true, TypeArguments.Length: 1 } named
+        && named.ContainingNamespace?.ToDisplayString() == "System"
+        && named.Name is "Span" or "ReadOnlySpan"
+        && ScalarTypeOf(named.TypeArguments[0]) is ScalarType.Double or ScalarType.Single or ScalarType.Int32;
 
     private static bool TryBinaryOperator(BinaryOperatorKind kind, out BinaryOperator op)
     {
@@ -332,6 +572,12 @@ internal sealed class BodyLowerer
     private IrExpression? LowerInvocation(IInvocationOperation invocation)
     {
         IMethodSymbol target = invocation.TargetMethod;
+        if (target.Name == "GetLength" && invocation.Instance is { } array && DataText(array) is { } arrayText
+            && invocation.Arguments.Length == 1 && invocation.Arguments[0].Value.ConstantValue is { HasValue: true, Value: int dimension })
+        {
+            return new IrExternal(arrayText + ".GetLength(" + dimension.ToString(System.Globalization.CultureInfo.InvariantCulture) + ")", ScalarType.Int32);
+        }
+
         MathHost? host = target.ContainingType?.SpecialType switch
         {
             SpecialType.System_Double => MathHost.Double,
@@ -397,6 +643,9 @@ internal sealed class BodyLowerer
         IrConvert convert => convert.Type != ScalarType.Int32 && DependsOnVariable(convert.Operand),
         IrBinary binary => binary.Type != ScalarType.Int32 && (DependsOnVariable(binary.Left) || DependsOnVariable(binary.Right)),
         IrCall call => AnyDependsOnVariable(call.Arguments),
+        IrCompare compare => DependsOnVariable(compare.Left) || DependsOnVariable(compare.Right),
+        IrLogical logical => DependsOnVariable(logical.Left) || (logical.Right is not null && DependsOnVariable(logical.Right)),
+        IrConditional conditional => DependsOnVariable(conditional.WhenTrue) || DependsOnVariable(conditional.WhenFalse) || DependsOnVariable(conditional.Condition),
         _ => false,
     };
 
@@ -451,7 +700,6 @@ internal sealed class BodyLowerer
 
     private static string DescribeStatement(IOperation statement) => statement switch
     {
-        IForLoopOperation => "the for loop",
         IForEachLoopOperation => "the foreach loop",
         IWhileLoopOperation => "the while loop",
         IConditionalOperation => "the if statement",
@@ -478,8 +726,9 @@ internal sealed class BodyLowerer
 
     private static string HintFor(IOperation operation) => operation switch
     {
-        IForLoopOperation or IForEachLoopOperation or IWhileLoopOperation or IConditionalOperation or ISwitchOperation or IArrayElementReferenceOperation
-            => "this version differentiates straight-line code; loops, branches and arrays come in a later version",
+        IForEachLoopOperation or IWhileLoopOperation or ISwitchOperation
+            => "this version differentiates 'for (int i = start; i < end; i++)' loops and if/else; rewrite the loop or switch in that form",
+        IBranchOperation => "break, continue and goto are not supported yet; put the condition around the loop body's statements instead",
         ITryOperation or IThrowOperation => "exceptions cannot be differentiated; validate arguments before calling the method",
         _ => "a differentiable body uses locals, + - * /, and the math functions listed in the README",
     };

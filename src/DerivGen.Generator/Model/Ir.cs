@@ -21,6 +21,23 @@ internal enum BinaryOperator
     Divide,
 }
 
+internal enum ComparisonOperator
+{
+    Less,
+    LessOrEqual,
+    Greater,
+    GreaterOrEqual,
+    Equal,
+    NotEqual,
+}
+
+internal enum LogicalOperator
+{
+    And,
+    Or,
+    Not,
+}
+
 /// <summary>Which type a math function was called on; the value code calls exactly what the user called.</summary>
 internal enum MathHost
 {
@@ -60,6 +77,19 @@ internal sealed record IrConvert(IrExpression Operand, ScalarType Type) : IrExpr
 internal sealed record IrCall(MathFunction Function, MathHost Host, EquatableArray<IrExpression> Arguments, ScalarType Type)
     : IrExpression(Type);
 
+/// <summary>An element of data (an array, span or 2-D array that is not a variable): <c>x[i]</c>, <c>m[i, j]</c>.
+/// <paramref name="Data"/> is the C# expression of the data (a parameter name, <c>this.field</c>, a qualified static).</summary>
+internal sealed record IrElement(string Data, EquatableArray<IrExpression> Indices, ScalarType Type) : IrExpression(Type);
+
+/// <summary>A comparison; its type is <see cref="ScalarType.Boolean"/>.</summary>
+internal sealed record IrCompare(ComparisonOperator Operator, IrExpression Left, IrExpression Right) : IrExpression(ScalarType.Boolean);
+
+/// <summary><c>&amp;&amp;</c>, <c>||</c> (two operands) or <c>!</c> (Right is null).</summary>
+internal sealed record IrLogical(LogicalOperator Operator, IrExpression Left, IrExpression? Right) : IrExpression(ScalarType.Boolean);
+
+/// <summary><c>condition ? whenTrue : whenFalse</c>.</summary>
+internal sealed record IrConditional(IrExpression Condition, IrExpression WhenTrue, IrExpression WhenFalse, ScalarType Type) : IrExpression(Type);
+
 /// <summary>A statement of the IR.</summary>
 internal abstract record IrStatement;
 
@@ -68,3 +98,9 @@ internal sealed record IrAssign(string Local, IrExpression Value) : IrStatement;
 
 /// <summary>Returns the method's value. In straight-line bodies it is the last statement.</summary>
 internal sealed record IrReturn(IrExpression Value) : IrStatement;
+
+/// <summary><c>if (Condition) { Then } else { Else }</c>.</summary>
+internal sealed record IrIf(IrExpression Condition, EquatableArray<IrStatement> Then, EquatableArray<IrStatement> Else) : IrStatement;
+
+/// <summary><c>for (int Index = Start; Index &lt; End; Index++) { Body }</c> (<c>&lt;=</c> when <paramref name="Inclusive"/>).</summary>
+internal sealed record IrFor(string Index, IrExpression Start, IrExpression End, bool Inclusive, EquatableArray<IrStatement> Body) : IrStatement;

@@ -70,7 +70,7 @@ internal static class DerivativeRules
             case NodeKind.Call:
                 return Functions.TryGetValue(f.Function, out Rule? rule) ? rule(b, f, x, i) : C(b, f, 0);
             default:
-                return C(b, f, 0);                                                        // constants, comparisons
+                return C(b, f, 0);                                                        // constants, data, comparisons, logic
         }
     }
 

@@ -48,6 +48,21 @@ internal sealed class ExpressionBuilder
     public Node Parameter(string name, ScalarType type, int variableIndex) =>
         Intern(NodeKind.Parameter, type, Array.Empty<Node>(), 0, name, default, default, default, variableIndex);
 
+    /// <summary>
+    /// A local of the generated code read as a leaf at a given stage: a loop index, a loop-carried value, or a running
+    /// derivative of one. An active leaf is one whose derivative is not zero: the sweeps ask for its tangents.
+    /// </summary>
+    public Node StageLeaf(string name, ScalarType type, int stage, bool isActive) =>
+        Intern(NodeKind.Parameter, type, Array.Empty<Node>(), 0, name, default, default, default, -1, stage, isActive);
+
+    /// <summary>An element of data, <c>data[indices]</c> (constant with respect to the variables).</summary>
+    public Node Element(string data, ScalarType type, params Node[] indices) =>
+        Intern(NodeKind.Element, type, indices, 0, data, default, default, default, -1);
+
+    /// <summary>A comparison as written.</summary>
+    public Node RawCompare(Comparison comparison, Node a, Node b) =>
+        Intern(NodeKind.Compare, ScalarType.Boolean, new[] { a, b }, 0, null, default, default, comparison, -1);
+
     public Node External(string text, ScalarType type) =>
         Intern(NodeKind.External, type, Array.Empty<Node>(), 0, text, default, default, default, -1);
 
@@ -483,10 +498,10 @@ internal sealed class ExpressionBuilder
     };
 
     private Node Intern(NodeKind kind, ScalarType type, Node[] arguments, double value, string? text,
-        MathFunction function, MathHost host, Comparison comparison, int variableIndex)
+        MathFunction function, MathHost host, Comparison comparison, int variableIndex, int stage = 0, bool isActiveLeaf = false)
     {
         var key = new NodeKey(kind, type, BitConverter.DoubleToInt64Bits(value), text,
-            ((int)function << 8) | ((int)host << 4) | (int)comparison, variableIndex,
+            ((int)function << 8) | ((int)host << 4) | (int)comparison, variableIndex, stage, isActiveLeaf,
             arguments.Length > 0 ? arguments[0].Id : -1,
             arguments.Length > 1 ? arguments[1].Id : -1,
             arguments.Length > 2 ? arguments[2].Id : -1);
@@ -496,10 +511,10 @@ internal sealed class ExpressionBuilder
         }
 
         _cancellationToken.ThrowIfCancellationRequested();
-        var node = new Node(_nodes.Count, kind, type, arguments, value, text, function, host, comparison, variableIndex);
+        var node = new Node(_nodes.Count, kind, type, arguments, value, text, function, host, comparison, variableIndex, stage, isActiveLeaf);
         _nodes.Add(key, node);
         return node;
     }
 
-    private readonly record struct NodeKey(NodeKind Kind, ScalarType Type, long Bits, string? Text, int Operator, int Variable, int A0, int A1, int A2);
+    private readonly record struct NodeKey(NodeKind Kind, ScalarType Type, long Bits, string? Text, int Operator, int Variable, int Stage, bool Active, int A0, int A1, int A2);
 }

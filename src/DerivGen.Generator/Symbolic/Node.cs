@@ -17,6 +17,12 @@ internal enum NodeKind
     Call,
     Compare,
     Select,
+
+    /// <summary>An element of data, <c>Text[Arguments…]</c>; the arguments are int indices.</summary>
+    Element,
+    And,
+    Or,
+    Not,
 }
 
 internal enum Comparison
@@ -25,6 +31,8 @@ internal enum Comparison
     LessOrEqual,
     Greater,
     GreaterOrEqual,
+    Equal,
+    NotEqual,
 }
 
 /// <summary>
@@ -36,8 +44,9 @@ internal enum Comparison
 internal sealed class Node
 {
     internal Node(int id, NodeKind kind, ScalarType type, Node[] arguments, double value, string? text,
-        MathFunction function, MathHost host, Comparison comparison, int variableIndex)
+        MathFunction function, MathHost host, Comparison comparison, int variableIndex, int stage, bool isActiveLeaf)
     {
+        Stage = stage;
         Id = id;
         Kind = kind;
         Type = type;
@@ -51,12 +60,13 @@ internal sealed class Node
         foreach (Node argument in arguments)
         {
             DependsOnVariables |= argument.DependsOnVariables;
+            Stage = System.Math.Max(Stage, argument.Stage);
         }
 
-        DependsOnVariables |= variableIndex >= 0;
-        if (type == ScalarType.Int32)
+        DependsOnVariables |= variableIndex >= 0 || isActiveLeaf;
+        if (type is ScalarType.Int32 or ScalarType.Boolean)
         {
-            DependsOnVariables = false; // An int value is flat: its derivative is 0 wherever it exists.
+            DependsOnVariables = false; // An int or bool value is flat: its derivative is 0 wherever it exists.
         }
     }
 
@@ -79,6 +89,12 @@ internal sealed class Node
     public MathHost Host { get; }
 
     public Comparison Comparison { get; }
+
+    /// <summary>
+    /// Where in the method the node can first be computed: 0 before any loop; for the m-th loop (from 1), 2m − 1 inside
+    /// it and 2m after it. A node's stage is the latest stage of its arguments (leaves carry theirs).
+    /// </summary>
+    public int Stage { get; }
 
     /// <summary>The index of a differentiation variable in the gradient, or -1.</summary>
     public int VariableIndex { get; }

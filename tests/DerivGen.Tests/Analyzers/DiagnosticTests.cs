@@ -37,25 +37,27 @@ public sealed class DiagnosticTests
         """);
 
     [Fact]
-    public Task DG0001ConditionalExpression() => VerifyAsync(Usings + """
+    public Task DG0001SwitchExpression() => VerifyAsync(Usings + """
         public static partial class C
         {
             [Differentiate]
-            public static double F(double x) => {|DG0001:x > 0 ? x : -x|};
+            public static double F(double x, int k) => {|DG0001:k switch { 0 => x, _ => -x }|};
         }
         """);
 
     [Fact]
-    public Task DG0001LoopStatement() => VerifyAsync(Usings + """
+    public Task DG0001WhileLoop() => VerifyAsync(Usings + """
         public static partial class C
         {
             [Differentiate]
             public static double F(double x)
             {
                 double s = 0;
-                {|DG0001:for (int i = 0; i < 3; i++)
+                int i = 0;
+                {|DG0001:while (i < 3)
                 {
                     s += x;
+                    i++;
                 }|}
                 return s;
             }

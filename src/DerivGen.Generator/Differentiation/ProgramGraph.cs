@@ -1,0 +1,291 @@
+using System;
+using System.Collections.Generic;
+using System.Linq;
+using DerivGen.Generator.Model;
+using DerivGen.Generator.Symbolic;
+
+namespace DerivGen.Generator.Differentiation;
+
+/// <summary>A local carried from one iteration of a loop to the next (a sum, a product, a simulated state, …).</summary>
+internal sealed class LoopState
+{
+    public LoopState(string name, ScalarType type, Node initial, Node current, Node final)
+    {
+        Name = name;
+        Type = type;
+        Initial = initial;
+        Current = current;
+        Final = final;
+        Next = current;
+    }
+
+    /// <summary>The local's name in the generated code (the user's, made unique by Lowering).</summary>
+    public string Name { get; }
+
+    public ScalarType Type { get; }
+
+    /// <summary>Its value before the loop.</summary>
+    public Node Initial { get; }
+
+    /// <summary>Leaf: its value at the start of an iteration, inside the loop.</summary>
+    public Node Current { get; }
+
+    /// <summary>Its value at the end of an iteration, in terms of <see cref="Current"/>.</summary>
+    public Node Next { get; set; }
+
+    /// <summary>Leaf: its value after the loop.</summary>
+    public Node Final { get; }
+
+    public bool IsActive => Current.DependsOnVariables;
+}
+
+/// <summary>A <c>for</c> loop of the method: its header and the locals it carries.</summary>
+internal sealed class LoopSegment
+{
+    public LoopSegment(int number, string index, Node start, Node end, bool inclusive)
+    {
+        Number = number;
+        Index = index;
+        Start = start;
+        End = end;
+        Inclusive = inclusive;
+    }
+
+    /// <summary>1 for the first loop of the method, 2 for the next, …; its body is stage 2·Number − 1.</summary>
+    public int Number { get; }
+
+    public int InsideStage => (2 * Number) - 1;
+
+    public string Index { get; }
+
+    public Node Start { get; }
+
+    public Node End { get; }
+
+    public bool Inclusive { get; }
+
+    public List<LoopState> States { get; } = new();
+}
+
+/// <summary>
+/// Turns the IR body into the DAG of its value, exactly as written (raw nodes only), with the user's local names on
+/// the nodes they name. Straight-line code becomes one expression once locals are substituted; an if/else becomes a
+/// selection of the two branches' values; a loop becomes a <see cref="LoopSegment"/> whose carried locals are leaves
+/// inside the loop and after it. Loops are one after another (stages 1, 2, 3, …), not nested.
+/// </summary>
+internal sealed class ProgramGraph
+{
+    private readonly ExpressionBuilder _builder;
+    private readonly IReadOnlyDictionary<string, int> _variableIndex;
+    private readonly HashSet<string> _displayNames = new(StringComparer.Ordinal);
+    private readonly HashSet<string> _named = new(StringComparer.Ordinal);
+    private readonly List<LoopSegment> _loops = new();
+    private HashSet<string>? _currentStates;
+
+    private ProgramGraph(ExpressionBuilder builder, IReadOnlyDictionary<string, int> variableIndex)
+    {
+        _builder = builder;
+        _variableIndex = variableIndex;
+    }
+
+    public IReadOnlyList<LoopSegment> Loops => _loops;
+
+    public Node Value { get; private set; } = null!;
+
+    public static ProgramGraph Build(ExpressionBuilder builder, MethodSpec spec, IReadOnlyDictionary<string, int> variableIndex)
+    {
+        var graph = new ProgramGraph(builder, variableIndex);
+        CollectLocals(spec.Body, graph._displayNames);
+        var locals = new Dictionary<string, Node>(StringComparer.Ordinal);
+        graph.Run(spec.Body, locals);
+        if (graph.Value is null)
+        {
+            throw new InvalidOperationException("The lowered body has no return statement.");
+        }
+
+        return graph;
+    }
+
+    private void Run(EquatableArray<IrStatement> statements, Dictionary<string, Node> locals)
+    {
+        foreach (IrStatement statement in statements)
+        {
+            switch (statement)
+            {
+                case IrAssign assign:
+                    Node value = Build(assign.Value, locals);
+                    bool isStateUpdate = _currentStates?.Contains(assign.Local) == true;
+                    if (!value.IsLeaf && value.LocalName is null && !isStateUpdate)
+                    {
+                        // A reassigned local gets a versioned name (s, s2, s3, …), the same in code and formulas.
+                        value.LocalName = _named.Add(assign.Local) ? assign.Local : Identifiers.Unique(assign.Local, _displayNames);
+                    }
+                    else
+                    {
+                        _named.Add(assign.Local);
+                    }
+
+                    locals[assign.Local] = value;
+                    break;
+
+                case IrIf branch:
+                {
+                    Node condition = Build(branch.Condition, locals);
+                    var whenTrue = new Dictionary<string, Node>(locals, StringComparer.Ordinal);
+                    var whenFalse = new Dictionary<string, Node>(locals, StringComparer.Ordinal);
+                    Run(branch.Then, whenTrue);
+                    Run(branch.Else, whenFalse);
+                    // Locals that exist after the if: assigned before it, or (declared before it without a value) in both branches.
+                    foreach (string name in whenTrue.Keys.Where(whenFalse.ContainsKey).ToList())
+                    {
+                        Node a = whenTrue[name], b = whenFalse[name];
+                        locals[name] = a == b ? a : _builder.Raw(NodeKind.Select, a.Type, condition, a, b);
+                    }
+
+                    break;
+                }
+
+                case IrFor loop:
+                    RunLoop(loop, locals);
+                    break;
+
+                case IrReturn ret:
+                    Value = Build(ret.Value, locals);
+                    break;
+            }
+        }
+    }
+
+    private void RunLoop(IrFor loop, Dictionary<string, Node> locals)
+    {
+        var segment = new LoopSegment(_loops.Count + 1, loop.Index, Build(loop.Start, locals), Build(loop.End, locals), loop.Inclusive);
+        _loops.Add(segment);
+        int inside = segment.InsideStage;
+
+        // The loop-carried locals: those that exist before the loop and are assigned in it.
+        var assigned = new HashSet<string>(StringComparer.Ordinal);
+        CollectAssigned(loop.Body, assigned);
+        var body = new Dictionary<string, Node>(locals, StringComparer.Ordinal)
+        {
+            [loop.Index] = _builder.StageLeaf(loop.Index, ScalarType.Int32, inside, isActive: false),
+        };
+        foreach (string name in assigned.Where(locals.ContainsKey).OrderBy(n => n, StringComparer.Ordinal))
+        {
+            Node initial = locals[name];
+            bool active = initial.Type is ScalarType.Double or ScalarType.Single;
+            var state = new LoopState(name, initial.Type, initial,
+                _builder.StageLeaf(name, initial.Type, inside, active),
+                _builder.StageLeaf(name, initial.Type, inside + 1, active));
+            if (initial.LocalName == name)
+            {
+                initial.LocalName = null; // The name now belongs to the loop-carried local itself.
+            }
+
+            segment.States.Add(state);
+            body[name] = state.Current;
+        }
+
+        HashSet<string>? outer = _currentStates;
+        _currentStates = new HashSet<string>(segment.States.Select(s => s.Name), StringComparer.Ordinal);
+        Run(loop.Body, body);
+        _currentStates = outer;
+
+        foreach (LoopState state in segment.States)
+        {
+            state.Next = body[state.Name];
+            if (state.Next != state.Current && !state.Next.IsLeaf && state.Next.NameHint is null && state.Next.LocalName is null)
+            {
+                state.Next.NameHint = state.Name + "Next";
+            }
+
+            locals[state.Name] = state.Final;
+        }
+    }
+
+    private Node Build(IrExpression expression, Dictionary<string, Node> locals)
+    {
+        ExpressionBuilder b = _builder;
+        switch (expression)
+        {
+            case IrConstant constant:
+                return b.Constant(constant.Type == ScalarType.Int32 ? constant.Bits : BitConverter.Int64BitsToDouble(constant.Bits), constant.Type);
+            case IrParameter parameter:
+                return b.Parameter(parameter.Name, parameter.Type, _variableIndex.TryGetValue(parameter.Name, out int index) ? index : -1);
+            case IrLocal local:
+                return locals[local.Name];
+            case IrExternal external:
+                return b.External(external.Text, external.Type);
+            case IrNegate negate:
+                return b.Raw(NodeKind.Negate, negate.Type, Build(negate.Operand, locals));
+            case IrConvert convert:
+                return b.Raw(NodeKind.Convert, convert.Type, Build(convert.Operand, locals));
+            case IrBinary binary:
+                NodeKind kind = binary.Operator switch
+                {
+                    BinaryOperator.Add => NodeKind.Add,
+                    BinaryOperator.Subtract => NodeKind.Subtract,
+                    BinaryOperator.Multiply => NodeKind.Multiply,
+                    _ => NodeKind.Divide,
+                };
+                return b.Raw(kind, binary.Type, Build(binary.Left, locals), Build(binary.Right, locals));
+            case IrCall call:
+                return b.RawCall(call.Function, call.Host, call.Type, call.Arguments.Select(a => Build(a, locals)).ToArray());
+            case IrElement element:
+                return b.Element(element.Data, element.Type, element.Indices.Select(i => Build(i, locals)).ToArray());
+            case IrCompare compare:
+                return b.RawCompare(ComparisonOf(compare.Operator), Build(compare.Left, locals), Build(compare.Right, locals));
+            case IrLogical { Operator: LogicalOperator.Not } not:
+                return b.Raw(NodeKind.Not, ScalarType.Boolean, Build(not.Left, locals));
+            case IrLogical logical:
+                return b.Raw(logical.Operator == LogicalOperator.And ? NodeKind.And : NodeKind.Or, ScalarType.Boolean,
+                    Build(logical.Left, locals), Build(logical.Right!, locals));
+            case IrConditional conditional:
+                return b.Raw(NodeKind.Select, conditional.Type, Build(conditional.Condition, locals),
+                    Build(conditional.WhenTrue, locals), Build(conditional.WhenFalse, locals));
+            default:
+                throw new InvalidOperationException("Unknown IR expression " + expression.GetType().Name);
+        }
+    }
+
+    private static Comparison ComparisonOf(ComparisonOperator op) => op switch
+    {
+        ComparisonOperator.Less => Comparison.Less,
+        ComparisonOperator.LessOrEqual => Comparison.LessOrEqual,
+        ComparisonOperator.Greater => Comparison.Greater,
+        ComparisonOperator.GreaterOrEqual => Comparison.GreaterOrEqual,
+        ComparisonOperator.Equal => Comparison.Equal,
+        _ => Comparison.NotEqual,
+    };
+
+    private static void CollectAssigned(EquatableArray<IrStatement> statements, HashSet<string> names)
+    {
+        foreach (IrStatement statement in statements)
+        {
+            switch (statement)
+            {
+                case IrAssign assign:
+                    names.Add(assign.Local);
+                    break;
+                case IrIf branch:
+                    CollectAssigned(branch.Then, names);
+                    CollectAssigned(branch.Else, names);
+                    break;
+                case IrFor loop:
+                    CollectAssigned(loop.Body, names);
+                    break;
+            }
+        }
+    }
+
+    private static void CollectLocals(EquatableArray<IrStatement> statements, HashSet<string> names)
+    {
+        CollectAssigned(statements, names);
+        foreach (IrStatement statement in statements)
+        {
+            if (statement is IrFor loop)
+            {
+                names.Add(loop.Index);
+            }
+        }
+    }
+}
