@@ -146,7 +146,7 @@ internal static class DerivativeEmitter
     }
 
     /// <summary>One assignment of a loop-carried local (or of one of its running derivatives) in the generated code.</summary>
-    private readonly record struct StateUpdate(string Target, ScalarType Type, Node Value);
+    private readonly record struct StateUpdate(string Target, ScalarType Type, Node Value, bool IsDerivative = false);
 
     private static void WriteBody(IndentedWriter writer, EmitContext context, bool withHessian)
     {
@@ -259,12 +259,17 @@ internal static class DerivativeEmitter
             {
                 WriteTemporaries(loop.InsideStage);
 
-                // The end of an iteration: every new value is computed from the old ones before any is assigned.
+                // The end of an iteration. An update that no other update reads is written in place (s += e); the
+                // others are computed from the old values into locals first and assigned after (x = xNext).
+                List<StateUpdate> pending = next[loop].Where(u => !IsSameLocal(u)).ToList();
+                var reads = pending.ToDictionary(u => u.Target, u => LocalsRead(u.Value, nameOf), StringComparer.Ordinal);
                 var assignments = new List<(string Target, string Source)>();
-                foreach (StateUpdate update in next[loop])
+                foreach (StateUpdate update in pending)
                 {
-                    if (IsSameLocal(update))
+                    bool readByOthers = pending.Any(other => other.Target != update.Target && reads[other.Target].Contains(update.Target));
+                    if (!readByOthers)
                     {
+                        writer.Line(InPlace(update, code, program.Builder));
                         continue;
                     }
 
@@ -315,6 +320,66 @@ internal static class DerivativeEmitter
         writer.Line("return " + code.Write(program.Value) + ";");
     }
 
+    /// <summary>The generated locals an update's expression reads when it is written (not through temporaries, which are
+    /// already computed by then).</summary>
+    private static HashSet<string> LocalsRead(Node value, Dictionary<Node, string> nameOf)
+    {
+        var read = new HashSet<string>(StringComparer.Ordinal);
+        var stack = new Stack<Node>();
+        stack.Push(value);
+        var seen = new HashSet<Node>();
+        while (stack.Count > 0)
+        {
+            Node node = stack.Pop();
+            if (!seen.Add(node) || (node != value && nameOf.ContainsKey(node)) || (node == value && nameOf.ContainsKey(node)))
+            {
+                continue;
+            }
+
+            if (node.Kind == NodeKind.Parameter && node.Text is not null)
+            {
+                read.Add(node.Text);
+            }
+
+            foreach (Node argument in node.Arguments)
+            {
+                stack.Push(argument);
+            }
+        }
+
+        return read;
+    }
+
+    /// <summary>An update written in place: <c>s += e</c>, <c>s -= e</c>, <c>s *= e</c> when it has that shape, else <c>s = e</c>.</summary>
+    private static string InPlace(StateUpdate update, ExpressionWriter code, ExpressionBuilder builder)
+    {
+        Node value = update.Value;
+        bool IsTarget(Node node) => node.Kind == NodeKind.Parameter && node.Text == update.Target;
+        if (value.Arguments.Length == 2 && value.Kind is NodeKind.Add or NodeKind.Subtract or NodeKind.Multiply && value.Type == update.Type)
+        {
+            string op = value.Kind switch { NodeKind.Add => " += ", NodeKind.Subtract => " -= ", _ => " *= " };
+            if (IsTarget(value.Arguments[0]))
+            {
+                return update.Target + op + code.Write(value.Arguments[1]) + ";";
+            }
+
+            if (value.Kind != NodeKind.Subtract && IsTarget(value.Arguments[1]))
+            {
+                return update.Target + op + code.Write(value.Arguments[0]) + ";";   // + and * commute exactly in IEEE arithmetic
+            }
+
+            // Derivative code only (the user's own value keeps the operations as written): d += (−k)·y is d −= k·y.
+            Node other = IsTarget(value.Arguments[0]) ? value.Arguments[1] : value.Arguments[0];
+            if (update.IsDerivative && value.Kind == NodeKind.Add && (IsTarget(value.Arguments[0]) || IsTarget(value.Arguments[1]))
+                && other.Kind == NodeKind.Multiply && other.Arguments[0].Kind == NodeKind.Constant && other.Arguments[0].Value < 0)
+            {
+                return update.Target + " -= " + code.Write(builder.Negate(other)) + ";";
+            }
+        }
+
+        return update.Target + " = " + code.Write(value) + ";";
+    }
+
     /// <summary>An update that only reads the local it assigns (a local carried on unchanged).</summary>
     private static bool IsSameLocal(StateUpdate update) =>
         update.Value.Kind == NodeKind.Parameter && update.Value.Text == update.Target;
@@ -334,7 +399,7 @@ internal static class DerivativeEmitter
             Node[] gradient = before ? d.InitialGradient : d.NextGradient;
             for (int k = 0; k < gradient.Length; k++)
             {
-                updates.Add(new StateUpdate(d.GradientNames[k], state.Type, gradient[k]));
+                updates.Add(new StateUpdate(d.GradientNames[k], state.Type, gradient[k], IsDerivative: true));
             }
 
             if (withHessian)
@@ -344,7 +409,7 @@ internal static class DerivativeEmitter
                 {
                     for (int j = 0; j <= k; j++)
                     {
-                        updates.Add(new StateUpdate(d.HessianNames![k][j], state.Type, hessian[k][j]));
+                        updates.Add(new StateUpdate(d.HessianNames![k][j], state.Type, hessian[k][j], IsDerivative: true));
                     }
                 }
             }
@@ -390,11 +455,63 @@ internal static class DerivativeEmitter
         public IEnumerable<string> FormulaLines(bool includeHessian)
         {
             Node value = Program.Value;
-            foreach (Node local in Graph.Reachable(new[] { value }).Where(n => n.LocalName is not null && !n.IsLeaf).OrderBy(n => n.Id))
+            var shown = new HashSet<Node>();
+            IEnumerable<string> Locals(IEnumerable<Node> roots, int stage, string indent)
             {
-                if (local != value)
+                foreach (Node local in Graph.Reachable(roots).Where(n => n.LocalName is not null && !n.IsLeaf && n.Stage == stage && n != value).OrderBy(n => n.Id))
                 {
-                    yield return Identifiers.Unescape(local.LocalName!) + " = " + Formula(local);
+                    if (shown.Add(local))
+                    {
+                        yield return indent + Identifiers.Unescape(local.LocalName!) + " = " + Formula(local);
+                    }
+                }
+            }
+
+            foreach (LoopSegment loop in Program.Loops)
+            {
+                var roots = loop.States.Select(s => s.Initial).Concat(loop.States.Select(s => s.Next)).ToList();
+                for (int stage = 0; stage < loop.InsideStage; stage++)
+                {
+                    foreach (string line in Locals(roots, stage, string.Empty))
+                    {
+                        yield return line;
+                    }
+                }
+
+                foreach (LoopState state in loop.States.Where(s => s.Initial.Kind != NodeKind.Parameter || s.Initial.Text != s.Name))
+                {
+                    yield return Identifiers.Unescape(state.Name) + " = " + Formula(state.Initial);
+                }
+
+                yield return "for " + loop.Index + " from " + Formula(loop.Start) + (loop.Inclusive ? " to " : " while below ") + Formula(loop.End) + ":";
+                foreach (string line in Locals(roots, loop.InsideStage, "    "))
+                {
+                    yield return line;
+                }
+
+                foreach (LoopState state in loop.States.Where(s => s.Next != s.Current))
+                {
+                    yield return "    " + Identifiers.Unescape(state.Name) + " ← " + Formula(state.Next);
+                    if (Program.States.TryGetValue(state, out StateDerivatives? d))
+                    {
+                        for (int k = 0; k < d.GradientNames.Length; k++)
+                        {
+                            yield return "    " + d.GradientNames[k] + " ← " + Formula(d.NextGradient[k]) + "   (∂" + Identifiers.Unescape(state.Name) + "/∂" + Identifiers.Unescape(Program.Variables[k]) + ")";
+                        }
+                    }
+                }
+            }
+
+            foreach (string line in Locals(new[] { value }, 2 * Program.Loops.Count, string.Empty))
+            {
+                yield return line;
+            }
+
+            for (int stage = 0; stage < 2 * Program.Loops.Count; stage++)
+            {
+                foreach (string line in Locals(new[] { value }, stage, string.Empty))
+                {
+                    yield return line;
                 }
             }
 

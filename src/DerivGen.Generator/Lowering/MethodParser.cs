@@ -156,6 +156,12 @@ internal static class MethodParser
             {
                 diagnostics.Add(DiagnosticInfo.Create(DiagnosticDescriptors.UnknownVariable, location, name ?? "null", method.Name));
             }
+            else if (IsFloatingPointVector(parameter.Type))
+            {
+                diagnostics.Add(DiagnosticInfo.Create(DiagnosticDescriptors.UnsupportedConstruct, location,
+                    "The vector variable '" + parameter.Name + "'",
+                    "vector variables (arrays and spans of variables) come in a later version; pass the components as scalar double or float parameters"));
+            }
             else if (!IsFloatingPoint(parameter.Type) || parameter.RefKind is not (RefKind.None or RefKind.In))
             {
                 string refKind = parameter.RefKind is RefKind.None or RefKind.In ? string.Empty
@@ -207,6 +213,11 @@ internal static class MethodParser
     private static bool IsGeneratedByUs(ISymbol member) => member.GetAttributes().Any(a =>
         a.AttributeClass?.ToDisplayString() == "System.CodeDom.Compiler.GeneratedCodeAttribute"
         && a.ConstructorArguments.Length > 0 && a.ConstructorArguments[0].Value is GeneratorToolName);
+
+    private static bool IsFloatingPointVector(ITypeSymbol type) =>
+        (type is IArrayTypeSymbol { Rank: 1 } array && IsFloatingPoint(array.ElementType))
+        || (type is INamedTypeSymbol { Name: "Span" or "ReadOnlySpan", TypeArguments.Length: 1 } span
+            && span.ContainingNamespace?.ToDisplayString() == "System" && IsFloatingPoint(span.TypeArguments[0]));
 
     private static bool IsFloatingPoint(ITypeSymbol type) => type.SpecialType is SpecialType.System_Double or SpecialType.System_Single;
 
