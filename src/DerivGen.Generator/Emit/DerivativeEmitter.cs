@@ -138,7 +138,7 @@ internal static class DerivativeEmitter
     {
         using (writer.Block("if (" + name + ".Length < " + Count(length) + ")"))
         {
-            writer.Line("throw new global::System.ArgumentException(\"The span must hold at least " + Count(length) + " elements (" + what.Replace("\"", "'")
+            writer.Line("throw new global::System.ArgumentException(\"The span must hold at least " + Count(length) + (length == 1 ? " element (" : " elements (") + what.Replace("\"", "'")
                 + ").\", nameof(" + name + "));");
         }
 
@@ -293,6 +293,7 @@ internal static class DerivativeEmitter
                 }
             }
 
+            writer.Line();
             WriteTemporaries(loop.InsideStage + 1);
         }
 
@@ -357,6 +358,14 @@ internal static class DerivativeEmitter
         bool IsTarget(Node node) => node.Kind == NodeKind.Parameter && node.Text == update.Target;
         if (value.Arguments.Length == 2 && value.Kind is NodeKind.Add or NodeKind.Subtract or NodeKind.Multiply && value.Type == update.Type)
         {
+            // Derivative code only (the user's own value keeps the operations as written): d += (−k)·y is d −= k·y.
+            Node other = IsTarget(value.Arguments[0]) ? value.Arguments[1] : value.Arguments[0];
+            if (update.IsDerivative && value.Kind == NodeKind.Add && (IsTarget(value.Arguments[0]) || IsTarget(value.Arguments[1]))
+                && other.Kind == NodeKind.Multiply && other.Arguments[0].Kind == NodeKind.Constant && other.Arguments[0].Value < 0)
+            {
+                return update.Target + " -= " + code.Write(builder.Negate(other)) + ";";
+            }
+
             string op = value.Kind switch { NodeKind.Add => " += ", NodeKind.Subtract => " -= ", _ => " *= " };
             if (IsTarget(value.Arguments[0]))
             {
@@ -366,14 +375,6 @@ internal static class DerivativeEmitter
             if (value.Kind != NodeKind.Subtract && IsTarget(value.Arguments[1]))
             {
                 return update.Target + op + code.Write(value.Arguments[0]) + ";";   // + and * commute exactly in IEEE arithmetic
-            }
-
-            // Derivative code only (the user's own value keeps the operations as written): d += (−k)·y is d −= k·y.
-            Node other = IsTarget(value.Arguments[0]) ? value.Arguments[1] : value.Arguments[0];
-            if (update.IsDerivative && value.Kind == NodeKind.Add && (IsTarget(value.Arguments[0]) || IsTarget(value.Arguments[1]))
-                && other.Kind == NodeKind.Multiply && other.Arguments[0].Kind == NodeKind.Constant && other.Arguments[0].Value < 0)
-            {
-                return update.Target + " -= " + code.Write(builder.Negate(other)) + ";";
             }
         }
 

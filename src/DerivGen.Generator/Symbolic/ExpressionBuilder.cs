@@ -245,12 +245,14 @@ internal sealed class ExpressionBuilder
             }
         }
 
-        if (IsConstantSelect(a))
+        // Multiply inside a selection with a zero (or constant) branch: the zero of the branch not taken stays an
+        // exact 0 even where the other factor is NaN or infinite there (√x differentiated in a branch guarded by x > 0).
+        if (IsDistributableSelect(a))
         {
             return Select(a.Arguments[0], Multiply(a.Arguments[1], b), Multiply(a.Arguments[2], b));
         }
 
-        if (IsConstantSelect(b))
+        if (IsDistributableSelect(b))
         {
             return Select(b.Arguments[0], Multiply(a, b.Arguments[1]), Multiply(a, b.Arguments[2]));
         }
@@ -289,6 +291,11 @@ internal sealed class ExpressionBuilder
         if (a.Kind == NodeKind.Multiply && a.Arguments[0].Kind == NodeKind.Constant)
         {
             return Multiply(a.Arguments[0], Divide(a.Arguments[1], b));   // (k·y)/b = k·(y/b)
+        }
+
+        if (IsDistributableSelect(a))
+        {
+            return Select(a.Arguments[0], Divide(a.Arguments[1], b), Divide(a.Arguments[2], b));
         }
 
         if (b.Kind == NodeKind.Negate)
@@ -465,6 +472,9 @@ internal sealed class ExpressionBuilder
             ? (sign * node.Arguments[0].Value, node.Arguments[1])
             : (sign, node);
     }
+
+    private static bool IsDistributableSelect(Node node) =>
+        node.Kind == NodeKind.Select && (IsConstantSelect(node) || node.Arguments[1].IsZero || node.Arguments[2].IsZero);
 
     private static bool IsConstantSelect(Node node) =>
         node.Kind == NodeKind.Select && node.Arguments[1].Kind == NodeKind.Constant && node.Arguments[2].Kind == NodeKind.Constant;

@@ -4,7 +4,7 @@ using Xunit;
 namespace DerivGen.Tests.Approved;
 
 /// <summary>
-/// The generated text of four representative methods, reviewed by a person and kept as baselines in this folder.
+/// The generated text of representative methods, reviewed by a person and kept as baselines in this folder.
 /// A change to the emitter shows up here as a readable diff.
 /// </summary>
 public sealed class ApprovedOutputTests
@@ -83,4 +83,58 @@ public sealed class ApprovedOutputTests
             }
         }
         """).Source("Samples.Robotics.Arm.Target.Miss.g.cs"));
+
+    [Fact]
+    public void DataLoop() => Approvals.Verify(nameof(DataLoop), GeneratorHarness.Run("""
+        using System;
+        using DerivGen;
+
+        namespace Samples.Fitting;
+
+        public static partial class Decay
+        {
+            // Half the sum of squared residuals of y ≈ a·exp(−b·t) over a data set.
+            [Differentiate(nameof(a), nameof(b))]
+            public static double HalfSquaredError(double a, double b, double[] t, ReadOnlySpan<double> y)
+            {
+                double sum = 0;
+                for (int i = 0; i < t.Length; i++)
+                {
+                    double r = a * Math.Exp(-b * t[i]) - y[i];
+                    sum += r * r;
+                }
+
+                return 0.5 * sum;
+            }
+        }
+        """).Source("Samples.Fitting.Decay.HalfSquaredError.g.cs"));
+
+    [Fact]
+    public void Branch() => Approvals.Verify(nameof(Branch), GeneratorHarness.Run("""
+        using System;
+        using DerivGen;
+
+        namespace Samples.Robust;
+
+        public static partial class Losses
+        {
+            // The Huber loss of one residual: quadratic near zero, linear beyond delta.
+            [Differentiate(nameof(r))]
+            public static double Huber(double r, double delta)
+            {
+        #pragma warning disable DG0007 // the kink at |r| = delta is intended
+                double loss;
+                if (Math.Abs(r) <= delta)
+                {
+                    loss = 0.5 * r * r;
+                }
+                else
+                {
+                    loss = delta * (Math.Abs(r) - 0.5 * delta);
+                }
+        #pragma warning restore DG0007
+                return loss;
+            }
+        }
+        """).Source("Samples.Robust.Losses.Huber.g.cs"));
 }
