@@ -189,6 +189,14 @@ internal sealed class BodyLowerer
         EquatableArray<IrStatement> body;
         try
         {
+            // A local assigned late in the body is read early in the next iteration: lower the body once to learn
+            // which locals come to depend on a variable (so that a condition reading them is flagged), then for real.
+            int diagnosticCount = _diagnostics.Count;
+            var localNames = new Dictionary<ILocalSymbol, string>(_localNames, SymbolEqualityComparer.Default);
+            var usedLocalNames = new HashSet<string>(_usedLocalNames, StringComparer.Ordinal);
+            LowerNested(loop.Body);
+            _diagnostics.RemoveRange(diagnosticCount, _diagnostics.Count - diagnosticCount);
+            RestoreNames(localNames, usedLocalNames);
             body = LowerNested(loop.Body);
         }
         finally
@@ -200,6 +208,18 @@ internal sealed class BodyLowerer
         {
             _statements.Add(new IrFor(index, start, end, condition.OperatorKind == BinaryOperatorKind.LessThanOrEqual, body));
         }
+    }
+
+    private void RestoreNames(Dictionary<ILocalSymbol, string> localNames, HashSet<string> usedLocalNames)
+    {
+        _localNames.Clear();
+        foreach (KeyValuePair<ILocalSymbol, string> pair in localNames)
+        {
+            _localNames[pair.Key] = pair.Value;
+        }
+
+        _usedLocalNames.Clear();
+        _usedLocalNames.UnionWith(usedLocalNames);
     }
 
     private static bool IsIncrementByOne(IOperation operation, ILocalSymbol index)

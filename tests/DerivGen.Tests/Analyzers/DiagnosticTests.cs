@@ -46,6 +46,29 @@ public sealed class DiagnosticTests
         """);
 
     [Fact]
+    public Task DG0007ConditionOnALocalThatBecomesVariableLaterInTheLoop() => VerifyAsync(Usings + """
+        public static partial class C
+        {
+            [Differentiate]
+            public static double F(double x, int n)
+            {
+                double s = 0;
+                for (int i = 0; i < n; i++)
+                {
+                    if ({|DG0007:s > 1|})
+                    {
+                        s *= 0.5;
+                    }
+
+                    s += x;
+                }
+
+                return s;
+            }
+        }
+        """);
+
+    [Fact]
     public Task DG0001WhileLoop() => VerifyAsync(Usings + """
         public static partial class C
         {
