@@ -58,6 +58,8 @@ internal sealed class DerivativeProgram
         Builder = builder;
         Value = graph.Value;
         Loops = graph.Loops;
+        TopLevelLoops = graph.TopLevelLoops;
+        FinalStage = graph.FinalStage;
         Gradient = gradient;
         Hessian = hessian;
         Variables = variables;
@@ -68,8 +70,14 @@ internal sealed class DerivativeProgram
 
     public Node Value { get; }
 
-    /// <summary>The method's loops, in order.</summary>
+    /// <summary>The method's loops, outer before nested, in order.</summary>
     public IReadOnlyList<LoopSegment> Loops { get; }
+
+    /// <summary>The loops not nested in another.</summary>
+    public IReadOnlyList<LoopSegment> TopLevelLoops { get; }
+
+    /// <summary>The stage where the value and derivatives are written.</summary>
+    public int FinalStage { get; }
 
     /// <summary>The running derivatives of every active loop-carried local.</summary>
     public IReadOnlyDictionary<LoopState, StateDerivatives> States { get; }
@@ -129,7 +137,7 @@ internal sealed class DerivativeProgram
 
                 var derivatives = new StateDerivatives(state, names,
                     names.Select(name => builder.StageLeaf(name, state.Type, loop.InsideStage, isActive: true)).ToArray(),
-                    names.Select(name => builder.StageLeaf(name, state.Type, loop.InsideStage + 1, isActive: true)).ToArray());
+                    names.Select(name => builder.StageLeaf(name, state.Type, loop.AfterStage, isActive: true)).ToArray());
                 if (spec.EmitHessian)
                 {
                     if (!hessianNamesOf.TryGetValue(state.Name, out string[][]? hessianNames))
@@ -141,7 +149,7 @@ internal sealed class DerivativeProgram
 
                     derivatives.HessianNames = hessianNames;
                     derivatives.CurrentHessian = derivatives.HessianNames.Select(row => row.Select(name => builder.StageLeaf(name, state.Type, loop.InsideStage, true)).ToArray()).ToArray();
-                    derivatives.FinalHessian = derivatives.HessianNames.Select(row => row.Select(name => builder.StageLeaf(name, state.Type, loop.InsideStage + 1, true)).ToArray()).ToArray();
+                    derivatives.FinalHessian = derivatives.HessianNames.Select(row => row.Select(name => builder.StageLeaf(name, state.Type, loop.AfterStage, true)).ToArray()).ToArray();
                     Register(state.Current, derivatives.CurrentGradient, derivatives.CurrentHessian);
                     Register(state.Final, derivatives.FinalGradient, derivatives.FinalHessian);
                 }

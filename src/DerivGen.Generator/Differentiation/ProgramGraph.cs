@@ -9,13 +9,12 @@ namespace DerivGen.Generator.Differentiation;
 /// <summary>A local carried from one iteration of a loop to the next (a sum, a product, a simulated state, …).</summary>
 internal sealed class LoopState
 {
-    public LoopState(string name, ScalarType type, Node initial, Node current, Node final)
+    public LoopState(string name, ScalarType type, Node initial, Node current)
     {
         Name = name;
         Type = type;
         Initial = initial;
         Current = current;
-        Final = final;
         Next = current;
     }
 
@@ -34,27 +33,28 @@ internal sealed class LoopState
     public Node Next { get; set; }
 
     /// <summary>Leaf: its value after the loop.</summary>
-    public Node Final { get; }
+    public Node Final { get; set; } = null!;
 
     public bool IsActive => Current.DependsOnVariables;
 }
 
-/// <summary>A <c>for</c> loop of the method: its header and the locals it carries.</summary>
+/// <summary>
+/// A <c>for</c> loop of the method: its header, the locals it carries and the loops nested in it. Stages number the
+/// places where code is emitted, in emission order: before the loop, inside it (before any nested loop), after each
+/// nested loop (still inside), and after the loop.
+/// </summary>
 internal sealed class LoopSegment
 {
-    public LoopSegment(int number, string index, Node start, Node end, bool inclusive)
+    public LoopSegment(string index, Node start, Node end, bool inclusive, LoopSegment? parent, int beforeStage, int insideStage)
     {
-        Number = number;
         Index = index;
         Start = start;
         End = end;
         Inclusive = inclusive;
+        Parent = parent;
+        BeforeStage = beforeStage;
+        InsideStage = insideStage;
     }
-
-    /// <summary>1 for the first loop of the method, 2 for the next, …; its body is stage 2·Number − 1.</summary>
-    public int Number { get; }
-
-    public int InsideStage => (2 * Number) - 1;
 
     public string Index { get; }
 
@@ -63,6 +63,23 @@ internal sealed class LoopSegment
     public Node End { get; }
 
     public bool Inclusive { get; }
+
+    public LoopSegment? Parent { get; }
+
+    /// <summary>The loops nested directly in this one, in order.</summary>
+    public List<LoopSegment> Children { get; } = new();
+
+    /// <summary>The stage where the loop's header and the carried locals' initial values are computed.</summary>
+    public int BeforeStage { get; }
+
+    /// <summary>The stage at the top of the body.</summary>
+    public int InsideStage { get; }
+
+    /// <summary>The stage at the end of the body (after its last nested loop), where the carried locals are updated.</summary>
+    public int BodyEndStage { get; set; }
+
+    /// <summary>The stage right after the loop.</summary>
+    public int AfterStage { get; set; }
 
     public List<LoopState> States { get; } = new();
 }
@@ -80,7 +97,11 @@ internal sealed class ProgramGraph
     private readonly HashSet<string> _displayNames = new(StringComparer.Ordinal);
     private readonly HashSet<string> _named = new(StringComparer.Ordinal);
     private readonly List<LoopSegment> _loops = new();
+    private readonly List<LoopSegment> _topLevel = new();
     private HashSet<string>? _currentStates;
+    private LoopSegment? _currentLoop;
+    private int _stage;
+    private int _stageCount;
 
     private ProgramGraph(ExpressionBuilder builder, IReadOnlyDictionary<string, int> variableIndex)
     {
@@ -88,7 +109,14 @@ internal sealed class ProgramGraph
         _variableIndex = variableIndex;
     }
 
+    /// <summary>Every loop of the method, outer loops before the loops nested in them, in emission order.</summary>
     public IReadOnlyList<LoopSegment> Loops => _loops;
+
+    /// <summary>The loops that are not nested in another, in order.</summary>
+    public IReadOnlyList<LoopSegment> TopLevelLoops => _topLevel;
+
+    /// <summary>The stage at the end of the method, where the value and the derivatives are written.</summary>
+    public int FinalStage => _stage;
 
     public Node Value { get; private set; } = null!;
 
@@ -158,8 +186,9 @@ internal sealed class ProgramGraph
 
     private void RunLoop(IrFor loop, Dictionary<string, Node> locals)
     {
-        var segment = new LoopSegment(_loops.Count + 1, loop.Index, Build(loop.Start, locals), Build(loop.End, locals), loop.Inclusive);
+        var segment = new LoopSegment(loop.Index, Build(loop.Start, locals), Build(loop.End, locals), loop.Inclusive, _currentLoop, _stage, ++_stageCount);
         _loops.Add(segment);
+        (_currentLoop?.Children ?? _topLevel).Add(segment);
         int inside = segment.InsideStage;
 
         // The loop-carried locals: those that exist before the loop and are assigned in it.
@@ -173,9 +202,7 @@ internal sealed class ProgramGraph
         {
             Node initial = locals[name];
             bool active = initial.Type is ScalarType.Double or ScalarType.Single;
-            var state = new LoopState(name, initial.Type, initial,
-                _builder.StageLeaf(name, initial.Type, inside, active),
-                _builder.StageLeaf(name, initial.Type, inside + 1, active));
+            var state = new LoopState(name, initial.Type, initial, _builder.StageLeaf(name, initial.Type, inside, active));
             if (initial.LocalName == name)
             {
                 initial.LocalName = null; // The name now belongs to the loop-carried local itself.
@@ -186,12 +213,19 @@ internal sealed class ProgramGraph
         }
 
         HashSet<string>? outer = _currentStates;
+        LoopSegment? outerLoop = _currentLoop;
         _currentStates = new HashSet<string>(segment.States.Select(s => s.Name), StringComparer.Ordinal);
+        _currentLoop = segment;
+        _stage = inside;
         Run(loop.Body, body);
         _currentStates = outer;
+        _currentLoop = outerLoop;
+        segment.BodyEndStage = _stage;
+        segment.AfterStage = _stage = ++_stageCount;
 
         foreach (LoopState state in segment.States)
         {
+            state.Final = _builder.StageLeaf(state.Name, state.Type, segment.AfterStage, state.IsActive);
             state.Next = body[state.Name];
             if (state.Next != state.Current && !state.Next.IsLeaf && state.Next.NameHint is null && state.Next.LocalName is null)
             {

@@ -152,7 +152,7 @@ internal static class DerivativeEmitter
     {
         DerivativeProgram program = context.Program;
         int n = program.Variables.Length;
-        int finalStage = 2 * program.Loops.Count;
+        int finalStage = program.FinalStage;
 
         // Every expression the method needs, with the stage at which it is used.
         var roots = new List<(Node Node, int UseStage)> { (program.Value, finalStage) };
@@ -168,10 +168,10 @@ internal static class DerivativeEmitter
         {
             initial[loop] = StateUpdates(program, loop, withHessian, before: true);
             next[loop] = StateUpdates(program, loop, withHessian, before: false);
-            roots.Add((loop.Start, loop.InsideStage - 1));
-            roots.Add((loop.End, loop.InsideStage - 1));
-            roots.AddRange(initial[loop].Select(u => (u.Value, loop.InsideStage - 1)));
-            roots.AddRange(next[loop].Select(u => (u.Value, loop.InsideStage)));
+            roots.Add((loop.Start, loop.BeforeStage));
+            roots.Add((loop.End, loop.BeforeStage));
+            roots.AddRange(initial[loop].Select(u => (u.Value, loop.BeforeStage)));
+            roots.AddRange(next[loop].Select(u => (u.Value, loop.BodyEndStage)));
         }
 
         // Which nodes get a local: the user's named locals, the value, every node used more than once, and every node
@@ -200,8 +200,23 @@ internal static class DerivativeEmitter
             }
         }
 
+        // A node the user's code evaluates only under a condition (one side of an if or ?:, the right of && or ||) and
+        // that could throw (a data read, an int division, Clamp) must stay inside that condition: it is written inline
+        // where it is used, never computed ahead in a local.
+        var valueRoots = new List<Node> { program.Value };
+        foreach (LoopSegment loop in program.Loops)
+        {
+            valueRoots.AddRange(new[] { loop.Start, loop.End });
+            valueRoots.AddRange(loop.States.SelectMany(s => new[] { s.Initial, s.Next }));
+        }
+
+        HashSet<Node> unconditional = EvaluatedUnconditionally(valueRoots);
+        var mayThrow = new Dictionary<Node, bool>();
+        bool Guarded(Node node) => MayThrowUnlessGuarded(node, unconditional, mayThrow);
+
         List<Node> temporaries = reachable
-            .Where(node => !node.IsLeaf && (node == program.Value || node.LocalName is not null || uses[node] >= 2 || hoisted.Contains(node)))
+            .Where(node => !node.IsLeaf && !Guarded(node)
+                && (node == program.Value || node.LocalName is not null || uses[node] >= 2 || hoisted.Contains(node)))
             .OrderBy(node => node.Id)
             .ToList();
 
@@ -211,7 +226,7 @@ internal static class DerivativeEmitter
             .Concat(program.Loops.Select(l => l.Index));
         var names = new TemporaryNames(reserved);
         var nameOf = new Dictionary<Node, string>();
-        if (!program.Value.IsLeaf && program.Value.LocalName is null)
+        if (temporaries.Contains(program.Value) && program.Value.LocalName is null)
         {
             nameOf[program.Value] = names.Claim("value");
         }
@@ -239,15 +254,14 @@ internal static class DerivativeEmitter
             }
         }
 
-        WriteTemporaries(0);
-        foreach (LoopSegment loop in program.Loops)
+        void WriteLoop(LoopSegment loop)
         {
             // Before the loop: the carried locals and their running derivatives start from their values here.
             foreach (StateUpdate update in initial[loop])
             {
                 if (IsSameLocal(update))
                 {
-                    continue; // Carried on from an earlier loop unchanged.
+                    continue; // Carried on from an earlier or enclosing loop unchanged.
                 }
 
                 string prefix = declared.Add(update.Target) ? ExpressionWriter.TypeKeyword(update.Type) + " " : string.Empty;
@@ -258,6 +272,10 @@ internal static class DerivativeEmitter
             using (writer.Block("for (int " + index + " = " + code.Write(loop.Start) + "; " + index + (loop.Inclusive ? " <= " : " < ") + code.Write(loop.End) + "; " + index + "++)"))
             {
                 WriteTemporaries(loop.InsideStage);
+                foreach (LoopSegment nested in loop.Children)
+                {
+                    WriteLoop(nested);
+                }
 
                 // The end of an iteration. An update that no other update reads is written in place (s += e); the
                 // others are computed from the old values into locals first and assigned after (x = xNext).
@@ -293,11 +311,17 @@ internal static class DerivativeEmitter
                 }
             }
 
-            writer.Line();
-            WriteTemporaries(loop.InsideStage + 1);
+            writer.Blank();
+            WriteTemporaries(loop.AfterStage);
         }
 
-        writer.Line();
+        WriteTemporaries(0);
+        foreach (LoopSegment loop in program.TopLevelLoops)
+        {
+            WriteLoop(loop);
+        }
+
+        writer.Blank();
         for (int i = 0; i < n; i++)
         {
             writer.Line(context.GradientName + "[" + Count(i) + "] = " + code.Write(program.Gradient[i]) + "; // " + context.PartialName(i));
@@ -319,6 +343,59 @@ internal static class DerivativeEmitter
 
         writer.Line();
         writer.Line("return " + code.Write(program.Value) + ";");
+    }
+
+    /// <summary>The nodes the user's code evaluates whatever the conditions (not only inside one side of a branch).</summary>
+    private static HashSet<Node> EvaluatedUnconditionally(IEnumerable<Node> roots)
+    {
+        var always = new HashSet<Node>();
+        var stack = new Stack<Node>(roots);
+        while (stack.Count > 0)
+        {
+            Node node = stack.Pop();
+            if (!always.Add(node))
+            {
+                continue;
+            }
+
+            int evaluated = node.Kind switch
+            {
+                NodeKind.Select => 1,            // the condition; each side only when it is taken
+                NodeKind.And or NodeKind.Or => 1, // the left operand; the right one only when needed
+                _ => node.Arguments.Length,
+            };
+            for (int i = 0; i < evaluated; i++)
+            {
+                stack.Push(node.Arguments[i]);
+            }
+        }
+
+        return always;
+    }
+
+    /// <summary>
+    /// Whether evaluating the node could throw where the user's code would not: it contains an operation that can throw
+    /// (a data read out of range, an int division by zero, Clamp with bounds reversed) that the user's code evaluates
+    /// only under a condition.
+    /// </summary>
+    private static bool MayThrowUnlessGuarded(Node node, HashSet<Node> unconditional, Dictionary<Node, bool> memo)
+    {
+        if (memo.TryGetValue(node, out bool known))
+        {
+            return known;
+        }
+
+        bool canThrow = node.Kind == NodeKind.Element
+            || (node.Kind == NodeKind.Divide && node.Type == ScalarType.Int32)
+            || (node.Kind == NodeKind.Call && node.Function == MathFunction.Clamp);
+        bool result = canThrow && !unconditional.Contains(node);
+        foreach (Node argument in node.Arguments)
+        {
+            result |= MayThrowUnlessGuarded(argument, unconditional, memo);
+        }
+
+        memo[node] = result;
+        return result;
     }
 
     /// <summary>The generated locals an update's expression reads when it is written (not through temporaries, which are
@@ -468,47 +545,56 @@ internal static class DerivativeEmitter
                 }
             }
 
-            foreach (LoopSegment loop in Program.Loops)
+            IEnumerable<string> LoopLines(LoopSegment loop, string indent)
             {
                 var roots = loop.States.Select(s => s.Initial).Concat(loop.States.Select(s => s.Next)).ToList();
-                for (int stage = 0; stage < loop.InsideStage; stage++)
+                foreach (string line in Locals(roots, loop.BeforeStage, indent))
                 {
-                    foreach (string line in Locals(roots, stage, string.Empty))
+                    yield return line;
+                }
+
+                foreach (LoopState state in loop.States.Where(s => s.Initial.Kind != NodeKind.Parameter || s.Initial.Text != s.Name))
+                {
+                    yield return indent + Identifiers.Unescape(state.Name) + " = " + Formula(state.Initial);
+                }
+
+                yield return indent + "for " + loop.Index + " from " + Formula(loop.Start) + (loop.Inclusive ? " to " : " while below ") + Formula(loop.End) + ":";
+                string inner = indent + "    ";
+                foreach (string line in Locals(roots, loop.InsideStage, inner))
+                {
+                    yield return line;
+                }
+
+                foreach (LoopSegment nested in loop.Children)
+                {
+                    foreach (string line in LoopLines(nested, inner).Concat(Locals(roots, nested.AfterStage, inner)))
                     {
                         yield return line;
                     }
                 }
 
-                foreach (LoopState state in loop.States.Where(s => s.Initial.Kind != NodeKind.Parameter || s.Initial.Text != s.Name))
+                foreach (LoopState state in loop.States.Where(s => s.Next != s.Current && (s.Next.Kind != NodeKind.Parameter || s.Next.Text != s.Name)))
                 {
-                    yield return Identifiers.Unescape(state.Name) + " = " + Formula(state.Initial);
-                }
-
-                yield return "for " + loop.Index + " from " + Formula(loop.Start) + (loop.Inclusive ? " to " : " while below ") + Formula(loop.End) + ":";
-                foreach (string line in Locals(roots, loop.InsideStage, "    "))
-                {
-                    yield return line;
-                }
-
-                foreach (LoopState state in loop.States.Where(s => s.Next != s.Current))
-                {
-                    yield return "    " + Identifiers.Unescape(state.Name) + " ← " + Formula(state.Next);
+                    yield return inner + Identifiers.Unescape(state.Name) + " ← " + Formula(state.Next);
                     if (Program.States.TryGetValue(state, out StateDerivatives? d))
                     {
                         for (int k = 0; k < d.GradientNames.Length; k++)
                         {
-                            yield return "    " + d.GradientNames[k] + " ← " + Formula(d.NextGradient[k]) + "   (∂" + Identifiers.Unescape(state.Name) + "/∂" + Identifiers.Unescape(Program.Variables[k]) + ")";
+                            yield return inner + d.GradientNames[k] + " ← " + Formula(d.NextGradient[k]) + "   (∂" + Identifiers.Unescape(state.Name) + "/∂" + Identifiers.Unescape(Program.Variables[k]) + ")";
                         }
                     }
                 }
             }
 
-            foreach (string line in Locals(new[] { value }, 2 * Program.Loops.Count, string.Empty))
+            foreach (LoopSegment loop in Program.TopLevelLoops)
             {
-                yield return line;
+                foreach (string line in LoopLines(loop, string.Empty))
+                {
+                    yield return line;
+                }
             }
 
-            for (int stage = 0; stage < 2 * Program.Loops.Count; stage++)
+            for (int stage = 0; stage <= Program.FinalStage; stage++)
             {
                 foreach (string line in Locals(new[] { value }, stage, string.Empty))
                 {

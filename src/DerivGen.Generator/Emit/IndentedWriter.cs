@@ -26,6 +26,15 @@ internal sealed class IndentedWriter
         return this;
     }
 
+    /// <summary>A blank line separating groups, unless the previous line is already blank or opens a block.</summary>
+    public IndentedWriter Blank()
+    {
+        int length = _text.Length;
+        bool afterBlank = length >= 2 && _text[length - 1] == '\n' && _text[length - 2] == '\n';
+        bool afterOpen = length >= 2 && _text[length - 1] == '\n' && _text[length - 2] == '{';
+        return afterBlank || afterOpen || length == 0 ? this : Line();
+    }
+
     /// <summary>Writes "{", indents until the returned scope is disposed, then writes "}".</summary>
     public Scope Block(string? header = null)
     {

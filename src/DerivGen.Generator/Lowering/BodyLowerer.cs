@@ -28,7 +28,6 @@ internal sealed class BodyLowerer
     private readonly HashSet<string> _variableDependentLocals = new(StringComparer.Ordinal);
     private List<IrStatement> _statements = new();
     private int _depth;
-    private int _loopDepth;
 
     public BodyLowerer(HashSet<string> variables, List<DiagnosticInfo> diagnostics, CancellationToken cancellationToken)
     {
@@ -160,12 +159,6 @@ internal sealed class BodyLowerer
 
     private void LowerFor(IForLoopOperation loop)
     {
-        if (_loopDepth > 0)
-        {
-            Unsupported(loop, "the nested for loop", "this version differentiates loops one after another, not loops inside loops");
-            return;
-        }
-
         // for (int i = start; i < end; i++) — the one loop form supported, with bounds that are ints (so they cannot depend on a variable).
         IVariableDeclaratorOperation? declarator = loop.Before.Length == 1
             && loop.Before[0] is IVariableDeclarationGroupOperation { Declarations.Length: 1 } group
@@ -185,24 +178,15 @@ internal sealed class BodyLowerer
         IrExpression? start = LowerExpression(startValue);
         IrExpression? end = LowerExpression(condition.RightOperand);
         string index = DeclareLocal(declarator.Symbol);
-        _loopDepth++;
-        EquatableArray<IrStatement> body;
-        try
-        {
-            // A local assigned late in the body is read early in the next iteration: lower the body once to learn
-            // which locals come to depend on a variable (so that a condition reading them is flagged), then for real.
-            int diagnosticCount = _diagnostics.Count;
-            var localNames = new Dictionary<ILocalSymbol, string>(_localNames, SymbolEqualityComparer.Default);
-            var usedLocalNames = new HashSet<string>(_usedLocalNames, StringComparer.Ordinal);
-            LowerNested(loop.Body);
-            _diagnostics.RemoveRange(diagnosticCount, _diagnostics.Count - diagnosticCount);
-            RestoreNames(localNames, usedLocalNames);
-            body = LowerNested(loop.Body);
-        }
-        finally
-        {
-            _loopDepth--;
-        }
+        // A local assigned late in the body is read early in the next iteration: lower the body once to learn which
+        // locals come to depend on a variable (so that a condition reading them is flagged), then for real.
+        int diagnosticCount = _diagnostics.Count;
+        var localNames = new Dictionary<ILocalSymbol, string>(_localNames, SymbolEqualityComparer.Default);
+        var usedLocalNames = new HashSet<string>(_usedLocalNames, StringComparer.Ordinal);
+        LowerNested(loop.Body);
+        _diagnostics.RemoveRange(diagnosticCount, _diagnostics.Count - diagnosticCount);
+        RestoreNames(localNames, usedLocalNames);
+        EquatableArray<IrStatement> body = LowerNested(loop.Body);
 
         if (start is not null && end is not null)
         {
