@@ -94,6 +94,10 @@ internal sealed class BodyLowerer
                     LowerFor(loop);
                     break;
 
+                case IForEachLoopOperation loop:
+                    LowerForEach(loop);
+                    break;
+
                 case IBlockOperation block:
                     LowerStatements(block.Operations, isTopLevel && IsLast(statement));
                     break;
@@ -178,20 +182,110 @@ internal sealed class BodyLowerer
         IrExpression? start = LowerExpression(startValue);
         IrExpression? end = LowerExpression(condition.RightOperand);
         string index = DeclareLocal(declarator.Symbol);
-        // A local assigned late in the body is read early in the next iteration: lower the body once to learn which
-        // locals come to depend on a variable (so that a condition reading them is flagged), then for real.
-        int diagnosticCount = _diagnostics.Count;
-        var localNames = new Dictionary<ILocalSymbol, string>(_localNames, SymbolEqualityComparer.Default);
-        var usedLocalNames = new HashSet<string>(_usedLocalNames, StringComparer.Ordinal);
-        LowerNested(loop.Body);
-        _diagnostics.RemoveRange(diagnosticCount, _diagnostics.Count - diagnosticCount);
-        RestoreNames(localNames, usedLocalNames);
-        EquatableArray<IrStatement> body = LowerNested(loop.Body);
+        EquatableArray<IrStatement> body = LowerLoopBody(loop.Body);
 
         if (start is not null && end is not null)
         {
             _statements.Add(new IrFor(index, start, end, condition.OperatorKind == BinaryOperatorKind.LessThanOrEqual, body));
         }
+    }
+
+    /// <summary>
+    /// <c>foreach (double v in data)</c> over a one-dimensional array or span of data is the loop
+    /// <c>for (int vIndex = 0; vIndex &lt; data.Length; vIndex++) { double v = data[vIndex]; … }</c>.
+    /// </summary>
+    private void LowerForEach(IForEachLoopOperation loop)
+    {
+        IOperation collection = loop.Collection is IConversionOperation conversion ? conversion.Operand : loop.Collection;
+        ILocalSymbol? element = loop.Locals.Length == 1 ? loop.Locals[0] : null;
+        string? data = DataText(collection);
+        ITypeSymbol? elementType = collection.Type switch
+        {
+            IArrayTypeSymbol { Rank: 1 } array => array.ElementType,
+            INamedTypeSymbol { TypeArguments.Length: 1 } span when IsSpan(span) => span.TypeArguments[0],
+            _ => null,
+        };
+        if (data is null || element is null || elementType is null || !SymbolEqualityComparer.Default.Equals(element.Type, elementType)
+            || ScalarTypeOf(elementType) is not { } type)
+        {
+            Unsupported(loop, "the foreach loop '" + Text(loop).Split('{')[0].Trim() + "'",
+                "foreach works over a one-dimensional array or span of data (not a variable), with the element's own type");
+            return;
+        }
+
+        string index = Identifiers.Unique(element.Name + "Index", _usedLocalNames);
+        string name = DeclareLocal(element);
+        EquatableArray<IrStatement> body = LowerLoopBody(loop.Body);
+
+        var statements = new List<IrStatement>
+        {
+            new IrAssign(name, new IrElement(data, new IrExpression[] { new IrLocal(index, ScalarType.Int32) }.ToEquatableArray(), type)),
+        };
+        statements.AddRange(body);
+        _statements.Add(new IrFor(index, new IrConstant(0, ScalarType.Int32), new IrExternal(data + ".Length", ScalarType.Int32), false,
+            statements.ToEquatableArray()));
+    }
+
+    /// <summary><c>var (a, b) = (e1, e2);</c> and <c>(a, b) = (e1, e2);</c> into locals, when no element reads a target.</summary>
+    private void LowerDeconstruction(IDeconstructionAssignmentOperation deconstruction)
+    {
+        IOperation target = deconstruction.Target is IDeclarationExpressionOperation declaration ? declaration.Expression : deconstruction.Target;
+        if (target is not ITupleOperation targets || deconstruction.Value is not ITupleOperation values
+            || targets.Elements.Length != values.Elements.Length)
+        {
+            Unsupported(deconstruction, $"the deconstruction '{Text(deconstruction)}'", "deconstruct a tuple literal of values into locals: var (a, b) = (x * y, x + y);");
+            return;
+        }
+
+        var locals = new List<ILocalSymbol>();
+        foreach (IOperation element in targets.Elements)
+        {
+            ILocalSymbol? local = element switch
+            {
+                ILocalReferenceOperation reference => reference.Local,
+                IDeclarationExpressionOperation { Expression: ILocalReferenceOperation declared } => declared.Local,
+                _ => null,
+            };
+            if (local is null || ScalarTypeOf(local.Type) is null)
+            {
+                Unsupported(element, $"the deconstruction target '{Text(element)}'", "deconstruct into double, float, int or bool locals");
+                return;
+            }
+
+            locals.Add(local);
+        }
+
+        bool readsTarget = values.Elements.Any(v => v.DescendantsAndSelf().OfType<ILocalReferenceOperation>()
+            .Any(r => locals.Contains(r.Local, SymbolEqualityComparer.Default)));
+        if (readsTarget)
+        {
+            Unsupported(deconstruction, $"the deconstruction '{Text(deconstruction)}'", "a tuple that reads the locals it assigns (a swap) is not supported; use a temporary local");
+            return;
+        }
+
+        var lowered = values.Elements.Select(LowerExpression).ToList();
+        for (int i = 0; i < locals.Count; i++)
+        {
+            if (lowered[i] is { } value)
+            {
+                AssignLocal(LocalName(locals[i]), Convert(value, ScalarTypeOf(locals[i].Type)!.Value));
+            }
+        }
+    }
+
+    /// <summary>
+    /// A loop body. A local assigned late in the body is read early in the next iteration, so the body is lowered once
+    /// to learn which locals come to depend on a variable (so that a condition reading them is flagged), then for real.
+    /// </summary>
+    private EquatableArray<IrStatement> LowerLoopBody(IOperation body)
+    {
+        int diagnosticCount = _diagnostics.Count;
+        var localNames = new Dictionary<ILocalSymbol, string>(_localNames, SymbolEqualityComparer.Default);
+        var usedLocalNames = new HashSet<string>(_usedLocalNames, StringComparer.Ordinal);
+        LowerNested(body);
+        _diagnostics.RemoveRange(diagnosticCount, _diagnostics.Count - diagnosticCount);
+        RestoreNames(localNames, usedLocalNames);
+        return LowerNested(body);
     }
 
     private void RestoreNames(Dictionary<ILocalSymbol, string> localNames, HashSet<string> usedLocalNames)
@@ -265,6 +359,10 @@ internal sealed class BodyLowerer
     {
         switch (expression)
         {
+            case IDeconstructionAssignmentOperation deconstruction:
+                LowerDeconstruction(deconstruction);
+                break;
+
             case ISimpleAssignmentOperation { Target: ILocalReferenceOperation target } assignment:
                 AssignLocal(LocalName(target.Local), LowerExpression(assignment.Value));
                 break;
