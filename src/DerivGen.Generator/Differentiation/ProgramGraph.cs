@@ -264,6 +264,9 @@ internal sealed class ProgramGraph
                 return b.Raw(kind, binary.Type, Build(binary.Left, locals), Build(binary.Right, locals));
             case IrCall call:
                 return b.RawCall(call.Function, call.Host, call.Type, call.Arguments.Select(a => Build(a, locals)).ToArray());
+            case IrUserCall call:
+                return b.UserCall(new CalleeInfo(call.Receiver, call.Method, call.VariablePositions.ToArray(), call.VariableNames.ToArray(), call.HasHessian),
+                    call.Type, call.Arguments.Select(a => Build(a, locals)).ToArray());
             case IrElement element:
                 return b.Element(element.Data, element.Type, element.Indices.Select(i => Build(i, locals)).ToArray());
             case IrCompare compare:

@@ -214,11 +214,29 @@ internal static class DerivativeEmitter
         var mayThrow = new Dictionary<Node, bool>();
         bool Guarded(Node node) => MayThrowUnlessGuarded(node, unconditional, mayThrow);
 
+        // Calls of other [Differentiate] methods whose derivatives are needed: one call of their MGradient (MHessian)
+        // gives the value and fills a buffer the partial derivatives are read from.
+        var gradientBuffer = new Dictionary<Node, string>();
+        var hessianBuffer = new Dictionary<Node, string>();
+        foreach (Node partial in reachable.Where(r => r.Kind is NodeKind.CallPartial or NodeKind.CallSecondPartial).OrderBy(r => r.Id))
+        {
+            Node call = partial.Arguments[0];
+            gradientBuffer[call] = string.Empty;
+            if (partial.Kind == NodeKind.CallSecondPartial)
+            {
+                hessianBuffer[call] = string.Empty;
+            }
+        }
+
         List<Node> temporaries = reachable
             .Where(node => !node.IsLeaf && !Guarded(node)
-                && (node == program.Value || node.LocalName is not null || uses[node] >= 2 || hoisted.Contains(node)))
+                && (node == program.Value || node.LocalName is not null || uses[node] >= 2 || hoisted.Contains(node) || gradientBuffer.ContainsKey(node)))
             .OrderBy(node => node.Id)
             .ToList();
+        if (gradientBuffer.Keys.Any(call => !temporaries.Contains(call)))
+        {
+            throw new InvalidOperationException("A call whose derivatives are needed is only evaluated under a condition that guards a throwing operation.");
+        }
 
         var reserved = context.Spec.Parameters.Select(p => p.Name)
             .Concat(new[] { context.GradientName, context.HessianName })
@@ -241,15 +259,48 @@ internal static class DerivativeEmitter
             nameOf[node] = names.For(node, x => nameOf.TryGetValue(x, out string? name) ? name : null);
         }
 
-        var code = new ExpressionWriter(node => nameOf.TryGetValue(node, out string? name) ? name : null, formula: false);
+        foreach (Node call in gradientBuffer.Keys.OrderBy(c => c.Id).ToList())
+        {
+            string stem = Identifiers.Unescape(call.Callee!.Method);
+            stem = char.ToLowerInvariant(stem[0]) + stem.Substring(1);
+            string type = ExpressionWriter.TypeKeyword(call.Type);
+            int m = call.Callee.VariablePositions.Length;
+            gradientBuffer[call] = names.Claim(stem + "Gradient");
+            writer.Line("global::System.Span<" + type + "> " + gradientBuffer[call] + " = stackalloc " + type + "[" + Count(m) + "];");
+            if (hessianBuffer.ContainsKey(call))
+            {
+                hessianBuffer[call] = names.Claim(stem + "Hessian");
+                writer.Line("global::System.Span<" + type + "> " + hessianBuffer[call] + " = stackalloc " + type + "[" + Count(m * m) + "];");
+            }
+        }
+
+        string CalleeDerivative(Node partial)
+        {
+            Node call = partial.Arguments[0];
+            return partial.Kind == NodeKind.CallPartial
+                ? gradientBuffer[call] + "[" + Count((int)partial.Value) + "]"
+                : hessianBuffer[call] + "[" + Count((int)partial.Value) + "]";
+        }
+
+        string? NameOf(Node node) => nameOf.TryGetValue(node, out string? name) ? name : null;
+        var code = new ExpressionWriter(NameOf, formula: false, calleeDerivative: CalleeDerivative);
         var declared = new HashSet<string>(StringComparer.Ordinal);
 
         void WriteTemporaries(int stage)
         {
             foreach (Node node in temporaries.Where(t => t.Stage == stage))
             {
-                // A temporary is written with its own definition, not its name.
-                string definition = new ExpressionWriter(x => x == node ? null : nameOf.TryGetValue(x, out string? name) ? name : null, formula: false).Write(node);
+                // A temporary is written with its own definition, not its name; a call whose derivatives are needed
+                // calls the callee's generated method, which returns the same value and fills the buffers.
+                string definition = new ExpressionWriter(x => x == node ? null : NameOf(x), formula: false, calleeDerivative: CalleeDerivative).Write(node);
+                if (gradientBuffer.TryGetValue(node, out string? buffer))
+                {
+                    bool second = hessianBuffer.TryGetValue(node, out string? hessian);
+                    string suffix = second ? Lowering.MethodParser.HessianSuffix : Lowering.MethodParser.GradientSuffix;
+                    var arguments = node.Arguments.Select(code.Write).Concat(second ? new[] { buffer, hessian! } : new[] { buffer });
+                    definition = node.Text + suffix + "(" + string.Join(", ", arguments) + ")";
+                }
+
                 writer.Line(ExpressionWriter.TypeKeyword(node.Type) + " " + nameOf[node] + " = " + definition + ";");
             }
         }

@@ -26,15 +26,18 @@ internal sealed class ExpressionWriter
     private const int Primary = 9;
 
     private readonly Func<Node, string?> _nameOf;
+    private readonly Func<Node, string>? _calleeDerivative;
     private readonly bool _formula;
     private readonly int _maxLength;
 
     /// <param name="nameOf">The name to write for a node, or null to write it inline.</param>
     /// <param name="formula">Plain notation for comments instead of C#.</param>
     /// <param name="maxLength">Formulas longer than this are abandoned (<see cref="TryWrite"/> returns null).</param>
-    public ExpressionWriter(Func<Node, string?> nameOf, bool formula, int maxLength = int.MaxValue)
+    /// <param name="calleeDerivative">For code: how to read a called method's partial derivative (from its buffer).</param>
+    public ExpressionWriter(Func<Node, string?> nameOf, bool formula, int maxLength = int.MaxValue, Func<Node, string>? calleeDerivative = null)
     {
         _nameOf = nameOf;
+        _calleeDerivative = calleeDerivative;
         _formula = formula;
         _maxLength = maxLength;
     }
@@ -171,6 +174,34 @@ internal sealed class ExpressionWriter
             case NodeKind.Not:
                 text.Append('!');
                 return Write(node.Arguments[0], Primary, text);
+
+            case NodeKind.UserCall:
+                text.Append(_formula ? node.Callee!.Method : node.Text).Append('(');
+                for (int i = 0; i < node.Arguments.Length; i++)
+                {
+                    if ((i > 0 && !Append(text, ", ")) || !Write(node.Arguments[i], Conditional, text))
+                    {
+                        return false;
+                    }
+                }
+
+                text.Append(')');
+                return true;
+
+            case NodeKind.CallPartial:
+            case NodeKind.CallSecondPartial:
+                if (!_formula)
+                {
+                    text.Append(_calleeDerivative?.Invoke(node) ?? throw new InvalidOperationException("No buffer for a called method's derivative."));
+                    return true;
+                }
+
+                CalleeInfo callee = node.Arguments[0].Callee!;
+                int m = callee.VariablePositions.Length, index = (int)node.Value;
+                text.Append(node.Kind == NodeKind.CallPartial
+                    ? "∂" + callee.Method + "/∂" + callee.VariableNames[index]
+                    : "∂²" + callee.Method + "/∂" + callee.VariableNames[index / m] + "∂" + callee.VariableNames[index % m]);
+                return true;
 
             case NodeKind.Element:
                 text.Append(node.Text).Append('[');

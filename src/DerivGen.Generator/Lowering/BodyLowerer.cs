@@ -29,8 +29,13 @@ internal sealed class BodyLowerer
     private List<IrStatement> _statements = new();
     private int _depth;
 
-    public BodyLowerer(HashSet<string> variables, List<DiagnosticInfo> diagnostics, CancellationToken cancellationToken)
+    private readonly IMethodSymbol _method;
+    private readonly bool _emitHessian;
+
+    public BodyLowerer(IMethodSymbol method, bool emitHessian, HashSet<string> variables, List<DiagnosticInfo> diagnostics, CancellationToken cancellationToken)
     {
+        _method = method;
+        _emitHessian = emitHessian;
         _variables = variables;
         _diagnostics = diagnostics;
         _cancellationToken = cancellationToken;
@@ -680,6 +685,11 @@ internal sealed class BodyLowerer
             return new IrExternal(arrayText + ".GetLength(" + dimension.ToString(System.Globalization.CultureInfo.InvariantCulture) + ")", ScalarType.Int32);
         }
 
+        if (target.GetAttributes().FirstOrDefault(a => a.AttributeClass?.ToDisplayString() == MethodParser.AttributeMetadataName) is { } attribute)
+        {
+            return LowerUserCall(invocation, target, attribute);
+        }
+
         MathHost? host = target.ContainingType?.SpecialType switch
         {
             SpecialType.System_Double => MathHost.Double,
@@ -696,7 +706,7 @@ internal sealed class BodyLowerer
             || ScalarTypeOf(target.ReturnType) is not { } returnType)
         {
             return Unsupported(invocation, $"the call to '{target.ContainingType?.ToDisplayString()}.{target.Name}'",
-                "only the functions of System.Math, System.MathF, double and float listed in the README are supported; calls to other methods come in a later version");
+                "only the functions of System.Math, System.MathF, double and float listed in the README, and other [Differentiate] methods, can be called; mark the method [Differentiate] to differentiate through it");
         }
 
         var arguments = new IrExpression[invocation.Arguments.Length];
@@ -737,6 +747,57 @@ internal sealed class BodyLowerer
         return call;
     }
 
+    /// <summary>
+    /// A call of another [Differentiate] method: its value as written, its derivatives by the chain rule from the
+    /// callee's own generated MGradient/MHessian (the callee is not inlined).
+    /// </summary>
+    private IrExpression? LowerUserCall(IInvocationOperation invocation, IMethodSymbol target, AttributeData attribute)
+    {
+        string name = "'" + target.ContainingType?.Name + "." + target.Name + "'";
+        if (SymbolEqualityComparer.Default.Equals(target.OriginalDefinition, _method.OriginalDefinition))
+        {
+            return Unsupported(invocation, "the recursive call " + name, "a differentiated method cannot call itself; write the recursion as a loop");
+        }
+
+        string? receiver = target.IsStatic ? FullyQualified(target.ContainingType!)
+            : invocation.Instance is IInstanceReferenceOperation ? "this" : null;
+        if (receiver is null || target.IsGenericMethod || target.DeclaringSyntaxReferences.IsEmpty
+            || ScalarTypeOf(target.ReturnType) is not ({ } type and (ScalarType.Double or ScalarType.Single))
+            || target.Parameters.Any(p => ScalarTypeOf(p.Type) is null || p.RefKind is not (RefKind.None or RefKind.In)))
+        {
+            return Unsupported(invocation, "the call to " + name,
+                "a called [Differentiate] method must be static or of this instance, in this compilation, not generic, and take double, float, int or bool parameters");
+        }
+
+        if (_emitHessian && !MethodParser.HasHessian(attribute))
+        {
+            return Unsupported(invocation, "the call to " + name, "it is marked Hessian = false, so its second derivatives are not generated; remove that, or set Hessian = false here too");
+        }
+
+        IReadOnlyList<IParameterSymbol> calleeVariables = MethodParser.VariablesOf(target, attribute);
+        var arguments = new IrExpression[target.Parameters.Length];
+        foreach (IArgumentOperation argument in invocation.Arguments)
+        {
+            if (argument.Parameter is null || LowerExpression(argument.Value) is not { } lowered)
+            {
+                return null;
+            }
+
+            IParameterSymbol parameter = argument.Parameter;
+            if (!calleeVariables.Contains(parameter, SymbolEqualityComparer.Default) && DependsOnVariable(lowered))
+            {
+                return Unsupported(argument, $"the argument for '{parameter.Name}' of {name}",
+                    $"it depends on a differentiation variable, but '{parameter.Name}' is not one of the variables of {name}; add it to that method's [Differentiate]");
+            }
+
+            arguments[parameter.Ordinal] = Convert(lowered, ScalarTypeOf(parameter.Type)!.Value);
+        }
+
+        return new IrUserCall(receiver, Identifiers.Escape(target.Name), arguments.ToEquatableArray(),
+            calleeVariables.Select(p => p.Ordinal).ToEquatableArray(), calleeVariables.Select(p => p.Name).ToEquatableArray(),
+            MethodParser.HasHessian(attribute), type);
+    }
+
     private bool DependsOnVariable(IrExpression expression) => expression switch
     {
         IrParameter parameter => _variables.Contains(parameter.Name),
@@ -745,6 +806,7 @@ internal sealed class BodyLowerer
         IrConvert convert => convert.Type != ScalarType.Int32 && DependsOnVariable(convert.Operand),
         IrBinary binary => binary.Type != ScalarType.Int32 && (DependsOnVariable(binary.Left) || DependsOnVariable(binary.Right)),
         IrCall call => AnyDependsOnVariable(call.Arguments),
+        IrUserCall call => AnyDependsOnVariable(call.Arguments),
         IrCompare compare => DependsOnVariable(compare.Left) || DependsOnVariable(compare.Right),
         IrLogical logical => DependsOnVariable(logical.Left) || (logical.Right is not null && DependsOnVariable(logical.Right)),
         IrConditional conditional => DependsOnVariable(conditional.WhenTrue) || DependsOnVariable(conditional.WhenFalse) || DependsOnVariable(conditional.Condition),

@@ -82,7 +82,7 @@ internal static class MethodParser
         }
 
         HashSet<string> variables = SelectVariables(method, attribute, diagnostics, nameLocation, cancellationToken);
-        bool emitHessian = attribute.NamedArguments.FirstOrDefault(a => a.Key == "Hessian").Value.Value is not false;
+        bool emitHessian = HasHessian(attribute);
 
         CheckGeneratedNames(method, emitHessian, nameLocation, diagnostics);
 
@@ -95,7 +95,7 @@ internal static class MethodParser
         else if (returnType is (ScalarType.Double or ScalarType.Single)
             && semanticModel.GetOperation(syntax, cancellationToken) is IMethodBodyOperation { BlockBody: var block, ExpressionBody: var expression })
         {
-            var lowerer = new BodyLowerer(new HashSet<string>(variables.Select(Identifiers.Escape), StringComparer.Ordinal), diagnostics, cancellationToken);
+            var lowerer = new BodyLowerer(method, emitHessian, new HashSet<string>(variables.Select(Identifiers.Escape), StringComparer.Ordinal), diagnostics, cancellationToken);
             body = lowerer.Lower((block ?? expression)!);
         }
 
@@ -139,12 +139,9 @@ internal static class MethodParser
 
         if (names.Count == 0)
         {
-            foreach (IParameterSymbol parameter in method.Parameters)
+            foreach (IParameterSymbol parameter in method.Parameters.Where(IsDefaultVariable))
             {
-                if (IsFloatingPoint(parameter.Type) && parameter.RefKind is RefKind.None or RefKind.In)
-                {
-                    variables.Add(parameter.Name);
-                }
+                variables.Add(parameter.Name);
             }
         }
 
@@ -182,6 +179,32 @@ internal static class MethodParser
 
         return variables;
     }
+
+    /// <summary>Without names in the attribute, every double or float parameter passed by value or 'in' is a variable.</summary>
+    private static bool IsDefaultVariable(IParameterSymbol parameter) =>
+        IsFloatingPoint(parameter.Type) && parameter.RefKind is RefKind.None or RefKind.In;
+
+    /// <summary>The differentiation variables of another [Differentiate] method, in order (for calls between them).</summary>
+    internal static IReadOnlyList<IParameterSymbol> VariablesOf(IMethodSymbol method, AttributeData attribute)
+    {
+        var names = new HashSet<string>(StringComparer.Ordinal);
+        if (attribute.ConstructorArguments.Length == 1 && attribute.ConstructorArguments[0].Kind == TypedConstantKind.Array)
+        {
+            foreach (TypedConstant value in attribute.ConstructorArguments[0].Values)
+            {
+                if (value.Value is string name)
+                {
+                    names.Add(name);
+                }
+            }
+        }
+
+        return method.Parameters.Where(p => names.Count == 0 ? IsDefaultVariable(p) : names.Contains(p.Name) && IsFloatingPoint(p.Type)).ToList();
+    }
+
+    /// <summary>Whether a [Differentiate] method generates its Hessian method.</summary>
+    internal static bool HasHessian(AttributeData attribute) =>
+        attribute.NamedArguments.FirstOrDefault(a => a.Key == "Hessian").Value.Value is not false;
 
     private static void ImmutableArrayIndexed(TypedConstant array, List<(string? Name, int Index)> names)
     {

@@ -77,6 +77,14 @@ internal sealed record IrConvert(IrExpression Operand, ScalarType Type) : IrExpr
 internal sealed record IrCall(MathFunction Function, MathHost Host, EquatableArray<IrExpression> Arguments, ScalarType Type)
     : IrExpression(Type);
 
+/// <summary>
+/// A call of another <c>[Differentiate]</c> method of the compilation, differentiated by the chain rule with that
+/// method's own generated derivatives. <paramref name="Receiver"/> is "this" or the fully qualified type;
+/// <paramref name="VariablePositions"/> are the argument positions of the callee's variables, in the callee's order.
+/// </summary>
+internal sealed record IrUserCall(string Receiver, string Method, EquatableArray<IrExpression> Arguments, EquatableArray<int> VariablePositions,
+    EquatableArray<string> VariableNames, bool HasHessian, ScalarType Type) : IrExpression(Type);
+
 /// <summary>An element of data (an array, span or 2-D array that is not a variable): <c>x[i]</c>, <c>m[i, j]</c>.
 /// <paramref name="Data"/> is the C# expression of the data (a parameter name, <c>this.field</c>, a qualified static).</summary>
 internal sealed record IrElement(string Data, EquatableArray<IrExpression> Indices, ScalarType Type) : IrExpression(Type);

@@ -69,6 +69,19 @@ internal static class DerivativeRules
                 };
             case NodeKind.Call:
                 return Functions.TryGetValue(f.Function, out Rule? rule) ? rule(b, f, x, i) : C(b, f, 0);
+            case NodeKind.UserCall:                                                       // chain rule through the callee's own gradient
+            {
+                int k = System.Array.IndexOf(f.Callee!.VariablePositions, i);
+                return k < 0 ? C(b, f, 0) : b.CallPartial(f, k);
+            }
+
+            case NodeKind.CallPartial when i > 0:                                         // … and its own Hessian
+            {
+                Node call = x[0];
+                int l = System.Array.IndexOf(call.Callee!.VariablePositions, i - 1);
+                return l < 0 ? C(b, f, 0) : b.CallSecondPartial(call, (int)f.Value, l);
+            }
+
             default:
                 return C(b, f, 0);                                                        // constants, data, comparisons, logic
         }

@@ -1,5 +1,6 @@
 using System;
 using System.Collections.Generic;
+using System.Linq;
 using System.Threading;
 using DerivGen.Generator.Model;
 
@@ -58,6 +59,23 @@ internal sealed class ExpressionBuilder
     /// <summary>An element of data, <c>data[indices]</c> (constant with respect to the variables).</summary>
     public Node Element(string data, ScalarType type, params Node[] indices) =>
         Intern(NodeKind.Element, type, indices, 0, data, default, default, default, -1);
+
+    /// <summary>A call of another [Differentiate] method, as written.</summary>
+    public Node UserCall(CalleeInfo callee, ScalarType type, Node[] arguments)
+    {
+        Node node = Intern(NodeKind.UserCall, type, arguments, 0, callee.Receiver + "." + callee.Method, default, default, default, -1);
+        node.Callee ??= callee;
+        return node;
+    }
+
+    /// <summary>The callee's partial derivative with respect to its variable number <paramref name="k"/>.</summary>
+    public Node CallPartial(Node call, int k) =>
+        Intern(NodeKind.CallPartial, call.Type, new[] { call }.Concat(call.Arguments).ToArray(), k, null, default, default, default, -1);
+
+    /// <summary>The callee's second partial derivative with respect to its variables k and l.</summary>
+    public Node CallSecondPartial(Node call, int k, int l) =>
+        Intern(NodeKind.CallSecondPartial, call.Type, new[] { call }.Concat(call.Arguments).ToArray(),
+            (k * call.Callee!.VariablePositions.Length) + l, null, default, default, default, -1);
 
     /// <summary>A comparison as written.</summary>
     public Node RawCompare(Comparison comparison, Node a, Node b) =>

@@ -23,6 +23,38 @@ internal enum NodeKind
     And,
     Or,
     Not,
+
+    /// <summary>A call of another [Differentiate] method; <see cref="Node.Callee"/> says which.</summary>
+    UserCall,
+
+    /// <summary>∂callee/∂(its variable number Value), read from the callee's gradient; Arguments = [call, its arguments…].</summary>
+    CallPartial,
+
+    /// <summary>∂²callee/∂v_k∂v_l (Value = k·m + l), read from the callee's Hessian; Arguments = [call, its arguments…].</summary>
+    CallSecondPartial,
+}
+
+/// <summary>What the derivative code needs to know about a called [Differentiate] method.</summary>
+internal sealed class CalleeInfo
+{
+    public CalleeInfo(string receiver, string method, int[] variablePositions, string[] variableNames, bool hasHessian)
+    {
+        Receiver = receiver;
+        Method = method;
+        VariablePositions = variablePositions;
+        VariableNames = variableNames;
+        HasHessian = hasHessian;
+    }
+
+    public string Receiver { get; }
+
+    public string Method { get; }
+
+    public int[] VariablePositions { get; }
+
+    public string[] VariableNames { get; }
+
+    public bool HasHessian { get; }
 }
 
 internal enum Comparison
@@ -100,6 +132,9 @@ internal sealed class Node
     public int VariableIndex { get; }
 
     public bool DependsOnVariables { get; }
+
+    /// <summary>For a <see cref="NodeKind.UserCall"/>, the method called.</summary>
+    public CalleeInfo? Callee { get; set; }
 
     /// <summary>The user's local name for the value this node computes, if the user gave it one.</summary>
     public string? LocalName { get; set; }
