@@ -200,6 +200,33 @@ internal static class DerivativeEmitter
             }
         }
 
+        // A generated local read at a later stage than the one its leaf stands for, with a nested loop in between that
+        // updates it, is copied where the leaf's value holds (double sBefore = s;) and the copy is read instead.
+        var updatedBy = program.Loops.ToDictionary(loop => loop, loop => new HashSet<string>(
+            initial[loop].Concat(next[loop]).Select(u => u.Target), StringComparer.Ordinal));
+        var snapshots = new HashSet<Node>();
+        void CheckSnapshot(Node leaf, int useStage)
+        {
+            if (leaf.Kind == NodeKind.Parameter && leaf.Stage > 0 && leaf.Stage < useStage
+                && program.Loops.Any(loop => leaf.Stage < loop.InsideStage && loop.AfterStage <= useStage && updatedBy[loop].Contains(leaf.Text!)))
+            {
+                snapshots.Add(leaf);
+            }
+        }
+
+        foreach (Node node in reachable)
+        {
+            foreach (Node argument in node.Arguments)
+            {
+                CheckSnapshot(argument, node.Stage);
+            }
+        }
+
+        foreach ((Node root, int useStage) in roots)
+        {
+            CheckSnapshot(root, useStage);
+        }
+
         // A node the user's code evaluates only under a condition (one side of an if or ?:, the right of && or ||) and
         // that could throw (a data read, an int division, Clamp) must stay inside that condition: it is written inline
         // where it is used, never computed ahead in a local.
@@ -229,8 +256,8 @@ internal static class DerivativeEmitter
         }
 
         List<Node> temporaries = reachable
-            .Where(node => !node.IsLeaf && !Guarded(node)
-                && (node == program.Value || node.LocalName is not null || uses[node] >= 2 || hoisted.Contains(node) || gradientBuffer.ContainsKey(node)))
+            .Where(node => snapshots.Contains(node) || (!node.IsLeaf && !Guarded(node)
+                && (node == program.Value || node.LocalName is not null || uses[node] >= 2 || hoisted.Contains(node) || gradientBuffer.ContainsKey(node))))
             .OrderBy(node => node.Id)
             .ToList();
         if (gradientBuffer.Keys.Any(call => !temporaries.Contains(call)))
@@ -252,6 +279,11 @@ internal static class DerivativeEmitter
         foreach (Node node in temporaries.Where(t => t.LocalName is not null && !nameOf.ContainsKey(t)))
         {
             nameOf[node] = names.Claim(node.LocalName!);
+        }
+
+        foreach (Node node in snapshots)
+        {
+            nameOf[node] = names.Claim(Identifiers.Unescape(node.Text!) + "Before");
         }
 
         foreach (Node node in temporaries.Where(t => !nameOf.ContainsKey(t)))

@@ -57,7 +57,7 @@ internal sealed class ExpressionWriter
             return false;
         }
 
-        string? name = node.IsLeaf ? null : _nameOf(node);
+        string? name = IsNameable(node) ? _nameOf(node) : null;
         if (name is not null)
         {
             text.Append(name);
@@ -234,7 +234,7 @@ internal sealed class ExpressionWriter
 
     private int Precedence(Node node)
     {
-        if (!node.IsLeaf && _nameOf(node) is not null)
+        if (IsNameable(node) && _nameOf(node) is not null)
         {
             return Primary;
         }
@@ -254,6 +254,9 @@ internal sealed class ExpressionWriter
             _ => Primary,
         };
     }
+
+    /// <summary>Constants and method parameters are always written as themselves; any other node may have a local.</summary>
+    private static bool IsNameable(Node node) => !node.IsLeaf || (node.Kind == NodeKind.Parameter && node.Stage > 0);
 
     internal static string TypeKeyword(ScalarType type) => type switch
     {

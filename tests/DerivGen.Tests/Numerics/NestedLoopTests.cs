@@ -1,0 +1,86 @@
+using System;
+using DerivGen.Tests.Infrastructure;
+using Xunit;
+
+namespace DerivGen.Tests.Numerics;
+
+public sealed class NestedLoopFixture : CompiledFixture
+{
+    public const string Source = """
+        using System;
+        using DerivGen;
+
+        public static partial class Nested
+        {
+            // An inner loop updates s while the outer loop also uses s's value from before that inner loop.
+            [Differentiate(nameof(a), nameof(b))]
+            public static double BeforeAndAfter(double a, double b, double[] x)
+            {
+                double s = 0, q = 0;
+                for (int i = 0; i < x.Length; i++)
+                {
+                    double before = s;
+                    for (int j = 0; j < 3; j++)
+                    {
+                        s += a * x[i] * j;
+                    }
+
+                    q += before * b + s * a;
+                }
+
+                return q;
+            }
+        }
+        """;
+
+    public NestedLoopFixture()
+        : base(Source)
+    {
+    }
+}
+
+/// <summary>
+/// Nested loops where an inner loop changes a local that the enclosing iteration read earlier: the derivative must use
+/// the value from before the inner loop (a regression test: the generated code once read the updated local).
+/// </summary>
+public sealed class NestedLoopTests : IClassFixture<NestedLoopFixture>
+{
+    private readonly NestedLoopFixture _fixture;
+
+    public NestedLoopTests(NestedLoopFixture fixture) => _fixture = fixture;
+
+    [Theory]
+    [InlineData(0.8, -0.6)]
+    [InlineData(-1.3, 2.2)]
+    public void ValueBeforeTheInnerLoopIsTheOneDifferentiated(double a, double b)
+    {
+        // Derived by hand (plain calculus): with P_i = x_0 + … + x_i (P_-1 = 0), after the inner loop of iteration i
+        // s = 3a·P_i and before it s = 3a·P_(i-1), so F = Σ_i (3ab·P_(i-1) + 3a²·P_i), hence
+        // ∂F/∂a = Σ (3b·P_(i-1) + 6a·P_i), ∂F/∂b = Σ 3a·P_(i-1), ∂²F/∂a² = Σ 6P_i, ∂²F/∂a∂b = Σ 3P_(i-1), ∂²F/∂b² = 0.
+        double[] x = { 0.5, -1.0, 2.0 }; // invented data
+        double sumP = 0, sumPrevious = 0, p = 0;
+        foreach (double xi in x)
+        {
+            sumPrevious += p;
+            p += xi;
+            sumP += p;
+        }
+
+        var gradient = new[] { (3 * b * sumPrevious) + (6 * a * sumP), 3 * a * sumPrevious };
+        var hessian = new[] { 6 * sumP, 3 * sumPrevious, 3 * sumPrevious, 0.0 };
+        var f = _fixture.Assembly.Method<F>("Nested", "BeforeAndAfter");
+        var g = _fixture.Assembly.Method<G>("Nested", "BeforeAndAfterGradient");
+        var h = _fixture.Assembly.Method<H>("Nested", "BeforeAndAfterHessian");
+        Probe probe = Probe.Of(
+            (F2)((p0, p1) => f(p0, p1, x)),
+            (G2)((p0, p1, gr) => g(p0, p1, x, gr)),
+            (H2)((p0, p1, gr, he) => h(p0, p1, x, gr, he)));
+        Verify.At(probe, new[] { a, b }, gradient, hessian, "BeforeAndAfter");
+    }
+
+    private delegate double F(double a, double b, double[] x);
+
+    private delegate double G(double a, double b, double[] x, Span<double> gradient);
+
+    private delegate double H(double a, double b, double[] x, Span<double> gradient, Span<double> hessian);
+}
