@@ -200,15 +200,16 @@ internal static class DerivativeEmitter
             }
         }
 
-        // A generated local read at a later stage than the one its leaf stands for, with a nested loop in between that
-        // updates it, is copied where the leaf's value holds (double sBefore = s;) and the copy is read instead.
+        // A generated local read at a later stage than the one its leaf stands for, where a loop that updates it has
+        // started in between (the use is after or inside that loop), is copied where the leaf's value holds
+        // (double sBefore = s;) and the copy is read instead.
         var updatedBy = program.Loops.ToDictionary(loop => loop, loop => new HashSet<string>(
             initial[loop].Concat(next[loop]).Select(u => u.Target), StringComparer.Ordinal));
         var snapshots = new HashSet<Node>();
         void CheckSnapshot(Node leaf, int useStage)
         {
             if (leaf.Kind == NodeKind.Parameter && leaf.Stage > 0 && leaf.Stage < useStage
-                && program.Loops.Any(loop => leaf.Stage < loop.InsideStage && loop.AfterStage <= useStage && updatedBy[loop].Contains(leaf.Text!)))
+                && program.Loops.Any(loop => leaf.Stage < loop.InsideStage && loop.InsideStage <= useStage && updatedBy[loop].Contains(leaf.Text!)))
             {
                 snapshots.Add(leaf);
             }

@@ -30,6 +30,25 @@ public sealed class NestedLoopFixture : CompiledFixture
 
                 return q;
             }
+
+            // A second loop updates s while reading s1, the value s had after the first loop.
+            [Differentiate(nameof(a), nameof(b))]
+            public static double AfterFirstLoop(double a, double b, double[] x)
+            {
+                double s = 0;
+                for (int i = 0; i < x.Length; i++)
+                {
+                    s += a * x[i];
+                }
+
+                double s1 = s;
+                for (int i = 0; i < x.Length; i++)
+                {
+                    s += s1 * b * x[i];
+                }
+
+                return s;
+            }
         }
         """;
 
@@ -40,8 +59,8 @@ public sealed class NestedLoopFixture : CompiledFixture
 }
 
 /// <summary>
-/// Nested loops where an inner loop changes a local that the enclosing iteration read earlier: the derivative must use
-/// the value from before the inner loop (a regression test: the generated code once read the updated local).
+/// Loops that change a local that the enclosing iteration read earlier: the derivative must use
+/// the value from before that loop (regression tests: the generated code once read the updated local).
 /// </summary>
 public sealed class NestedLoopTests : IClassFixture<NestedLoopFixture>
 {
@@ -68,14 +87,32 @@ public sealed class NestedLoopTests : IClassFixture<NestedLoopFixture>
 
         var gradient = new[] { (3 * b * sumPrevious) + (6 * a * sumP), 3 * a * sumPrevious };
         var hessian = new[] { 6 * sumP, 3 * sumPrevious, 3 * sumPrevious, 0.0 };
-        var f = _fixture.Assembly.Method<F>("Nested", "BeforeAndAfter");
-        var g = _fixture.Assembly.Method<G>("Nested", "BeforeAndAfterGradient");
-        var h = _fixture.Assembly.Method<H>("Nested", "BeforeAndAfterHessian");
-        Probe probe = Probe.Of(
+        Verify.At(Bind("BeforeAndAfter", x), new[] { a, b }, gradient, hessian, "BeforeAndAfter");
+    }
+
+    [Theory]
+    [InlineData(0.8, -0.6)]
+    [InlineData(-1.3, 2.2)]
+    public void LaterLoopReadsTheValueFromBeforeIt(double a, double b)
+    {
+        // Derived by hand: with X = Σ x_i, the first loop gives s = aX, the second adds Σ (aX)·b·x_i = abX², so
+        // F = aX + abX², ∂F/∂a = X + bX², ∂F/∂b = aX², ∂²F/∂a² = 0, ∂²F/∂a∂b = X², ∂²F/∂b² = 0.
+        double[] x = { 0.5, -1.0, 2.0 }; // invented data
+        double sum = 0.5 - 1.0 + 2.0;
+        Verify.At(Bind("AfterFirstLoop", x), new[] { a, b },
+            new[] { sum + (b * sum * sum), a * sum * sum },
+            new[] { 0.0, sum * sum, sum * sum, 0.0 }, "AfterFirstLoop");
+    }
+
+    private Probe Bind(string method, double[] x)
+    {
+        var f = _fixture.Assembly.Method<F>("Nested", method);
+        var g = _fixture.Assembly.Method<G>("Nested", method + "Gradient");
+        var h = _fixture.Assembly.Method<H>("Nested", method + "Hessian");
+        return Probe.Of(
             (F2)((p0, p1) => f(p0, p1, x)),
             (G2)((p0, p1, gr) => g(p0, p1, x, gr)),
             (H2)((p0, p1, gr, he) => h(p0, p1, x, gr, he)));
-        Verify.At(probe, new[] { a, b }, gradient, hessian, "BeforeAndAfter");
     }
 
     private delegate double F(double a, double b, double[] x);
