@@ -161,8 +161,19 @@ internal sealed class ProgramGraph
                     Node condition = Build(branch.Condition, locals);
                     var whenTrue = new Dictionary<string, Node>(locals, StringComparer.Ordinal);
                     var whenFalse = new Dictionary<string, Node>(locals, StringComparer.Ordinal);
+                    Node? returnedBefore = Value;
+                    Value = null!;
                     Run(branch.Then, whenTrue);
+                    Node? returnedThen = Value;
+                    Value = null!;
                     Run(branch.Else, whenFalse);
+                    Node? returnedElse = Value;
+
+                    // Both sides of an if that returns from the method return (Lowering puts the rest of the method on
+                    // the other side), so the method's value is the selection of the two.
+                    Value = returnedThen is not null && returnedElse is not null
+                        ? _builder.Raw(NodeKind.Select, returnedThen.Type, condition, returnedThen, returnedElse)
+                        : returnedBefore!;
                     // Locals that exist after the if: assigned before it, or (declared before it without a value) in both branches.
                     foreach (string name in whenTrue.Keys.Where(whenFalse.ContainsKey).ToList())
                     {

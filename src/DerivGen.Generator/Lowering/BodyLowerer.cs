@@ -28,6 +28,8 @@ internal sealed class BodyLowerer
     private readonly HashSet<string> _variableDependentLocals = new(StringComparer.Ordinal);
     private List<IrStatement> _statements = new();
     private int _depth;
+    private int _branchDepth;
+    private int _afterEarlyReturn;
 
     private readonly IMethodSymbol _method;
     private readonly bool _emitHessian;
@@ -50,8 +52,10 @@ internal sealed class BodyLowerer
     private void LowerStatements(IEnumerable<IOperation> statements, bool isTopLevel)
     {
         bool returned = false;
-        foreach (IOperation statement in statements)
+        List<IOperation> list = statements.ToList();
+        for (int position = 0; position < list.Count; position++)
         {
+            IOperation statement = list[position];
             _cancellationToken.ThrowIfCancellationRequested();
             if (returned)
             {
@@ -91,6 +95,12 @@ internal sealed class BodyLowerer
                     returned = true;
                     break;
 
+                case IConditionalOperation branch when isTopLevel && EndsWithReturn(branch.WhenTrue):
+                    // if (c) { …; return a; } rest  ≡  if (c) { …; return a; } else { rest }: the value is selected.
+                    LowerReturningIf(branch, list.Skip(position + 1));
+                    returned = true;
+                    break;
+
                 case IConditionalOperation branch:
                     LowerIf(branch);
                     break;
@@ -118,21 +128,21 @@ internal sealed class BodyLowerer
     }
 
     /// <summary>Lowers statements into a fresh list (the body of a branch or loop).</summary>
-    private EquatableArray<IrStatement> LowerNested(IOperation? statement)
+    private EquatableArray<IrStatement> LowerNested(IOperation? statement, bool isTopLevel = false) => statement switch
+    {
+        IBlockOperation block => LowerNested(block.Operations, isTopLevel),
+        null => EquatableArray<IrStatement>.Empty,
+        _ => LowerNested(new[] { statement }, isTopLevel),
+    };
+
+    /// <summary>Lowers statements into a fresh list; <paramref name="isTopLevel"/> lets them end the method with a return.</summary>
+    private EquatableArray<IrStatement> LowerNested(IReadOnlyList<IOperation> statements, bool isTopLevel)
     {
         List<IrStatement> outer = _statements;
         _statements = new List<IrStatement>();
         try
         {
-            if (statement is IBlockOperation block)
-            {
-                LowerStatements(block.Operations, isTopLevel: false);
-            }
-            else if (statement is not null)
-            {
-                LowerStatements(new[] { statement }, isTopLevel: false);
-            }
-
+            LowerStatements(statements, isTopLevel);
             return _statements.ToEquatableArray();
         }
         finally
@@ -144,13 +154,44 @@ internal sealed class BodyLowerer
     private void LowerIf(IConditionalOperation branch)
     {
         IrExpression? condition = LowerCondition(branch.Condition);
+        _branchDepth++;
         EquatableArray<IrStatement> whenTrue = LowerNested(branch.WhenTrue);
         EquatableArray<IrStatement> whenFalse = LowerNested(branch.WhenFalse);
+        _branchDepth--;
         if (condition is not null)
         {
             _statements.Add(new IrIf(condition, whenTrue, whenFalse));
         }
     }
+
+    /// <summary>An if whose first branch returns: the rest of the method (after the else, if any) is its other branch.</summary>
+    private void LowerReturningIf(IConditionalOperation branch, IEnumerable<IOperation> rest)
+    {
+        IrExpression? condition = LowerCondition(branch.Condition);
+        _branchDepth++;
+        EquatableArray<IrStatement> whenTrue = LowerNested(branch.WhenTrue, isTopLevel: true);
+        IEnumerable<IOperation> otherwise = branch.WhenFalse switch
+        {
+            null => rest,
+            IBlockOperation block => block.Operations.Concat(rest),
+            var single => new[] { single }.Concat(rest),
+        };
+        _afterEarlyReturn++;
+        EquatableArray<IrStatement> whenFalse = LowerNested(otherwise.ToList(), isTopLevel: true);
+        _afterEarlyReturn--;
+        _branchDepth--;
+        if (condition is not null)
+        {
+            _statements.Add(new IrIf(condition, whenTrue, whenFalse));
+        }
+    }
+
+    private static bool EndsWithReturn(IOperation? statement) => statement switch
+    {
+        IReturnOperation { ReturnedValue: not null } => true,
+        IBlockOperation { Operations.Length: > 0 } block => EndsWithReturn(block.Operations[block.Operations.Length - 1]),
+        _ => false,
+    };
 
     /// <summary>A branch condition; a condition that depends on a variable is a kink (DG0007).</summary>
     private IrExpression? LowerCondition(IOperation operation)
@@ -166,8 +207,32 @@ internal sealed class BodyLowerer
         return condition;
     }
 
+    private bool RefuseLoopInBranch(IOperation loop)
+    {
+        if (_branchDepth == 0)
+        {
+            return false;
+        }
+
+        if (_afterEarlyReturn > 0)
+        {
+            Unsupported(loop, "the loop after an early return", "the generated code would run it even when the method returns early; keep the result in a local and return once, at the end");
+        }
+        else
+        {
+            Unsupported(loop, "the loop inside an if", "the generated code would run it whatever the condition; move the loop out of the branch and test the condition inside its body");
+        }
+
+        return true;
+    }
+
     private void LowerFor(IForLoopOperation loop)
     {
+        if (RefuseLoopInBranch(loop))
+        {
+            return;
+        }
+
         // for (int i = start; i < end; i++) — the one loop form supported, with bounds that are ints (so they cannot depend on a variable).
         IVariableDeclaratorOperation? declarator = loop.Before.Length == 1
             && loop.Before[0] is IVariableDeclarationGroupOperation { Declarations.Length: 1 } group
@@ -201,6 +266,11 @@ internal sealed class BodyLowerer
     /// </summary>
     private void LowerForEach(IForEachLoopOperation loop)
     {
+        if (RefuseLoopInBranch(loop))
+        {
+            return;
+        }
+
         IOperation collection = loop.Collection is IConversionOperation conversion ? conversion.Operand : loop.Collection;
         ILocalSymbol? element = loop.Locals.Length == 1 ? loop.Locals[0] : null;
         string? data = DataText(collection);
