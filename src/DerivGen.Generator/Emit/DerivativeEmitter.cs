@@ -371,7 +371,9 @@ internal static class DerivativeEmitter
                     bool readByOthers = pending.Any(other => other.Target != update.Target && reads[other.Target].Contains(update.Target));
                     if (!readByOthers)
                     {
-                        writer.Line(InPlace(update, code, program.Builder));
+                        writer.Line(nameOf.TryGetValue(update.Value, out string? computed)
+                            ? update.Target + " = " + computed + ";"     // already computed, from the old values
+                            : InPlace(update, code, program.Builder));
                         continue;
                     }
 

@@ -126,7 +126,7 @@ internal sealed class ExpressionBuilder
 
         if (IsNegativeTerm(b))
         {
-            return Subtract(a, Negate(b));   // a + (−k)·y = a − k·y
+            return Subtract(a, PositiveTerm(b));   // a + (−k)·y = a − k·y
         }
 
         if (a.Kind == NodeKind.Negate)
@@ -172,7 +172,7 @@ internal sealed class ExpressionBuilder
 
         if (IsNegativeTerm(b))
         {
-            return Add(a, Negate(b));   // a − (−k)·y = a + k·y
+            return Add(a, PositiveTerm(b));   // a − (−k)·y = a + k·y
         }
 
         if (a.Kind == NodeKind.Select && b.Kind == NodeKind.Select && a.Arguments[0] == b.Arguments[0])
@@ -334,10 +334,10 @@ internal sealed class ExpressionBuilder
                 return a.Arguments[0];
             case NodeKind.Subtract:
                 return Subtract(a.Arguments[1], a.Arguments[0]);
-            case NodeKind.Multiply when a.Arguments[1].Kind == NodeKind.Subtract:
-                return Multiply(a.Arguments[0], Negate(a.Arguments[1]));   // −(a·(p − q)) = a·(q − p)
             case NodeKind.Multiply when a.Arguments[0].Kind == NodeKind.Constant:
                 return Multiply(Constant(-a.Arguments[0].Value, a.Arguments[0].Type), a.Arguments[1]);   // −(k·y) = (−k)·y
+            case NodeKind.Multiply when a.Arguments[1].Kind == NodeKind.Subtract:
+                return Multiply(a.Arguments[0], Negate(a.Arguments[1]));   // −(a·(p − q)) = a·(q − p)
             case NodeKind.Select when IsConstantSelect(a):
                 return Select(a.Arguments[0], Negate(a.Arguments[1]), Negate(a.Arguments[2]));
             default:
@@ -426,6 +426,12 @@ internal sealed class ExpressionBuilder
     }
 
     // ---- Internals ----------------------------------------------------------------------------------------------
+
+    /// <summary>The negation of a negative term (a constant k &lt; 0, or k·y), built directly as |k| or |k|·y.</summary>
+    private Node PositiveTerm(Node node) => node.Kind == NodeKind.Constant
+        ? Constant(-node.Value, node.Type)
+        : node.Arguments[0].IsConstant(-1) ? node.Arguments[1]
+        : Raw(NodeKind.Multiply, node.Type, Constant(-node.Arguments[0].Value, node.Arguments[0].Type), node.Arguments[1]);
 
     private static bool IsNegativeTerm(Node node) =>
         (node.Kind == NodeKind.Constant && node.Value < 0)

@@ -5,7 +5,7 @@
 //   Light = 1/(1 + x·x + y·y) + 0.25·tanh(x - y)
 //
 //   ∂Light/∂x = 0.25·(1 - tanh(x - y)·tanh(x - y)) - 2·(1/(1 + x·x + y·y)/(1 + x·x + y·y)·x)
-//   ∂Light/∂y = 0.25·(tanh(x - y)·tanh(x - y) - 1) - 2·(1/(1 + x·x + y·y)/(1 + x·x + y·y)·y)
+//   ∂Light/∂y = -0.25·(1 - tanh(x - y)·tanh(x - y)) - 2·(1/(1 + x·x + y·y)/(1 + x·x + y·y)·y)
 
 #nullable enable
 
@@ -21,7 +21,7 @@ namespace Samples.Graphics
         /// Light = 1/(1 + x·x + y·y) + 0.25·tanh(x - y)
         /// 
         /// ∂Light/∂x = 0.25·(1 - tanh(x - y)·tanh(x - y)) - 2·(1/(1 + x·x + y·y)/(1 + x·x + y·y)·x)
-        /// ∂Light/∂y = 0.25·(tanh(x - y)·tanh(x - y) - 1) - 2·(1/(1 + x·x + y·y)/(1 + x·x + y·y)·y)
+        /// ∂Light/∂y = -0.25·(1 - tanh(x - y)·tanh(x - y)) - 2·(1/(1 + x·x + y·y)/(1 + x·x + y·y)·y)
         /// </code>
         /// </remarks>
         /// <param name="x">A differentiation variable.</param>
@@ -41,11 +41,11 @@ namespace Samples.Graphics
             float t2 = 1f / t1;
             float t3 = global::System.MathF.Tanh(x - y);
             float value = t2 + 0.25f * t3;
-            float t3Squared = t3 * t3;
-            float t4 = t2 / t1;
+            float t4 = 1f - t3 * t3;
+            float t5 = t2 / t1;
 
-            gradient[0] = 0.25f * (1f - t3Squared) - 2f * (t4 * x); // ∂Light/∂x
-            gradient[1] = 0.25f * (t3Squared - 1f) - 2f * (t4 * y); // ∂Light/∂y
+            gradient[0] = 0.25f * t4 - 2f * (t5 * x); // ∂Light/∂x
+            gradient[1] = -0.25f * t4 - 2f * (t5 * y); // ∂Light/∂y
 
             return value;
         }

@@ -11,7 +11,7 @@
 //
 //   ∂²Miss/∂q1² = (too long to show here; see the code)
 //   ∂²Miss/∂q2∂q1 = (too long to show here; see the code)
-//   ∂²Miss/∂q2² = 2·(cos(q1 + q2)·(Arm.Link2·(Arm.Link2·cos(q1 + q2))) - ey·Arm.Link2·sin(q1 + q2)) + 2·(sin(q1 + q2)·(Arm.Link2·(Arm.Link2·sin(q1 + q2))) - ex·Arm.Link2·cos(q1 + q2))
+//   ∂²Miss/∂q2² = 2·(cos(q1 + q2)·(Arm.Link2·(Arm.Link2·cos(q1 + q2))) - ey·Arm.Link2·sin(q1 + q2)) - 2·(ex·Arm.Link2·cos(q1 + q2) - sin(q1 + q2)·(Arm.Link2·(Arm.Link2·sin(q1 + q2))))
 
 #nullable enable
 
@@ -75,7 +75,7 @@ namespace Samples.Robotics
             /// 
             /// ∂²Miss/∂q1² = (too long to show here; see the code)
             /// ∂²Miss/∂q2∂q1 = (too long to show here; see the code)
-            /// ∂²Miss/∂q2² = 2·(cos(q1 + q2)·(Arm.Link2·(Arm.Link2·cos(q1 + q2))) - ey·Arm.Link2·sin(q1 + q2)) + 2·(sin(q1 + q2)·(Arm.Link2·(Arm.Link2·sin(q1 + q2))) - ex·Arm.Link2·cos(q1 + q2))
+            /// ∂²Miss/∂q2² = 2·(cos(q1 + q2)·(Arm.Link2·(Arm.Link2·cos(q1 + q2))) - ey·Arm.Link2·sin(q1 + q2)) - 2·(ex·Arm.Link2·cos(q1 + q2) - sin(q1 + q2)·(Arm.Link2·(Arm.Link2·sin(q1 + q2))))
             /// </code>
             /// </remarks>
             /// <param name="q1">A differentiation variable.</param>
@@ -125,7 +125,7 @@ namespace Samples.Robotics
 
                 hessian[0] = 2.0 * (cosQ1 * (global::Samples.Robotics.Arm.Link1 * t10) - t3 * sinQ1) + t13 - 2.0 * (sinQ1 * (global::Samples.Robotics.Arm.Link1 * t8) + t6 * cosQ1); // ∂²Miss/∂q1²
                 hessian[1] = hessian[2] = t13; // ∂²Miss/∂q2∂q1
-                hessian[3] = 2.0 * (cosT1 * (global::Samples.Robotics.Arm.Link2 * t9) - t11) + 2.0 * (sinT1 * (global::Samples.Robotics.Arm.Link2 * t7) - t12); // ∂²Miss/∂q2²
+                hessian[3] = 2.0 * (cosT1 * (global::Samples.Robotics.Arm.Link2 * t9) - t11) - 2.0 * (t12 - sinT1 * (global::Samples.Robotics.Arm.Link2 * t7)); // ∂²Miss/∂q2²
 
                 return value;
             }

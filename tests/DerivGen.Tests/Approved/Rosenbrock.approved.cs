@@ -4,10 +4,10 @@
 //
 //   Rosenbrock = (1 - x)·(1 - x) + 100·(y - x·x)·(y - x·x)
 //
-//   ∂Rosenbrock/∂x = 400·((x·x - y)·x) + 2·(x - 1)
+//   ∂Rosenbrock/∂x = -400·((y - x·x)·x) - 2·(1 - x)
 //   ∂Rosenbrock/∂y = 200·(y - x·x)
 //
-//   ∂²Rosenbrock/∂x² = 400·(2·(x·x) + (x·x - y)) + 2
+//   ∂²Rosenbrock/∂x² = -400·(-2·(x·x) + (y - x·x)) + 2
 //   ∂²Rosenbrock/∂y∂x = -400·x
 //   ∂²Rosenbrock/∂y² = 200
 
@@ -24,7 +24,7 @@ namespace Samples.Optimization
         /// <code>
         /// Rosenbrock = (1 - x)·(1 - x) + 100·(y - x·x)·(y - x·x)
         /// 
-        /// ∂Rosenbrock/∂x = 400·((x·x - y)·x) + 2·(x - 1)
+        /// ∂Rosenbrock/∂x = -400·((y - x·x)·x) - 2·(1 - x)
         /// ∂Rosenbrock/∂y = 200·(y - x·x)
         /// </code>
         /// </remarks>
@@ -42,11 +42,10 @@ namespace Samples.Optimization
             }
 
             double t1 = 1.0 - x;
-            double xSquared = x * x;
-            double t2 = y - xSquared;
+            double t2 = y - x * x;
             double value = t1 * t1 + 100.0 * t2 * t2;
 
-            gradient[0] = 400.0 * ((xSquared - y) * x) + 2.0 * (x - 1.0); // ∂Rosenbrock/∂x
+            gradient[0] = -400.0 * (t2 * x) - 2.0 * t1; // ∂Rosenbrock/∂x
             gradient[1] = 200.0 * t2; // ∂Rosenbrock/∂y
 
             return value;
@@ -59,10 +58,10 @@ namespace Samples.Optimization
         /// <code>
         /// Rosenbrock = (1 - x)·(1 - x) + 100·(y - x·x)·(y - x·x)
         /// 
-        /// ∂Rosenbrock/∂x = 400·((x·x - y)·x) + 2·(x - 1)
+        /// ∂Rosenbrock/∂x = -400·((y - x·x)·x) - 2·(1 - x)
         /// ∂Rosenbrock/∂y = 200·(y - x·x)
         /// 
-        /// ∂²Rosenbrock/∂x² = 400·(2·(x·x) + (x·x - y)) + 2
+        /// ∂²Rosenbrock/∂x² = -400·(-2·(x·x) + (y - x·x)) + 2
         /// ∂²Rosenbrock/∂y∂x = -400·x
         /// ∂²Rosenbrock/∂y² = 200
         /// </code>
@@ -90,12 +89,11 @@ namespace Samples.Optimization
             double xSquared = x * x;
             double t2 = y - xSquared;
             double value = t1 * t1 + 100.0 * t2 * t2;
-            double t3 = xSquared - y;
 
-            gradient[0] = 400.0 * (t3 * x) + 2.0 * (x - 1.0); // ∂Rosenbrock/∂x
+            gradient[0] = -400.0 * (t2 * x) - 2.0 * t1; // ∂Rosenbrock/∂x
             gradient[1] = 200.0 * t2; // ∂Rosenbrock/∂y
 
-            hessian[0] = 400.0 * (2.0 * xSquared + t3) + 2.0; // ∂²Rosenbrock/∂x²
+            hessian[0] = -400.0 * (-2.0 * xSquared + t2) + 2.0; // ∂²Rosenbrock/∂x²
             hessian[1] = hessian[2] = -400.0 * x; // ∂²Rosenbrock/∂y∂x
             hessian[3] = 200.0; // ∂²Rosenbrock/∂y²
 
