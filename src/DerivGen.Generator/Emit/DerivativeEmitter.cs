@@ -644,7 +644,9 @@ internal static class DerivativeEmitter
                     yield return indent + Identifiers.Unescape(state.Name) + " = " + Formula(state.Initial);
                 }
 
-                yield return indent + "for " + loop.Index + " from " + Formula(loop.Start) + (loop.Inclusive ? " to " : " while below ") + Formula(loop.End) + ":";
+                bool several = loop.States.Count(s => s.Next != s.Current) > 1;
+                yield return indent + "for " + loop.Index + " from " + Formula(loop.Start) + (loop.Inclusive ? " to " : " while below ") + Formula(loop.End)
+                    + (several ? " (each ← uses the values from the start of the iteration):" : ":");
                 string inner = indent + "    ";
                 foreach (string line in Locals(roots, loop.InsideStage, inner))
                 {

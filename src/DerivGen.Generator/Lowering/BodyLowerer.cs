@@ -194,13 +194,13 @@ internal sealed class BodyLowerer
     };
 
     /// <summary>A branch condition; a condition that depends on a variable is a kink (DG0007).</summary>
-    private IrExpression? LowerCondition(IOperation operation)
+    private IrExpression? LowerCondition(IOperation operation, bool isConditionalOperator = false)
     {
         IrExpression? condition = LowerExpression(operation);
         if (condition is not null && DependsOnVariable(condition))
         {
             _diagnostics.Add(DiagnosticInfo.Create(DiagnosticDescriptors.NonSmoothFunction, operation.Syntax.GetLocation(),
-                "if (" + Text(operation) + ")",
+                isConditionalOperator ? Text(operation) + " ? … : …" : "if (" + Text(operation) + ")",
                 "the condition depends on a differentiation variable, so the derivative is that of the branch taken and jumps where the condition changes"));
         }
 
@@ -466,6 +466,18 @@ internal sealed class BodyLowerer
                 break;
             }
 
+            case IIncrementOrDecrementOperation { Target: ILocalReferenceOperation counter } step
+                when ScalarTypeOf(counter.Local.Type) is ScalarType.Int32 or ScalarType.Double or ScalarType.Single:
+            {
+                // c++ and c-- as statements: c = c ± 1.
+                ScalarType counterType = ScalarTypeOf(counter.Local.Type)!.Value;
+                string name = LocalName(counter.Local);
+                var one = new IrConstant(counterType == ScalarType.Int32 ? 1 : BitConverter.DoubleToInt64Bits(1.0), counterType);
+                AssignLocal(name, new IrBinary(step.Kind == OperationKind.Increment ? BinaryOperator.Add : BinaryOperator.Subtract,
+                    new IrLocal(name, counterType), one, counterType));
+                break;
+            }
+
             case IAssignmentOperation { Target: IParameterReferenceOperation parameterTarget }:
                 Unsupported(expression, $"the assignment to parameter '{parameterTarget.Parameter.Name}'", "assign the new value to a local instead");
                 break;
@@ -596,7 +608,7 @@ internal sealed class BodyLowerer
 
             case IConditionalOperation { WhenFalse: not null } conditional when conditional.Type is { } conditionalType && ScalarTypeOf(conditionalType) is { } resultType:
             {
-                IrExpression? condition = LowerCondition(conditional.Condition);
+                IrExpression? condition = LowerCondition(conditional.Condition, isConditionalOperator: true);
                 IrExpression? whenTrue = LowerExpression(conditional.WhenTrue);
                 IrExpression? whenFalse = LowerExpression(conditional.WhenFalse);
                 return condition is null || whenTrue is null || whenFalse is null ? null : new IrConditional(condition, whenTrue, whenFalse, resultType);
@@ -935,6 +947,7 @@ internal sealed class BodyLowerer
     private static string DescribeStatement(IOperation statement) => statement switch
     {
         IForEachLoopOperation => "the foreach loop",
+        IWhileLoopOperation { ConditionIsTop: false } => "the do loop",
         IWhileLoopOperation => "the while loop",
         IConditionalOperation => "the if statement",
         ISwitchOperation => "the switch statement",
@@ -960,8 +973,8 @@ internal sealed class BodyLowerer
 
     private static string HintFor(IOperation operation) => operation switch
     {
-        IForEachLoopOperation or IWhileLoopOperation or ISwitchOperation
-            => "this version differentiates 'for (int i = start; i < end; i++)' loops and if/else; rewrite the loop or switch in that form",
+        IWhileLoopOperation => "this version differentiates 'for (int i = start; i < end; i++)' and foreach loops over data; rewrite the loop in that form",
+        ISwitchOperation => "use if/else or the conditional operator instead",
         IBranchOperation => "break, continue and goto are not supported yet; put the condition around the loop body's statements instead",
         ITryOperation or IThrowOperation => "exceptions cannot be differentiated; validate arguments before calling the method",
         _ => "a differentiable body uses locals, + - * /, and the math functions listed in the README",
