@@ -147,7 +147,7 @@ namespace ArmReach
 
             hessian[0] = t13 + 2.0 * (cosShoulder * (upperLength * t10) - t5 * sinShoulder) - 2.0 * (sinShoulder * (upperLength * t8) + t6 * cosShoulder); // ∂²Loss/∂shoulder²
             hessian[1] = hessian[2] = t13; // ∂²Loss/∂elbow∂shoulder
-            hessian[3] = 2.0 * (cosT1 * (foreLength * t9) - t11) + 2.0 * (sinT1 * (foreLength * t7) - t12); // ∂²Loss/∂elbow²
+            hessian[3] = 2.0 * (cosT1 * (foreLength * t9) - t11) - 2.0 * (t12 - sinT1 * (foreLength * t7)); // ∂²Loss/∂elbow²
 
             return value;
         }
