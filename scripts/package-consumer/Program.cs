@@ -167,6 +167,23 @@ foreach (var p in new[] { new[] { 1.3, 0.4 }, new[] { -0.7, -1.1 }, new[] { 2.5,
         (v, h) => Outer.Spring.EnergyExact(v[0], v[1], 3, new double[2], h));
 }
 
+// Data loops, a branch, a call between [Differentiate] methods and a recurrence (Loops.cs).
+foreach (var p in new[] { new[] { 0.8, 1.3 }, new[] { 1.4, 0.6 } })
+{
+    Check("Fits.Line", p, v => Fits.Line(v[0], v[1], Fits.T, Fits.Y),
+        (v, g) => Fits.LineGradient(v[0], v[1], Fits.T, Fits.Y, g), (v, g, h) => Fits.LineHessian(v[0], v[1], Fits.T, Fits.Y, g, h),
+        (v, g) => Fits.LineExact(v[0], v[1], g, new double[4]), (v, h) => Fits.LineExact(v[0], v[1], new double[2], h));
+    Check("Fits.Robust", p, v => Fits.Robust(v[0], v[1], Fits.T, Fits.Y),
+        (v, g) => Fits.RobustGradient(v[0], v[1], Fits.T, Fits.Y, g), (v, g, h) => Fits.RobustHessian(v[0], v[1], Fits.T, Fits.Y, g, h),
+        (v, g) => Fits.RobustExact(v[0], v[1], g), null);
+    Check("Fits.GrowthFit", new[] { p[0], p[1] * 0.3 }, v => Fits.GrowthFit(v[0], v[1], Fits.T, Fits.Y),
+        (v, g) => Fits.GrowthFitGradient(v[0], v[1], Fits.T, Fits.Y, g), (v, g, h) => Fits.GrowthFitHessian(v[0], v[1], Fits.T, Fits.Y, g, h),
+        (v, g) => Fits.GrowthFitExact(v[0], v[1], g), null);
+    Check("Fits.Decay", new[] { p[0] + 1, p[1] * 0.5 }, v => Fits.Decay(v[0], v[1], 0.05, 200),
+        (v, g) => Fits.DecayGradient(v[0], v[1], 0.05, 200, g), (v, g, h) => Fits.DecayHessian(v[0], v[1], 0.05, 200, g, h),
+        (v, g) => Fits.DecayExact(v[0], v[1], 0.05, 200, g), null);
+}
+
 foreach (var p in new[] { new[] { 0.3, -1.2, 2.0 }, new[] { -4.0, 0.5, 0.25 } })
 {
     Check("Radius", p, v => Smooth.Radius(v[0], v[1], v[2]),
