@@ -37,13 +37,40 @@ public sealed class HalfTypedInputTests
         }
         """;
 
-    [Fact]
-    public async Task EveryPrefixOfAMethodLeavesGeneratorAndAnalyzerStanding()
+    private const string LoopMethod = """
+        using System;
+        using DerivGen;
+
+        public static partial class Fit
+        {
+            [Differentiate(nameof(a), nameof(b))]
+            public static double Loss(double a, double b, double[] t, double[] y)
+            {
+                double s = 0;
+                foreach (double ti in t) { s += Math.Tanh(a * ti); }
+                for (int i = 0; i < t.Length; i++)
+                {
+                    double r = a * Math.Exp(-b * t[i]) - y[i];
+                    var (p, q) = (r * r, Math.Abs(r));
+                    if (q > 1) { s += 2 * q - 1; } else { s += p; }
+                    double z = 0;
+                    for (int j = 0; j < 3; j++) { z += j * r; }
+                    s += i + 1 < t.Length ? 0.1 * z * t[i + 1] : 0.0;
+                }
+                return s;
+            }
+        }
+        """;
+
+    [Theory]
+    [InlineData(Method)]
+    [InlineData(LoopMethod)]
+    public async Task EveryPrefixOfAMethodLeavesGeneratorAndAnalyzerStanding(string method)
     {
         int tried = 0;
-        for (int length = 0; length <= Method.Length; length += 3)
+        for (int length = 0; length <= method.Length; length += 3)
         {
-            string prefix = Method.Substring(0, length);
+            string prefix = method.Substring(0, length);
             CSharpCompilation compilation = GeneratorHarness.CreateCompilation(prefix);
 
             GeneratorDriver driver = GeneratorHarness.CreateDriver().RunGenerators(compilation);
