@@ -117,7 +117,7 @@ internal sealed class DerivativeProgram
             taken.Add(state.Name);
         }
 
-        CollectNames(spec.Body, taken);
+        ProgramGraph.CollectLocalNames(spec.Body, taken);
         var states = new Dictionary<LoopState, StateDerivatives>();
         var leafGradient = new Dictionary<Node, Node[]>();
         var leafHessian = new Dictionary<Node, Node[][]>();
@@ -243,26 +243,5 @@ internal sealed class DerivativeProgram
     {
         string bare = Identifiers.Unescape(name);
         return bare.Length == 0 ? bare : char.ToUpperInvariant(bare[0]) + bare.Substring(1);
-    }
-
-    private static void CollectNames(EquatableArray<IrStatement> statements, HashSet<string> names)
-    {
-        foreach (IrStatement statement in statements)
-        {
-            switch (statement)
-            {
-                case IrAssign assign:
-                    names.Add(assign.Local);
-                    break;
-                case IrIf branch:
-                    CollectNames(branch.Then, names);
-                    CollectNames(branch.Else, names);
-                    break;
-                case IrFor loop:
-                    names.Add(loop.Index);
-                    CollectNames(loop.Body, names);
-                    break;
-            }
-        }
     }
 }

@@ -123,7 +123,7 @@ internal sealed class ProgramGraph
     public static ProgramGraph Build(ExpressionBuilder builder, MethodSpec spec, IReadOnlyDictionary<string, int> variableIndex)
     {
         var graph = new ProgramGraph(builder, variableIndex);
-        CollectLocals(spec.Body, graph._displayNames);
+        CollectLocalNames(spec.Body, graph._displayNames);
         var locals = new Dictionary<string, Node>(StringComparer.Ordinal);
         graph.Run(spec.Body, locals);
         if (graph.Value is null)
@@ -325,14 +325,22 @@ internal sealed class ProgramGraph
         }
     }
 
-    private static void CollectLocals(EquatableArray<IrStatement> statements, HashSet<string> names)
+    /// <summary>Every local the body names: those it assigns and the loop indices, at any depth.</summary>
+    internal static void CollectLocalNames(EquatableArray<IrStatement> statements, HashSet<string> names)
     {
         CollectAssigned(statements, names);
         foreach (IrStatement statement in statements)
         {
-            if (statement is IrFor loop)
+            switch (statement)
             {
-                names.Add(loop.Index);
+                case IrIf branch:
+                    CollectLocalNames(branch.Then, names);
+                    CollectLocalNames(branch.Else, names);
+                    break;
+                case IrFor loop:
+                    names.Add(loop.Index);
+                    CollectLocalNames(loop.Body, names);
+                    break;
             }
         }
     }
