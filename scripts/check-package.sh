@@ -8,7 +8,7 @@
 #    warnings as errors and runs scripts/package-consumer/: functions written for this check alone, whose generated
 #    values must equal the originals bit for bit and whose gradients and Hessians must match hand-derived closed
 #    forms and central differences.
-# 3. A second fresh project with a while loop inside a [Differentiate] method must fail to build with DG0001, proving the
+# 3. A second fresh project with a do loop inside a [Differentiate] method must fail to build with DG0001, proving the
 #    analyzer ships in the package too.
 # A private NuGet cache is used so that a previously cached DerivGen of the same version can never be picked up.
 set -euo pipefail
@@ -109,7 +109,7 @@ unsupported="$scratch/Unsupported"
 write_project "$unsupported"
 cp "$here"/package-consumer-unsupported/*.cs "$unsupported/"
 echo
-echo "Building a project with a while loop in a [Differentiate] method: DG0001 is expected"
+echo "Building a project with a do loop in a [Differentiate] method: DG0001 is expected"
 set +e
 dotnet build "$unsupported" -c Release > "$scratch/unsupported.log" 2>&1
 unsupported_rc=$?

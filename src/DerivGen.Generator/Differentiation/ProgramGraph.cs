@@ -45,7 +45,7 @@ internal sealed class LoopState
 /// </summary>
 internal sealed class LoopSegment
 {
-    public LoopSegment(string index, Node start, Node end, bool inclusive, LoopSegment? parent, int beforeStage, int insideStage)
+    public LoopSegment(string? index, Node? start, Node? end, bool inclusive, LoopSegment? parent, int beforeStage, int insideStage)
     {
         Index = index;
         Start = start;
@@ -56,11 +56,15 @@ internal sealed class LoopSegment
         InsideStage = insideStage;
     }
 
-    public string Index { get; }
+    /// <summary>The int index of a for loop; null for a while loop.</summary>
+    public string? Index { get; }
 
-    public Node Start { get; }
+    public Node? Start { get; }
 
-    public Node End { get; }
+    public Node? End { get; }
+
+    /// <summary>The condition of a while loop, evaluated at the top of every iteration (stage <see cref="InsideStage"/>).</summary>
+    public Node? Condition { get; set; }
 
     public bool Inclusive { get; }
 
@@ -185,7 +189,11 @@ internal sealed class ProgramGraph
                 }
 
                 case IrFor loop:
-                    RunLoop(loop, locals);
+                    RunLoop(loop.Index, loop.Start, loop.End, loop.Inclusive, null, loop.Body, locals);
+                    break;
+
+                case IrWhile loop:
+                    RunLoop(null, null, null, false, loop.Condition, loop.Body, locals);
                     break;
 
                 case IrReturn ret:
@@ -195,20 +203,24 @@ internal sealed class ProgramGraph
         }
     }
 
-    private void RunLoop(IrFor loop, Dictionary<string, Node> locals)
+    private void RunLoop(string? index, IrExpression? start, IrExpression? end, bool inclusive, IrExpression? condition,
+        EquatableArray<IrStatement> loopBody, Dictionary<string, Node> locals)
     {
-        var segment = new LoopSegment(loop.Index, Build(loop.Start, locals), Build(loop.End, locals), loop.Inclusive, _currentLoop, _stage, ++_stageCount);
+        var segment = new LoopSegment(index, start is null ? null : Build(start, locals), end is null ? null : Build(end, locals), inclusive,
+            _currentLoop, _stage, ++_stageCount);
         _loops.Add(segment);
         (_currentLoop?.Children ?? _topLevel).Add(segment);
         int inside = segment.InsideStage;
 
         // The loop-carried locals: those that exist before the loop and are assigned in it.
         var assigned = new HashSet<string>(StringComparer.Ordinal);
-        CollectAssigned(loop.Body, assigned);
-        var body = new Dictionary<string, Node>(locals, StringComparer.Ordinal)
+        CollectAssigned(loopBody, assigned);
+        var body = new Dictionary<string, Node>(locals, StringComparer.Ordinal);
+        if (index is not null)
         {
-            [loop.Index] = _builder.StageLeaf(loop.Index, ScalarType.Int32, inside, isActive: false),
-        };
+            body[index] = _builder.StageLeaf(index, ScalarType.Int32, inside, isActive: false);
+        }
+
         foreach (string name in assigned.Where(locals.ContainsKey).OrderBy(n => n, StringComparer.Ordinal))
         {
             Node initial = locals[name];
@@ -228,7 +240,12 @@ internal sealed class ProgramGraph
         _currentStates = new HashSet<string>(segment.States.Select(s => s.Name), StringComparer.Ordinal);
         _currentLoop = segment;
         _stage = inside;
-        Run(loop.Body, body);
+        if (condition is not null)
+        {
+            segment.Condition = Build(condition, body);
+        }
+
+        Run(loopBody, body);
         _currentStates = outer;
         _currentLoop = outerLoop;
         segment.BodyEndStage = _stage;
@@ -321,6 +338,9 @@ internal sealed class ProgramGraph
                 case IrFor loop:
                     CollectAssigned(loop.Body, names);
                     break;
+                case IrWhile loop:
+                    CollectAssigned(loop.Body, names);
+                    break;
             }
         }
     }
@@ -339,6 +359,9 @@ internal sealed class ProgramGraph
                     break;
                 case IrFor loop:
                     names.Add(loop.Index);
+                    CollectLocalNames(loop.Body, names);
+                    break;
+                case IrWhile loop:
                     CollectLocalNames(loop.Body, names);
                     break;
             }

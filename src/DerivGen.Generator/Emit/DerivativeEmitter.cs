@@ -168,8 +168,35 @@ internal static class DerivativeEmitter
         {
             initial[loop] = StateUpdates(program, loop, withHessian, before: true);
             next[loop] = StateUpdates(program, loop, withHessian, before: false);
-            roots.Add((loop.Start, loop.BeforeStage));
-            roots.Add((loop.End, loop.BeforeStage));
+        }
+
+        // Running derivatives nothing reads (a carried local that does not depend on the variables, such as a time
+        // counter) are dropped: they would only be zeros, and an unread local is a compiler warning.
+        var live = new HashSet<string>(LocalsReachable(roots.Select(r => r.Node)
+            .Concat(program.Loops.SelectMany(l => l.Condition is null ? new[] { l.Start!, l.End! } : new[] { l.Condition }))), StringComparer.Ordinal);
+        List<StateUpdate> derivativeUpdates = initial.Values.Concat(next.Values).SelectMany(u => u).Where(u => u.IsDerivative).ToList();
+        for (bool grew = true; grew;)
+        {
+            grew = false;
+            foreach (StateUpdate update in derivativeUpdates.Where(u => live.Contains(u.Target)))
+            {
+                foreach (string read in LocalsReachable(new[] { update.Value }))
+                {
+                    grew |= live.Add(read);
+                }
+            }
+        }
+
+        foreach (LoopSegment loop in program.Loops)
+        {
+            initial[loop].RemoveAll(u => u.IsDerivative && !live.Contains(u.Target));
+            next[loop].RemoveAll(u => u.IsDerivative && !live.Contains(u.Target));
+            if (loop.Condition is null)
+            {
+                roots.Add((loop.Start!, loop.BeforeStage));
+                roots.Add((loop.End!, loop.BeforeStage));
+            }
+
             roots.AddRange(initial[loop].Select(u => (u.Value, loop.BeforeStage)));
             roots.AddRange(next[loop].Select(u => (u.Value, loop.BodyEndStage)));
         }
@@ -234,7 +261,7 @@ internal static class DerivativeEmitter
         var valueRoots = new List<Node> { program.Value };
         foreach (LoopSegment loop in program.Loops)
         {
-            valueRoots.AddRange(new[] { loop.Start, loop.End });
+            valueRoots.AddRange(loop.Condition is null ? new[] { loop.Start!, loop.End! } : new[] { loop.Condition });
             valueRoots.AddRange(loop.States.SelectMany(s => new[] { s.Initial, s.Next }));
         }
 
@@ -269,7 +296,7 @@ internal static class DerivativeEmitter
         var reserved = context.Spec.Parameters.Select(p => p.Name)
             .Concat(new[] { context.GradientName, context.HessianName })
             .Concat(program.StateNames)
-            .Concat(program.Loops.Select(l => l.Index));
+            .Concat(program.Loops.Where(l => l.Index is not null).Select(l => l.Index!));
         var names = new TemporaryNames(reserved);
         var nameOf = new Dictionary<Node, string>();
         if (temporaries.Contains(program.Value) && program.Value.LocalName is null)
@@ -352,8 +379,12 @@ internal static class DerivativeEmitter
                 writer.Line(prefix + update.Target + " = " + code.Write(update.Value) + ";");
             }
 
-            string index = loop.Index;
-            using (writer.Block("for (int " + index + " = " + code.Write(loop.Start) + "; " + index + (loop.Inclusive ? " <= " : " < ") + code.Write(loop.End) + "; " + index + "++)"))
+            // A while loop's condition is written in its header, inline: only what is computed before the loop is read
+            // from locals, so nothing of the body runs before the condition is tested, as in the user's code.
+            string header = loop.Condition is { } condition
+                ? "while (" + new ExpressionWriter(x => x.Stage < loop.InsideStage ? NameOf(x) : null, formula: false).Write(condition) + ")"
+                : "for (int " + loop.Index + " = " + code.Write(loop.Start!) + "; " + loop.Index + (loop.Inclusive ? " <= " : " < ") + code.Write(loop.End!) + "; " + loop.Index + "++)";
+            using (writer.Block(header))
             {
                 WriteTemporaries(loop.InsideStage);
                 foreach (LoopSegment nested in loop.Children)
@@ -430,6 +461,10 @@ internal static class DerivativeEmitter
         writer.Line();
         writer.Line("return " + code.Write(program.Value) + ";");
     }
+
+    /// <summary>The generated locals (loop-carried values and running derivatives) an expression reads.</summary>
+    private static IEnumerable<string> LocalsReachable(IEnumerable<Node> roots) =>
+        Graph.Reachable(roots).Where(n => n.Kind == NodeKind.Parameter && n.Stage > 0).Select(n => n.Text!);
 
     /// <summary>The nodes the user's code evaluates whatever the conditions (not only inside one side of a branch).</summary>
     private static HashSet<Node> EvaluatedUnconditionally(IEnumerable<Node> roots)
@@ -645,8 +680,10 @@ internal static class DerivativeEmitter
                 }
 
                 bool several = loop.States.Count(s => s.Next != s.Current) > 1;
-                yield return indent + "for " + loop.Index + " from " + Formula(loop.Start) + (loop.Inclusive ? " to " : " while below ") + Formula(loop.End)
-                    + (several ? " (each ← uses the values from the start of the iteration):" : ":");
+                string head = loop.Condition is { } condition
+                    ? "while " + Formula(condition)
+                    : "for " + loop.Index + " from " + Formula(loop.Start!) + (loop.Inclusive ? " to " : " while below ") + Formula(loop.End!);
+                yield return indent + head + (several ? " (each ← uses the values from the start of the iteration):" : ":");
                 string inner = indent + "    ";
                 foreach (string line in Locals(roots, loop.InsideStage, inner))
                 {

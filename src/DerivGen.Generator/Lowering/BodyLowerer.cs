@@ -113,6 +113,10 @@ internal sealed class BodyLowerer
                     LowerForEach(loop);
                     break;
 
+                case IWhileLoopOperation { ConditionIsTop: true, ConditionIsUntil: false, Condition: { } } loop:
+                    LowerWhile(loop);
+                    break;
+
                 case IBlockOperation block:
                     LowerStatements(block.Operations, isTopLevel && IsLast(statement));
                     break;
@@ -299,6 +303,31 @@ internal sealed class BodyLowerer
         statements.AddRange(body);
         _statements.Add(new IrFor(index, new IrConstant(0, ScalarType.Int32), new IrExternal(data + ".Length", ScalarType.Int32), false,
             statements.ToEquatableArray()));
+    }
+
+    /// <summary><c>while (condition) { … }</c> whose condition does not depend on a variable (so the trip count does not).</summary>
+    private void LowerWhile(IWhileLoopOperation loop)
+    {
+        if (RefuseLoopInBranch(loop))
+        {
+            return;
+        }
+
+        // The body may make the condition depend on a variable in a later iteration: learn that from the body first.
+        LowerLoopBody(loop.Body);
+        IrExpression? condition = LowerExpression(loop.Condition!);
+        if (condition is not null && DependsOnVariable(condition))
+        {
+            Unsupported(loop.Condition!, $"the loop condition '{Text(loop.Condition!)}'",
+                "the number of iterations would depend on a differentiation variable; loop over a count or over data instead");
+            return;
+        }
+
+        EquatableArray<IrStatement> body = LowerLoopBody(loop.Body);
+        if (condition is not null)
+        {
+            _statements.Add(new IrWhile(condition, body));
+        }
     }
 
     /// <summary><c>var (a, b) = (e1, e2);</c> and <c>(a, b) = (e1, e2);</c> into locals, when no element reads a target.</summary>

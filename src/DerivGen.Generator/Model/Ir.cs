@@ -112,3 +112,6 @@ internal sealed record IrIf(IrExpression Condition, EquatableArray<IrStatement> 
 
 /// <summary><c>for (int Index = Start; Index &lt; End; Index++) { Body }</c> (<c>&lt;=</c> when <paramref name="Inclusive"/>).</summary>
 internal sealed record IrFor(string Index, IrExpression Start, IrExpression End, bool Inclusive, EquatableArray<IrStatement> Body) : IrStatement;
+
+/// <summary><c>while (Condition) { Body }</c>, the condition not depending on a variable.</summary>
+internal sealed record IrWhile(IrExpression Condition, EquatableArray<IrStatement> Body) : IrStatement;

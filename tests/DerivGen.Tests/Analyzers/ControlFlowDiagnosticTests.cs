@@ -227,19 +227,17 @@ public sealed class ControlFlowDiagnosticTests
         """);
 
     [Fact]
-    public Task DG0001WhileLoop() => VerifyAsync(Usings + """
+    public Task DG0001WhileLoopWhoseTripCountDependsOnAVariable() => VerifyAsync(Usings + """
         public static partial class C
         {
             [Differentiate]
             public static double F(double x)
             {
                 double s = 0;
-                int i = 0;
-                {|DG0001:while (i < 3)
+                while ({|DG0001:s < 3|})
                 {
                     s += x;
-                    i++;
-                }|}
+                }
 
                 return s;
             }

@@ -1,4 +1,4 @@
-// Part of scripts/check-package.sh: this must NOT build. While loops are not supported in this version, so the
+// Part of scripts/check-package.sh: this must NOT build. do loops are not supported in this version, so the
 // analyzer that ships in the DerivGen package reports DG0001 on the loop (and the generator emits nothing for the method).
 using DerivGen;
 
@@ -11,11 +11,12 @@ public static partial class Sums
     {
         double s = 0;
         int i = 1;
-        while (i <= 3)
+        do
         {
             s += x * i;
             i++;
         }
+        while (i <= 3);
 
         return s;
     }
