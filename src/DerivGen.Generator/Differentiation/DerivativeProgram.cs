@@ -32,6 +32,14 @@ internal sealed class StateDerivatives
 
     public Node[] FinalGradient { get; }
 
+    /// <summary>Names of the span locals holding ∂s/∂w for each vector of variables w (empty without vectors).</summary>
+    public string[] VectorNames { get; set; } = Array.Empty<string>();
+
+    /// <summary>The contributions to ∂s/∂w before the loop and at the end of an iteration.</summary>
+    public List<VectorTerm> InitialVector { get; } = new();
+
+    public List<VectorTerm> NextVector { get; } = new();
+
     /// <summary>Values before the loop and at the end of an iteration.</summary>
     public Node[] InitialGradient { get; set; } = Array.Empty<Node>();
 
@@ -53,8 +61,10 @@ internal sealed class StateDerivatives
 internal sealed class DerivativeProgram
 {
     private DerivativeProgram(ExpressionBuilder builder, ProgramGraph graph, Node[] gradient, Node[][]? hessian, string[] variables,
-        IReadOnlyDictionary<LoopState, StateDerivatives> states)
+        IReadOnlyDictionary<LoopState, StateDerivatives> states, string[] vectors, List<VectorTerm> vectorGradient)
     {
+        Vectors = vectors;
+        VectorGradient = vectorGradient;
         Builder = builder;
         Value = graph.Value;
         Loops = graph.Loops;
@@ -88,19 +98,32 @@ internal sealed class DerivativeProgram
     /// <summary>Hessian[i][j] = ∂²f/∂vᵢ∂vⱼ for j ≤ i (the lower triangle); null when not requested.</summary>
     public Node[][]? Hessian { get; }
 
-    /// <summary>The variables' parameter names, in order.</summary>
+    /// <summary>The scalar variables' parameter names, in order (the symbolic part of the gradient).</summary>
     public string[] Variables { get; }
+
+    /// <summary>The vectors of variables, in order.</summary>
+    public string[] Vectors { get; }
+
+    /// <summary>The contributions to the gradient with respect to the vectors.</summary>
+    public List<VectorTerm> VectorGradient { get; }
 
     /// <summary>Names of the locals that hold loop-carried values and their running derivatives.</summary>
     public IEnumerable<string> StateNames =>
         Loops.SelectMany(l => l.States).Select(s => s.Name)
-            .Concat(States.Values.SelectMany(d => d.GradientNames.Concat(d.HessianNames?.SelectMany(r => r) ?? Enumerable.Empty<string>())));
+            .Concat(States.Values.SelectMany(d => d.GradientNames.Concat(d.VectorNames).Concat(d.HessianNames?.SelectMany(r => r) ?? Enumerable.Empty<string>())));
 
     /// <summary>The Differentiate stage: IR → value DAG → gradient by reverse sweeps → Hessian by tangent sweeps.</summary>
     public static DerivativeProgram Create(MethodSpec spec, System.Threading.CancellationToken cancellationToken)
     {
         var builder = new ExpressionBuilder(cancellationToken);
-        string[] variables = spec.Parameters.Where(p => p.IsVariable).Select(p => p.Name).ToArray();
+        string[] variables = spec.Parameters.Where(p => p.IsVariable && !p.IsVector).Select(p => p.Name).ToArray();
+        string[] vectors = spec.Parameters.Where(p => p.IsVector).Select(p => p.Name).ToArray();
+        var vectorIndex = new Dictionary<string, int>(StringComparer.Ordinal);
+        for (int v = 0; v < vectors.Length; v++)
+        {
+            vectorIndex[vectors[v]] = v;
+        }
+
         int n = variables.Length;
         var index = new Dictionary<string, int>(StringComparer.Ordinal);
         for (int i = 0; i < n; i++)
@@ -108,7 +131,7 @@ internal sealed class DerivativeProgram
             index[variables[i]] = i;
         }
 
-        ProgramGraph graph = ProgramGraph.Build(builder, spec, index);
+        ProgramGraph graph = ProgramGraph.Build(builder, spec, index, vectorIndex);
 
         // Names for the running derivatives, clear of every parameter and local of the method.
         var taken = new HashSet<string>(spec.Parameters.Select(p => Identifiers.Unescape(p.Name)), StringComparer.Ordinal) { "gradient", "hessian", "value" };
@@ -124,6 +147,8 @@ internal sealed class DerivativeProgram
         var gradientLeafOf = new Dictionary<Node, (Node Leaf, int K)>();
         var gradientNamesOf = new Dictionary<string, string[]>(StringComparer.Ordinal);
         var hessianNamesOf = new Dictionary<string, string[][]>(StringComparer.Ordinal);
+        var vectorNamesOf = new Dictionary<string, string[]>(StringComparer.Ordinal);
+        var leafVector = new Dictionary<Node, string[]>();
         foreach (LoopSegment loop in graph.Loops)
         {
             foreach (LoopState state in loop.States.Where(s => s.IsActive))
@@ -159,6 +184,19 @@ internal sealed class DerivativeProgram
                     leafGradient[state.Final] = derivatives.FinalGradient;
                 }
 
+                if (vectors.Length > 0)
+                {
+                    if (!vectorNamesOf.TryGetValue(state.Name, out string[]? spans))
+                    {
+                        spans = vectors.Select(w => Identifiers.Unique("d" + Capital(state.Name) + "_d" + Capital(w), taken)).ToArray();
+                        vectorNamesOf[state.Name] = spans;
+                    }
+
+                    derivatives.VectorNames = spans;
+                    leafVector[state.Current] = spans;
+                    leafVector[state.Final] = spans;
+                }
+
                 states[state] = derivatives;
             }
         }
@@ -174,15 +212,17 @@ internal sealed class DerivativeProgram
         }
 
         Node[]? KnownGradient(Node leaf) => leafGradient.TryGetValue(leaf, out Node[]? known) ? known : null;
+        string[]? KnownVectorGradient(Node leaf) => leafVector.TryGetValue(leaf, out string[]? spans) ? spans : null;
 
         // First order: reverse sweeps, with the chain rule through loop-carried values.
         foreach (StateDerivatives d in states.Values)
         {
-            d.InitialGradient = Typed(ReverseSweep.Gradient(builder, d.State.Initial, n, KnownGradient), d.State.Type);
-            d.NextGradient = Typed(ReverseSweep.Gradient(builder, d.State.Next, n, KnownGradient), d.State.Type);
+            d.InitialGradient = Typed(ReverseSweep.Gradient(builder, d.State.Initial, n, KnownGradient, d.InitialVector, KnownVectorGradient), d.State.Type);
+            d.NextGradient = Typed(ReverseSweep.Gradient(builder, d.State.Next, n, KnownGradient, d.NextVector, KnownVectorGradient), d.State.Type);
         }
 
-        Node[] gradient = ReverseSweep.Gradient(builder, graph.Value, n, KnownGradient);
+        var vectorGradient = new List<VectorTerm>();
+        Node[] gradient = ReverseSweep.Gradient(builder, graph.Value, n, KnownGradient, vectorGradient, KnownVectorGradient);
 
         // Second order: one tangent sweep per variable over every first-order expression (forward over reverse).
         Node[][]? hessian = null;
@@ -234,7 +274,7 @@ internal sealed class DerivativeProgram
         }
 
         // Mixed float/double code can give a derivative of the wider type; the spans hold the method's own type.
-        return new DerivativeProgram(builder, graph, Typed(gradient, spec.ReturnType), hessian, variables, states);
+        return new DerivativeProgram(builder, graph, Typed(gradient, spec.ReturnType), hessian, variables, states, vectors, vectorGradient);
 
         Node[] Typed(Node[] nodes, ScalarType type) => nodes.Select(g => builder.Convert(g, type)).ToArray();
     }

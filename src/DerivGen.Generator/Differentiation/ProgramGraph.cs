@@ -98,6 +98,7 @@ internal sealed class ProgramGraph
 {
     private readonly ExpressionBuilder _builder;
     private readonly IReadOnlyDictionary<string, int> _variableIndex;
+    private readonly IReadOnlyDictionary<string, int> _vectorIndex;
     private readonly HashSet<string> _displayNames = new(StringComparer.Ordinal);
     private readonly HashSet<string> _named = new(StringComparer.Ordinal);
     private readonly List<LoopSegment> _loops = new();
@@ -107,10 +108,11 @@ internal sealed class ProgramGraph
     private int _stage;
     private int _stageCount;
 
-    private ProgramGraph(ExpressionBuilder builder, IReadOnlyDictionary<string, int> variableIndex)
+    private ProgramGraph(ExpressionBuilder builder, IReadOnlyDictionary<string, int> variableIndex, IReadOnlyDictionary<string, int> vectorIndex)
     {
         _builder = builder;
         _variableIndex = variableIndex;
+        _vectorIndex = vectorIndex;
     }
 
     /// <summary>Every loop of the method, outer loops before the loops nested in them, in emission order.</summary>
@@ -124,9 +126,10 @@ internal sealed class ProgramGraph
 
     public Node Value { get; private set; } = null!;
 
-    public static ProgramGraph Build(ExpressionBuilder builder, MethodSpec spec, IReadOnlyDictionary<string, int> variableIndex)
+    public static ProgramGraph Build(ExpressionBuilder builder, MethodSpec spec, IReadOnlyDictionary<string, int> variableIndex,
+        IReadOnlyDictionary<string, int> vectorIndex)
     {
-        var graph = new ProgramGraph(builder, variableIndex);
+        var graph = new ProgramGraph(builder, variableIndex, vectorIndex);
         CollectLocalNames(spec.Body, graph._displayNames);
         var locals = new Dictionary<string, Node>(StringComparer.Ordinal);
         graph.Run(spec.Body, locals);
@@ -295,6 +298,8 @@ internal sealed class ProgramGraph
             case IrUserCall call:
                 return b.UserCall(new CalleeInfo(call.Receiver, call.Method, call.VariablePositions.ToArray(), call.VariableNames.ToArray(), call.HasHessian),
                     call.Type, call.Arguments.Select(a => Build(a, locals)).ToArray());
+            case IrElement element when _vectorIndex.TryGetValue(element.Data, out int vector):
+                return b.VariableElement(element.Data, vector, element.Type, Build(element.Indices[0], locals));
             case IrElement element:
                 return b.Element(element.Data, element.Type, element.Indices.Select(i => Build(i, locals)).ToArray());
             case IrCompare compare:

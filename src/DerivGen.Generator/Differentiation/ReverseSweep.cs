@@ -15,10 +15,38 @@ namespace DerivGen.Generator.Differentiation;
 /// locals) contribute through their known gradient by the chain rule: ∂f/∂vₖ += adjoint(leaf) · ∂leaf/∂vₖ.
 /// </para>
 /// </summary>
+/// <summary>
+/// A contribution to the gradient with respect to a vector of variables: either a single element,
+/// ∂/∂w[Index] += Coefficient (a read of w[Index]), or a whole vector, ∂/∂w += Coefficient · SourceSpan (the chain rule
+/// through a loop-carried local whose running derivative with respect to w is the span local SourceSpan).
+/// </summary>
+internal sealed class VectorTerm
+{
+    public VectorTerm(int vector, Node coefficient, Node? index, Node? sourceLeaf, string? sourceSpan)
+    {
+        Vector = vector;
+        Coefficient = coefficient;
+        Index = index;
+        SourceLeaf = sourceLeaf;
+        SourceSpan = sourceSpan;
+    }
+
+    public int Vector { get; }
+
+    public Node Coefficient { get; }
+
+    public Node? Index { get; }
+
+    public Node? SourceLeaf { get; }
+
+    public string? SourceSpan { get; }
+}
+
 internal static class ReverseSweep
 {
     /// <param name="leafGradient">For an active leaf that is not a variable, its gradient (one node per variable).</param>
-    public static Node[] Gradient(ExpressionBuilder b, Node output, int variableCount, Func<Node, Node[]?>? leafGradient = null)
+    public static Node[] Gradient(ExpressionBuilder b, Node output, int variableCount, Func<Node, Node[]?>? leafGradient = null,
+        List<VectorTerm>? vectorTerms = null, Func<Node, string[]?>? leafVectorGradient = null)
     {
         var gradient = new Node[variableCount];
         for (int i = 0; i < variableCount; i++)
@@ -50,6 +78,13 @@ internal static class ReverseSweep
                 continue;
             }
 
+            if (node.Kind == NodeKind.VariableElement)
+            {
+                (vectorTerms ?? throw new InvalidOperationException("A vector variable was read where no vector gradient is kept."))
+                    .Add(new VectorTerm((int)node.Value, adjoint, node.Arguments[0], null, null));
+                continue;
+            }
+
             if (node.Arguments.Length == 0)
             {
                 Node[] known = leafGradient?.Invoke(node)
@@ -57,6 +92,14 @@ internal static class ReverseSweep
                 for (int k = 0; k < variableCount; k++)
                 {
                     gradient[k] = b.Add(gradient[k], b.Multiply(adjoint, known[k]));
+                }
+
+                if (leafVectorGradient?.Invoke(node) is { } spans)
+                {
+                    for (int v = 0; v < spans.Length; v++)
+                    {
+                        vectorTerms!.Add(new VectorTerm(v, adjoint, null, node, spans[v]));
+                    }
                 }
 
                 continue;

@@ -79,7 +79,7 @@ internal static class DerivativeEmitter
         int n = program.Variables.Length;
         string type = ExpressionWriter.TypeKeyword(spec.ReturnType);
         string methodName = context.BareName + (withHessian ? Lowering.MethodParser.HessianSuffix : Lowering.MethodParser.GradientSuffix);
-        string variableList = string.Join(", ", program.Variables.Select(Identifiers.Unescape));
+        string variableList = string.Join(", ", spec.Parameters.Where(p => p.IsVariable).Select(p => Identifiers.Unescape(p.Name) + (p.IsVector ? "[…]" : string.Empty)));
 
         // Documentation.
         writer.Line("/// <summary>");
@@ -102,7 +102,7 @@ internal static class DerivativeEmitter
         }
 
         writer.Line("/// <param name=\"" + context.GradientName + "\">Receives ∂f/∂v for v = " + Xml(variableList) + ", in that order; needs at least "
-            + Count(n) + " elements.</param>");
+            + Xml(context.GradientLength) + " elements.</param>");
         if (withHessian)
         {
             writer.Line("/// <param name=\"" + context.HessianName + "\">Receives the " + Count(n) + "×" + Count(n)
@@ -124,21 +124,22 @@ internal static class DerivativeEmitter
         string modifiers = spec.Accessibility + (spec.IsStatic ? " static " : " ");
         using (writer.Block(modifiers + type + " " + methodName + "(" + string.Join(", ", parameters) + ")"))
         {
-            WriteLengthCheck(writer, context.GradientName, n, "one per variable: " + variableList);
+            WriteLengthCheck(writer, context.GradientName, context.GradientLength, "one per variable: " + variableList);
             if (withHessian)
             {
-                WriteLengthCheck(writer, context.HessianName, n * n, Count(n) + " × " + Count(n) + ", row-major");
+                WriteLengthCheck(writer, context.HessianName, Count(n * n), Count(n) + " × " + Count(n) + ", row-major");
             }
 
             WriteBody(writer, context, withHessian);
         }
     }
 
-    private static void WriteLengthCheck(IndentedWriter writer, string name, int length, string what)
+    private static void WriteLengthCheck(IndentedWriter writer, string name, string length, string what)
     {
-        using (writer.Block("if (" + name + ".Length < " + Count(length) + ")"))
+        using (writer.Block("if (" + name + ".Length < " + length + ")"))
         {
-            writer.Line("throw new global::System.ArgumentException(\"The span must hold at least " + Count(length) + (length == 1 ? " element (" : " elements (") + what.Replace("\"", "'")
+            string count = length.Contains("Length") ? "\" + (" + length + ") + \"" : length;
+            writer.Line("throw new global::System.ArgumentException(\"The span must hold at least " + count + (length == "1" ? " element (" : " elements (") + what.Replace("\"", "'")
                 + ").\", nameof(" + name + "));");
         }
 
@@ -199,7 +200,17 @@ internal static class DerivativeEmitter
 
             roots.AddRange(initial[loop].Select(u => (u.Value, loop.BeforeStage)));
             roots.AddRange(next[loop].Select(u => (u.Value, loop.BodyEndStage)));
+            foreach (LoopState state in loop.States)
+            {
+                if (program.States.TryGetValue(state, out StateDerivatives? d))
+                {
+                    roots.AddRange(TermNodes(d.InitialVector).Select(node => (node, loop.BeforeStage)));
+                    roots.AddRange(TermNodes(d.NextVector).Select(node => (node, loop.BodyEndStage)));
+                }
+            }
         }
+
+        roots.AddRange(TermNodes(program.VectorGradient).Select(node => (node, finalStage)));
 
         // Which nodes get a local: the user's named locals, the value, every node used more than once, and every node
         // used at a later stage than its own (computed once before a loop rather than in every iteration).
@@ -379,6 +390,8 @@ internal static class DerivativeEmitter
                 writer.Line(prefix + update.Target + " = " + code.Write(update.Value) + ";");
             }
 
+            WriteVectorUpdates(loop, before: true);
+
             // A while loop's condition is written in its header, inline: only what is computed before the loop is read
             // from locals, so nothing of the body runs before the condition is tested, as in the user's code.
             string header = loop.Condition is { } condition
@@ -392,8 +405,10 @@ internal static class DerivativeEmitter
                     WriteLoop(nested);
                 }
 
-                // The end of an iteration. An update that no other update reads is written in place (s += e); the
-                // others are computed from the old values into locals first and assigned after (x = xNext).
+                // The end of an iteration: the running derivatives with respect to vectors first (they read the old
+                // scalar values), then the scalars. An update that no other update reads is written in place
+                // (s += e); the others are computed from the old values into locals first and assigned after.
+                WriteVectorUpdates(loop, before: false);
                 List<StateUpdate> pending = next[loop].Where(u => !IsSameLocal(u)).ToList();
                 var reads = pending.ToDictionary(u => u.Target, u => LocalsRead(u.Value, nameOf), StringComparer.Ordinal);
                 var assignments = new List<(string Target, string Source)>();
@@ -432,6 +447,107 @@ internal static class DerivativeEmitter
             WriteTemporaries(loop.AfterStage);
         }
 
+        // Running derivatives with respect to vectors of variables live in spans: on the stack up to a size, else on
+        // the heap (the README states the policy).
+        string element = names.Claim("k");
+        string Length(int vector) => program.Vectors[vector] + ".Length";
+        foreach (LoopSegment loop in program.Loops)
+        {
+            foreach (LoopState state in loop.States)
+            {
+                if (!program.States.TryGetValue(state, out StateDerivatives? d))
+                {
+                    continue;
+                }
+
+                for (int v = 0; v < d.VectorNames.Length; v++)
+                {
+                    if (declared.Add(d.VectorNames[v]))
+                    {
+                        writer.Line(SpanDeclaration(d.VectorNames[v], Length(v)));
+                    }
+
+                    if (!UpdatesInPlace(loop, d, v) && declared.Add(d.VectorNames[v] + "Next"))
+                    {
+                        writer.Line(SpanDeclaration(d.VectorNames[v] + "Next", Length(v)));
+                    }
+                }
+            }
+        }
+
+        bool UpdatesInPlace(LoopSegment loop, StateDerivatives d, int v)
+        {
+            // In place when the span carries on with factor 1 and no other update at the end of the same loop reads it.
+            bool carries = d.NextVector.Any(t => t.Vector == v && t.SourceSpan == d.VectorNames[v] && t.Coefficient.IsConstant(1));
+            bool readByOthers = loop.States.Any(other => program.States.TryGetValue(other, out StateDerivatives? o) && o != d
+                && o.NextVector.Any(t => t.SourceSpan == d.VectorNames[v]));
+            return carries && !readByOthers;
+        }
+
+        void AddTerms(string target, string offset, IEnumerable<VectorTerm> terms, string? skipSource)
+        {
+            foreach (VectorTerm term in terms)
+            {
+                string at = offset.Length == 0 ? string.Empty : offset + " + ";
+                string coefficient = term.Coefficient.IsConstant(1) ? string.Empty : code.Write(term.Coefficient) + " * ";
+                if (term.Index is { } index)
+                {
+                    writer.Line(target + "[" + at + code.Write(index) + "] += " + (coefficient.Length == 0 ? "1.0" : coefficient.Substring(0, coefficient.Length - 3)) + ";");
+                }
+                else if (term.SourceSpan != skipSource)
+                {
+                    using (writer.Block("for (int " + element + " = 0; " + element + " < " + Length(term.Vector) + "; " + element + "++)"))
+                    {
+                        writer.Line(target + "[" + at + element + "] += " + coefficient + term.SourceSpan + "[" + element + "];");
+                    }
+                }
+            }
+        }
+
+        void WriteVectorUpdates(LoopSegment loop, bool before)
+        {
+            var copies = new List<string>();
+            foreach (LoopState state in loop.States)
+            {
+                if (!program.States.TryGetValue(state, out StateDerivatives? d))
+                {
+                    continue;
+                }
+
+                for (int v = 0; v < d.VectorNames.Length; v++)
+                {
+                    string own = d.VectorNames[v];
+                    var terms = (before ? d.InitialVector : d.NextVector).Where(t => t.Vector == v).ToList();
+                    bool identity = terms.Count == 1 && terms[0].SourceSpan == own && terms[0].Coefficient.IsConstant(1);
+                    if (identity)
+                    {
+                        continue; // carried on unchanged
+                    }
+
+                    if (before)
+                    {
+                        writer.Line(own + ".Clear();");
+                        AddTerms(own, string.Empty, terms, null);
+                    }
+                    else if (UpdatesInPlace(loop, d, v))
+                    {
+                        AddTerms(own, string.Empty, terms, own);
+                    }
+                    else
+                    {
+                        writer.Line(own + "Next.Clear();");
+                        AddTerms(own + "Next", string.Empty, terms, null);
+                        copies.Add(own + "Next.CopyTo(" + own + ");");
+                    }
+                }
+            }
+
+            foreach (string copy in copies)
+            {
+                writer.Line(copy);
+            }
+        }
+
         WriteTemporaries(0);
         foreach (LoopSegment loop in program.TopLevelLoops)
         {
@@ -439,9 +555,17 @@ internal static class DerivativeEmitter
         }
 
         writer.Blank();
+        for (int v = 0; v < program.Vectors.Length; v++)
+        {
+            string offset = context.VectorOffset[v] == "0" ? string.Empty : context.VectorOffset[v];
+            writer.Line(context.GradientName + ".Slice(" + context.VectorOffset[v] + ", " + Length(v) + ").Clear(); // ∂" + context.BareName + "/∂"
+                + Identifiers.Unescape(program.Vectors[v]) + "[…]");
+            AddTerms(context.GradientName, offset, program.VectorGradient.Where(t => t.Vector == v), null);
+        }
+
         for (int i = 0; i < n; i++)
         {
-            writer.Line(context.GradientName + "[" + Count(i) + "] = " + code.Write(program.Gradient[i]) + "; // " + context.PartialName(i));
+            writer.Line(context.GradientName + "[" + context.ScalarOffset[i] + "] = " + code.Write(program.Gradient[i]) + "; // " + context.PartialName(i));
         }
 
         if (withHessian)
@@ -461,6 +585,15 @@ internal static class DerivativeEmitter
         writer.Line();
         writer.Line("return " + code.Write(program.Value) + ";");
     }
+
+    private static IEnumerable<Node> TermNodes(IEnumerable<VectorTerm> terms) =>
+        terms.SelectMany(t => t.Index is null ? new[] { t.Coefficient } : new[] { t.Coefficient, t.Index });
+
+    private static string SpanDeclaration(string name, string length) =>
+        "global::System.Span<double> " + name + " = " + length + " <= " + Count(StackLimit) + " ? stackalloc double[" + length + "] : new double[" + length + "];";
+
+    /// <summary>Spans of running derivatives up to this many elements are allocated on the stack, longer ones on the heap.</summary>
+    internal const int StackLimit = 512;
 
     /// <summary>The generated locals (loop-carried values and running derivatives) an expression reads.</summary>
     private static IEnumerable<string> LocalsReachable(IEnumerable<Node> roots) =>
@@ -506,7 +639,7 @@ internal static class DerivativeEmitter
             return known;
         }
 
-        bool canThrow = node.Kind == NodeKind.Element
+        bool canThrow = node.Kind is NodeKind.Element or NodeKind.VariableElement
             || (node.Kind == NodeKind.Divide && node.Type == ScalarType.Int32)
             || (node.Kind == NodeKind.Call && node.Function == MathFunction.Clamp);
         bool result = canThrow && !unconditional.Contains(node);
@@ -632,7 +765,40 @@ internal static class DerivativeEmitter
             var names = new TemporaryNames(spec.Parameters.Select(p => p.Name));
             GradientName = names.Claim("gradient");
             HessianName = names.Claim("hessian");
+
+            // Where each variable's derivatives go in the gradient span: declaration order, a vector taking v.Length slots.
+            int constant = 0;
+            var lengths = new List<string>();
+            string Offset() => string.Join(" + ", lengths.Concat(constant > 0 || lengths.Count == 0 ? new[] { Count(constant) } : Array.Empty<string>()));
+            var scalarOffsets = new List<string>();
+            var vectorOffsets = new List<string>();
+            foreach (ParameterSpec parameter in spec.Parameters.Where(p => p.IsVariable))
+            {
+                if (parameter.IsVector)
+                {
+                    vectorOffsets.Add(Offset());
+                    lengths.Add(parameter.Name + ".Length");
+                }
+                else
+                {
+                    scalarOffsets.Add(Offset());
+                    constant++;
+                }
+            }
+
+            ScalarOffset = scalarOffsets.ToArray();
+            VectorOffset = vectorOffsets.ToArray();
+            GradientLength = Offset();
         }
+
+        /// <summary>The index in the gradient span of each scalar variable (C# text; a run-time sum after a vector).</summary>
+        public string[] ScalarOffset { get; }
+
+        /// <summary>The index in the gradient span of each vector's first element.</summary>
+        public string[] VectorOffset { get; }
+
+        /// <summary>The number of gradient entries (C# text).</summary>
+        public string GradientLength { get; }
 
         public MethodSpec Spec { get; }
 

@@ -204,6 +204,7 @@ internal sealed class ExpressionWriter
                 return true;
 
             case NodeKind.Element:
+            case NodeKind.VariableElement:
                 text.Append(node.Text).Append('[');
                 for (int i = 0; i < node.Arguments.Length; i++)
                 {

@@ -739,8 +739,8 @@ internal sealed class BodyLowerer
     /// <summary>The C# text naming data (an array or span that is not a variable), or null when it is not data.</summary>
     private string? DataText(IOperation data) => data switch
     {
-        IParameterReferenceOperation parameter when IsData(parameter.Parameter.Type) && !_variables.Contains(Identifiers.Escape(parameter.Parameter.Name)) =>
-            Identifiers.Escape(parameter.Parameter.Name),
+        IParameterReferenceOperation parameter when IsData(parameter.Parameter.Type) =>
+            Identifiers.Escape(parameter.Parameter.Name),   // data, or a vector of variables (then its elements are variables)
         IFieldReferenceOperation { Instance: IInstanceReferenceOperation, Field: var field } when IsData(field.Type) => "this." + Identifiers.Escape(field.Name),
         IFieldReferenceOperation { Field: { IsStatic: true, IsReadOnly: true } field } when IsData(field.Type) =>
             FullyQualified(field.ContainingType) + "." + Identifiers.Escape(field.Name),
@@ -919,6 +919,7 @@ internal sealed class BodyLowerer
         IrCall call => AnyDependsOnVariable(call.Arguments),
         IrUserCall call => AnyDependsOnVariable(call.Arguments),
         IrCompare compare => DependsOnVariable(compare.Left) || DependsOnVariable(compare.Right),
+        IrElement element => _variables.Contains(element.Data),
         IrLogical logical => DependsOnVariable(logical.Left) || (logical.Right is not null && DependsOnVariable(logical.Right)),
         IrConditional conditional => DependsOnVariable(conditional.WhenTrue) || DependsOnVariable(conditional.WhenFalse) || DependsOnVariable(conditional.Condition),
         _ => false,

@@ -81,8 +81,8 @@ internal static class MethodParser
                 "The out parameter '" + parameter.Name + "'", "a differentiated method returns its one value"));
         }
 
-        HashSet<string> variables = SelectVariables(method, attribute, diagnostics, nameLocation, cancellationToken);
         bool emitHessian = HasHessian(attribute);
+        HashSet<string> variables = SelectVariables(method, attribute, emitHessian, diagnostics, nameLocation, cancellationToken);
 
         CheckGeneratedNames(method, emitHessian, nameLocation, diagnostics);
 
@@ -116,14 +116,15 @@ internal static class MethodParser
                 Identifiers.Escape(p.Name),
                 Modifiers(p, method),
                 p.Type.ToDisplayString(SymbolDisplayFormat.FullyQualifiedFormat.AddMiscellaneousOptions(SymbolDisplayMiscellaneousOptions.IncludeNullableReferenceTypeModifier)),
-                variables.Contains(p.Name))).ToEquatableArray(),
+                variables.Contains(p.Name),
+                variables.Contains(p.Name) && IsFloatingPointVector(p.Type))).ToEquatableArray(),
             EmitHessian: emitHessian,
             DisplayName: method.ToDisplayString(HeaderFormat),
             Cref: method.Name + "(" + string.Join(", ", method.Parameters.Select(p => CrefType(p))) + ")",
             Body: body);
     }
 
-    private static HashSet<string> SelectVariables(IMethodSymbol method, AttributeData attribute, List<DiagnosticInfo> diagnostics,
+    private static HashSet<string> SelectVariables(IMethodSymbol method, AttributeData attribute, bool emitHessian, List<DiagnosticInfo> diagnostics,
         Location nameLocation, CancellationToken cancellationToken)
     {
         var variables = new HashSet<string>(StringComparer.Ordinal);
@@ -155,9 +156,18 @@ internal static class MethodParser
             }
             else if (IsFloatingPointVector(parameter.Type))
             {
-                diagnostics.Add(DiagnosticInfo.Create(DiagnosticDescriptors.UnsupportedConstruct, location,
-                    "The vector variable '" + parameter.Name + "'",
-                    "vector variables (arrays and spans of variables) come in a later version; pass the components as scalar double or float parameters"));
+                if (emitHessian || ElementType(parameter.Type).SpecialType != SpecialType.System_Double || method.ReturnType.SpecialType != SpecialType.System_Double)
+                {
+                    diagnostics.Add(DiagnosticInfo.Create(DiagnosticDescriptors.UnsupportedConstruct, location,
+                        "The vector variable '" + parameter.Name + "'" + (emitHessian ? " with a Hessian" : " of float"),
+                        emitHessian
+                            ? "Hessians with respect to vector variables are not generated yet; add Hessian = false to [Differentiate]"
+                            : "vector variables are supported for double methods with double elements"));
+                }
+                else if (!variables.Add(name))
+                {
+                    diagnostics.Add(DiagnosticInfo.Create(DiagnosticDescriptors.DuplicateVariable, location, name));
+                }
             }
             else if (!IsFloatingPoint(parameter.Type) || parameter.RefKind is not (RefKind.None or RefKind.In))
             {
@@ -236,6 +246,9 @@ internal static class MethodParser
     private static bool IsGeneratedByUs(ISymbol member) => member.GetAttributes().Any(a =>
         a.AttributeClass?.ToDisplayString() == "System.CodeDom.Compiler.GeneratedCodeAttribute"
         && a.ConstructorArguments.Length > 0 && a.ConstructorArguments[0].Value is GeneratorToolName);
+
+    private static ITypeSymbol ElementType(ITypeSymbol type) =>
+        type is IArrayTypeSymbol array ? array.ElementType : ((INamedTypeSymbol)type).TypeArguments[0];
 
     private static bool IsFloatingPointVector(ITypeSymbol type) =>
         (type is IArrayTypeSymbol { Rank: 1 } array && IsFloatingPoint(array.ElementType))

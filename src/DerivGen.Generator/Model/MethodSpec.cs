@@ -39,4 +39,5 @@ internal sealed record ContainingTypeSpec(string Keyword, string Name);
 /// <param name="Modifiers">Modifiers copied to the generated signature, e.g. "in " or "this ".</param>
 /// <param name="TypeName">The fully qualified type.</param>
 /// <param name="IsVariable">Whether this is a differentiation variable.</param>
-internal sealed record ParameterSpec(string Name, string Modifiers, string TypeName, bool IsVariable);
+/// <param name="IsVector">Whether it is a vector of variables (an array or span named in [Differentiate]).</param>
+internal sealed record ParameterSpec(string Name, string Modifiers, string TypeName, bool IsVariable, bool IsVector = false);

@@ -77,6 +77,10 @@ internal sealed class ExpressionBuilder
         Intern(NodeKind.CallSecondPartial, call.Type, new[] { call }.Concat(call.Arguments).ToArray(),
             (k * call.Callee!.VariablePositions.Length) + l, null, default, default, default, -1);
 
+    /// <summary>An element of the vector of variables number <paramref name="vector"/>, <c>name[index]</c>.</summary>
+    public Node VariableElement(string name, int vector, ScalarType type, Node index) =>
+        Intern(NodeKind.VariableElement, type, new[] { index }, vector, name, default, default, default, -1, 0, isActiveLeaf: true);
+
     /// <summary>A comparison as written.</summary>
     public Node RawCompare(Comparison comparison, Node a, Node b) =>
         Intern(NodeKind.Compare, ScalarType.Boolean, new[] { a, b }, 0, null, default, default, comparison, -1);

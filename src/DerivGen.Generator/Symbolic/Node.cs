@@ -24,6 +24,9 @@ internal enum NodeKind
     Or,
     Not,
 
+    /// <summary>An element of a vector of variables, <c>Text[Arguments[0]]</c>; Value is the vector's number.</summary>
+    VariableElement,
+
     /// <summary>A call of another [Differentiate] method; <see cref="Node.Callee"/> says which.</summary>
     UserCall,
 
