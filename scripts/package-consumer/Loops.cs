@@ -127,4 +127,44 @@ public static partial class Fits
         g[0] = Math.Pow(1 - k * dt, n);
         g[1] = -c * n * dt * Math.Pow(1 - k * dt, n - 1);
     }
+
+    // A polynomial fit with a vector of coefficients w (a vector variable): Σ_i (Σ_j w_j t_i^j − y_i)².
+    [Differentiate(nameof(w), Hessian = false)]
+    public static double Poly(double[] w, double[] t, double[] y)
+    {
+        double s = 0;
+        for (int i = 0; i < t.Length; i++)
+        {
+            double model = 0, power = 1;
+            for (int j = 0; j < w.Length; j++)
+            {
+                model += w[j] * power;
+                power *= t[i];
+            }
+
+            double r = model - y[i];
+            s += r * r;
+        }
+
+        return s;
+    }
+
+    // ∂/∂w_j = Σ_i 2 r_i t_i^j.
+    public static void PolyExact(double[] w, double[] g)
+    {
+        Array.Clear(g, 0, g.Length);
+        for (int i = 0; i < T.Length; i++)
+        {
+            double model = 0;
+            for (int j = 0; j < w.Length; j++)
+            {
+                model += w[j] * Math.Pow(T[i], j);
+            }
+
+            for (int j = 0; j < w.Length; j++)
+            {
+                g[j] += 2 * (model - Y[i]) * Math.Pow(T[i], j);
+            }
+        }
+    }
 }

@@ -184,6 +184,14 @@ foreach (var p in new[] { new[] { 0.8, 1.3 }, new[] { 1.4, 0.6 } })
         (v, g) => Fits.DecayExact(v[0], v[1], 0.05, 200, g), null);
 }
 
+// A vector variable (gradient only): the polynomial's coefficients.
+foreach (var p in new[] { new[] { 1.0, 0.5, 0.1 }, new[] { 0.8, 1.1, -0.05 } })
+{
+    Check("Fits.Poly", p, v => Fits.Poly(v, Fits.T, Fits.Y),
+        (v, g) => Fits.PolyGradient(v, Fits.T, Fits.Y, g), null,
+        (v, g) => Fits.PolyExact(v, g), null);
+}
+
 foreach (var p in new[] { new[] { 0.3, -1.2, 2.0 }, new[] { -4.0, 0.5, 0.25 } })
 {
     Check("Radius", p, v => Smooth.Radius(v[0], v[1], v[2]),
