@@ -489,10 +489,10 @@ internal static class DerivativeEmitter
             foreach (VectorTerm term in terms)
             {
                 string at = offset.Length == 0 ? string.Empty : offset + " + ";
-                string coefficient = term.Coefficient.IsConstant(1) ? string.Empty : code.Write(term.Coefficient) + " * ";
+                string coefficient = term.Coefficient.IsConstant(1) ? string.Empty : code.WriteFactor(term.Coefficient) + " * ";
                 if (term.Index is { } index)
                 {
-                    writer.Line(target + "[" + at + code.Write(index) + "] += " + (coefficient.Length == 0 ? "1.0" : coefficient.Substring(0, coefficient.Length - 3)) + ";");
+                    writer.Line(target + "[" + at + code.Write(index) + "] += " + (term.Coefficient.IsConstant(1) ? "1.0" : code.Write(term.Coefficient)) + ";");
                 }
                 else if (term.SourceSpan != skipSource)
                 {

@@ -44,6 +44,13 @@ internal sealed class ExpressionWriter
 
     public string Write(Node node) => TryWrite(node) ?? throw new InvalidOperationException("Expression too long.");
 
+    /// <summary>The node as the left factor of a product written around it (parenthesized unless it binds tighter).</summary>
+    public string WriteFactor(Node node)
+    {
+        var text = new StringBuilder();
+        return Write(node, Multiplicative, text) ? text.ToString() : throw new InvalidOperationException("Expression too long.");
+    }
+
     public string? TryWrite(Node node)
     {
         var text = new StringBuilder();
