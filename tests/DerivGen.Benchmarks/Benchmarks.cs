@@ -30,20 +30,28 @@ public class DecayFitBenchmark
     public double HandWrittenGradient() => HandWritten.DecayFit(1.9, 1.2, 0.45, _t, _y, _g);
 }
 
-/// <summary>Logistic regression over 10,000 invented samples with 20 features (21 variables).</summary>
+/// <summary>Logistic regression over 10,000 invented samples with 20 or 50 features (a vector of weights + bias).</summary>
 [MemoryDiagnoser]
 public class LogisticBenchmark
 {
-    private readonly double[,] _x = new double[10_000, 20];
-    private readonly double[] _y = new double[10_000];
-    private readonly double[] _w = new double[20];
-    private readonly double[] _g = new double[21];
+    private double[,] _x = new double[0, 0];
+    private double[] _y = Array.Empty<double>();
+    private double[] _w = Array.Empty<double>();
+    private double[] _g = Array.Empty<double>();
 
-    public LogisticBenchmark()
+    [Params(20, 50)]
+    public int Features { get; set; }
+
+    [GlobalSetup]
+    public void Setup()
     {
+        _x = new double[10_000, Features];
+        _y = new double[10_000];
+        _w = new double[Features];
+        _g = new double[Features + 1];
         for (int i = 0; i < _y.Length; i++)
         {
-            for (int j = 0; j < 20; j++)
+            for (int j = 0; j < Features; j++)
             {
                 _x[i, j] = Math.Sin((i * 0.7) + (j * 1.3));
             }
@@ -51,9 +59,9 @@ public class LogisticBenchmark
             _y[i] = (i % 3) == 0 ? 1 : 0;
         }
 
-        for (int j = 0; j < 20; j++)
+        for (int j = 0; j < Features; j++)
         {
-            _w[j] = 0.05 * (j - 10);
+            _w[j] = 0.05 * (j - (Features / 2));
         }
     }
 
