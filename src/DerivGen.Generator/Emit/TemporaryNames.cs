@@ -88,6 +88,4 @@ internal sealed class TemporaryNames
     private static string Lower(string name) => char.ToLowerInvariant(name[0]) + name.Substring(1);
 
     private static string Capitalize(string name) => char.ToUpperInvariant(name[0]) + name.Substring(1);
-
-    internal static string TypeOf(ScalarType type) => ExpressionWriter.TypeKeyword(type);
 }

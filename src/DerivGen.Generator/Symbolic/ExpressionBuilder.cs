@@ -27,8 +27,6 @@ internal sealed class ExpressionBuilder
 
     public ExpressionBuilder(CancellationToken cancellationToken) => _cancellationToken = cancellationToken;
 
-    public int Count => _nodes.Count;
-
     // ---- Leaves -------------------------------------------------------------------------------------------------
 
     public Node Constant(double value, ScalarType type)
