@@ -185,7 +185,19 @@ internal sealed class ProgramGraph
                     foreach (string name in whenTrue.Keys.Where(whenFalse.ContainsKey).ToList())
                     {
                         Node a = whenTrue[name], b = whenFalse[name];
-                        locals[name] = a == b ? a : _builder.Raw(NodeKind.Select, a.Type, condition, a, b);
+                        locals[name] = a == b ? a : Merge(condition, a, b);
+                    }
+
+                    // A local first assigned on one side only is read afterwards only where that side ran (C#'s
+                    // definite assignment, or a guard Lowering put on the reads): the other side's value is never
+                    // seen, and zero stands for it, so the value stays under its condition.
+                    foreach (KeyValuePair<string, Node> pair in whenTrue.Concat(whenFalse)
+                        .Where(p => !locals.ContainsKey(p.Key) && !(whenTrue.ContainsKey(p.Key) && whenFalse.ContainsKey(p.Key))).ToList())
+                    {
+                        Node zero = _builder.Constant(0, pair.Value.Type);
+                        locals[pair.Key] = whenTrue.ContainsKey(pair.Key)
+                            ? _builder.Raw(NodeKind.Select, pair.Value.Type, condition, pair.Value, zero)
+                            : _builder.Raw(NodeKind.Select, pair.Value.Type, condition, zero, pair.Value);
                     }
 
                     break;
@@ -196,6 +208,7 @@ internal sealed class ProgramGraph
                     break;
 
                 case IrWhile loop:
+                    Run(loop.Setup, locals);
                     RunLoop(null, null, null, false, loop.Condition, loop.Body, locals);
                     break;
 
@@ -204,6 +217,29 @@ internal sealed class ProgramGraph
                     break;
             }
         }
+    }
+
+    /// <summary>The value of a local after an if: <c>c ? a : b</c>, and for a flag set on one side, <c>c || b</c> and the like.</summary>
+    private Node Merge(Node condition, Node a, Node b)
+    {
+        if (a.Type == ScalarType.Boolean)
+        {
+            if (a.Kind == NodeKind.Constant)
+            {
+                // c ? true : b = c || b;  c ? false : b = !c && b.
+                return a.Value != 0 ? _builder.Raw(NodeKind.Or, ScalarType.Boolean, condition, b)
+                    : _builder.Raw(NodeKind.And, ScalarType.Boolean, _builder.Raw(NodeKind.Not, ScalarType.Boolean, condition), b);
+            }
+
+            if (b.Kind == NodeKind.Constant)
+            {
+                // c ? a : false = c && a;  c ? a : true = !c || a.
+                return b.Value == 0 ? _builder.Raw(NodeKind.And, ScalarType.Boolean, condition, a)
+                    : _builder.Raw(NodeKind.Or, ScalarType.Boolean, _builder.Raw(NodeKind.Not, ScalarType.Boolean, condition), a);
+            }
+        }
+
+        return _builder.Raw(NodeKind.Select, a.Type, condition, a, b);
     }
 
     private void RunLoop(string? index, IrExpression? start, IrExpression? end, bool inclusive, IrExpression? condition,
@@ -273,7 +309,7 @@ internal sealed class ProgramGraph
         switch (expression)
         {
             case IrConstant constant:
-                return b.Constant(constant.Type == ScalarType.Int32 ? constant.Bits : BitConverter.Int64BitsToDouble(constant.Bits), constant.Type);
+                return b.Constant(constant.Type is ScalarType.Int32 or ScalarType.Boolean ? constant.Bits : BitConverter.Int64BitsToDouble(constant.Bits), constant.Type);
             case IrParameter parameter:
                 return b.Parameter(parameter.Name, parameter.Type, _variableIndex.TryGetValue(parameter.Name, out int index) ? index : -1);
             case IrLocal local:
@@ -344,6 +380,7 @@ internal sealed class ProgramGraph
                     CollectAssigned(loop.Body, names);
                     break;
                 case IrWhile loop:
+                    CollectAssigned(loop.Setup, names);
                     CollectAssigned(loop.Body, names);
                     break;
             }

@@ -13,6 +13,8 @@ internal static class Literals
         {
             case ScalarType.Int32:
                 return ((int)value).ToString(CultureInfo.InvariantCulture);
+            case ScalarType.Boolean:
+                return value != 0 ? "true" : "false";
             case ScalarType.Single:
                 float single = (float)value;
                 if (float.IsNaN(single))
@@ -48,6 +50,11 @@ internal static class Literals
         if (double.IsNaN(value) || double.IsInfinity(value))
         {
             return double.IsNaN(value) ? "NaN" : value > 0 ? "∞" : "-∞";
+        }
+
+        if (type == ScalarType.Boolean)
+        {
+            return value != 0 ? "true" : "false";
         }
 
         return type == ScalarType.Single

@@ -15,7 +15,7 @@ namespace DerivGen.Generator.Lowering;
 /// diagnostic on exactly that construct's span (and lowering goes on, so that one build reports every problem);
 /// non-smooth functions applied to something that depends on a variable become DG0007 warnings.
 /// </summary>
-internal sealed class BodyLowerer
+internal sealed partial class BodyLowerer
 {
     /// <summary>Deeper expressions are refused (DG0001) rather than risking the compiler's stack.</summary>
     public const int MaxDepth = 400;
@@ -28,8 +28,6 @@ internal sealed class BodyLowerer
     private readonly HashSet<string> _variableDependentLocals = new(StringComparer.Ordinal);
     private List<IrStatement> _statements = new();
     private int _depth;
-    private int _branchDepth;
-    private int _afterEarlyReturn;
 
     private readonly IMethodSymbol _method;
     private readonly bool _emitHessian;
@@ -45,89 +43,131 @@ internal sealed class BodyLowerer
 
     public EquatableArray<IrStatement> Lower(IBlockOperation body)
     {
+        ReserveUserNames(body);
+        if (NeedsReturnFlag(body) && ScalarTypeOf(_method.ReturnType) is { } returnType)
+        {
+            // Returns that the loops' control flow must respect become "result = v; returned = true;" and everything
+            // after them runs only while nothing has returned; the method returns the result once, at the end.
+            _returnValue = FreshName("result");
+            _returnFlag = FreshName("returned");
+            _statements.Add(new IrAssign(_returnValue, Zero(returnType)));
+            _statements.Add(new IrAssign(_returnFlag, False));
+        }
+
         LowerStatements(body.Operations, isTopLevel: true);
+        if (_returnValue is not null)
+        {
+            _statements.Add(new IrReturn(new IrLocal(_returnValue, ScalarTypeOf(_method.ReturnType)!.Value)));
+        }
+
         return _statements.ToEquatableArray();
     }
 
     private void LowerStatements(IEnumerable<IOperation> statements, bool isTopLevel)
     {
-        bool returned = false;
         List<IOperation> list = statements.ToList();
         for (int position = 0; position < list.Count; position++)
         {
             IOperation statement = list[position];
             _cancellationToken.ThrowIfCancellationRequested();
-            if (returned)
+            int jumpsBefore = _jumps;
+            if (!LowerStatement(statement, list, position, isTopLevel))
             {
-                // Unreachable code after the return: the compiler already warns; nothing to differentiate.
+                // A return, break or continue: what follows it in this block is unreachable (the compiler warns).
                 break;
             }
 
-            switch (statement)
+            if (_jumps != jumpsBefore && position + 1 < list.Count)
             {
-                case IVariableDeclarationGroupOperation group:
-                    foreach (IVariableDeclarationOperation declaration in group.Declarations)
-                    {
-                        foreach (IVariableDeclaratorOperation declarator in declaration.Declarators)
-                        {
-                            LowerDeclarator(declarator);
-                        }
-                    }
+                // The statement may have jumped (continue, break, or a return inside a loop): the rest of the block
+                // runs only where it did not.
+                List<IOperation> rest = list.GetRange(position + 1, list.Count - position - 1);
+                EquatableArray<IrStatement> lowered = LowerNested(rest, isTopLevel);
+                if (NothingJumped() is { } guard)
+                {
+                    _statements.AddRange(Guarded(guard, lowered, rest, "the loop after a jump (break, continue or return) whose condition depends on a differentiation variable"));
+                }
+                else
+                {
+                    _statements.AddRange(lowered);
+                }
 
-                    break;
-
-                case IExpressionStatementOperation { Operation: var expression }:
-                    LowerExpressionStatement(expression);
-                    break;
-
-                case IReturnOperation { ReturnedValue: { } value } when isTopLevel:
-                    IrExpression? returned_ = LowerExpression(value);
-                    if (returned_ is not null)
-                    {
-                        _statements.Add(new IrReturn(returned_));
-                    }
-
-                    returned = true;
-                    break;
-
-                case IReturnOperation:
-                    Unsupported(statement, "an early return", "return once, at the end of the method; assign the result to a local in the branches instead");
-                    returned = true;
-                    break;
-
-                case IConditionalOperation branch when isTopLevel && EndsWithReturn(branch.WhenTrue):
-                    // if (c) { …; return a; } rest  ≡  if (c) { …; return a; } else { rest }: the value is selected.
-                    LowerReturningIf(branch, list.Skip(position + 1));
-                    returned = true;
-                    break;
-
-                case IConditionalOperation branch:
-                    LowerIf(branch);
-                    break;
-
-                case IForLoopOperation loop:
-                    LowerFor(loop);
-                    break;
-
-                case IForEachLoopOperation loop:
-                    LowerForEach(loop);
-                    break;
-
-                case IWhileLoopOperation { ConditionIsTop: true, ConditionIsUntil: false, Condition: { } } loop:
-                    LowerWhile(loop);
-                    break;
-
-                case IBlockOperation block:
-                    LowerStatements(block.Operations, isTopLevel && IsLast(statement));
-                    break;
-
-                case IEmptyOperation:
-                    break;
-
-                default:
-                    Unsupported(statement, DescribeStatement(statement), HintFor(statement));
-                    break;
+                break;
             }
+        }
+    }
+
+    /// <summary>Lowers one statement; false when control never goes on to the next statement of the block.</summary>
+    private bool LowerStatement(IOperation statement, List<IOperation> list, int position, bool isTopLevel)
+    {
+        switch (statement)
+        {
+            case IVariableDeclarationGroupOperation group:
+                foreach (IVariableDeclarationOperation declaration in group.Declarations)
+                {
+                    foreach (IVariableDeclaratorOperation declarator in declaration.Declarators)
+                    {
+                        LowerDeclarator(declarator);
+                    }
+                }
+
+                return true;
+
+            case IExpressionStatementOperation { Operation: var expression }:
+                LowerExpressionStatement(expression);
+                return true;
+
+            case IReturnOperation { ReturnedValue: { } value } when _returnValue is not null:
+                LowerFlaggedReturn(statement, value, isFinal: isTopLevel && position == list.Count - 1);
+                return false;
+
+            case IReturnOperation { ReturnedValue: { } value } when isTopLevel:
+                if (LowerExpression(value) is { } returned)
+                {
+                    _statements.Add(new IrReturn(returned));
+                }
+
+                return false;
+
+            case IReturnOperation:
+                Unsupported(statement, "an early return", "return once, at the end of the method; assign the result to a local in the branches instead");
+                return false;
+
+            case IBranchOperation { BranchKind: BranchKind.Break or BranchKind.Continue } jump when _loop is not null:
+                LowerJump(jump);
+                return false;
+
+            case IConditionalOperation branch when isTopLevel && _returnValue is null && EndsWithReturn(branch.WhenTrue):
+                // if (c) { …; return a; } rest  ≡  if (c) { …; return a; } else { rest }: the value is selected.
+                LowerReturningIf(branch, list.Skip(position + 1));
+                return false;
+
+            case IConditionalOperation branch:
+                LowerIf(branch);
+                return true;
+
+            case IForLoopOperation loop:
+                LowerFor(loop);
+                return true;
+
+            case IForEachLoopOperation loop:
+                LowerForEach(loop);
+                return true;
+
+            case IWhileLoopOperation { ConditionIsUntil: false, Condition: { } } loop:
+                LowerWhile(loop);
+                return true;
+
+            case IBlockOperation block:
+                LowerStatements(block.Operations, isTopLevel && IsLast(statement));
+                return !EndsWithJump(block);
+
+            case IEmptyOperation:
+                return true;
+
+            default:
+                Unsupported(statement, DescribeStatement(statement), HintFor(statement));
+                return true;
         }
     }
 
@@ -158,13 +198,30 @@ internal sealed class BodyLowerer
     private void LowerIf(IConditionalOperation branch)
     {
         IrExpression? condition = LowerCondition(branch.Condition);
-        _branchDepth++;
+        bool dependsOnVariable = condition is not null && DependsOnVariable(condition);
+        _variableBranchDepth += dependsOnVariable ? 1 : 0;
         EquatableArray<IrStatement> whenTrue = LowerNested(branch.WhenTrue);
         EquatableArray<IrStatement> whenFalse = LowerNested(branch.WhenFalse);
-        _branchDepth--;
-        if (condition is not null)
+        _variableBranchDepth -= dependsOnVariable ? 1 : 0;
+        if (condition is null)
+        {
+            return;
+        }
+
+        if (!ContainsLoop(whenTrue) && !ContainsLoop(whenFalse))
         {
             _statements.Add(new IrIf(condition, whenTrue, whenFalse));
+            return;
+        }
+
+        // A loop inside the branch: its statements run under the condition, and its loops loop only where the
+        // condition holds (the condition is kept in a local, since the branch may change what it reads).
+        IrExpression taken = condition is IrParameter or IrConstant ? condition : Snapshot("branchTaken", condition);
+        const string reason = "the loop inside an if whose condition depends on a differentiation variable";
+        _statements.AddRange(Guarded(taken, whenTrue, new[] { branch.WhenTrue }, reason));
+        if (branch.WhenFalse is { } otherwise)
+        {
+            _statements.AddRange(Guarded(Not(taken), whenFalse, new[] { otherwise }, reason));
         }
     }
 
@@ -172,7 +229,8 @@ internal sealed class BodyLowerer
     private void LowerReturningIf(IConditionalOperation branch, IEnumerable<IOperation> rest)
     {
         IrExpression? condition = LowerCondition(branch.Condition);
-        _branchDepth++;
+        bool dependsOnVariable = condition is not null && DependsOnVariable(condition);
+        _variableBranchDepth += dependsOnVariable ? 1 : 0;
         EquatableArray<IrStatement> whenTrue = LowerNested(branch.WhenTrue, isTopLevel: true);
         IEnumerable<IOperation> otherwise = branch.WhenFalse switch
         {
@@ -180,10 +238,8 @@ internal sealed class BodyLowerer
             IBlockOperation block => block.Operations.Concat(rest),
             var single => new[] { single }.Concat(rest),
         };
-        _afterEarlyReturn++;
         EquatableArray<IrStatement> whenFalse = LowerNested(otherwise.ToList(), isTopLevel: true);
-        _afterEarlyReturn--;
-        _branchDepth--;
+        _variableBranchDepth -= dependsOnVariable ? 1 : 0;
         if (condition is not null)
         {
             _statements.Add(new IrIf(condition, whenTrue, whenFalse));
@@ -211,33 +267,10 @@ internal sealed class BodyLowerer
         return condition;
     }
 
-    private bool RefuseLoopInBranch(IOperation loop)
-    {
-        if (_branchDepth == 0)
-        {
-            return false;
-        }
-
-        if (_afterEarlyReturn > 0)
-        {
-            Unsupported(loop, "the loop after an early return", "the generated code would run it even when the method returns early; keep the result in a local and return once, at the end");
-        }
-        else
-        {
-            Unsupported(loop, "the loop inside an if", "the generated code would run it whatever the condition; move the loop out of the branch and test the condition inside its body");
-        }
-
-        return true;
-    }
-
     private void LowerFor(IForLoopOperation loop)
     {
-        if (RefuseLoopInBranch(loop))
-        {
-            return;
-        }
-
-        // for (int i = start; i < end; i++) — the one loop form supported, with bounds that are ints (so they cannot depend on a variable).
+        // for (int i = start; i < end; i++), bounds ints (so they cannot depend on a variable), i not assigned in the
+        // body: a counted loop. Any other for loop is its while loop: init; while (condition) { body; step; }.
         IVariableDeclaratorOperation? declarator = loop.Before.Length == 1
             && loop.Before[0] is IVariableDeclarationGroupOperation { Declarations.Length: 1 } group
             && group.Declarations[0].Declarators.Length == 1 ? group.Declarations[0].Declarators[0] : null;
@@ -245,22 +278,29 @@ internal sealed class BodyLowerer
             || declarator.Symbol.Type.SpecialType != SpecialType.System_Int32 || declarator.GetVariableInitializer()?.Value is not { } startValue
             || loop.Condition is not IBinaryOperation { OperatorKind: BinaryOperatorKind.LessThan or BinaryOperatorKind.LessThanOrEqual, LeftOperand: ILocalReferenceOperation conditionLocal } condition
             || !SymbolEqualityComparer.Default.Equals(conditionLocal.Local, declarator.Symbol)
+            || condition.RightOperand.Type?.SpecialType != SpecialType.System_Int32
             || loop.AtLoopBottom.Length != 1 || !IsIncrementByOne(loop.AtLoopBottom[0], declarator.Symbol)
             || AssignsLocal(loop.Body, declarator.Symbol))
         {
-            Unsupported(loop, "the for loop '" + Text(loop).Split('{')[0].Trim() + "'",
-                "write the loop as 'for (int i = start; i < end; i++)' with int bounds that do not depend on a variable, and do not assign i in the body");
+            if (loop.Condition is null)
+            {
+                Unsupported(loop, "the for loop without a condition '" + Text(loop).Split('{')[0].Trim() + "'",
+                    "give the loop a condition that does not depend on a differentiation variable");
+                return;
+            }
+
+            EquatableArray<IrStatement> init = LowerNested(loop.Before, isTopLevel: false);
+            LowerConditionLoop(loop.Condition, loop.Body, loop.AtLoopBottom, init, isDoLoop: false);
             return;
         }
 
         IrExpression? start = LowerExpression(startValue);
         IrExpression? end = LowerExpression(condition.RightOperand);
         string index = DeclareLocal(declarator.Symbol);
-        EquatableArray<IrStatement> body = LowerLoopBody(loop.Body);
-
+        LoweredLoop lowered = LowerLoop(loop.Body, ImmutableArray<IOperation>.Empty, null);
         if (start is not null && end is not null)
         {
-            _statements.Add(new IrFor(index, start, end, condition.OperatorKind == BinaryOperatorKind.LessThanOrEqual, body));
+            AddCountedLoop(new IrFor(index, start, end, condition.OperatorKind == BinaryOperatorKind.LessThanOrEqual, lowered.Body), lowered.Exits);
         }
     }
 
@@ -270,11 +310,6 @@ internal sealed class BodyLowerer
     /// </summary>
     private void LowerForEach(IForEachLoopOperation loop)
     {
-        if (RefuseLoopInBranch(loop))
-        {
-            return;
-        }
-
         IOperation collection = loop.Collection is IConversionOperation conversion ? conversion.Operand : loop.Collection;
         ILocalSymbol? element = loop.Locals.Length == 1 ? loop.Locals[0] : null;
         string? data = DataText(collection);
@@ -292,42 +327,58 @@ internal sealed class BodyLowerer
             return;
         }
 
-        string index = Identifiers.Unique(element.Name + "Index", _usedLocalNames);
+        string index = FreshName(element.Name + "Index");
         string name = DeclareLocal(element);
-        EquatableArray<IrStatement> body = LowerLoopBody(loop.Body);
+        LoweredLoop lowered = LowerLoop(loop.Body, ImmutableArray<IOperation>.Empty, null);
 
         var statements = new List<IrStatement>
         {
             new IrAssign(name, new IrElement(data, new IrExpression[] { new IrLocal(index, ScalarType.Int32) }.ToEquatableArray(), type)),
         };
-        statements.AddRange(body);
-        _statements.Add(new IrFor(index, new IrConstant(0, ScalarType.Int32), new IrExternal(data + ".Length", ScalarType.Int32), false,
-            statements.ToEquatableArray()));
+        statements.AddRange(lowered.Body);
+        AddCountedLoop(new IrFor(index, new IrConstant(0, ScalarType.Int32), new IrExternal(data + ".Length", ScalarType.Int32), false,
+            statements.ToEquatableArray()), lowered.Exits);
     }
 
-    /// <summary><c>while (condition) { … }</c> whose condition does not depend on a variable (so the trip count does not).</summary>
+    /// <summary>
+    /// <c>while (condition) { … }</c> and <c>do { … } while (condition);</c>, the condition not depending on a variable
+    /// (so the trip count does not). A do loop is <c>firstPass = true; while (firstPass || condition) { firstPass = false; … }</c>.
+    /// </summary>
     private void LowerWhile(IWhileLoopOperation loop)
     {
-        if (RefuseLoopInBranch(loop))
+        LowerConditionLoop(loop.Condition!, loop.Body, ImmutableArray<IOperation>.Empty, EquatableArray<IrStatement>.Empty,
+            isDoLoop: !loop.ConditionIsTop);
+    }
+
+    private void LowerConditionLoop(IOperation conditionOperation, IOperation bodyOperation, ImmutableArray<IOperation> step,
+        EquatableArray<IrStatement> init, bool isDoLoop)
+    {
+        LoweredLoop lowered = LowerLoop(bodyOperation, step, conditionOperation);
+        if (lowered.Condition is not { } condition)
         {
             return;
         }
 
-        // The body may make the condition depend on a variable in a later iteration: learn that from the body first.
-        LowerLoopBody(loop.Body);
-        IrExpression? condition = LowerExpression(loop.Condition!);
-        if (condition is not null && DependsOnVariable(condition))
+        if (DependsOnVariable(condition))
         {
-            Unsupported(loop.Condition!, $"the loop condition '{Text(loop.Condition!)}'",
+            Unsupported(conditionOperation, $"the loop condition '{Text(conditionOperation)}'",
                 "the number of iterations would depend on a differentiation variable; loop over a count or over data instead");
             return;
         }
 
-        EquatableArray<IrStatement> body = LowerLoopBody(loop.Body);
-        if (condition is not null)
+        var setup = new List<IrStatement>(init);
+        var body = new List<IrStatement>();
+        if (isDoLoop)
         {
-            _statements.Add(new IrWhile(condition, body));
+            string firstPass = FreshName("firstPass");
+            setup.Add(new IrAssign(firstPass, True));
+            body.Add(new IrAssign(firstPass, False));
+            condition = new IrLogical(LogicalOperator.Or, new IrLocal(firstPass, ScalarType.Boolean), condition);
         }
+
+        setup.AddRange(lowered.Exits.Setup());
+        body.AddRange(lowered.Body);
+        _statements.Add(new IrWhile(setup.ToEquatableArray(), And(lowered.Exits.Guard(_returnFlag), condition), body.ToEquatableArray()));
     }
 
     /// <summary><c>var (a, b) = (e1, e2);</c> and <c>(a, b) = (e1, e2);</c> into locals, when no element reads a target.</summary>
@@ -375,21 +426,6 @@ internal sealed class BodyLowerer
                 AssignLocal(LocalName(locals[i]), Convert(value, ScalarTypeOf(locals[i].Type)!.Value));
             }
         }
-    }
-
-    /// <summary>
-    /// A loop body. A local assigned late in the body is read early in the next iteration, so the body is lowered once
-    /// to learn which locals come to depend on a variable (so that a condition reading them is flagged), then for real.
-    /// </summary>
-    private EquatableArray<IrStatement> LowerLoopBody(IOperation body)
-    {
-        int diagnosticCount = _diagnostics.Count;
-        var localNames = new Dictionary<ILocalSymbol, string>(_localNames, SymbolEqualityComparer.Default);
-        var usedLocalNames = new HashSet<string>(_usedLocalNames, StringComparer.Ordinal);
-        LowerNested(body);
-        _diagnostics.RemoveRange(diagnosticCount, _diagnostics.Count - diagnosticCount);
-        RestoreNames(localNames, usedLocalNames);
-        return LowerNested(body);
     }
 
     private void RestoreNames(Dictionary<ILocalSymbol, string> localNames, HashSet<string> usedLocalNames)
@@ -534,9 +570,11 @@ internal sealed class BodyLowerer
             return;
         }
 
-        if (DependsOnVariable(value))
+        if (_variableBranchDepth > 0 || DependsOnVariable(value))
         {
-            _variableDependentLocals.Add(name); // Never removed: another path or iteration may still carry the dependence.
+            // Assigned from a variable, or under a condition that depends on one. Never removed: another path or
+            // iteration may still carry the dependence.
+            _variableDependentLocals.Add(name);
         }
 
         _statements.Add(new IrAssign(name, value));
@@ -961,6 +999,7 @@ internal sealed class BodyLowerer
             double d when type == ScalarType.Double => new IrConstant(BitConverter.DoubleToInt64Bits(d), type),
             float f when type == ScalarType.Single => new IrConstant(BitConverter.DoubleToInt64Bits(f), type),
             int i when type == ScalarType.Int32 => new IrConstant(i, type),
+            bool b when type == ScalarType.Boolean => new IrConstant(b ? 1 : 0, type),
             _ => null,
         };
         return constant is not null;

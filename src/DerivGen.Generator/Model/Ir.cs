@@ -113,5 +113,9 @@ internal sealed record IrIf(IrExpression Condition, EquatableArray<IrStatement> 
 /// <summary><c>for (int Index = Start; Index &lt; End; Index++) { Body }</c> (<c>&lt;=</c> when <paramref name="Inclusive"/>).</summary>
 internal sealed record IrFor(string Index, IrExpression Start, IrExpression End, bool Inclusive, EquatableArray<IrStatement> Body) : IrStatement;
 
-/// <summary><c>while (Condition) { Body }</c>, the condition not depending on a variable.</summary>
-internal sealed record IrWhile(IrExpression Condition, EquatableArray<IrStatement> Body) : IrStatement;
+/// <summary>
+/// <c>Setup; while (Condition) { Body }</c>, the condition not depending on a variable. <paramref name="Setup"/> assigns
+/// the int and bool locals the loop's machinery needs (a counter, a flag set by <c>break</c>); it runs even where the
+/// loop is guarded by a branch condition, which is folded into <paramref name="Condition"/>.
+/// </summary>
+internal sealed record IrWhile(EquatableArray<IrStatement> Setup, IrExpression Condition, EquatableArray<IrStatement> Body) : IrStatement;

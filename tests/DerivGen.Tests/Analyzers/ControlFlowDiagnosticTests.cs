@@ -215,10 +215,10 @@ public sealed class ControlFlowDiagnosticTests
                 double s = 0;
                 for (int i = 0; i < t.Length; i++)
                 {
-                    {|DG0001:for (int j = 0; j < w; j++)
+                    for (int j = 0; {|DG0001:j < w|}; j++)
                     {
                         s += w * t[i];
-                    }|}
+                    }
                 }
 
                 return s;
@@ -245,20 +245,41 @@ public sealed class ControlFlowDiagnosticTests
         """);
 
     [Fact]
-    public Task DG0001DoLoop() => VerifyAsync(Usings + """
+    public Task DG0001DoLoopWhoseConditionDependsOnAVariable() => VerifyAsync(Usings + """
+        public static partial class C
+        {
+            [Differentiate(nameof(x))]
+            public static double F(double x)
+            {
+                double s = 0;
+                do
+                {
+                    s += x;
+                }
+                while ({|DG0001:s < 2|});
+
+                return s;
+            }
+        }
+        """);
+
+    [Fact]
+    public Task DG0001ForLoopWithoutACondition() => VerifyAsync(Usings + """
         public static partial class C
         {
             [Differentiate(nameof(x))]
             public static double F(double x, double[] t)
             {
                 double s = 0;
-                int i = 0;
-                {|DG0001:do
+                {|DG0001:for (int i = 0; ; i++)
                 {
+                    if (i >= t.Length)
+                    {
+                        break;
+                    }
+
                     s += x * t[i];
-                    i += 1;
-                }
-                while (i < 2);|}
+                }|}
 
                 return s;
             }
@@ -284,7 +305,7 @@ public sealed class ControlFlowDiagnosticTests
         """);
 
     [Fact]
-    public Task DG0001ReturnInsideALoop() => VerifyAsync(Usings + """
+    public Task DG0001ReturnInsideALoopUnderAConditionOnAVariable() => VerifyAsync(Usings + """
         public static partial class C
         {
             [Differentiate(nameof(x))]
@@ -293,7 +314,7 @@ public sealed class ControlFlowDiagnosticTests
                 double s = 0;
                 for (int i = 0; i < t.Length; i++)
                 {
-                    if (t[i] < 0)
+                    if ({|DG0007:s > 1|})
                     {
                         {|DG0001:return s;|}
                     }
@@ -307,14 +328,14 @@ public sealed class ControlFlowDiagnosticTests
         """);
 
     [Fact]
-    public Task DG0001LoopInsideABranchOrAfterAnEarlyReturn() => VerifyAsync(Usings + """
+    public Task DG0001LoopInsideABranchOrAfterAnEarlyReturnOnAVariable() => VerifyAsync(Usings + """
         public static partial class C
         {
             [Differentiate(nameof(x))]
-            public static double F(double x, double[] t, bool flag)
+            public static double F(double x, double[] t)
             {
                 double s = 0;
-                if (flag)
+                if ({|DG0007:x > 0|})
                 {
                     {|DG0001:for (int i = 0; i < t.Length; i++)
                     {
@@ -322,14 +343,14 @@ public sealed class ControlFlowDiagnosticTests
                     }|}
                 }
 
-                if (t.Length == 0)
+                if ({|DG0007:x > 1|})
                 {
                     return x * x;
                 }
 
                 {|DG0001:for (int i = 0; i < t.Length; i++)
                 {
-                    s += x * t[i];
+                    s += x;
                 }|}
 
                 return s;
@@ -358,7 +379,7 @@ public sealed class ControlFlowDiagnosticTests
         """);
 
     [Fact]
-    public Task DG0001BreakAndContinue() => VerifyAsync(Usings + """
+    public Task DG0001BreakUnderAConditionOnAVariableButContinueIsAKink() => VerifyAsync(Usings + """
         public static partial class C
         {
             [Differentiate(nameof(x))]
@@ -367,12 +388,12 @@ public sealed class ControlFlowDiagnosticTests
                 double s = 0;
                 for (int i = 0; i < t.Length; i++)
                 {
-                    if (t[i] < 0)
+                    if ({|DG0007:x * t[i] < 0|})
                     {
-                        {|DG0001:continue;|}
+                        continue;
                     }
 
-                    if (t[i] > 10)
+                    if ({|DG0007:s > 10|})
                     {
                         {|DG0001:break;|}
                     }
@@ -454,10 +475,10 @@ public sealed class ControlFlowDiagnosticTests
             public static double F(double x)
             {
                 double s = 0;
-                {|DG0001:for (int i = 0; i < x; i++)
+                for (int i = 0; {|DG0001:i < x|}; i++)
                 {
                     s += x;
-                }|}
+                }
 
                 return s;
             }
@@ -496,11 +517,11 @@ public sealed class ControlFlowDiagnosticTests
             {
                 double s = 0;
                 double bound = 3;
-                {|DG0001:for (int i = 0; i < bound; i++)
+                for (int i = 0; {|DG0001:i < bound|}; i++)
                 {
                     s += x;
                     bound += x;
-                }|}
+                }
 
                 return s;
             }
@@ -522,29 +543,6 @@ public sealed class ControlFlowDiagnosticTests
                 }
 
                 return x;
-            }
-        }
-        """);
-
-    [Fact]
-    public Task DG0001DescendingLoopAndStride() => VerifyAsync(Usings + """
-        public static partial class C
-        {
-            [Differentiate(nameof(x))]
-            public static double F(double x, double[] t)
-            {
-                double s = 0;
-                {|DG0001:for (int i = t.Length - 1; i >= 0; i--)
-                {
-                    s = s * x + t[i];
-                }|}
-
-                {|DG0001:for (int i = 0; i < t.Length; i += 2)
-                {
-                    s += x * t[i];
-                }|}
-
-                return s;
             }
         }
         """);
