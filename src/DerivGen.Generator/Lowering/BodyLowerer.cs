@@ -30,10 +30,13 @@ internal sealed partial class BodyLowerer
     private int _depth;
 
     private readonly IMethodSymbol _method;
+    private readonly HelperContext _helpers;
     private readonly bool _emitHessian;
 
-    public BodyLowerer(IMethodSymbol method, bool emitHessian, HashSet<string> variables, List<DiagnosticInfo> diagnostics, CancellationToken cancellationToken)
+    public BodyLowerer(IMethodSymbol method, bool emitHessian, HashSet<string> variables, HelperContext helpers, List<DiagnosticInfo> diagnostics,
+        CancellationToken cancellationToken)
     {
+        _helpers = helpers;
         _method = method;
         _emitHessian = emitHessian;
         _variables = variables;
@@ -837,6 +840,13 @@ internal sealed partial class BodyLowerer
         if (target.GetAttributes().FirstOrDefault(a => a.AttributeClass?.ToDisplayString() == MethodParser.AttributeMetadataName) is { } attribute)
         {
             return LowerUserCall(invocation, target, attribute);
+        }
+
+        if (target.IsStatic && target.DeclaringSyntaxReferences.Length == 1 && target.ContainingType?.SpecialType == SpecialType.None
+            && target.ContainingType.ToDisplayString() is not ("System.Math" or "System.MathF")
+            && SymbolEqualityComparer.Default.Equals(target.ContainingAssembly, _helpers.Compilation.Assembly))
+        {
+            return LowerHelperCall(invocation, target);
         }
 
         MathHost? host = target.ContainingType?.SpecialType switch

@@ -12,8 +12,30 @@ using Microsoft.CodeAnalysis.Operations;
 
 namespace DerivGen.Generator.Lowering;
 
-/// <summary>The outcome of lowering one method: its spec when it can be generated, and its diagnostics.</summary>
-internal sealed record LoweringResult(MethodSpec? Spec, EquatableArray<DiagnosticInfo> Diagnostics);
+/// <summary>
+/// The outcome of lowering one method: its spec when it can be generated, its diagnostics, and the specs of the helper
+/// methods it calls (static methods of the compilation that are not marked, whose derivatives are generated with it).
+/// </summary>
+internal sealed record LoweringResult(MethodSpec? Spec, EquatableArray<DiagnosticInfo> Diagnostics, EquatableArray<HelperRequest> Helpers);
+
+/// <summary>A helper a marked method calls (directly or through other helpers): its documentation ID, and whether the
+/// caller needs its Hessian. The helper itself is lowered again from the current compilation when its file is written,
+/// so that an edit of the helper alone is never missed.</summary>
+internal sealed record HelperRequest(string DocumentationId, bool Hessian);
+
+/// <summary>What the lowering of one marked method shares with the lowering of the helpers it calls.</summary>
+internal sealed class HelperContext
+{
+    public HelperContext(Compilation compilation) => Compilation = compilation;
+
+    public Compilation Compilation { get; }
+
+    /// <summary>The helpers called so far, by documentation ID, and whether a Hessian is needed.</summary>
+    public Dictionary<string, bool> Requests { get; } = new(StringComparer.Ordinal);
+
+    /// <summary>The methods being lowered, outermost first: a call back into one of them is recursion.</summary>
+    public List<IMethodSymbol> Chain { get; } = new();
+}
 
 /// <summary>
 /// The Lower stage for one <c>[Differentiate]</c> method: checks the declaration (return type, partial types,
@@ -32,9 +54,15 @@ internal static class MethodParser
         var diagnostics = new List<DiagnosticInfo>();
         try
         {
-            MethodSpec? spec = LowerCore(method, syntax, attribute, semanticModel, diagnostics, cancellationToken);
+            var helpers = new HelperContext(semanticModel.Compilation);
+            helpers.Chain.Add(method);
+            bool emitHessian = HasHessian(attribute);
+            HashSet<string> variables = SelectVariables(method, attribute, emitHessian, diagnostics, syntax.Identifier.GetLocation(), cancellationToken);
+            MethodSpec? spec = LowerCore(method, syntax, emitHessian, variables, semanticModel, helpers, diagnostics, cancellationToken);
             bool hasErrors = diagnostics.Any(d => d.IsError);
-            return new LoweringResult(hasErrors ? null : spec, diagnostics.ToEquatableArray());
+            return new LoweringResult(hasErrors ? null : spec, diagnostics.ToEquatableArray(),
+                hasErrors ? EquatableArray<HelperRequest>.Empty
+                    : helpers.Requests.OrderBy(p => p.Key, StringComparer.Ordinal).Select(p => new HelperRequest(p.Key, p.Value)).ToEquatableArray());
         }
         catch (OperationCanceledException)
         {
@@ -45,12 +73,81 @@ internal static class MethodParser
             // A bug of ours must never crash the compiler: report it on the method and generate nothing.
             diagnostics.Add(DiagnosticInfo.Create(DiagnosticDescriptors.InternalError, syntax.Identifier.GetLocation(),
                 method.Name, exception.GetType().Name + ": " + exception.Message));
-            return new LoweringResult(null, diagnostics.ToEquatableArray());
+            return new LoweringResult(null, diagnostics.ToEquatableArray(), EquatableArray<HelperRequest>.Empty);
         }
     }
 
-    private static MethodSpec? LowerCore(IMethodSymbol method, MethodDeclarationSyntax syntax, AttributeData attribute,
-        SemanticModel semanticModel, List<DiagnosticInfo> diagnostics, CancellationToken cancellationToken)
+    /// <summary>
+    /// Lowers a helper — a static method of the compilation, not marked, called from a differentiated method — as if it
+    /// were marked with all its double and float parameters as variables. Its diagnostics are returned for the caller
+    /// to report at the call; the specs of the helpers it calls in turn go into <paramref name="helpers"/>.
+    /// </summary>
+    internal static MethodSpec? LowerHelper(IMethodSymbol method, MethodDeclarationSyntax syntax, bool emitHessian, HelperContext helpers,
+        List<DiagnosticInfo> diagnostics, CancellationToken cancellationToken)
+    {
+        var variables = new HashSet<string>(method.Parameters.Where(IsDefaultVariable).Select(p => p.Name), StringComparer.Ordinal);
+        if (variables.Count == 0)
+        {
+            diagnostics.Add(DiagnosticInfo.Create(DiagnosticDescriptors.NoVariables, syntax.Identifier.GetLocation(), method.Name));
+            return null;
+        }
+
+        SemanticModel model = helpers.Compilation.GetSemanticModel(syntax.SyntaxTree);
+        helpers.Chain.Add(method);
+        try
+        {
+            return LowerCore(method, syntax, emitHessian, variables, model, helpers, diagnostics, cancellationToken) is { } spec
+                ? spec with { IsHelper = true }
+                : null;
+        }
+        finally
+        {
+            helpers.Chain.RemoveAt(helpers.Chain.Count - 1);
+        }
+    }
+
+    /// <summary>
+    /// The specs of the requested helpers, lowered from <paramref name="compilation"/>, each once (with a Hessian if any
+    /// caller needs one), in hint-name order. A helper that no longer lowers cleanly is left out: the analyzer reports
+    /// it at the call, and the caller's call of its missing derivative method fails to compile rather than go wrong.
+    /// </summary>
+    internal static IEnumerable<MethodSpec> LowerHelpers(IEnumerable<HelperRequest> requests, Compilation compilation, CancellationToken cancellationToken)
+    {
+        var specs = new SortedDictionary<string, MethodSpec>(StringComparer.Ordinal);
+        foreach (IGrouping<string, HelperRequest> group in requests.GroupBy(r => r.DocumentationId, StringComparer.Ordinal))
+        {
+            cancellationToken.ThrowIfCancellationRequested();
+            if (DocumentationCommentId.GetFirstSymbolForDeclarationId(group.Key, compilation) is not IMethodSymbol method
+                || method.DeclaringSyntaxReferences.Length != 1
+                || method.DeclaringSyntaxReferences[0].GetSyntax(cancellationToken) is not MethodDeclarationSyntax syntax)
+            {
+                continue;
+            }
+
+            var diagnostics = new List<DiagnosticInfo>();
+            try
+            {
+                MethodSpec? spec = LowerHelper(method, syntax, group.Any(r => r.Hessian), new HelperContext(compilation), diagnostics, cancellationToken);
+                if (spec is not null && !diagnostics.Any(d => d.IsError))
+                {
+                    specs[spec.HintName] = spec;
+                }
+            }
+            catch (OperationCanceledException)
+            {
+                throw;
+            }
+            catch (Exception)
+            {
+                // Never crash the compiler: the analyzer reports the same failure at the call (DG0010).
+            }
+        }
+
+        return specs.Values;
+    }
+
+    private static MethodSpec? LowerCore(IMethodSymbol method, MethodDeclarationSyntax syntax, bool emitHessian, HashSet<string> variables,
+        SemanticModel semanticModel, HelperContext helpers, List<DiagnosticInfo> diagnostics, CancellationToken cancellationToken)
     {
         Location nameLocation = syntax.Identifier.GetLocation();
 
@@ -81,9 +178,6 @@ internal static class MethodParser
                 "The out parameter '" + parameter.Name + "'", "a differentiated method returns its one value"));
         }
 
-        bool emitHessian = HasHessian(attribute);
-        HashSet<string> variables = SelectVariables(method, attribute, emitHessian, diagnostics, nameLocation, cancellationToken);
-
         CheckGeneratedNames(method, emitHessian, nameLocation, diagnostics);
 
         EquatableArray<IrStatement> body = EquatableArray<IrStatement>.Empty;
@@ -95,7 +189,7 @@ internal static class MethodParser
         else if (returnType is (ScalarType.Double or ScalarType.Single)
             && semanticModel.GetOperation(syntax, cancellationToken) is IMethodBodyOperation { BlockBody: var block, ExpressionBody: var expression })
         {
-            var lowerer = new BodyLowerer(method, emitHessian, new HashSet<string>(variables.Select(Identifiers.Escape), StringComparer.Ordinal), diagnostics, cancellationToken);
+            var lowerer = new BodyLowerer(method, emitHessian, new HashSet<string>(variables.Select(Identifiers.Escape), StringComparer.Ordinal), helpers, diagnostics, cancellationToken);
             body = lowerer.Lower((block ?? expression)!);
         }
 
@@ -191,7 +285,7 @@ internal static class MethodParser
     }
 
     /// <summary>Without names in the attribute, every double or float parameter passed by value or 'in' is a variable.</summary>
-    private static bool IsDefaultVariable(IParameterSymbol parameter) =>
+    internal static bool IsDefaultVariable(IParameterSymbol parameter) =>
         IsFloatingPoint(parameter.Type) && parameter.RefKind is RefKind.None or RefKind.In;
 
     /// <summary>The differentiation variables of another [Differentiate] method, in order (for calls between them).</summary>

@@ -359,13 +359,13 @@ public sealed class ControlFlowDiagnosticTests
         """);
 
     [Fact]
-    public Task DG0001CallToAUserMethodInsideALoop() => VerifyAsync(Usings + """
-        public static partial class C
+    public Task DG0001CallToAnInstanceMethodThatIsNotMarkedInsideALoop() => VerifyAsync(Usings + """
+        public partial class C
         {
-            private static double Square(double v) => v * v;
+            private double Square(double v) => v * v;
 
             [Differentiate(nameof(x))]
-            public static double F(double x, double[] t)
+            public double F(double x, double[] t)
             {
                 double s = 0;
                 for (int i = 0; i < t.Length; i++)

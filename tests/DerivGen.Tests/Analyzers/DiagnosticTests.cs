@@ -26,13 +26,51 @@ public sealed class DiagnosticTests
         """);
 
     [Fact]
-    public Task DG0001CallToAUserMethod() => VerifyAsync(Usings + """
+    public Task DG0001CallToAHelperWhoseBodyCannotBeDifferentiated() => VerifyAsync(Usings + """
         public static partial class C
         {
-            private static double Helper(double v) => v * v;
+            private static double Helper(double v)
+            {
+                double s = 0;
+                while (s < v)
+                {
+                    s += 1;
+                }
+
+                return s * v;
+            }
 
             [Differentiate]
             public static double F(double x) => 2.0 * {|DG0001:Helper(x)|};
+        }
+        """);
+
+    [Fact]
+    public Task DG0001CallToAHelperInATypeThatIsNotPartial() => VerifyAsync(Usings + """
+        public static class Kernels
+        {
+            public static double Square(double v) => v * v;
+        }
+
+        public static partial class C
+        {
+            [Differentiate]
+            public static double F(double x) => 2.0 * {|DG0001:Kernels.Square(x)|};
+        }
+        """);
+
+    [Fact]
+    public Task DG0001RecursiveHelpers() => VerifyAsync(Usings + """
+        public static partial class C
+        {
+            // Helpers are analysed through the calls of marked methods: the diagnostic is on the call, and its message
+            // names the call that recurses (Even → Odd → Even).
+            private static double Even(double v, int n) => n == 0 ? v : Odd(v, n - 1);
+
+            private static double Odd(double v, int n) => n == 0 ? -v : Even(v, n - 1);
+
+            [Differentiate]
+            public static double F(double x) => {|DG0001:Even(x, 3)|};
         }
         """);
 

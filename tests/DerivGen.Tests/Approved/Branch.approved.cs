@@ -30,7 +30,7 @@ namespace Samples.Robust
         /// </remarks>
         /// <param name="r">A differentiation variable.</param>
         /// <param name="delta">Passed to the method unchanged; held constant.</param>
-        /// <param name="gradient">Receives ∂f/∂v for v = r, in that order; needs at least 1 elements.</param>
+        /// <param name="gradient">Receives ∂f/∂v for v = r, in that order; needs at least 1 element.</param>
         /// <returns>The value of the method at these arguments, bit-for-bit.</returns>
         /// <exception cref="global::System.ArgumentException">A span is shorter than stated.</exception>
         [global::System.CodeDom.Compiler.GeneratedCode("DerivGen", "0.1.0")]
@@ -68,7 +68,7 @@ namespace Samples.Robust
         /// </remarks>
         /// <param name="r">A differentiation variable.</param>
         /// <param name="delta">Passed to the method unchanged; held constant.</param>
-        /// <param name="gradient">Receives ∂f/∂v for v = r, in that order; needs at least 1 elements.</param>
+        /// <param name="gradient">Receives ∂f/∂v for v = r, in that order; needs at least 1 element.</param>
         /// <param name="hessian">Receives the 1×1 Hessian, row-major (exactly symmetric); needs at least 1 elements.</param>
         /// <returns>The value of the method at these arguments, bit-for-bit.</returns>
         /// <exception cref="global::System.ArgumentException">A span is shorter than stated.</exception>

@@ -133,6 +133,47 @@ public sealed class IncrementalCacheTests
         Assert.Equal(1, lowerReasons.Count(r => r == IncrementalStepRunReason.Modified || r == IncrementalStepRunReason.New));
     }
 
+    [Fact]
+    public void EditingAHelperInAnotherFileRegeneratesTheHelperOnly()
+    {
+        const string caller = """
+            using DerivGen;
+
+            namespace Cache;
+
+            public static partial class Loss
+            {
+                [Differentiate]
+                public static double Total(double x) => Kernels.Bump(x) + x;
+            }
+            """;
+        const string helper = """
+            using System;
+
+            namespace Cache;
+
+            public static partial class Kernels
+            {
+                public static double Bump(double v) => Math.Exp(-v * v);
+            }
+            """;
+        var (driver, compilation) = RunOnce(caller, helper);
+        GeneratorRunResult before = driver.GetRunResult().Results.Single();
+        SyntaxTree old = compilation.SyntaxTrees.Single(t => t.FilePath == "Source1.cs");
+        var edited = compilation.ReplaceSyntaxTree(old, Parse(helper.Replace("-v * v", "-2.0 * v * v", StringComparison.Ordinal), "Source1.cs"));
+        GeneratorRunResult after = driver.RunGenerators(edited).GetRunResult().Results.Single();
+
+        // The caller's file did not change, so it is not re-lowered; the helper's derivatives follow its new body.
+        Assert.All(OutputReasons(after, DerivativeGenerator.LowerStep), r => Assert.Contains(r, CachedOrUnchanged));
+        string bumpBefore = before.GeneratedSources.Single(s => s.HintName == "Cache.Kernels.Bump.g.cs").SourceText.ToString();
+        string bumpAfter = after.GeneratedSources.Single(s => s.HintName == "Cache.Kernels.Bump.g.cs").SourceText.ToString();
+        Assert.DoesNotContain("2.0 * v", bumpBefore, StringComparison.Ordinal);
+        Assert.Contains("2.0 * v", bumpAfter, StringComparison.Ordinal);
+        Assert.Equal(
+            before.GeneratedSources.Single(s => s.HintName == "Cache.Loss.Total.g.cs").SourceText.ToString(),
+            after.GeneratedSources.Single(s => s.HintName == "Cache.Loss.Total.g.cs").SourceText.ToString());
+    }
+
     private static (GeneratorDriver Driver, Compilation Compilation) RunOnce(params string[] sources)
     {
         // GeneratorHarness.Run first checks the sources generate cleanly; then a tracking driver is run for real.

@@ -228,8 +228,11 @@ public sealed class MethodSpecTests
 
     // Collections are walked through their elements; ImmutableArray (which throws when enumerated while default) is
     // walked through its one field, the underlying array.
+    /// <summary>The elements of a collection, or the fields of one of the generator's own records (a lowering result).</summary>
     private static IEnumerable<object?> Children(object value) =>
-        value is IEnumerable e and not string && !IsImmutableArray(value.GetType()) ? e.Cast<object?>() : Array.Empty<object?>();
+        value is IEnumerable e and not string && !IsImmutableArray(value.GetType()) ? e.Cast<object?>()
+        : value.GetType().Namespace?.StartsWith("DerivGen", StringComparison.Ordinal) == true ? AllFields(value.GetType()).Select(f => f.GetValue(value))
+        : Array.Empty<object?>();
 
     private static bool IsImmutableArray(Type t) => t.IsGenericType && t.GetGenericTypeDefinition() == typeof(ImmutableArray<>);
 
