@@ -83,8 +83,11 @@ public sealed class DerivativeGenerator : IIncrementalGenerator
     {
         try
         {
-            DerivativeProgram program = DerivativeProgram.Create(spec, cancellationToken);
-            return new GeneratedFile(spec.HintName, DerivativeEmitter.Emit(spec, program));
+            // With vector variables the Hessian is assembled from a pair method (see PairHessian); otherwise it is one program.
+            bool pairwise = spec.EmitHessian && spec.Parameters.Any(p => p.IsVector);
+            DerivativeProgram program = DerivativeProgram.Create(pairwise ? spec with { EmitHessian = false } : spec, cancellationToken);
+            PairHessian? pairs = pairwise ? PairHessian.Create(spec, cancellationToken) : null;
+            return new GeneratedFile(spec.HintName, DerivativeEmitter.Emit(spec, program, pairs));
         }
         catch (OperationCanceledException)
         {

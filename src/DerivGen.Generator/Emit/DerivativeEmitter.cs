@@ -24,7 +24,7 @@ internal static class DerivativeEmitter
     /// <summary>Hessians with more entries in their lower triangle than this are not listed in comments.</summary>
     private const int MaxListedHessianEntries = 10;
 
-    public static string Emit(MethodSpec spec, DerivativeProgram program)
+    public static string Emit(MethodSpec spec, DerivativeProgram program, PairHessian? pairs = null)
     {
         var context = new EmitContext(spec, program);
         var writer = new IndentedWriter();
@@ -48,6 +48,13 @@ internal static class DerivativeEmitter
         {
             writer.Line();
             WriteMethod(writer, context, withHessian: true);
+        }
+        else if (pairs is not null)
+        {
+            writer.Line();
+            WritePairedHessian(writer, context, pairs);
+            writer.Line();
+            WriteMethod(writer, new EmitContext(pairs.Spec, pairs.Program), withHessian: true);
         }
 
         for (int i = scopes.Count - 1; i >= 0; i--)
@@ -138,11 +145,120 @@ internal static class DerivativeEmitter
         }
     }
 
+    /// <summary>
+    /// MHessian of a method with vector variables: the gradient from MGradient, then the Hessian entry by entry from the
+    /// pair method (see <see cref="PairHessian"/>), each entry below the diagonal mirrored above it.
+    /// </summary>
+    private static void WritePairedHessian(IndentedWriter writer, EmitContext context, PairHessian pairs)
+    {
+        MethodSpec spec = context.Spec;
+        string type = ExpressionWriter.TypeKeyword(spec.ReturnType);
+        string variableList = string.Join(", ", spec.Parameters.Where(p => p.IsVariable).Select(p => Identifiers.Unescape(p.Name) + (p.IsVector ? "[…]" : string.Empty)));
+        var names = new TemporaryNames(spec.Parameters.Select(p => p.Name).Concat(new[] { context.GradientName, context.HessianName }));
+        string n = names.Claim("n"), value = names.Claim("value"), pairGradient = names.Claim("pairGradient"), pairHessian = names.Claim("pairHessian");
+        string row = names.Claim("row"), column = names.Claim("column"), i = names.Claim("i"), j = names.Claim("j");
+        int m = pairs.ScalarCount, c = m + 2;
+        string along = Count(m * c + m + 1); // ∂²/∂tRow∂tColumn in the pair method's Hessian
+        var vectors = spec.Parameters.Where(p => p.IsVector).ToList();
+        string arguments = string.Join(", ", spec.Parameters.Select(p => p.Name));
+        string Pair(string r, string col) => context.BareName + PairHessian.Suffix + Lowering.MethodParser.HessianSuffix + "(" + arguments + ", " + r + ", " + col
+            + ", 0, 0, " + pairGradient + ", " + pairHessian + ");";
+
+        writer.Line("/// <summary>");
+        writer.Line("/// Computes <see cref=\"" + Xml(spec.Cref) + "\"/> and its gradient and Hessian with respect to (" + Xml(variableList) + ").");
+        writer.Line("/// </summary>");
+        writer.Line("/// <remarks>");
+        writer.Line("/// The gradient comes from <see cref=\"" + Xml(context.BareName + Lowering.MethodParser.GradientSuffix) + "\"/>. The Hessian entries that involve a vector");
+        writer.Line("/// element come one pair of slots at a time from the pair method, which differentiates the method along the two");
+        writer.Line("/// slots: n_v(n_v + 1)/2 passes over the method for n_v vector elements.");
+        writer.Line("/// </remarks>");
+        foreach (ParameterSpec parameter in spec.Parameters)
+        {
+            writer.Line("/// <param name=\"" + Xml(Identifiers.Unescape(parameter.Name)) + "\">"
+                + (parameter.IsVariable ? "A differentiation variable." : "Passed to the method unchanged; held constant.") + "</param>");
+        }
+
+        writer.Line("/// <param name=\"" + context.GradientName + "\">Receives ∂f/∂v for v = " + Xml(variableList) + ", in that order; needs at least "
+            + Xml(context.GradientLength) + " elements.</param>");
+        writer.Line("/// <param name=\"" + context.HessianName + "\">Receives the Hessian, row-major (exactly symmetric); needs at least ("
+            + Xml(context.GradientLength) + ")² elements.</param>");
+        writer.Line("/// <returns>The value of the method at these arguments, bit-for-bit.</returns>");
+        writer.Line("/// <exception cref=\"global::System.ArgumentException\">A span is shorter than stated.</exception>");
+        writer.Line("[global::System.CodeDom.Compiler.GeneratedCode(\"" + ToolName + "\", \"" + ToolVersion + "\")]");
+        var parameters = spec.Parameters.Select(p => p.Modifiers + p.TypeName + " " + p.Name).ToList();
+        parameters.Add("global::System.Span<" + type + "> " + context.GradientName);
+        parameters.Add("global::System.Span<" + type + "> " + context.HessianName);
+        string modifiers = spec.Accessibility + (spec.IsStatic ? " static " : " ");
+        using (writer.Block(modifiers + type + " " + context.BareName + Lowering.MethodParser.HessianSuffix + "(" + string.Join(", ", parameters) + ")"))
+        {
+            writer.Line("int " + n + " = " + context.GradientLength + ";");
+            WriteLengthCheck(writer, context.GradientName, n, "one per variable: " + variableList);
+            WriteLengthCheck(writer, context.HessianName, n + " * " + n, "n × n, row-major");
+            writer.Line(type + " " + value + " = " + context.BareName + Lowering.MethodParser.GradientSuffix + "(" + arguments + ", " + context.GradientName + ");");
+            writer.Line("global::System.Span<" + type + "> " + pairGradient + " = stackalloc " + type + "[" + Count(c) + "];");
+            writer.Line("global::System.Span<" + type + "> " + pairHessian + " = stackalloc " + type + "[" + Count(c * c) + "];");
+            if (m > 0)
+            {
+                writer.Line();
+                writer.Line("// The scalar variables among themselves (no vector slot shifted).");
+                writer.Line(Pair("-1", "-1"));
+                for (int a = 0; a < m; a++)
+                {
+                    for (int b = 0; b <= a; b++)
+                    {
+                        string entry = pairHessian + "[" + Count((a * c) + b) + "]";
+                        writer.Line(a == b
+                            ? context.HessianName + "[" + Slot(context.ScalarOffset[a], n, context.ScalarOffset[a]) + "] = " + entry + ";"
+                            : context.HessianName + "[" + Slot(context.ScalarOffset[a], n, context.ScalarOffset[b]) + "] = " + context.HessianName + "["
+                                + Slot(context.ScalarOffset[b], n, context.ScalarOffset[a]) + "] = " + entry + ";");
+                    }
+                }
+            }
+
+            for (int v = 0; v < vectors.Count; v++)
+            {
+                writer.Line();
+                using (writer.Block("for (int " + i + " = 0; " + i + " < " + vectors[v].Name + ".Length; " + i + "++)"))
+                {
+                    writer.Line("int " + row + " = " + Sum(context.VectorOffset[v], i) + ";");
+                    writer.Line(Pair(row, row));
+                    writer.Line(context.HessianName + "[" + row + " * " + n + " + " + row + "] = " + pairHessian + "[" + along + "];");
+                    for (int a = 0; a < m; a++)
+                    {
+                        writer.Line(context.HessianName + "[" + row + " * " + n + " + " + Parenthesized(context.ScalarOffset[a]) + "] = " + context.HessianName + "["
+                            + Slot(context.ScalarOffset[a], n, row) + "] = " + pairHessian + "[" + Count((m * c) + a) + "];");
+                    }
+
+                    for (int u = v; u < vectors.Count; u++)
+                    {
+                        using (writer.Block("for (int " + j + " = " + (u == v ? i + " + 1" : "0") + "; " + j + " < " + vectors[u].Name + ".Length; " + j + "++)"))
+                        {
+                            writer.Line("int " + column + " = " + Sum(context.VectorOffset[u], j) + ";");
+                            writer.Line(Pair(row, column));
+                            writer.Line(context.HessianName + "[" + row + " * " + n + " + " + column + "] = " + context.HessianName + "[" + column + " * " + n + " + " + row + "] = "
+                                + pairHessian + "[" + along + "];");
+                        }
+                    }
+                }
+            }
+
+            writer.Line();
+            writer.Line("return " + value + ";");
+        }
+    }
+
+    private static string Sum(string offset, string index) => offset == "0" ? index : offset + " + " + index;
+
+    private static string Parenthesized(string expression) => expression.Contains(" ") ? "(" + expression + ")" : expression;
+
+    private static string Slot(string rowOffset, string n, string columnOffset) =>
+        (rowOffset == "0" ? string.Empty : Parenthesized(rowOffset) + " * " + n + " + ") + Parenthesized(columnOffset);
+
     private static void WriteLengthCheck(IndentedWriter writer, string name, string length, string what)
     {
         using (writer.Block("if (" + name + ".Length < " + length + ")"))
         {
-            string count = length.Contains("Length") ? "\" + (" + length + ") + \"" : length;
+            string count = length.Any(char.IsLetter) ? "\" + (" + length + ") + \"" : length;
             writer.Line("throw new global::System.ArgumentException(\"The span must hold at least " + count + (length == "1" ? " element (" : " elements (") + what.Replace("\"", "'")
                 + ").\", nameof(" + name + "));");
         }
@@ -468,12 +584,12 @@ internal static class DerivativeEmitter
                 {
                     if (declared.Add(d.VectorNames[v]))
                     {
-                        writer.Line(SpanDeclaration(d.VectorNames[v], Length(v)));
+                        writer.Line(SpanDeclaration(d.VectorNames[v], Length(v), context.Spec.ReturnType));
                     }
 
                     if (!UpdatesInPlace(loop, d, v) && declared.Add(d.VectorNames[v] + "Next"))
                     {
-                        writer.Line(SpanDeclaration(d.VectorNames[v] + "Next", Length(v)));
+                        writer.Line(SpanDeclaration(d.VectorNames[v] + "Next", Length(v), context.Spec.ReturnType));
                     }
                 }
             }
@@ -593,8 +709,12 @@ internal static class DerivativeEmitter
     private static IEnumerable<Node> TermNodes(IEnumerable<VectorTerm> terms) =>
         terms.SelectMany(t => t.Index is null ? new[] { t.Coefficient } : new[] { t.Coefficient, t.Index });
 
-    private static string SpanDeclaration(string name, string length) =>
-        "global::System.Span<double> " + name + " = " + length + " <= " + Count(StackLimit) + " ? stackalloc double[" + length + "] : new double[" + length + "];";
+    private static string SpanDeclaration(string name, string length, ScalarType type)
+    {
+        string element = ExpressionWriter.TypeKeyword(type);
+        return "global::System.Span<" + element + "> " + name + " = " + length + " <= " + Count(StackLimit) + " ? stackalloc " + element + "[" + length + "] : new "
+            + element + "[" + length + "];";
+    }
 
     /// <summary>Spans of running derivatives up to this many elements are allocated on the stack, longer ones on the heap.</summary>
     internal const int StackLimit = 512;
@@ -771,28 +891,7 @@ internal static class DerivativeEmitter
             HessianName = names.Claim("hessian");
 
             // Where each variable's derivatives go in the gradient span: declaration order, a vector taking v.Length slots.
-            int constant = 0;
-            var lengths = new List<string>();
-            string Offset() => string.Join(" + ", lengths.Concat(constant > 0 || lengths.Count == 0 ? new[] { Count(constant) } : Array.Empty<string>()));
-            var scalarOffsets = new List<string>();
-            var vectorOffsets = new List<string>();
-            foreach (ParameterSpec parameter in spec.Parameters.Where(p => p.IsVariable))
-            {
-                if (parameter.IsVector)
-                {
-                    vectorOffsets.Add(Offset());
-                    lengths.Add(parameter.Name + ".Length");
-                }
-                else
-                {
-                    scalarOffsets.Add(Offset());
-                    constant++;
-                }
-            }
-
-            ScalarOffset = scalarOffsets.ToArray();
-            VectorOffset = vectorOffsets.ToArray();
-            GradientLength = Offset();
+            (ScalarOffset, VectorOffset, GradientLength) = PairHessian.SlotOffsets(spec);
         }
 
         /// <summary>The index in the gradient span of each scalar variable (C# text; a run-time sum after a vector).</summary>

@@ -178,7 +178,8 @@ internal static class MethodParser
                 "The out parameter '" + parameter.Name + "'", "a differentiated method returns its one value"));
         }
 
-        CheckGeneratedNames(method, emitHessian, nameLocation, diagnostics);
+        CheckGeneratedNames(method, emitHessian, emitHessian && method.Parameters.Any(p => variables.Contains(p.Name) && IsFloatingPointVector(p.Type)),
+            nameLocation, diagnostics);
 
         EquatableArray<IrStatement> body = EquatableArray<IrStatement>.Empty;
         if (syntax.Body is null && syntax.ExpressionBody is null)
@@ -250,13 +251,11 @@ internal static class MethodParser
             }
             else if (IsFloatingPointVector(parameter.Type))
             {
-                if (emitHessian || ElementType(parameter.Type).SpecialType != SpecialType.System_Double || method.ReturnType.SpecialType != SpecialType.System_Double)
+                if (ElementType(parameter.Type).SpecialType != method.ReturnType.SpecialType)
                 {
                     diagnostics.Add(DiagnosticInfo.Create(DiagnosticDescriptors.UnsupportedConstruct, location,
-                        "The vector variable '" + parameter.Name + "'" + (emitHessian ? " with a Hessian" : " of float"),
-                        emitHessian
-                            ? "Hessians with respect to vector variables are not generated yet; add Hessian = false to [Differentiate]"
-                            : "vector variables are supported for double methods with double elements"));
+                        "The vector variable '" + parameter.Name + "' of " + ElementType(parameter.Type).ToDisplayString(),
+                        "a vector variable's elements must have the method's return type (double elements for a double method, float for float)"));
                 }
                 else if (!variables.Add(name))
                 {
@@ -318,13 +317,18 @@ internal static class MethodParser
         }
     }
 
-    private static void CheckGeneratedNames(IMethodSymbol method, bool emitHessian, Location location, List<DiagnosticInfo> diagnostics)
+    private static void CheckGeneratedNames(IMethodSymbol method, bool emitHessian, bool pairwise, Location location, List<DiagnosticInfo> diagnostics)
     {
         INamedTypeSymbol type = method.ContainingType;
         var generated = new List<string> { method.Name + GradientSuffix };
         if (emitHessian)
         {
             generated.Add(method.Name + HessianSuffix);
+        }
+
+        if (pairwise)
+        {
+            generated.Add(method.Name + Differentiation.PairHessian.Suffix + HessianSuffix);
         }
 
         foreach (string name in generated)

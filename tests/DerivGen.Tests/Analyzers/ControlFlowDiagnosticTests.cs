@@ -287,11 +287,11 @@ public sealed class ControlFlowDiagnosticTests
         """);
 
     [Fact]
-    public Task DG0001VectorVariable() => VerifyAsync(Usings + """
+    public Task DG0001VectorVariableWhoseElementsAreNotTheMethodsType() => VerifyAsync(Usings + """
         public static partial class C
         {
             [Differentiate(nameof(x), {|DG0001:nameof(v)|})]
-            public static double F(double x, double[] v)
+            public static double F(double x, float[] v)
             {
                 double s = x;
                 for (int i = 0; i < v.Length; i++)
