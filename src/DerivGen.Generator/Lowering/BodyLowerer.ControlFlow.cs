@@ -193,7 +193,7 @@ internal sealed partial class BodyLowerer
         : new IrLogical(LogicalOperator.Not, condition, null);
 
     private static IrExpression And(IrExpression? first, IrExpression second) =>
-        first is null ? second : new IrLogical(LogicalOperator.And, first, second);
+        first is null ? second : second.Equals(True) ? first : new IrLogical(LogicalOperator.And, first, second);
 
     private static IrConstant Zero(ScalarType type) => type switch
     {
@@ -257,7 +257,7 @@ internal sealed partial class BodyLowerer
             }
 
             IrWhile loop = statement as IrWhile ?? AsWhile((IrFor)statement, guard);
-            result.Add(loop with { Condition = new IrLogical(LogicalOperator.And, guard, loop.Condition) });
+            result.Add(loop with { Condition = And(guard, loop.Condition) });
         }
 
         Flush();

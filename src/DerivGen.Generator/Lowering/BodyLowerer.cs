@@ -285,13 +285,6 @@ internal sealed partial class BodyLowerer
             || loop.AtLoopBottom.Length != 1 || !IsIncrementByOne(loop.AtLoopBottom[0], declarator.Symbol)
             || AssignsLocal(loop.Body, declarator.Symbol))
         {
-            if (loop.Condition is null)
-            {
-                Unsupported(loop, "the for loop without a condition '" + Text(loop).Split('{')[0].Trim() + "'",
-                    "give the loop a condition that does not depend on a differentiation variable");
-                return;
-            }
-
             EquatableArray<IrStatement> init = LowerNested(loop.Before, isTopLevel: false);
             LowerConditionLoop(loop.Condition, loop.Body, loop.AtLoopBottom, init, isDoLoop: false);
             return;
@@ -353,16 +346,17 @@ internal sealed partial class BodyLowerer
             isDoLoop: !loop.ConditionIsTop);
     }
 
-    private void LowerConditionLoop(IOperation conditionOperation, IOperation bodyOperation, ImmutableArray<IOperation> step,
+    private void LowerConditionLoop(IOperation? conditionOperation, IOperation bodyOperation, ImmutableArray<IOperation> step,
         EquatableArray<IrStatement> init, bool isDoLoop)
     {
         LoweredLoop lowered = LowerLoop(bodyOperation, step, conditionOperation);
-        if (lowered.Condition is not { } condition)
+        IrExpression condition = conditionOperation is null ? True : lowered.Condition!;
+        if (conditionOperation is not null && lowered.Condition is null)
         {
             return;
         }
 
-        if (DependsOnVariable(condition))
+        if (conditionOperation is not null && DependsOnVariable(condition))
         {
             Unsupported(conditionOperation, $"the loop condition '{Text(conditionOperation)}'",
                 "the number of iterations would depend on a differentiation variable; loop over a count or over data instead");

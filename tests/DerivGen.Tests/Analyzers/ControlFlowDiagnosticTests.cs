@@ -264,29 +264,6 @@ public sealed class ControlFlowDiagnosticTests
         """);
 
     [Fact]
-    public Task DG0001ForLoopWithoutACondition() => VerifyAsync(Usings + """
-        public static partial class C
-        {
-            [Differentiate(nameof(x))]
-            public static double F(double x, double[] t)
-            {
-                double s = 0;
-                {|DG0001:for (int i = 0; ; i++)
-                {
-                    if (i >= t.Length)
-                    {
-                        break;
-                    }
-
-                    s += x * t[i];
-                }|}
-
-                return s;
-            }
-        }
-        """);
-
-    [Fact]
     public Task DG0001VectorVariableWhoseElementsAreNotTheMethodsType() => VerifyAsync(Usings + """
         public static partial class C
         {

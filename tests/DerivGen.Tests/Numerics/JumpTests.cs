@@ -142,7 +142,7 @@ public sealed class JumpFixture : CompiledFixture
                 return p;
             }
 
-            // A stride of two, then while (true) left by a break.
+            // A stride of two, then while (true) and for (;;) left by a break.
             [Differentiate(nameof(a))]
             public static double EveryOther(double a)
             {
@@ -162,6 +162,16 @@ public sealed class JumpFixture : CompiledFixture
 
                     s += Math.Exp(a * Y[k]);
                     k++;
+                }
+
+                for (int m = 0; ; m++)
+                {
+                    if (m == 2)
+                    {
+                        break;
+                    }
+
+                    s += a * T[m];
                 }
 
                 return s;
@@ -345,9 +355,9 @@ public sealed class JumpTests : IClassFixture<JumpFixture>
     [InlineData(-0.8)]
     public void StrideAndWhileTrueWithBreak(double a)
     {
-        // a² Σ_{i even} t_i + Σ_{k<3} e^(a y_k).
+        // a² Σ_{i even} t_i + Σ_{k<3} e^(a y_k) + a (t_0 + t_1).
         double evenSum = Enumerable.Range(0, T.Length).Where(i => i % 2 == 0).Sum(i => T[i]);
-        double d1 = (2 * a * evenSum) + Y.Take(3).Sum(y => y * Math.Exp(a * y));
+        double d1 = (2 * a * evenSum) + Y.Take(3).Sum(y => y * Math.Exp(a * y)) + T[0] + T[1];
         double d2 = (2 * evenSum) + Y.Take(3).Sum(y => y * y * Math.Exp(a * y));
         Verify.At(Probe.Load(_fixture.Assembly, "Jumps", "EveryOther", 1), new[] { a }, new[] { d1 }, new[] { d2 }, "EveryOther");
     }
