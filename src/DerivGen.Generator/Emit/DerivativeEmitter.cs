@@ -886,7 +886,10 @@ internal static class DerivativeEmitter
             Spec = spec;
             Program = program;
             BareName = Identifiers.Unescape(spec.Name);
-            var names = new TemporaryNames(spec.Parameters.Select(p => p.Name));
+            // The span parameters must not take the name of a parameter or of a local of the body.
+            var taken = new HashSet<string>(spec.Parameters.Select(p => p.Name), StringComparer.Ordinal);
+            ProgramGraph.CollectLocalNames(spec.Body, taken);
+            var names = new TemporaryNames(taken);
             GradientName = names.Claim("gradient");
             HessianName = names.Claim("hessian");
 

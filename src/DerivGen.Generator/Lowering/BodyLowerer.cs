@@ -382,7 +382,10 @@ internal sealed partial class BodyLowerer
     private void LowerDeconstruction(IDeconstructionAssignmentOperation deconstruction)
     {
         IOperation target = deconstruction.Target is IDeclarationExpressionOperation declaration ? declaration.Expression : deconstruction.Target;
-        if (target is not ITupleOperation targets || deconstruction.Value is not ITupleOperation values
+        // A tuple literal with an element that is a bare name gets inferred element names, and Roslyn wraps it in a
+        // tuple conversion; the elements are still the literal's (each is converted to its local's type below).
+        IOperation tuple = deconstruction.Value is IConversionOperation { Operand: ITupleOperation literal } ? literal : deconstruction.Value;
+        if (target is not ITupleOperation targets || tuple is not ITupleOperation values
             || targets.Elements.Length != values.Elements.Length)
         {
             Unsupported(deconstruction, $"the deconstruction '{Text(deconstruction)}'", "deconstruct a tuple literal of values into locals: var (a, b) = (x * y, x + y);");
