@@ -109,7 +109,7 @@ unsupported="$scratch/Unsupported"
 write_project "$unsupported"
 cp "$here"/package-consumer-unsupported/*.cs "$unsupported/"
 echo
-echo "Building a project with a do loop in a [Differentiate] method: DG0001 is expected"
+echo "Building a project with a loop whose trip count depends on a variable: DG0001 is expected"
 set +e
 dotnet build "$unsupported" -c Release > "$scratch/unsupported.log" 2>&1
 unsupported_rc=$?

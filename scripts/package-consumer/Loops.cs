@@ -129,7 +129,7 @@ public static partial class Fits
     }
 
     // A polynomial fit with a vector of coefficients w (a vector variable): Σ_i (Σ_j w_j t_i^j − y_i)².
-    [Differentiate(nameof(w), Hessian = false)]
+    [Differentiate(nameof(w))]
     public static double Poly(double[] w, double[] t, double[] y)
     {
         double s = 0;
@@ -147,6 +147,70 @@ public static partial class Fits
         }
 
         return s;
+    }
+
+    // ∂²/∂w_j∂w_k = Σ_i 2 t_i^(j+k).
+    public static void PolyHessianExact(double[] w, double[] h)
+    {
+        int n = w.Length;
+        Array.Clear(h, 0, h.Length);
+        foreach (double t in T)
+        {
+            for (int j = 0; j < n; j++)
+            {
+                for (int k = 0; k < n; k++)
+                {
+                    h[j * n + k] += 2 * Math.Pow(t, j + k);
+                }
+            }
+        }
+    }
+
+    private static double Squared(double v) => v * v;
+
+    // Least squares of the line a + b t over the points before the first t ≥ stopAt, skipping points with y < 2
+    // (break and continue on data), through a helper that is not marked [Differentiate].
+    [Differentiate(nameof(a), nameof(b))]
+    public static double Trimmed(double a, double b, double[] t, double[] y, double stopAt)
+    {
+        double s = 0;
+        for (int i = 0; i < t.Length; i++)
+        {
+            if (t[i] >= stopAt)
+            {
+                break;
+            }
+
+            if (y[i] < 2)
+            {
+                continue;
+            }
+
+            s += Squared(a + b * t[i] - y[i]);
+        }
+
+        return s;
+    }
+
+    // Over the points kept: ∂/∂a = Σ 2r, ∂/∂b = Σ 2r t; Hessian [[2m, 2Σt], [2Σt, 2Σt²]].
+    public static void TrimmedExact(double a, double b, double stopAt, double[] g, double[] h)
+    {
+        Array.Clear(g, 0, g.Length);
+        Array.Clear(h, 0, h.Length);
+        for (int i = 0; i < T.Length && T[i] < stopAt; i++)
+        {
+            if (Y[i] >= 2)
+            {
+                double r = a + b * T[i] - Y[i];
+                g[0] += 2 * r;
+                g[1] += 2 * r * T[i];
+                h[0] += 2;
+                h[1] += 2 * T[i];
+                h[3] += 2 * T[i] * T[i];
+            }
+        }
+
+        h[2] = h[1];
     }
 
     // ∂/∂w_j = Σ_i 2 r_i t_i^j.

@@ -184,12 +184,21 @@ foreach (var p in new[] { new[] { 0.8, 1.3 }, new[] { 1.4, 0.6 } })
         (v, g) => Fits.DecayExact(v[0], v[1], 0.05, 200, g), null);
 }
 
-// A vector variable (gradient only): the polynomial's coefficients.
+// A vector variable: the polynomial's coefficients (gradient, and the Hessian assembled pair by pair).
 foreach (var p in new[] { new[] { 1.0, 0.5, 0.1 }, new[] { 0.8, 1.1, -0.05 } })
 {
     Check("Fits.Poly", p, v => Fits.Poly(v, Fits.T, Fits.Y),
-        (v, g) => Fits.PolyGradient(v, Fits.T, Fits.Y, g), null,
-        (v, g) => Fits.PolyExact(v, g), null);
+        (v, g) => Fits.PolyGradient(v, Fits.T, Fits.Y, g), (v, g, h) => Fits.PolyHessian(v, Fits.T, Fits.Y, g, h),
+        (v, g) => Fits.PolyExact(v, g), (v, h) => Fits.PolyHessianExact(v, h));
+}
+
+// break and continue on data, through an unmarked helper.
+foreach (double stopAt in new[] { 2.0, 10.0 })
+{
+    var p = new[] { 0.9, 1.2 };
+    Check($"Fits.Trimmed(stopAt {F(stopAt)})", p, v => Fits.Trimmed(v[0], v[1], Fits.T, Fits.Y, stopAt),
+        (v, g) => Fits.TrimmedGradient(v[0], v[1], Fits.T, Fits.Y, stopAt, g), (v, g, h) => Fits.TrimmedHessian(v[0], v[1], Fits.T, Fits.Y, stopAt, g, h),
+        (v, g) => Fits.TrimmedExact(v[0], v[1], stopAt, g, new double[4]), (v, h) => Fits.TrimmedExact(v[0], v[1], stopAt, new double[2], h));
 }
 
 foreach (var p in new[] { new[] { 0.3, -1.2, 2.0 }, new[] { -4.0, 0.5, 0.25 } })

@@ -227,19 +227,45 @@ internal sealed class ProgramGraph
             if (a.Kind == NodeKind.Constant)
             {
                 // c ? true : b = c || b;  c ? false : b = !c && b.
-                return a.Value != 0 ? _builder.Raw(NodeKind.Or, ScalarType.Boolean, condition, b)
-                    : _builder.Raw(NodeKind.And, ScalarType.Boolean, _builder.Raw(NodeKind.Not, ScalarType.Boolean, condition), b);
+                return a.Value != 0 ? Logic(NodeKind.Or, condition, b) : Logic(NodeKind.And, Logic(NodeKind.Not, condition, null), b);
             }
 
             if (b.Kind == NodeKind.Constant)
             {
                 // c ? a : false = c && a;  c ? a : true = !c || a.
-                return b.Value == 0 ? _builder.Raw(NodeKind.And, ScalarType.Boolean, condition, a)
-                    : _builder.Raw(NodeKind.Or, ScalarType.Boolean, _builder.Raw(NodeKind.Not, ScalarType.Boolean, condition), a);
+                return b.Value == 0 ? Logic(NodeKind.And, condition, a) : Logic(NodeKind.Or, Logic(NodeKind.Not, condition, null), a);
             }
         }
 
         return _builder.Raw(NodeKind.Select, a.Type, condition, a, b);
+    }
+
+    /// <summary>
+    /// <c>!a</c>, <c>a &amp;&amp; b</c>, <c>a || b</c> with constant operands folded (the flags of jumps start as constants).
+    /// Folding only ever drops an operand the user's code would not need, so nothing is evaluated that was not.
+    /// </summary>
+    private Node Logic(NodeKind kind, Node a, Node? b)
+    {
+        static bool IsConstant(Node node, bool value) => node.Kind == NodeKind.Constant && (node.Value != 0) == value;
+        switch (kind)
+        {
+            case NodeKind.Not when a.Kind == NodeKind.Constant:
+                return _builder.Constant(a.Value != 0 ? 0 : 1, ScalarType.Boolean);
+            case NodeKind.Not when a.Kind == NodeKind.Not:
+                return a.Arguments[0];
+            case NodeKind.Not:
+                return _builder.Raw(NodeKind.Not, ScalarType.Boolean, a);
+            case NodeKind.And when IsConstant(a, false) || IsConstant(b!, true):
+                return a;
+            case NodeKind.And when IsConstant(a, true):
+                return b!;
+            case NodeKind.Or when IsConstant(a, true) || IsConstant(b!, false):
+                return a;
+            case NodeKind.Or when IsConstant(a, false):
+                return b!;
+            default:
+                return _builder.Raw(kind, ScalarType.Boolean, a, b!);
+        }
     }
 
     private void RunLoop(string? index, IrExpression? start, IrExpression? end, bool inclusive, IrExpression? condition,
@@ -341,10 +367,9 @@ internal sealed class ProgramGraph
             case IrCompare compare:
                 return b.RawCompare(ComparisonOf(compare.Operator), Build(compare.Left, locals), Build(compare.Right, locals));
             case IrLogical { Operator: LogicalOperator.Not } not:
-                return b.Raw(NodeKind.Not, ScalarType.Boolean, Build(not.Left, locals));
+                return Logic(NodeKind.Not, Build(not.Left, locals), null);
             case IrLogical logical:
-                return b.Raw(logical.Operator == LogicalOperator.And ? NodeKind.And : NodeKind.Or, ScalarType.Boolean,
-                    Build(logical.Left, locals), Build(logical.Right!, locals));
+                return Logic(logical.Operator == LogicalOperator.And ? NodeKind.And : NodeKind.Or, Build(logical.Left, locals), Build(logical.Right!, locals));
             case IrConditional conditional:
                 return b.Raw(NodeKind.Select, conditional.Type, Build(conditional.Condition, locals),
                     Build(conditional.WhenTrue, locals), Build(conditional.WhenFalse, locals));

@@ -414,8 +414,12 @@ internal static class DerivativeEmitter
             }
         }
 
+        // A call whose buffers are read cannot be written inline; where the user's code calls it only under a condition
+        // that guards a throwing operation (a data read in its arguments), it is called under that condition
+        // (guard ? Call(…) : 0) and its buffers are read only by derivatives selected by the same condition.
+        Dictionary<Node, Node> callGuards = CallGuards(valueRoots, gradientBuffer.Keys.Where(Guarded).ToList(), program.Builder);
         List<Node> temporaries = reachable
-            .Where(node => snapshots.Contains(node) || (!node.IsLeaf && !Guarded(node)
+            .Where(node => snapshots.Contains(node) || (!node.IsLeaf && (!Guarded(node) || callGuards.ContainsKey(node))
                 && (node == program.Value || node.LocalName is not null || uses[node] >= 2 || hoisted.Contains(node) || gradientBuffer.ContainsKey(node))))
             .OrderBy(node => node.Id)
             .ToList();
@@ -477,6 +481,7 @@ internal static class DerivativeEmitter
         var code = new ExpressionWriter(NameOf, formula: false, calleeDerivative: CalleeDerivative);
         var declared = new HashSet<string>(StringComparer.Ordinal);
 
+        var written = new HashSet<Node>();
         void WriteTemporaries(int stage)
         {
             foreach (Node node in temporaries.Where(t => t.Stage == stage))
@@ -490,9 +495,17 @@ internal static class DerivativeEmitter
                     string suffix = second ? Lowering.MethodParser.HessianSuffix : Lowering.MethodParser.GradientSuffix;
                     var arguments = node.Arguments.Select(code.Write).Concat(second ? new[] { buffer, hessian! } : new[] { buffer });
                     definition = node.Text + suffix + "(" + string.Join(", ", arguments) + ")";
+                    if (callGuards.TryGetValue(node, out Node? guard))
+                    {
+                        // The condition is written out in full (with && and || short-circuiting as in the user's code),
+                        // reading only temporaries already computed.
+                        string condition = new ExpressionWriter(x => written.Contains(x) ? NameOf(x) : null, formula: false).Write(guard);
+                        definition = condition + " ? " + definition + " : " + Literals.CSharp(0, node.Type);
+                    }
                 }
 
                 writer.Line(ExpressionWriter.TypeKeyword(node.Type) + " " + nameOf[node] + " = " + definition + ";");
+                written.Add(node);
             }
         }
 
@@ -724,6 +737,78 @@ internal static class DerivativeEmitter
         Graph.Reachable(roots).Where(n => n.Kind == NodeKind.Parameter && n.Stage > 0).Select(n => n.Text!);
 
     /// <summary>The nodes the user's code evaluates whatever the conditions (not only inside one side of a branch).</summary>
+    /// <summary>
+    /// For each of <paramref name="calls"/>: the condition under which the user's code evaluates it, from the selections,
+    /// <c>&amp;&amp;</c> and <c>||</c> on the paths from <paramref name="roots"/> to it (the disjunction over paths).
+    /// </summary>
+    private static Dictionary<Node, Node> CallGuards(IEnumerable<Node> roots, List<Node> calls, ExpressionBuilder builder)
+    {
+        var guards = new Dictionary<Node, Node>();
+        if (calls.Count == 0)
+        {
+            return guards;
+        }
+
+        var targets = new HashSet<Node>(calls);
+        var leadsToTarget = new Dictionary<Node, bool>();
+        bool LeadsToTarget(Node node)
+        {
+            if (!leadsToTarget.TryGetValue(node, out bool known))
+            {
+                known = targets.Contains(node) || node.Arguments.Any(LeadsToTarget);
+                leadsToTarget[node] = known;
+            }
+
+            return known;
+        }
+
+        Node And(Node? guard, Node condition) => guard is null ? condition : builder.Raw(NodeKind.And, ScalarType.Boolean, guard, condition);
+        Node Not(Node condition) => builder.Raw(NodeKind.Not, ScalarType.Boolean, condition);
+        var seen = new HashSet<(Node, Node?)>();
+        var stack = new Stack<(Node Node, Node? Guard)>(roots.Select(r => (r, (Node?)null)));
+        while (stack.Count > 0)
+        {
+            (Node node, Node? guard) = stack.Pop();
+            if (!LeadsToTarget(node) || !seen.Add((node, guard)))
+            {
+                continue;
+            }
+
+            if (targets.Contains(node))
+            {
+                guards[node] = guards.TryGetValue(node, out Node? other)
+                    ? builder.Raw(NodeKind.Or, ScalarType.Boolean, other, guard ?? builder.Constant(1, ScalarType.Boolean))
+                    : guard ?? builder.Constant(1, ScalarType.Boolean);
+            }
+
+            switch (node.Kind)
+            {
+                case NodeKind.Select:
+                    stack.Push((node.Arguments[0], guard));
+                    stack.Push((node.Arguments[1], And(guard, node.Arguments[0])));
+                    stack.Push((node.Arguments[2], And(guard, Not(node.Arguments[0]))));
+                    break;
+                case NodeKind.And:
+                    stack.Push((node.Arguments[0], guard));
+                    stack.Push((node.Arguments[1], And(guard, node.Arguments[0])));
+                    break;
+                case NodeKind.Or:
+                    stack.Push((node.Arguments[0], guard));
+                    stack.Push((node.Arguments[1], And(guard, Not(node.Arguments[0]))));
+                    break;
+                default:
+                    foreach (Node argument in node.Arguments)
+                    {
+                        stack.Push((argument, guard));
+                    }
+
+                    break;
+            }
+        }
+
+        return guards;
+    }
+
     private static HashSet<Node> EvaluatedUnconditionally(IEnumerable<Node> roots)
     {
         var always = new HashSet<Node>();

@@ -36,6 +36,30 @@ public sealed class HelperCallFixture : CompiledFixture
             [Differentiate(nameof(x), Hessian = false)]
             public static double Other(double x) => Square(x) * Kernels.NormalDensity(x, 1.0, 2.0);
 
+            // A call after a continue and a break on data: the call's arguments read data the user's code reads only
+            // where it did not jump, so the generated code calls it only there too.
+            [Differentiate(nameof(a), nameof(b))]
+            public static double Trimmed(double a, double b, double stopAt)
+            {
+                double s = 0;
+                for (int i = 0; i < T.Length; i++)
+                {
+                    if (T[i] >= stopAt)
+                    {
+                        break;
+                    }
+
+                    if (Y[i] < 2)
+                    {
+                        continue;
+                    }
+
+                    s += Square(a * T[i] + b - Y[i]);
+                }
+
+                return s;
+            }
+
             // A helper that calls a helper, with an int parameter and a loop.
             [Differentiate]
             public static double Chain(double x) => Kernels.Power(Math.Sin(x), 3) + Kernels.Cube(x);
@@ -84,7 +108,7 @@ public sealed class HelperCallTests : IClassFixture<HelperCallFixture>
     public void EachHelperGetsOneFileWhateverTheNumberOfCallers()
     {
         Assert.Equal(
-            new[] { "Fit.Chain.g.cs", "Fit.Loss.g.cs", "Fit.Other.g.cs", "Fit.Square.g.cs", "Kernels.Cube.g.cs", "Kernels.NormalDensity.g.cs", "Kernels.Power.g.cs" },
+            new[] { "Fit.Chain.g.cs", "Fit.Loss.g.cs", "Fit.Other.g.cs", "Fit.Square.g.cs", "Fit.Trimmed.g.cs", "Kernels.Cube.g.cs", "Kernels.NormalDensity.g.cs", "Kernels.Power.g.cs" },
             _fixture.Run.HintNames);
 
         // Loss needs the helpers' Hessians, Other only their gradients: the one file has both.
@@ -122,6 +146,22 @@ public sealed class HelperCallTests : IClassFixture<HelperCallFixture>
     }
 
     [Theory]
+    [InlineData(1.9, 0.4, 2.5)]
+    [InlineData(2.2, 0.8, 10.0)]
+    public void HelperCalledOnlyWhereTheLoopDidNotJump(double a, double b, double stopAt)
+    {
+        // Σ over the points before the first t ≥ stopAt with y ≥ 2 of (a t + b − y)².
+        int[] kept = Enumerable.Range(0, T.Length).TakeWhile(i => T[i] < stopAt).Where(i => Y[i] >= 2).ToArray();
+        double ga = kept.Sum(i => 2 * (a * T[i] + b - Y[i]) * T[i]), gb = kept.Sum(i => 2 * (a * T[i] + b - Y[i]));
+        double haa = kept.Sum(i => 2 * T[i] * T[i]), hab = kept.Sum(i => 2 * T[i]), hbb = 2.0 * kept.Length;
+        var f = _fixture.Assembly.Method<F3>("Fit", "Trimmed");
+        var g = _fixture.Assembly.Method<G3>("Fit", "TrimmedGradient");
+        var h = _fixture.Assembly.Method<H3>("Fit", "TrimmedHessian");
+        Probe probe = Probe.Of((F2)((p, q) => f(p, q, stopAt)), (G2)((p, q, gr) => g(p, q, stopAt, gr)), (H2)((p, q, gr, he) => h(p, q, stopAt, gr, he)));
+        Verify.At(probe, new[] { a, b }, new[] { ga, gb }, new[] { haa, hab, hab, hbb }, $"Trimmed(stopAt {stopAt})");
+    }
+
+    [Theory]
     [InlineData(0.7)]
     [InlineData(-2.1)]
     public void HelperCallingAHelper(double x)
@@ -132,4 +172,10 @@ public sealed class HelperCallTests : IClassFixture<HelperCallFixture>
         double d2 = (6 * s * c * c) - (3 * s * s * s) + (6 * x);
         Verify.At(Probe.Load(_fixture.Assembly, "Fit", "Chain", 1), new[] { x }, new[] { d1 }, new[] { d2 }, "Chain");
     }
+
+    private delegate double F3(double a, double b, double c);
+
+    private delegate double G3(double a, double b, double c, Span<double> gradient);
+
+    private delegate double H3(double a, double b, double c, Span<double> gradient, Span<double> hessian);
 }
