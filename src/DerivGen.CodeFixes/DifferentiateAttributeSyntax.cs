@@ -26,10 +26,12 @@ internal static class DifferentiateAttributeSyntax
     public static ExpressionSyntax NameOf(string name, ExpressionSyntax replaced) =>
         SyntaxFactory.InvocationExpression(
                 SyntaxFactory.IdentifierName(SyntaxFactory.Identifier(SyntaxFactory.TriviaList(), SyntaxKind.NameOfKeyword, "nameof", "nameof", SyntaxFactory.TriviaList())),
-                SyntaxFactory.ArgumentList(SyntaxFactory.SingletonSeparatedList(SyntaxFactory.Argument(SyntaxFactory.IdentifierName(EscapedIdentifier(name))))))
+                SyntaxFactory.ArgumentList(SyntaxFactory.SingletonSeparatedList(SyntaxFactory.Argument(SyntaxFactory.IdentifierName(Identifier(name))))))
             .WithTriviaFrom(replaced);
 
-    /// <summary>The text of an identifier for a parameter name: <c>@</c> before a keyword (a parameter named <c>@in</c>).</summary>
-    public static string EscapedIdentifier(string name) =>
-        SyntaxFacts.GetKeywordKind(name) != SyntaxKind.None || SyntaxFacts.GetContextualKeywordKind(name) == SyntaxKind.NameOfKeyword ? "@" + name : name;
+    /// <summary>An identifier token for a parameter name, written <c>@name</c> when the name is a keyword (<c>@fixed</c>).</summary>
+    public static SyntaxToken Identifier(string name) =>
+        SyntaxFacts.GetKeywordKind(name) != SyntaxKind.None || SyntaxFacts.GetContextualKeywordKind(name) == SyntaxKind.NameOfKeyword
+            ? SyntaxFactory.Identifier(SyntaxFactory.TriviaList(), SyntaxKind.IdentifierToken, "@" + name, name, SyntaxFactory.TriviaList())
+            : SyntaxFactory.Identifier(name);
 }

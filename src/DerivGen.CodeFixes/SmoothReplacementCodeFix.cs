@@ -91,9 +91,19 @@ public sealed class SmoothReplacementCodeFix : CodeFixProvider
         bool single = target.ReturnType.SpecialType == SpecialType.System_Single;
         bool hasMathF = model.Compilation.GetTypeByMetadataName("System.MathF") is not null;
         string epsilon = single ? Epsilon + "f" : Epsilon;
-        string Sqrt(string argument) => single
-            ? hasMathF ? $"System.MathF.Sqrt({argument})" : $"(float)System.Math.Sqrt({argument})"
-            : $"System.Math.Sqrt({argument})";
+
+        // Sqrt on the class the user called (Math.Abs -> Math.Sqrt, MathF.Min -> MathF.Sqrt), written as they wrote it;
+        // for double.Abs / float.Max, or float without MathF, the qualified System.Math(F) (simplified when possible).
+        string sqrtHost = single ? (hasMathF ? "System.MathF" : "System.Math") : "System.Math";
+        if (invocation.Expression is MemberAccessExpressionSyntax { Expression: var receiver }
+            && target.ContainingType.ToDisplayString() == sqrtHost)
+        {
+            sqrtHost = receiver.WithoutTrivia().ToString();
+        }
+
+        string Sqrt(string argument) => single && !hasMathF
+            ? $"(float){sqrtHost}.Sqrt({argument})"
+            : $"{sqrtHost}.Sqrt({argument})";
 
         SeparatedSyntaxList<ArgumentSyntax> arguments = invocation.ArgumentList.Arguments;
         if (arguments.Any(a => a.NameColon is not null || !a.RefKindKeyword.IsKind(SyntaxKind.None)))
