@@ -3,7 +3,8 @@
 #
 #   usage: scripts/check-package.sh FEED_DIR      (FEED_DIR holds DerivGen.<version>.nupkg, e.g. from dotnet pack -o)
 #
-# 1. The package carries the runtime assembly for both targets and the generator/analyzer under analyzers/.
+# 1. The package carries the runtime assembly for both targets, the generator/analyzer and the code fixes under
+#    analyzers/dotnet/cs, the MSBuild check under build/, and the README.
 # 2. A fresh console project OUTSIDE the repository, whose only reference is the package from FEED_DIR, builds with
 #    warnings as errors and runs scripts/package-consumer/: functions written for this check alone, whose generated
 #    values must equal the originals bit for bit and whose gradients and Hessians must match hand-derived closed
@@ -35,7 +36,8 @@ if command -v unzip >/dev/null 2>&1; then
 else
     entries="$(python3 -c 'import sys, zipfile; print("\n".join(zipfile.ZipFile(sys.argv[1]).namelist()))' "$nupkg")"
 fi
-for required in lib/netstandard2.0/DerivGen.dll lib/net10.0/DerivGen.dll analyzers/dotnet/cs/DerivGen.Generator.dll; do
+for required in lib/netstandard2.0/DerivGen.dll lib/net10.0/DerivGen.dll analyzers/dotnet/cs/DerivGen.Generator.dll \
+    analyzers/dotnet/cs/DerivGen.CodeFixes.dll build/DerivGen.targets README.md; do
     if ! grep -qxF "$required" <<<"$entries"; then
         echo "The package lacks $required. It contains:"
         echo "$entries"
@@ -43,6 +45,20 @@ for required in lib/netstandard2.0/DerivGen.dll lib/net10.0/DerivGen.dll analyze
     fi
     echo "  contains $required"
 done
+# The code fixes need Roslyn's Workspaces, which the editor provides: the package must not carry it, nor any other
+# assembly next to the generator (the compiler would load it).
+unexpected="$(grep -E '^analyzers/' <<<"$entries" | grep -vxF -e analyzers/dotnet/cs/DerivGen.Generator.dll -e analyzers/dotnet/cs/DerivGen.CodeFixes.dll || true)"
+if [[ -n "$unexpected" ]]; then
+    echo "Unexpected files under analyzers/:"
+    echo "$unexpected"
+    exit 1
+fi
+symbols="${nupkg%.nupkg}.snupkg"
+if [[ ! -f "$symbols" ]]; then
+    echo "No symbol package $(basename "$symbols") beside the package."
+    exit 1
+fi
+echo "  symbols: $(basename "$symbols")"
 
 # --- a scratch area outside the repository -----------------------------------------------------------------------
 scratch="$(mktemp -d "${TMPDIR:-/tmp}/derivgen-consumer.XXXXXX")"
