@@ -43,8 +43,6 @@ internal static class DerivativeEmitter
             // C# wants 'partial' right before the type keyword: "ref partial struct", not "partial ref struct".
             string keyword = type.Keyword.StartsWith("ref ", StringComparison.Ordinal) ? "ref partial " + type.Keyword.Substring(4) : "partial " + type.Keyword;
             scopes.Add(writer.Block(keyword + " " + type.Name));
-            string keyword = type.Keyword.StartsWith("ref ", StringComparison.Ordinal) ? "ref partial " + type.Keyword.Substring(4) : "partial " + type.Keyword;
-            scopes.Add(writer.Block(keyword + " " + type.Name));
         }
 
         WriteMethod(writer, context, withHessian: false);
