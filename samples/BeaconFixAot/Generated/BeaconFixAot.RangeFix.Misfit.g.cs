@@ -76,12 +76,12 @@ namespace BeaconFixAot
             {
                 double dx = x - beaconX[i];
                 double dy = y - beaconY[i];
-                double t1 = global::System.Math.Sqrt(dx * dx + dy * dy);
-                double residual = t1 + bias - range[i];
-                double t2 = residual / t1;
+                double sqrt = global::System.Math.Sqrt(dx * dx + dy * dy);
+                double residual = sqrt + bias - range[i];
+                double t1 = residual / sqrt;
                 sum += residual * residual;
-                dSum_dX += 2.0 * (t2 * dx);
-                dSum_dY += 2.0 * (t2 * dy);
+                dSum_dX += 2.0 * (t1 * dx);
+                dSum_dY += 2.0 * (t1 * dy);
                 dSum_dBias += 2.0 * residual;
             }
 
@@ -157,22 +157,22 @@ namespace BeaconFixAot
             {
                 double dx = x - beaconX[i];
                 double dy = y - beaconY[i];
-                double t1 = global::System.Math.Sqrt(dx * dx + dy * dy);
-                double residual = t1 + bias - range[i];
-                double t2 = residual / t1;
-                double t3 = dx / t1;
-                double t4 = t2 / t1;
-                double t5 = t3 / t1 - t4 * t3;
-                double t6 = dy / t1;
+                double sqrt = global::System.Math.Sqrt(dx * dx + dy * dy);
+                double residual = sqrt + bias - range[i];
+                double t1 = residual / sqrt;
+                double t2 = dx / sqrt;
+                double t3 = t1 / sqrt;
+                double t4 = t2 / sqrt - t3 * t2;
+                double t5 = dy / sqrt;
                 sum += residual * residual;
-                dSum_dX += 2.0 * (t2 * dx);
-                dSum_dY += 2.0 * (t2 * dy);
+                dSum_dX += 2.0 * (t1 * dx);
+                dSum_dY += 2.0 * (t1 * dy);
                 dSum_dBias += 2.0 * residual;
-                d2Sum_dX2 += 2.0 * (dx * t5 + t2);
-                d2Sum_dYdX += 2.0 * (dy * t5);
-                d2Sum_dY2 += 2.0 * (dy * (t6 / t1 - t4 * t6) + t2);
-                d2Sum_dBiasdX += 2.0 * t3;
-                d2Sum_dBiasdY += 2.0 * t6;
+                d2Sum_dX2 += 2.0 * (dx * t4 + t1);
+                d2Sum_dYdX += 2.0 * (dy * t4);
+                d2Sum_dY2 += 2.0 * (dy * (t5 / sqrt - t3 * t5) + t1);
+                d2Sum_dBiasdX += 2.0 * t2;
+                d2Sum_dBiasdY += 2.0 * t5;
                 d2Sum_dBias2 += 2.0;
             }
 

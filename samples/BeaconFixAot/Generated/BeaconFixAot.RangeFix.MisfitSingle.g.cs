@@ -76,12 +76,12 @@ namespace BeaconFixAot
             {
                 float dx = x - beaconX[i];
                 float dy = y - beaconY[i];
-                float t1 = global::System.MathF.Sqrt(dx * dx + dy * dy);
-                float residual = t1 + bias - range[i];
-                float t2 = residual / t1;
+                float sqrt = global::System.MathF.Sqrt(dx * dx + dy * dy);
+                float residual = sqrt + bias - range[i];
+                float t1 = residual / sqrt;
                 sum += residual * residual;
-                dSum_dX += 2f * (t2 * dx);
-                dSum_dY += 2f * (t2 * dy);
+                dSum_dX += 2f * (t1 * dx);
+                dSum_dY += 2f * (t1 * dy);
                 dSum_dBias += 2f * residual;
             }
 
@@ -157,22 +157,22 @@ namespace BeaconFixAot
             {
                 float dx = x - beaconX[i];
                 float dy = y - beaconY[i];
-                float t1 = global::System.MathF.Sqrt(dx * dx + dy * dy);
-                float residual = t1 + bias - range[i];
-                float t2 = residual / t1;
-                float t3 = dx / t1;
-                float t4 = t2 / t1;
-                float t5 = t3 / t1 - t4 * t3;
-                float t6 = dy / t1;
+                float sqrt = global::System.MathF.Sqrt(dx * dx + dy * dy);
+                float residual = sqrt + bias - range[i];
+                float t1 = residual / sqrt;
+                float t2 = dx / sqrt;
+                float t3 = t1 / sqrt;
+                float t4 = t2 / sqrt - t3 * t2;
+                float t5 = dy / sqrt;
                 sum += residual * residual;
-                dSum_dX += 2f * (t2 * dx);
-                dSum_dY += 2f * (t2 * dy);
+                dSum_dX += 2f * (t1 * dx);
+                dSum_dY += 2f * (t1 * dy);
                 dSum_dBias += 2f * residual;
-                d2Sum_dX2 += 2f * (dx * t5 + t2);
-                d2Sum_dYdX += 2f * (dy * t5);
-                d2Sum_dY2 += 2f * (dy * (t6 / t1 - t4 * t6) + t2);
-                d2Sum_dBiasdX += 2f * t3;
-                d2Sum_dBiasdY += 2f * t6;
+                d2Sum_dX2 += 2f * (dx * t4 + t1);
+                d2Sum_dYdX += 2f * (dy * t4);
+                d2Sum_dY2 += 2f * (dy * (t5 / sqrt - t3 * t5) + t1);
+                d2Sum_dBiasdX += 2f * t2;
+                d2Sum_dBiasdY += 2f * t5;
                 d2Sum_dBias2 += 2f;
             }
 

@@ -55,6 +55,22 @@ internal sealed class TemporaryNames
             return Claim(operand + "Squared");
         }
 
+        // Otherwise a name for the kind of value, numbered within that kind (exp, exp2, …), so that an edit that adds
+        // one temporary renames as few others as possible in a reviewed diff.
+        string? kind = node.Kind switch
+        {
+            NodeKind.Call => Lower(MathFunctions.CSharpName(node.Function)),
+            NodeKind.Element when SimpleName(node.Arguments[0], nameOf) is { } index && ElementData(node) is { } data => data + Capitalize(index),
+            NodeKind.UserCall when LastSegment(node.Text) is { } method => method,
+            NodeKind.Compare or NodeKind.And or NodeKind.Or or NodeKind.Not => "condition",
+            NodeKind.Select => "selected",
+            _ => null,
+        };
+        if (kind is not null)
+        {
+            return Claim(kind);
+        }
+
         string name;
         do
         {
@@ -83,6 +99,34 @@ internal sealed class TemporaryNames
         }
 
         return name;
+    }
+
+    /// <summary>The data's own name when it is a plain identifier or a field of a type (<c>global::Fit.T</c> → <c>T</c>).</summary>
+    private static string? ElementData(Node node) => node.Arguments.Length == 1 ? LastSegment(node.Text) : null;
+
+    /// <summary>The last identifier of a dotted name, lower-cased first letter; null unless plain and short.</summary>
+    private static string? LastSegment(string? text)
+    {
+        if (text is null)
+        {
+            return null;
+        }
+
+        string last = text.Substring(text.LastIndexOf('.') + 1);
+        if (last.Length == 0 || last.Length > 24 || !char.IsLetter(last[0]))
+        {
+            return null;
+        }
+
+        foreach (char c in last)
+        {
+            if (!char.IsLetterOrDigit(c) && c != '_')
+            {
+                return null;
+            }
+        }
+
+        return Lower(last);
     }
 
     private static string Lower(string name) => char.ToLowerInvariant(name[0]) + name.Substring(1);

@@ -42,12 +42,12 @@ namespace Samples.Robust
             }
 
             double absR = global::System.Math.Abs(r);
-            bool t1 = absR <= delta;
+            bool condition = absR <= delta;
             double loss = 0.5 * r * r;
             double loss2 = delta * (absR - 0.5 * delta);
-            double value = t1 ? loss : loss2;
+            double value = condition ? loss : loss2;
 
-            gradient[0] = t1 ? r : delta * (r > 0.0 ? 1.0 : r < 0.0 ? -1.0 : 0.0); // ∂Huber/∂r
+            gradient[0] = condition ? r : delta * (r > 0.0 ? 1.0 : r < 0.0 ? -1.0 : 0.0); // ∂Huber/∂r
 
             return value;
         }
@@ -86,14 +86,14 @@ namespace Samples.Robust
             }
 
             double absR = global::System.Math.Abs(r);
-            bool t1 = absR <= delta;
+            bool condition = absR <= delta;
             double loss = 0.5 * r * r;
             double loss2 = delta * (absR - 0.5 * delta);
-            double value = t1 ? loss : loss2;
+            double value = condition ? loss : loss2;
 
-            gradient[0] = t1 ? r : delta * (r > 0.0 ? 1.0 : r < 0.0 ? -1.0 : 0.0); // ∂Huber/∂r
+            gradient[0] = condition ? r : delta * (r > 0.0 ? 1.0 : r < 0.0 ? -1.0 : 0.0); // ∂Huber/∂r
 
-            hessian[0] = t1 ? 1.0 : 0.0; // ∂²Huber/∂r²
+            hessian[0] = condition ? 1.0 : 0.0; // ∂²Huber/∂r²
 
             return value;
         }

@@ -61,12 +61,12 @@ namespace Samples.Fitting
             double dSum_dB = 0.0;
             for (int i = 0; i < t.Length; i++)
             {
-                double t2 = t[i];
-                double t3 = global::System.Math.Exp(t1 * t2);
-                double r = a * t3 - y[i];
+                double tI = t[i];
+                double exp = global::System.Math.Exp(t1 * tI);
+                double r = a * exp - y[i];
                 sum += r * r;
-                dSum_dA += 2.0 * (r * t3);
-                dSum_dB -= 2.0 * (r * a * t3 * t2);
+                dSum_dA += 2.0 * (r * exp);
+                dSum_dB -= 2.0 * (r * a * exp * tI);
             }
 
             double value = 0.5 * sum;
@@ -128,18 +128,18 @@ namespace Samples.Fitting
             double d2Sum_dB2 = 0.0;
             for (int i = 0; i < t.Length; i++)
             {
-                double t2 = t[i];
-                double t3 = global::System.Math.Exp(t1 * t2);
-                double t4 = a * t3;
-                double r = t4 - y[i];
-                double t5 = r * a;
-                double t6 = t3 * t2;
+                double tI = t[i];
+                double exp = global::System.Math.Exp(t1 * tI);
+                double t2 = a * exp;
+                double r = t2 - y[i];
+                double t3 = r * a;
+                double t4 = exp * tI;
                 sum += r * r;
-                dSum_dA += 2.0 * (r * t3);
-                dSum_dB -= 2.0 * (t5 * t3 * t2);
-                d2Sum_dA2 += 2.0 * (t3 * t3);
-                d2Sum_dBdA -= 2.0 * (t2 * (t3 * (t4 + r)));
-                d2Sum_dB2 -= 2.0 * (t2 * (-(t3 * (a * (a * t6))) - t5 * t6));
+                dSum_dA += 2.0 * (r * exp);
+                dSum_dB -= 2.0 * (t3 * exp * tI);
+                d2Sum_dA2 += 2.0 * (exp * exp);
+                d2Sum_dBdA -= 2.0 * (tI * (exp * (t2 + r)));
+                d2Sum_dB2 -= 2.0 * (tI * (-(exp * (a * (a * t4))) - t3 * t4));
             }
 
             double value = 0.5 * sum;

@@ -39,13 +39,13 @@ namespace Samples.Graphics
 
             float t1 = 1f + x * x + y * y;
             float t2 = 1f / t1;
-            float t3 = global::System.MathF.Tanh(x - y);
-            float value = t2 + 0.25f * t3;
-            float t4 = 1f - t3 * t3;
-            float t5 = t2 / t1;
+            float tanh = global::System.MathF.Tanh(x - y);
+            float value = t2 + 0.25f * tanh;
+            float t3 = 1f - tanh * tanh;
+            float t4 = t2 / t1;
 
-            gradient[0] = 0.25f * t4 - 2f * (t5 * x); // ∂Light/∂x
-            gradient[1] = -0.25f * t4 - 2f * (t5 * y); // ∂Light/∂y
+            gradient[0] = 0.25f * t3 - 2f * (t4 * x); // ∂Light/∂x
+            gradient[1] = -0.25f * t3 - 2f * (t4 * y); // ∂Light/∂y
 
             return value;
         }

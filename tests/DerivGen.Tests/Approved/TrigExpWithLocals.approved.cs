@@ -57,18 +57,18 @@ namespace Samples.Signals
                 throw new global::System.ArgumentException("The span must hold at least 3 elements (one per variable: amplitude, decay, phase).", nameof(gradient));
             }
 
-            double t1 = global::System.Math.Exp(-decay * t);
-            double envelope = amplitude * t1;
-            double t2 = 6.283185307179586 * t + phase;
-            double wave = global::System.Math.Cos(t2);
+            double exp = global::System.Math.Exp(-decay * t);
+            double envelope = amplitude * exp;
+            double t1 = 6.283185307179586 * t + phase;
+            double wave = global::System.Math.Cos(t1);
             double r = envelope * wave - observed;
             double r2 = r * 0.5;
             double value = r2 * r2;
             double envelopeAdjoint = r2 * wave;
 
-            gradient[0] = envelopeAdjoint * t1; // ∂Residual/∂amplitude
-            gradient[1] = -(envelopeAdjoint * amplitude * t1 * t); // ∂Residual/∂decay
-            gradient[2] = -(r2 * envelope * global::System.Math.Sin(t2)); // ∂Residual/∂phase
+            gradient[0] = envelopeAdjoint * exp; // ∂Residual/∂amplitude
+            gradient[1] = -(envelopeAdjoint * amplitude * exp * t); // ∂Residual/∂decay
+            gradient[2] = -(r2 * envelope * global::System.Math.Sin(t1)); // ∂Residual/∂phase
 
             return value;
         }
@@ -118,33 +118,33 @@ namespace Samples.Signals
                 throw new global::System.ArgumentException("The span must hold at least 9 elements (3 × 3, row-major).", nameof(hessian));
             }
 
-            double t1 = global::System.Math.Exp(-decay * t);
-            double envelope = amplitude * t1;
-            double t2 = 6.283185307179586 * t + phase;
-            double wave = global::System.Math.Cos(t2);
+            double exp = global::System.Math.Exp(-decay * t);
+            double envelope = amplitude * exp;
+            double t1 = 6.283185307179586 * t + phase;
+            double wave = global::System.Math.Cos(t1);
             double r = envelope * wave - observed;
             double r2 = r * 0.5;
             double value = r2 * r2;
             double envelopeAdjoint = r2 * wave;
             double waveAdjoint = r2 * envelope;
-            double sinT2 = global::System.Math.Sin(t2);
-            double t3 = envelopeAdjoint * amplitude;
-            double t4 = wave * t1;
-            double t5 = wave * t4;
-            double t6 = t1 * t;
-            double t7 = amplitude * t6;
-            double t8 = wave * t7;
+            double sinT1 = global::System.Math.Sin(t1);
+            double t2 = envelopeAdjoint * amplitude;
+            double t3 = wave * exp;
+            double t4 = wave * t3;
+            double t5 = exp * t;
+            double t6 = amplitude * t5;
+            double t7 = wave * t6;
 
-            gradient[0] = envelopeAdjoint * t1; // ∂Residual/∂amplitude
-            gradient[1] = -(t3 * t1 * t); // ∂Residual/∂decay
-            gradient[2] = -(waveAdjoint * sinT2); // ∂Residual/∂phase
+            gradient[0] = envelopeAdjoint * exp; // ∂Residual/∂amplitude
+            gradient[1] = -(t2 * exp * t); // ∂Residual/∂decay
+            gradient[2] = -(waveAdjoint * sinT1); // ∂Residual/∂phase
 
-            hessian[0] = 0.5 * (t1 * t5); // ∂²Residual/∂amplitude²
-            hessian[1] = hessian[3] = -(t * (t1 * (0.5 * (amplitude * t5) + envelopeAdjoint))); // ∂²Residual/∂decay∂amplitude
-            hessian[4] = t * (t3 * t6 + 0.5 * (t1 * (amplitude * (wave * t8)))); // ∂²Residual/∂decay²
-            hessian[2] = hessian[6] = -(sinT2 * (0.5 * (envelope * t4) + r2 * t1)); // ∂²Residual/∂phase∂amplitude
-            hessian[5] = hessian[7] = sinT2 * (r2 * t7 + 0.5 * (envelope * t8)); // ∂²Residual/∂phase∂decay
-            hessian[8] = -(-0.5 * (sinT2 * (envelope * (envelope * sinT2))) + waveAdjoint * global::System.Math.Cos(t2)); // ∂²Residual/∂phase²
+            hessian[0] = 0.5 * (exp * t4); // ∂²Residual/∂amplitude²
+            hessian[1] = hessian[3] = -(t * (exp * (0.5 * (amplitude * t4) + envelopeAdjoint))); // ∂²Residual/∂decay∂amplitude
+            hessian[4] = t * (t2 * t5 + 0.5 * (exp * (amplitude * (wave * t7)))); // ∂²Residual/∂decay²
+            hessian[2] = hessian[6] = -(sinT1 * (0.5 * (envelope * t3) + r2 * exp)); // ∂²Residual/∂phase∂amplitude
+            hessian[5] = hessian[7] = sinT1 * (r2 * t6 + 0.5 * (envelope * t7)); // ∂²Residual/∂phase∂decay
+            hessian[8] = -(-0.5 * (sinT1 * (envelope * (envelope * sinT1))) + waveAdjoint * global::System.Math.Cos(t1)); // ∂²Residual/∂phase²
 
             return value;
         }
