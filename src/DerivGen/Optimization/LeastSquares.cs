@@ -20,6 +20,12 @@ public static class LeastSquares
     /// (MINPACK's 10⁻⁴).</summary>
     private const double AcceptRatio = 1e-4;
 
+    /// <summary>Gauss–Newton polishing steps tried after convergence (see <see cref="Polish"/>).</summary>
+    private const int PolishSteps = 3;
+
+    /// <summary>The relative rise of Σ rᵢ² a polishing step may cause: rounding noise, not a real increase.</summary>
+    private const double PolishRise = 1e-10;
+
     private static readonly LeastSquaresSettings Defaults = new();
 
     /// <summary>
@@ -86,15 +92,7 @@ public static class LeastSquares
         while (true)
         {
             // Gradient test: every column of J (nearly) orthogonal to r (MINPACK's gtol), or r = 0.
-            double cosine = 0;
-            for (int j = 0; j < n; j++)
-            {
-                if (columnNorms[j] > 0)
-                {
-                    cosine = Math.Max(cosine, Math.Abs(0.5 * g[j]) / (columnNorms[j] * Math.Sqrt(rss)));
-                }
-            }
-
+            double cosine = Cosine(g, columnNorms, rss, n);
             if (rss == 0 || cosine <= s.GradientTolerance)
             {
                 return Finish(rss, StopReason.GradientSmall, standardErrors, w, m, n, iteration, residualEvaluations, jacobianEvaluations);
@@ -118,23 +116,7 @@ public static class LeastSquares
                     return Finish(rss, StopReason.EvaluationLimit, standardErrors, w, m, n, iteration, residualEvaluations, jacobianEvaluations);
                 }
 
-                // Solve min ‖[J; √λ D] h + [r; 0]‖ by QR.
-                double root = Math.Sqrt(lambda);
-                jacobian.Slice(0, m * n).CopyTo(augmented);
-                augmented.Slice(m * n, n * n).Clear();
-                for (int j = 0; j < n; j++)
-                {
-                    augmented[((m + j) * n) + j] = root * scale[j];
-                    rhs[m + j] = 0;
-                }
-
-                for (int i = 0; i < m; i++)
-                {
-                    rhs[i] = -r[i];
-                }
-
-                DenseMath.HouseholderQr(augmented, m + n, n, rhs);
-                DenseMath.BackSubstitute(augmented, n, rhs);
+                SolveDamped(jacobian, r, scale, lambda, m, n, augmented, rhs);
                 rhs.Slice(0, n).CopyTo(h);
 
                 // Predicted reduction ‖Jh‖² + 2λ‖Dh‖² (= Σr² − ‖r + Jh‖² for the exact solution; no cancellation).
@@ -196,7 +178,7 @@ public static class LeastSquares
 
                     if (Math.Abs(relativeActual) <= s.ValueTolerance && relativePredicted <= s.ValueTolerance && ratio <= 2)
                     {
-                        return Finish(rss, StopReason.ValueChangeSmall, standardErrors, w, m, n, iteration, residualEvaluations, jacobianEvaluations);
+                        return Polish(model, x, rss, StopReason.ValueChangeSmall, standardErrors, s, w, m, n, iteration, residualEvaluations, jacobianEvaluations);
                     }
 
                     // The new point's scaled norm.
@@ -209,7 +191,7 @@ public static class LeastSquares
 
                     if (dh <= s.StepTolerance * Math.Sqrt(dxNew))
                     {
-                        return Finish(rss, StopReason.StepSmall, standardErrors, w, m, n, iteration, residualEvaluations, jacobianEvaluations);
+                        return Polish(model, x, rss, StopReason.StepSmall, standardErrors, s, w, m, n, iteration, residualEvaluations, jacobianEvaluations);
                     }
 
                     break;
@@ -219,12 +201,12 @@ public static class LeastSquares
                 // reductions this small, mean x is as good as the tolerances ask.
                 if (Math.Abs(relativeActual) <= s.ValueTolerance && relativePredicted <= s.ValueTolerance)
                 {
-                    return Finish(rss, StopReason.ValueChangeSmall, standardErrors, w, m, n, iteration, residualEvaluations, jacobianEvaluations);
+                    return Polish(model, x, rss, StopReason.ValueChangeSmall, standardErrors, s, w, m, n, iteration, residualEvaluations, jacobianEvaluations);
                 }
 
                 if (dh <= s.StepTolerance * dx)
                 {
-                    return Finish(rss, StopReason.StepSmall, standardErrors, w, m, n, iteration, residualEvaluations, jacobianEvaluations);
+                    return Polish(model, x, rss, StopReason.StepSmall, standardErrors, s, w, m, n, iteration, residualEvaluations, jacobianEvaluations);
                 }
 
                 lambda *= nu;
@@ -235,6 +217,98 @@ public static class LeastSquares
                 }
             }
         }
+    }
+
+    /// <summary>
+    /// After a step or value test has passed, Σ rᵢ² may be flat to within its rounding error while Jᵀr, computed
+    /// without that cancellation, still shows the way to the stationary point. Up to
+    /// <see cref="PolishSteps"/> Gauss–Newton steps (λ = <see cref="MinimumDamping"/>) are tried; each is kept only
+    /// if it at least halves the largest cosine between r and a column of J and raises Σ rᵢ² by no more than
+    /// <see cref="PolishRise"/> relative (rounding noise), and polishing stops at the first that is not.
+    /// </summary>
+    private static LeastSquaresResult Polish<TModel>(TModel model, Span<double> x, double rss, StopReason reason, Span<double> standardErrors,
+        LeastSquaresSettings s, LeastSquaresWorkspace w, int m, int n, int iterations, int residualEvaluations, int jacobianEvaluations)
+        where TModel : IResidualModel
+    {
+        Span<double> r = w.Residuals, rTrial = w.TrialResiduals, jacobian = w.Jacobian, augmented = w.Augmented, rhs = w.RightHandSide;
+        Span<double> xTrial = w.TrialPoint, scale = w.Scale, g = w.Gradient, columnNorms = w.ColumnNorms;
+        double cosine = Cosine(g, columnNorms, rss, n);
+        for (int k = 0; k < PolishSteps && rss > 0 && residualEvaluations + jacobianEvaluations < s.MaxEvaluations; k++)
+        {
+            SolveDamped(jacobian, r, scale, MinimumDamping, m, n, augmented, rhs);
+            if (!DenseMath.AllFinite(rhs.Slice(0, n)))
+            {
+                break;
+            }
+
+            for (int j = 0; j < n; j++)
+            {
+                xTrial[j] = x[j] + rhs[j];
+            }
+
+            // The trial's Jacobian goes into the (now free) augmented buffer, its gradient and norms into rhs.
+            Span<double> trialJacobian = augmented.Slice(0, m * n);
+            model.ResidualsAndJacobian(xTrial, rTrial, trialJacobian);
+            jacobianEvaluations++;
+            double rssTrial = SumOfSquares(rTrial.Slice(0, m));
+            if (!DenseMath.IsFinite(rssTrial) || !DenseMath.AllFinite(trialJacobian) || rssTrial > rss * (1 + PolishRise))
+            {
+                break;
+            }
+
+            Span<double> trialNorms = rhs.Slice(0, n), trialGradient = rhs.Slice(n, n);
+            ColumnNormsAndGradient(trialJacobian, rTrial, m, n, trialNorms, trialGradient);
+            double trialCosine = Cosine(trialGradient, trialNorms, rssTrial, n);
+            if (!(trialCosine <= 0.5 * cosine))
+            {
+                break;
+            }
+
+            xTrial.Slice(0, n).CopyTo(x);
+            rTrial.Slice(0, m).CopyTo(r);
+            trialJacobian.CopyTo(jacobian);
+            trialNorms.CopyTo(columnNorms);
+            trialGradient.CopyTo(g);
+            rss = rssTrial;
+            cosine = trialCosine;
+        }
+
+        return Finish(rss, reason, standardErrors, w, m, n, iterations, residualEvaluations, jacobianEvaluations);
+    }
+
+    private static double Cosine(ReadOnlySpan<double> g, ReadOnlySpan<double> columnNorms, double rss, int n)
+    {
+        double cosine = 0;
+        for (int j = 0; j < n; j++)
+        {
+            if (columnNorms[j] > 0)
+            {
+                cosine = Math.Max(cosine, Math.Abs(0.5 * g[j]) / (columnNorms[j] * Math.Sqrt(rss)));
+            }
+        }
+
+        return cosine;
+    }
+
+    /// <summary>Solves min ‖[J; √λ D] h + [r; 0]‖ by QR; h is left in the first n elements of rhs.</summary>
+    private static void SolveDamped(ReadOnlySpan<double> jacobian, ReadOnlySpan<double> r, ReadOnlySpan<double> scale, double lambda, int m, int n, Span<double> augmented, Span<double> rhs)
+    {
+        double root = Math.Sqrt(lambda);
+        jacobian.Slice(0, m * n).CopyTo(augmented);
+        augmented.Slice(m * n, n * n).Clear();
+        for (int j = 0; j < n; j++)
+        {
+            augmented[((m + j) * n) + j] = root * scale[j];
+            rhs[m + j] = 0;
+        }
+
+        for (int i = 0; i < m; i++)
+        {
+            rhs[i] = -r[i];
+        }
+
+        DenseMath.HouseholderQr(augmented, m + n, n, rhs);
+        DenseMath.BackSubstitute(augmented, n, rhs);
     }
 
     private static LeastSquaresResult Finish(double rss, StopReason reason, Span<double> standardErrors, LeastSquaresWorkspace w, int m, int n,

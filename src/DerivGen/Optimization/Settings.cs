@@ -101,7 +101,7 @@ public sealed class LeastSquaresSettings
     private int _maxEvaluations = 10_000;
     private double _gradientTolerance = 1e-12;
     private double _stepTolerance = 1e-10;
-    private double _valueTolerance = 1e-14;
+    private double _valueTolerance;
     private double _initialDamping = 1e-3;
 
     /// <summary>Stop after this many accepted steps (<see cref="StopReason.IterationLimit"/>). Default 1000.</summary>
@@ -120,7 +120,8 @@ public sealed class LeastSquaresSettings
     public double StepTolerance { get => _stepTolerance; set => _stepTolerance = MinimizeSettings.NonNegative(value); }
 
     /// <summary>Converged (<see cref="StopReason.ValueChangeSmall"/>) when both the actual and the predicted relative
-    /// reduction of Σ rᵢ² in a step are at most ValueTolerance. Default 1e-14.</summary>
+    /// reduction of Σ rᵢ² in a step are at most ValueTolerance (MINPACK's ftol test). Default 0: off, because near a
+    /// minimum Σ rᵢ² stops changing (to within its rounding) well before the parameters do.</summary>
     public double ValueTolerance { get => _valueTolerance; set => _valueTolerance = MinimizeSettings.NonNegative(value); }
 
     /// <summary>The first damping λ₀, relative to the scaled JᵀJ (whose diagonal is 1 at the start). Default 1e-3
