@@ -19,8 +19,8 @@ public static class Minimize
     private static readonly MinimizeSettings Defaults = new();
 
     /// <summary>Gradient descent with a fixed step: x ← x − α ∇f(x). No line search: too large a step diverges
-    /// (<see cref="StopReason.NotFinite"/>, or the iteration limit with a growing value), too small a step crawls.
-    /// Each iteration makes one gradient call.</summary>
+    /// (<see cref="StopReason.Diverged"/> as soon as f exceeds f(x₀), or <see cref="StopReason.NotFinite"/>), too
+    /// small a step crawls. Each iteration makes one gradient call.</summary>
     /// <param name="objective">The function to minimise.</param>
     /// <param name="x">The starting point on entry; the solution (the last point with finite value) on return.</param>
     /// <param name="stepSize">α &gt; 0.</param>
@@ -61,6 +61,7 @@ public static class Minimize
             return Result(f, DenseMath.MaxAbs(g), 0, counters, atStart);
         }
 
+        double f0 = f;
         int iteration = 0;
         while (true)
         {
@@ -78,6 +79,11 @@ public static class Minimize
                 return Result(f, gradientNorm, iteration, counters, StopReason.NotFinite);
             }
 
+            if (fNew > f0)
+            {
+                return Result(f, gradientNorm, iteration, counters, StopReason.Diverged);
+            }
+
             iteration++;
             var stop = AfterStep(x, trial, ref f, fNew, g, trialGradient, stepSize, 0, iteration, counters, s, ref observer);
             if (stop is { } reason)
@@ -88,7 +94,8 @@ public static class Minimize
     }
 
     /// <summary>Gradient descent with a backtracking (Armijo) line search along −∇f: the first trial step of an
-    /// iteration is twice the previous accepted one (<see cref="MinimizeSettings.InitialStep"/> at first), and
+    /// iteration is twice the previous accepted one (at first <see cref="MinimizeSettings.InitialStep"/> ·
+    /// min(1, 1 / max |∂f/∂xⱼ|), so that no coordinate moves by more than InitialStep), and
     /// is shrunk until f(x − α∇f) ≤ f(x) − c₁ α ‖∇f‖² (<see cref="MinimizeSettings.SufficientDecrease"/>). The value
     /// decreases at every iteration. Each iteration makes one gradient call and one or more value calls.</summary>
     /// <param name="objective">The function to minimise.</param>
@@ -120,7 +127,8 @@ public static class Minimize
             return early;
         }
 
-        double alpha = 0.5 * s.InitialStep; // each iteration starts from twice the previous step
+        // The first trial moves no coordinate by more than InitialStep; later ones start from twice the last step.
+        double alpha = 0.5 * s.InitialStep * Math.Min(1, 1 / DenseMath.MaxAbs(g));
         int iteration = 0;
         if (Converged(g, f, s) is { } atStart)
         {
@@ -159,10 +167,11 @@ public static class Minimize
 
     /// <summary>
     /// Newton's method with a backtracking (Armijo) line search from the full step α = 1. The direction solves
-    /// (H + τI) d = −∇f, where τ ≥ 0 is the smallest of 0, β, 2β, 4β… (β = 10⁻³ · max |Hᵢᵢ|, or β − min Hᵢᵢ to
-    /// start with when a diagonal entry is not positive) for which Cholesky factorisation succeeds (Nocedal &amp; Wright
-    /// Algorithm 3.3): where the Hessian is positive definite this is the Newton step, elsewhere a step towards
-    /// steepest descent, so the value decreases at every iteration. Each iteration makes one Hessian call and one or
+    /// (H + τS) d = −∇f with S = diag(|Hᵢᵢ|) (floored at 10⁻⁶ max |Hᵢᵢ|), where τ ≥ 0 is the smallest of 0, 10⁻³,
+    /// 2·10⁻³, 4·10⁻³… (starting from 1 + 10⁻³ when a diagonal entry is not positive) for which Cholesky factorisation
+    /// succeeds (Nocedal &amp; Wright Algorithm 3.3 on the diagonally scaled Hessian, so the shift does not depend on
+    /// the units of each variable): where the Hessian is positive definite this is the Newton step, elsewhere a
+    /// step towards scaled steepest descent, so the value decreases at every iteration. Each iteration makes one Hessian call and one or
     /// more value calls, and solves one n×n system (n³/6 operations).
     /// </summary>
     /// <param name="objective">The function to minimise, with its Hessian.</param>
@@ -210,7 +219,7 @@ public static class Minimize
         int iteration = 0;
         while (true)
         {
-            double tau = ModifiedCholesky(h, l, n);
+            double tau = ModifiedCholesky(h, l, w.Difference, n);
             for (int i = 0; i < n; i++)
             {
                 d[i] = -g[i];
@@ -603,11 +612,14 @@ public static class Minimize
     }
 
     /// <summary>
-    /// Factorises H + τI = LLᵀ into <paramref name="l"/> with the smallest τ of the sequence 0 (or β − min Hᵢᵢ), then
-    /// doubling from β, for which Cholesky succeeds (Nocedal &amp; Wright Algorithm 3.3); returns τ.
+    /// Factorises H + τS = LLᵀ into <paramref name="l"/>, where S = diag(sᵢ), sᵢ = max(|Hᵢᵢ|, 10⁻⁶ max |Hⱼⱼ|) makes the
+    /// shift invariant to the scale of each variable, with the smallest τ of the sequence 0 (or 1 + 10⁻³ when a
+    /// diagonal entry is not positive), then doubling from 10⁻³, for which Cholesky succeeds (Nocedal &amp; Wright
+    /// Algorithm 3.3 applied to the diagonally scaled Hessian); returns τ.
     /// </summary>
-    private static double ModifiedCholesky(ReadOnlySpan<double> h, Span<double> l, int n)
+    private static double ModifiedCholesky(ReadOnlySpan<double> h, Span<double> l, Span<double> shift, int n)
     {
+        const double beta = 1e-3;
         double minDiagonal = double.PositiveInfinity, maxDiagonal = 0;
         for (int i = 0; i < n; i++)
         {
@@ -616,14 +628,19 @@ public static class Minimize
             maxDiagonal = Math.Max(maxDiagonal, Math.Abs(hii));
         }
 
-        double beta = 1e-3 * (maxDiagonal > 0 ? maxDiagonal : 1);
-        double tau = minDiagonal > 0 ? 0 : beta - minDiagonal;
+        double floor = maxDiagonal > 0 ? 1e-6 * maxDiagonal : 1;
+        for (int i = 0; i < n; i++)
+        {
+            shift[i] = Math.Max(Math.Abs(h[(i * n) + i]), floor);
+        }
+
+        double tau = minDiagonal > 0 ? 0 : 1 + beta;
         while (true)
         {
             h.Slice(0, n * n).CopyTo(l);
             for (int i = 0; i < n; i++)
             {
-                l[(i * n) + i] += tau;
+                l[(i * n) + i] += tau * shift[i];
             }
 
             if (DenseMath.Cholesky(l, n))

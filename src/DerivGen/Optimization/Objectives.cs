@@ -104,7 +104,7 @@ public readonly ref struct IterationReport
     /// fixed-step gradient descent.</summary>
     public double StepLength { get; }
 
-    /// <summary>Newton: the multiple τ of the identity added to the Hessian to make it positive definite (0 when it
+    /// <summary>Newton: the multiple τ of diag(|Hᵢᵢ|) added to the Hessian to make it positive definite (0 when it
     /// already was). Levenberg–Marquardt: the damping λ of the accepted step. Otherwise 0.</summary>
     public double Regularization { get; }
 

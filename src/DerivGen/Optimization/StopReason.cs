@@ -34,4 +34,8 @@ public enum StopReason
 
     /// <summary>The observer returned <see langword="false"/>.</summary>
     ObserverStopped,
+
+    /// <summary>Fixed-step gradient descent only: f rose above its value at the start, so the step is too large for
+    /// this problem. The point returned is the last one with f at most f(x₀).</summary>
+    Diverged,
 }

@@ -1,7 +1,9 @@
 using System;
 using System.Collections.Concurrent;
+using System.Collections.Generic;
 using System.Globalization;
 using System.Linq;
+using System.Text;
 using DerivGen.Minimization;
 using Xunit;
 using Xunit.Abstractions;
@@ -75,8 +77,49 @@ public sealed class MghFixture : UserCodeFixture
     }
 }
 
+/// <summary>
+/// Every minimiser on every MGH problem from the paper's standard starting point: it reaches a published minimum
+/// value f* within the tolerance of <see cref="MghFixture.Reached"/>, or the case is listed in
+/// <see cref="ExpectedFailures"/> with the reason and is asserted to miss (so the README table cannot go stale).
+/// </summary>
 public sealed class MghTests : IClassFixture<MghFixture>
 {
+    private const string Slow = "iteration limit (20 000): gradient descent converges linearly, at a rate set by the Hessian's condition number, which is large here";
+
+    private const string TooLarge = "diverges: the fixed step 1/‖H(x₀)‖_F is too large once the iterate moves (f rose above f(x₀))";
+
+    /// <summary>(MGH problem number, method index in <see cref="MghProblems.Methods"/>) → why it does not reach f*.</summary>
+    internal static readonly Dictionary<(int Problem, int Method), string> ExpectedFailures = new()
+    {
+        [(1, 0)] = Slow,
+        [(2, 0)] = Slow,
+        [(3, 0)] = Slow,
+        [(3, 1)] = Slow,
+        [(4, 0)] = TooLarge,
+        [(4, 1)] = Slow,
+        [(7, 0)] = Slow,
+        [(8, 0)] = Slow,
+        [(10, 0)] = Slow,
+        [(10, 1)] = Slow,
+        [(10, 3)] = "stops on the step test after 19 iterations at f ≈ 1.1·10⁵: on this badly scaled problem (x1 ≈ 0.0056, x2 ≈ 6181 at the minimum) the line search finds only minute steps along the BFGS directions",
+        [(12, 0)] = TooLarge,
+        [(12, 1)] = Slow,
+        [(13, 0)] = Slow,
+        [(13, 1)] = Slow,
+        [(14, 0)] = Slow,
+        [(14, 1)] = Slow,
+        [(17, 0)] = Slow,
+        [(17, 1)] = Slow,
+        [(18, 0)] = Slow,
+        [(18, 1)] = Slow,
+        [(18, 2)] = "stalls at f ≈ 0.2428 until the iteration limit (2000): the shifted-Hessian steps make almost no progress there (measured; the same run with an unscaled shift reached 0)",
+        [(20, 0)] = Slow,
+        [(20, 1)] = Slow,
+        [(21, 0)] = Slow,
+        [(22, 0)] = Slow,
+        [(22, 1)] = Slow,
+    };
+
     private readonly MghFixture _fixture;
     private readonly ITestOutputHelper _output;
 
@@ -86,16 +129,72 @@ public sealed class MghTests : IClassFixture<MghFixture>
         _output = output;
     }
 
-    [Fact]
-    public void Measure()
+    public static TheoryData<int, int> Cases()
     {
+        var data = new TheoryData<int, int>();
         foreach (var p in MghProblems.All)
         {
             for (int method = 0; method < MghProblems.Methods.Length; method++)
             {
-                var o = _fixture.Outcome(p, method);
-                _output.WriteLine($"{p.Number,2} {p.Name,-26} {MghProblems.Methods[method],-30} {(o.Reached ? "yes" : "NO "),-3} f = {o.Value.ToString("G6", CultureInfo.InvariantCulture),-12} it {o.Iterations,6} ev {o.Evaluations,7} {o.Stop}");
+                data.Add(p.Number, method);
             }
         }
+
+        return data;
+    }
+
+    [Theory]
+    [MemberData(nameof(Cases))]
+    public void ReachesPublishedMinimum(int problem, int method)
+    {
+        var p = MghProblems.All.Single(q => q.Number == problem);
+        MghOutcome o = _fixture.Outcome(p, method);
+        _output.WriteLine($"{p.Label}, {MghProblems.Methods[method]}: f = {o.Value.ToString("R", CultureInfo.InvariantCulture)} ({string.Join(" or ", p.Minima.Select(m => m.ToString("R", CultureInfo.InvariantCulture)))} published; {p.Source}); {o.Iterations} iterations, {o.Evaluations} evaluations, {o.Stop}");
+        _output.WriteLine("x = " + string.Join(", ", o.Point.Select(v => v.ToString("R", CultureInfo.InvariantCulture))));
+        if (ExpectedFailures.TryGetValue((problem, method), out string? reason))
+        {
+            Assert.False(o.Reached, $"Listed as not reaching f* ({reason}) but it now does: update ExpectedFailures, docs/mgh-table.md and the README.");
+        }
+        else
+        {
+            Assert.True(o.Reached, $"{p.Label}, {MghProblems.Methods[method]}: f = {o.Value.ToString("R", CultureInfo.InvariantCulture)} is not within 1e-5 relative (+1e-12) of a published f* ({string.Join(", ", p.Minima)}); stop: {o.Stop}");
+        }
+    }
+
+    /// <summary>The transcription of each problem: f is 0 (to rounding) at the minimiser the paper gives for it.</summary>
+    [Fact]
+    public void PublishedMinimisersHaveZeroValue()
+    {
+        foreach (var p in MghProblems.All.Where(q => q.Solution is not null))
+        {
+            double f = _fixture.Value(p, (double[])p.Solution!.Clone());
+            Assert.True(f <= 1e-20, $"{p.Label}: f(x*) = {f.ToString("R", CultureInfo.InvariantCulture)} at the published minimiser (MGH 1981, from memory)");
+        }
+    }
+
+    /// <summary>The table of all runs equals docs/mgh-table.md and the README's copy (regenerate with DERIVGEN_ACCEPT=1).</summary>
+    [Fact]
+    public void TableMatchesCommittedFileAndReadme()
+    {
+        var sb = new StringBuilder();
+        sb.Append("| MGH problem | f* (published) | ").Append(string.Join(" | ", MghProblems.Methods)).Append(" |\n");
+        sb.Append("| --- | --- |").Append(string.Concat(Enumerable.Repeat(" --- |", MghProblems.Methods.Length))).Append('\n');
+        foreach (var p in MghProblems.All)
+        {
+            sb.Append($"| {p.Label} | {string.Join(" or ", p.Minima.Select(m => m.ToString("G6", CultureInfo.InvariantCulture)))} |");
+            for (int method = 0; method < MghProblems.Methods.Length; method++)
+            {
+                MghOutcome o = _fixture.Outcome(p, method);
+                sb.Append(o.Reached
+                    ? $" ✓ {o.Iterations} / {o.Evaluations} |"
+                    : $" ✗ f = {o.Value.ToString("G3", CultureInfo.InvariantCulture)} ({o.Stop}) |");
+            }
+
+            sb.Append('\n');
+        }
+
+        string table = sb.ToString();
+        _output.WriteLine(table);
+        DocumentTables.Verify("mgh-table.md", "mgh-table", table);
     }
 }
