@@ -270,7 +270,9 @@ public static class Minimize
     /// gradient in every step (skipped when the curvature sᵀy is not positive), scaled by sᵀy / yᵀy before the first
     /// update (Nocedal &amp; Wright §6.1), with a line search for the strong Wolfe conditions
     /// (<see cref="MinimizeSettings.SufficientDecrease"/>, <see cref="MinimizeSettings.Curvature"/>). If the line
-    /// search fails along the quasi-Newton direction the approximation is reset and steepest descent tried once.
+    /// search fails along the quasi-Newton direction, or the step test is met by a quasi-Newton step, the
+    /// approximation is reset and the iteration goes on from steepest descent (the step test only stops a step taken
+    /// from a fresh approximation).
     /// Each iteration makes one or more gradient calls and O(n²) work; no Hessian is needed.
     /// </summary>
     /// <param name="objective">The function to minimise.</param>
@@ -342,6 +344,7 @@ public static class Minimize
             }
 
             double alpha1 = identity ? Math.Min(1, 1 / DenseMath.MaxAbs(g)) : 1;
+            bool stepFromIdentity = identity;
             var outcome = LineSearch.StrongWolfe(objective, x, f, d, slope, alpha1, trial, trialGradient, point, pointGradient, s, ref counters, out double alpha, out double fNew);
             if (outcome == SearchOutcome.Failed && !identity)
             {
@@ -391,6 +394,14 @@ public static class Minimize
 
             iteration++;
             var stop = AfterStep(x, point, ref f, fNew, g, pointGradient, alpha, 0, iteration, counters, s, ref observer);
+            if (stop == StopReason.StepSmall && !stepFromIdentity)
+            {
+                // A tiny step along a quasi-Newton direction may only mean the approximation has degenerated (on a
+                // badly scaled problem): start it afresh once before believing the step test.
+                identity = true;
+                continue;
+            }
+
             if (stop is { } reason)
             {
                 return Result(f, DenseMath.MaxAbs(g), iteration, counters, reason);
@@ -402,7 +413,8 @@ public static class Minimize
     /// Limited-memory BFGS: the inverse-Hessian approximation is applied by the two-loop recursion over the last
     /// <see cref="MinimizeSettings.HistoryLength"/> pairs (s, y), scaled by sᵀy / yᵀy of the newest pair (Nocedal &amp;
     /// Wright Algorithm 7.4), with the same strong Wolfe line search as <see cref="Bfgs{TObjective}"/>. Pairs with
-    /// sᵀy ≤ 0 are not stored; on a failed line search the history is cleared and steepest descent tried once.
+    /// sᵀy ≤ 0 are not stored; on a failed line search, or a step test met by a quasi-Newton step, the history is
+    /// cleared and the iteration goes on from steepest descent.
     /// O(mn) work and memory per iteration, so it suits large n.
     /// </summary>
     /// <param name="objective">The function to minimise.</param>
@@ -490,6 +502,7 @@ public static class Minimize
             }
 
             double alpha1 = stored == 0 ? Math.Min(1, 1 / DenseMath.MaxAbs(g)) : 1;
+            bool stepFromIdentity = stored == 0;
             var outcome = LineSearch.StrongWolfe(objective, x, f, d, slope, alpha1, trial, trialGradient, point, pointGradient, s, ref counters, out double alpha, out double fNew);
             if (outcome == SearchOutcome.Failed && stored > 0)
             {
@@ -522,6 +535,13 @@ public static class Minimize
 
             iteration++;
             var stop = AfterStep(x, point, ref f, fNew, g, pointGradient, alpha, 0, iteration, counters, s, ref observer);
+            if (stop == StopReason.StepSmall && !stepFromIdentity)
+            {
+                // As in BFGS: clear the history once before believing the step test.
+                stored = 0;
+                continue;
+            }
+
             if (stop is { } reason)
             {
                 return Result(f, DenseMath.MaxAbs(g), iteration, counters, reason);
