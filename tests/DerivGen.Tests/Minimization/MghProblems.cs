@@ -84,6 +84,20 @@ internal static class MghProblems
                 $"x{4 * k + 1} + 10 * x{4 * k + 2}", $"Math.Sqrt(5) * (x{4 * k + 3} - x{4 * k + 4})",
                 $"(x{4 * k + 2} - 2 * x{4 * k + 3}) * (x{4 * k + 2} - 2 * x{4 * k + 3})", $"Math.Sqrt(10) * (x{4 * k + 1} - x{4 * k + 4}) * (x{4 * k + 1} - x{4 * k + 4})",
             }).ToArray(), Solution: new double[8]),
+        new(23, "Penalty I", 4, 5, new[] { 1.0, 2, 3, 4 }, new[] { 2.24997e-5 }, FromMemory + " (n = 4)",
+            Residuals: Enumerable.Range(1, 4).Select(j => $"Math.Sqrt(1e-5) * (x{j} - 1)").Append("x1 * x1 + x2 * x2 + x3 * x3 + x4 * x4 - 0.25").ToArray()),
+        new(24, "Penalty II", 4, 8, new[] { 0.5, 0.5, 0.5, 0.5 }, new[] { 9.37629e-6 }, FromMemory + " (n = 4)",
+            Residuals: new[] { "x1 - 0.2" }
+                .Concat(Enumerable.Range(2, 3).Select(i => $"Math.Sqrt(1e-5) * (Math.Exp(x{i} / 10) + Math.Exp(x{i - 1} / 10) - (Math.Exp({i} / 10.0) + Math.Exp({i - 1} / 10.0)))"))
+                .Concat(Enumerable.Range(5, 3).Select(i => $"Math.Sqrt(1e-5) * (Math.Exp(x{i - 3} / 10) - Math.Exp(-0.1))"))
+                .Append("4 * x1 * x1 + 3 * x2 * x2 + 2 * x3 * x3 + x4 * x4 - 1").ToArray()),
+        new(25, "Variably dimensioned", 8, 10, Enumerable.Range(1, 8).Select(j => 1 - (j / 8.0)).ToArray(), new[] { 0.0 }, FromMemory + " (n = 8)",
+            Residuals: Enumerable.Range(1, 8).Select(j => $"x{j} - 1")
+                .Append(string.Join(" + ", Enumerable.Range(1, 8).Select(j => $"{j} * (x{j} - 1)")))
+                .Append("(" + string.Join(" + ", Enumerable.Range(1, 8).Select(j => $"{j} * (x{j} - 1)")) + ") * (" + string.Join(" + ", Enumerable.Range(1, 8).Select(j => $"{j} * (x{j} - 1)")) + ")").ToArray(),
+            Solution: Repeat(new[] { 1.0 }, 8)),
+        new(32, "Linear function, full rank", 5, 10, Repeat(new[] { 1.0 }, 5), new[] { 5.0 }, "x0 from MGH 1981 (from memory); f* = m − n = 5 at x = (−1, …, −1) follows from the formula (the residuals are linear)",
+            Residuals: Enumerable.Range(1, 10).Select(i => (i <= 5 ? $"x{i} - " : "-") + "2.0 / 10 * (x1 + x2 + x3 + x4 + x5) - 1").ToArray()),
     };
 
     /// <summary>The minimisers compared, in table order.</summary>

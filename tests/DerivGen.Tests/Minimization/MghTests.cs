@@ -117,6 +117,11 @@ public sealed class MghTests : IClassFixture<MghFixture>
         [(21, 0)] = Slow,
         [(22, 0)] = Slow,
         [(22, 1)] = Slow,
+        [(23, 0)] = Slow,
+        [(23, 1)] = Slow,
+        [(24, 0)] = Slow,
+        [(24, 1)] = Slow,
+        [(25, 0)] = Slow,
     };
 
     private readonly MghFixture _fixture;
