@@ -586,6 +586,20 @@ internal static class DerivativeEmitter
         // the heap (the README states the policy).
         string element = names.Claim("k");
         string Length(int vector) => program.Vectors[vector] + ".Length";
+
+        // A vector's part of the gradient that is exactly one running-derivative span (factor 1) is accumulated in place:
+        // the span is that slice of the gradient, so there is no buffer to allocate and nothing to copy at the end.
+        var inGradient = new Dictionary<string, int>(StringComparer.Ordinal);
+        for (int v = 0; v < program.Vectors.Length; v++)
+        {
+            var terms = program.VectorGradient.Where(t => t.Vector == v).ToList();
+            if (terms.Count == 1 && terms[0].Index is null && terms[0].SourceSpan is { } span && terms[0].Coefficient.IsConstant(1)
+                && !inGradient.ContainsKey(span))
+            {
+                inGradient[span] = v;
+            }
+        }
+
         foreach (LoopSegment loop in program.Loops)
         {
             foreach (LoopState state in loop.States)
@@ -599,7 +613,10 @@ internal static class DerivativeEmitter
                 {
                     if (declared.Add(d.VectorNames[v]))
                     {
-                        writer.Line(SpanDeclaration(d.VectorNames[v], Length(v), context.Spec.ReturnType));
+                        writer.Line(inGradient.TryGetValue(d.VectorNames[v], out int slice)
+                            ? "global::System.Span<" + ExpressionWriter.TypeKeyword(context.Spec.ReturnType) + "> " + d.VectorNames[v] + " = "
+                                + context.GradientName + ".Slice(" + context.VectorOffset[slice] + ", " + Length(slice) + "); // accumulated in place"
+                            : SpanDeclaration(d.VectorNames[v], Length(v), context.Spec.ReturnType));
                     }
 
                     if (!UpdatesInPlace(loop, d, v) && declared.Add(d.VectorNames[v] + "Next"))
@@ -693,6 +710,12 @@ internal static class DerivativeEmitter
         for (int v = 0; v < program.Vectors.Length; v++)
         {
             string offset = context.VectorOffset[v] == "0" ? string.Empty : context.VectorOffset[v];
+            if (inGradient.FirstOrDefault(p => p.Value == v).Key is { } span)
+            {
+                writer.Line("// ∂" + context.BareName + "/∂" + Identifiers.Unescape(program.Vectors[v]) + "[…] is " + span + ", already in " + context.GradientName + ".");
+                continue;
+            }
+
             writer.Line(context.GradientName + ".Slice(" + context.VectorOffset[v] + ", " + Length(v) + ").Clear(); // ∂" + context.BareName + "/∂"
                 + Identifiers.Unescape(program.Vectors[v]) + "[…]");
             AddTerms(context.GradientName, offset, program.VectorGradient.Where(t => t.Vector == v), null);
