@@ -39,6 +39,12 @@ internal sealed class Accuracy
 
     public int FdHessianEvaluations { get; init; }
 
+    /// <summary>Calls whose allocation is counted (after one warm call) for each method that is not a finite difference.</summary>
+    public const int AllocationCalls = 8;
+
+    /// <summary>Bytes allocated per call on the calling thread (GC.GetAllocatedBytesForCurrentThread), by method.</summary>
+    public IReadOnlyDictionary<string, double> AllocatedBytesPerCall { get; init; } = new Dictionary<string, double>();
+
     /// <summary>True if every generated method returned exactly (bit for bit) the user's value.</summary>
     public bool? GeneratedValueBitExact { get; init; }
 
@@ -54,8 +60,25 @@ internal sealed class Accuracy
         }
 
         type.GetMethods().Single(m => m.GetCustomAttribute<GlobalSetupAttribute>() is not null).Invoke(bench, null);
+        var allocated = new Dictionary<string, double>(StringComparer.Ordinal);
 
-        double Call(string name) => (double)type.GetMethod(name)!.Invoke(bench, null)!;
+        // Each method once, as a delegate (no boxing), and its allocation per call on this thread, exactly: a warm call
+        // first, then the bytes of AllocationCalls calls (finite differences: one call, they are slow and allocate anyway).
+        double Call(string name)
+        {
+            var f = type.GetMethod(name)!.CreateDelegate<Func<double>>(bench);
+            bool slow = name.StartsWith("Fd", StringComparison.Ordinal);
+            double result = slow ? 0 : f();
+            int calls = slow ? 1 : AllocationCalls;
+            long before = GC.GetAllocatedBytesForCurrentThread();
+            for (int i = 0; i < calls; i++)
+            {
+                result = f();
+            }
+
+            allocated[name] = (GC.GetAllocatedBytesForCurrentThread() - before) / (double)calls;
+            return result;
+        }
 
         double value = Call("Value");
         bool? bitExact = null;
@@ -113,6 +136,7 @@ internal sealed class Accuracy
             FdGradientEvaluations = fdGradientEvaluations,
             FdHessianEvaluations = fdHessianEvaluations,
             GeneratedValueBitExact = bitExact,
+            AllocatedBytesPerCall = allocated,
         };
     }
 

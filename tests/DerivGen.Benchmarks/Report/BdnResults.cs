@@ -15,7 +15,11 @@ internal sealed record Measurement(
     double Q1Ns,
     double Q3Ns,
     int Iterations,
-    double? BytesAllocatedPerOperation);
+    double? BytesAllocatedPerOperation)
+{
+    /// <summary>The medians of the same benchmark in every round (set when rounds are combined).</summary>
+    public IReadOnlyList<double> RoundMedians { get; init; } = Array.Empty<double>();
+}
 
 /// <summary>The machine BenchmarkDotNet ran on (its HostEnvironmentInfo).</summary>
 internal sealed record Machine(
@@ -26,9 +30,32 @@ internal sealed record Machine(
     string Runtime,
     string BenchmarkDotNet);
 
-/// <summary>Reads the <c>*-report-full.json</c> files of a BenchmarkDotNet results folder.</summary>
+/// <summary>Reads the <c>*-report-full.json</c> files of BenchmarkDotNet results folders.</summary>
 internal static class BdnResults
 {
+    /// <summary>
+    /// Reads one results folder per round and combines the rounds: for each benchmark, the round with the smallest
+    /// median is kept (interference from other processes on a shared machine only ever adds time), and the medians of
+    /// all rounds are kept beside it to show the spread.
+    /// </summary>
+    public static (Machine Machine, List<Measurement> Measurements) ReadRounds(IReadOnlyList<string> resultsDirectories)
+    {
+        Machine? machine = null;
+        var all = new List<Measurement>();
+        foreach (string dir in resultsDirectories)
+        {
+            var (m, measurements) = Read(dir);
+            machine ??= m;
+            all.AddRange(measurements);
+        }
+
+        var combined = all
+            .GroupBy(m => (m.Type, m.Method, m.Parameters))
+            .Select(g => g.MinBy(m => m.MedianNs)! with { RoundMedians = g.Select(m => m.MedianNs).ToList() })
+            .ToList();
+        return (machine!, combined);
+    }
+
     public static (Machine Machine, List<Measurement> Measurements) Read(string resultsDirectory)
     {
         string[] files = Directory.GetFiles(resultsDirectory, "*-report-full.json", SearchOption.TopDirectoryOnly);

@@ -8,9 +8,10 @@ using BenchmarkDotNet.Running;
 namespace DerivGen.Benchmarks.Report;
 
 /// <summary>
-/// <c>report [--quick] [--filter GLOB] [--from RESULTS_DIR] [--out DIR]</c>: runs the corpus with BenchmarkDotNet
-/// (unless <c>--from</c> names the results folder of an earlier run), measures accuracy once per case, and writes
-/// RESULTS.md and cost-vs-n.svg into DIR (default: docs/benchmarks of the repository).
+/// <c>report [--quick] [--rounds R] [--filter GLOB] [--from ARTIFACTS_DIR] [--out DIR]</c>: runs the corpus with
+/// BenchmarkDotNet R times (rounds; default 2 with --quick, 1 without), unless <c>--from</c> names the artifacts folder
+/// of an earlier run; measures accuracy once per case; and writes RESULTS.md and cost-vs-n.svg into DIR (default:
+/// docs/benchmarks of the repository).
 /// </summary>
 internal static class ReportCommand
 {
@@ -25,6 +26,7 @@ internal static class ReportCommand
     public static int Run(string[] args)
     {
         bool quick = false;
+        int? rounds = null;
         string? glob = null, from = null, outDir = null;
         for (int i = 0; i < args.Length; i++)
         {
@@ -32,6 +34,10 @@ internal static class ReportCommand
             {
                 case "--quick":
                     quick = true;
+                    break;
+                case "--rounds" when i + 1 < args.Length && int.TryParse(args[i + 1], NumberStyles.None, CultureInfo.InvariantCulture, out int r) && r > 0:
+                    rounds = r;
+                    i++;
                     break;
                 case "--filter" when i + 1 < args.Length:
                     glob = args[++i];
@@ -43,17 +49,19 @@ internal static class ReportCommand
                     outDir = args[++i];
                     break;
                 default:
-                    Console.Error.WriteLine($"Unknown argument '{args[i]}'. Usage: report [--quick] [--filter GLOB] [--from RESULTS_DIR] [--out DIR]");
+                    Console.Error.WriteLine($"Unknown argument '{args[i]}'. Usage: report [--quick] [--rounds R] [--filter GLOB] [--from ARTIFACTS_DIR] [--out DIR]");
                     return 2;
             }
         }
 
         string root = RepositoryRoot();
         outDir ??= Path.Combine(root, "docs", "benchmarks");
-        string resultsDir = from ?? RunSuite(root, quick, glob);
+        rounds ??= quick ? 2 : 1;
+        IReadOnlyList<string> resultsDirs = from is null ? RunSuite(root, quick, rounds.Value, glob) : ResultsOf(from);
+        rounds = resultsDirs.Count;
 
         // With --from, pass --quick too if that run was a quick one (it only changes the report's wording).
-        var (machine, measurements) = BdnResults.Read(resultsDir);
+        var (machine, measurements) = BdnResults.ReadRounds(resultsDirs);
 
         var cases = new List<Case>();
         foreach (var group in measurements
@@ -70,9 +78,11 @@ internal static class ReportCommand
         }
 
         Directory.CreateDirectory(outDir);
-        string markdown = ReportWriter.Write(cases, machine, quick, DateTime.UtcNow, ChartFile);
+        string markdown = ReportWriter.Write(cases, machine, quick, rounds.Value, DateTime.UtcNow, ChartFile);
         File.WriteAllText(Path.Combine(outDir, "RESULTS.md"), markdown.Replace("\r\n", "\n", StringComparison.Ordinal));
-        string? svg = Chart(cases);
+        string runtime = string.Join(" ", machine.Runtime.Split(' ').Take(2));
+        string? svg = Chart(cases, string.Create(CultureInfo.InvariantCulture,
+            $"{machine.Processor}, {machine.LogicalCores} cores (shared), {runtime}, {DateTime.UtcNow:yyyy-MM-dd}{(quick ? ", quick job" : string.Empty)}; medians"));
         if (svg is not null)
         {
             File.WriteAllText(Path.Combine(outDir, ChartFile), svg);
@@ -82,18 +92,36 @@ internal static class ReportCommand
         return 0;
     }
 
-    /// <summary>Runs the corpus; returns the results folder holding the JSON reports.</summary>
-    private static string RunSuite(string root, bool quick, string? glob)
+    /// <summary>Runs the corpus <paramref name="rounds"/> times; returns the results folders holding the JSON reports.</summary>
+    private static IReadOnlyList<string> RunSuite(string root, bool quick, int rounds, string? glob)
     {
         string artifacts = Path.Combine(root, "BenchmarkDotNet.Artifacts", quick ? "report-quick" : "report-full");
-        string results = Path.Combine(artifacts, "results");
-        if (Directory.Exists(results))
+        if (Directory.Exists(artifacts))
         {
-            Directory.Delete(results, recursive: true);   // only this run's JSON may be read
+            Directory.Delete(artifacts, recursive: true);   // only this run's JSON may be read
         }
 
-        BenchmarkRunner.Run(Corpus, BenchConfig.Report(quick, artifacts, glob));
+        var results = new List<string>();
+        for (int round = 1; round <= rounds; round++)
+        {
+            Console.WriteLine($"Round {round} of {rounds}");
+            string roundDir = Path.Combine(artifacts, "round" + round.ToString(CultureInfo.InvariantCulture));
+            BenchmarkRunner.Run(Corpus, BenchConfig.Report(quick, roundDir, glob));
+            results.Add(Path.Combine(roundDir, "results"));
+        }
+
         return results;
+    }
+
+    /// <summary>The results folders of an earlier run: ARTIFACTS/round*/results, or ARTIFACTS itself.</summary>
+    private static IReadOnlyList<string> ResultsOf(string artifacts)
+    {
+        var rounds = Directory.GetDirectories(artifacts, "round*")
+            .Select(d => Path.Combine(d, "results"))
+            .Where(Directory.Exists)
+            .OrderBy(d => d, StringComparer.Ordinal)
+            .ToList();
+        return rounds.Count > 0 ? rounds : new[] { artifacts };
     }
 
     /// <summary>
@@ -113,7 +141,7 @@ internal static class ReportCommand
         }
     }
 
-    private static string? Chart(IReadOnlyList<Case> cases)
+    private static string? Chart(IReadOnlyList<Case> cases, string subtitle)
     {
         var rosen = cases.Where(c => c.Type == typeof(ExtendedRosenbrockBenchmark)).OrderBy(c => c.N).ToList();
         if (rosen.Count < 2)
@@ -131,8 +159,27 @@ internal static class ReportCommand
             Line("hand-written gradient", "#2ca02c", "HandWrittenGradient"),
             Line("central differences", "#d62728", "FdGradient"),
         }.Where(s => s.Points.Count > 0).ToList();
-        return SvgChart.LogLog("Extended Rosenbrock: median time per call", "n (variables)", "time per call", series,
-            ns => ReportWriter.Time(ns));
+        return SvgChart.LogLog(
+            "Extended Rosenbrock: median time per call",
+            subtitle,
+            "n (variables)",
+            "time per call (log scale)",
+            series,
+            ns => ReportWriter.Time(ns),
+            Tick);
+    }
+
+    /// <summary>A decade tick in nanoseconds as "1 ns", "10 μs", "100 ms".</summary>
+    private static string Tick(double ns)
+    {
+        (double scale, string unit) = ns switch
+        {
+            < 1e3 => (1.0, "ns"),
+            < 1e6 => (1e3, "μs"),
+            < 1e9 => (1e6, "ms"),
+            _ => (1e9, "s"),
+        };
+        return (ns / scale).ToString("0.###", CultureInfo.InvariantCulture) + " " + unit;
     }
 
     private static string SortKey(string parameters) =>

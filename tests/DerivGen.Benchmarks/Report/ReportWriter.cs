@@ -23,6 +23,9 @@ internal sealed class Case
 
     public double? Median(string method) => Methods.TryGetValue(method, out Measurement? m) ? m.MedianNs : null;
 
+    /// <summary>Bytes allocated per call, counted exactly on the calling thread by the accuracy pass.</summary>
+    public double? Allocated(string method) => Accuracy.AllocatedBytesPerCall.TryGetValue(method, out double b) ? b : null;
+
     public double? Ratio(string method, string over) =>
         Median(method) is double a && Median(over) is double b && b > 0 ? a / b : null;
 
@@ -104,7 +107,7 @@ internal static class ReportWriter
 {
     private static readonly CultureInfo Inv = CultureInfo.InvariantCulture;
 
-    public static string Write(IReadOnlyList<Case> cases, Machine machine, bool quick, DateTime date, string chartFile)
+    public static string Write(IReadOnlyList<Case> cases, Machine machine, bool quick, int rounds, DateTime date, string chartFile)
     {
         var md = new StringBuilder();
         md.Append("# DerivGen benchmark results\n\n");
@@ -113,12 +116,17 @@ internal static class ReportWriter
         md.Append(Inv, $"- **Machine:** {machine.Processor}; {Cores(machine)}; {machine.Os}\n");
         md.Append(Inv, $"- **Runtime:** {machine.Runtime}; BenchmarkDotNet {machine.BenchmarkDotNet}, MemoryDiagnoser\n");
         md.Append(quick
-            ? "- **Job:** quick (`--quick`): in process, 2 warm-up and 7 measured iterations of about 100 ms each per benchmark. Indicative figures.\n"
-            : "- **Job:** full: BenchmarkDotNet's default job, one process per benchmark.\n");
-        md.Append("- **Noise:** the build machine's 2 cores are shared with other engineers' builds and tests while this runs, so " +
-                  "single figures can be off by tens of percent; the IQR column shows each benchmark's spread. Ratios of " +
-                  "methods measured next to each other are more stable than absolute times, but re-run before trusting a " +
-                  "difference under about 20 %.\n");
+            ? "- **Job:** quick (`--quick`): in process, 2 warm-up and 5 measured iterations of about 25 ms each per benchmark. Indicative figures.\n"
+            : "- **Job:** full: BenchmarkDotNet's default iteration counts and times, in process.\n");
+        md.Append(ThreadCpuClock.Instance.IsAvailable
+            ? "- **Clock:** the benchmark thread's CPU time (`clock_gettime(CLOCK_THREAD_CPUTIME_ID)`), not wall-clock time, so that time spent waiting for a shared core is not counted (see Noise).\n"
+            : "- **Clock:** wall-clock time (BenchmarkDotNet's default; the thread CPU-time clock is available on Linux only).\n");
+        md.Append(Inv, $"- **Rounds:** the whole corpus ran {rounds} time(s) one after the other; each figure is the smallest of the rounds' medians (other processes can only add time), and the spread column shows how far the rounds' medians lie apart.\n");
+        md.Append("- **Noise:** the build machine's 2 cores are shared with other engineers' builds and tests while this runs " +
+                  "(often several processes per core). CPU time removes most of that, but caches and memory bandwidth are " +
+                  "shared too, so single figures can still be off by tens of percent, and more for calls of a few " +
+                  "nanoseconds. Ratios of methods measured next to each other are more stable than absolute times; " +
+                  "re-run before trusting a difference under about 20 %.\n");
         md.Append("- **What is quoted:** medians of the measured iterations, and ratios of medians within one loss (same run, same " +
                   "data, same point). All data and points are invented.\n\n");
 
@@ -130,9 +138,11 @@ internal static class ReportWriter
         WriteChartTable(md, cases);
 
         md.Append("## Per loss\n\n");
-        md.Append("Columns: median time per call; its interquartile range relative to the median (spread); the ratio to the " +
+        md.Append("Columns: median time per call; the spread (largest minus smallest median of the rounds, relative to the " +
+                  "smallest; with one round, the interquartile range of the iterations relative to the median); the ratio to the " +
                   "value method; the ratio to what the row is compared with (generated → hand-written, finite " +
-                  "differences → generated, or hand-written where nothing is generated); bytes allocated per call; and " +
+                  "differences → generated, or hand-written where nothing is generated); bytes allocated per call (counted exactly " +
+                  "on the calling thread, see below); and " +
                   "correct digits against that reference.\n\n");
         foreach (var group in cases.GroupBy(c => c.Type))
         {
@@ -161,7 +171,7 @@ internal static class ReportWriter
             string digits = $"{Digits(c.Accuracy.FdGradient)}, {Digits(c.Accuracy.FdHessian)}";
             var allocated = new[] { "GeneratedGradient", "GeneratedHessian" }
                 .Where(c.Methods.ContainsKey)
-                .Select(m => Bytes(c.Methods[m].BytesAllocatedPerOperation));
+                .Select(m => Bytes(c.Allocated(m)));
             md.Append(Inv, $"| {c.Title} | {c.N} | {Opt(c.Ratio("GeneratedGradient", "Value"))} | {Opt(c.Ratio("GeneratedGradient", "HandWrittenGradient"))} | {hessValue} | {hessHand} | {fdGrad} | {digits} | {string.Join(" / ", allocated)} |\n");
         }
 
@@ -205,8 +215,8 @@ internal static class ReportWriter
 
         var allocating = cases.SelectMany(c => new[] { "GeneratedGradient", "GeneratedHessian" }
                 .Where(c.Methods.ContainsKey)
-                .Where(m => (c.Methods[m].BytesAllocatedPerOperation ?? 0) > 0)
-                .Select(m => $"{c.Title} ({Describe.Short(m)} {(m.EndsWith("Hessian", StringComparison.Ordinal) ? "Hessian" : "gradient")}: {Bytes(c.Methods[m].BytesAllocatedPerOperation)})"))
+                .Where(m => (c.Allocated(m) ?? 0) > 0)
+                .Select(m => $"{c.Title} ({Describe.Short(m)} {(m.EndsWith("Hessian", StringComparison.Ordinal) ? "Hessian" : "gradient")}: {Bytes(c.Allocated(m))})"))
             .ToList();
         md.Append(Inv, $"| 0 bytes allocated per call by every generated method | {(allocating.Count == 0 ? "0 B everywhere" : string.Join("; ", allocating))} | {Met(allocating.Count == 0)} |\n");
 
@@ -254,7 +264,7 @@ internal static class ReportWriter
     private static void WriteCase(StringBuilder md, Case c, bool quick)
     {
         md.Append(Inv, $"#### {c.Title} (n = {c.N})\n\n");
-        md.Append("| Method | median | spread (IQR) | × value | compared with | allocated | correct digits |\n");
+        md.Append("| Method | median | spread | × value | compared with | allocated | correct digits |\n");
         md.Append("| --- | ---: | ---: | ---: | --- | ---: | --- |\n");
         var notes = new List<string>();
         foreach (string method in LossBenchmark.MethodNames)
@@ -270,12 +280,14 @@ internal static class ReportWriter
                 continue;
             }
 
-            string spread = m.MedianNs > 0 ? Pct((m.Q3Ns - m.Q1Ns) / m.MedianNs) : "—";
+            string spread = m.RoundMedians.Count > 1
+                ? Pct((m.RoundMedians.Max() - m.RoundMedians.Min()) / m.RoundMedians.Min())
+                : m.MedianNs > 0 ? Pct((m.Q3Ns - m.Q1Ns) / m.MedianNs) : "—";
             string times = method == "Value" ? "1" : Opt(c.Ratio(method, "Value"));
             string compared = c.Reference(method) is string r && c.Ratio(method, r) is double ratio
                 ? $"{X(ratio)} {Describe.Short(r)}"
                 : string.Empty;
-            md.Append(Inv, $"| {Describe.Method(method)} | {Time(m.MedianNs)} | {spread} | {times} | {compared} | {Bytes(m.BytesAllocatedPerOperation)} | {DigitsCell(c, method)} |\n");
+            md.Append(Inv, $"| {Describe.Method(method)} | {Time(m.MedianNs)} | {spread} | {times} | {compared} | {Bytes(c.Allocated(method))} | {DigitsCell(c, method)} |\n");
         }
 
         md.Append('\n');
@@ -339,6 +351,10 @@ internal static class ReportWriter
                   "DerivGen would call them; they allocate their result arrays, as the library does.\n");
         md.Append("- Correct digits are normwise: −log10(max|approx − reference| / max|reference|), computed once per case " +
                   "outside the timed region; \"identical\" means bit-for-bit equal results.\n");
+        md.Append("- Allocation: `GC.GetAllocatedBytesForCurrentThread()` around " + Accuracy.AllocationCalls.ToString(Inv) + " warm calls of each method " +
+                  "(one call of the finite differences), outside BenchmarkDotNet, so the count is exact. BenchmarkDotNet's " +
+                  "MemoryDiagnoser figures are in the JSON and CSV it exports (under `BenchmarkDotNet.Artifacts/`); in process " +
+                  "they can include a few bytes per call of the runtime's own background allocations.\n");
         md.Append("- Regenerate with `scripts/bench-report.sh --quick` (a few minutes) or `scripts/bench-report.sh` (the " +
                   "full job; an hour or more on 2 cores).\n");
     }

@@ -22,7 +22,7 @@ internal static class SvgChart
     private const int Top = 48;
     private const int Bottom = 56;
 
-    public static string LogLog(string title, string xLabel, string yLabel, IReadOnlyList<Series> series, Func<double, string> formatY)
+    public static string LogLog(string title, string subtitle, string xLabel, string yLabel, IReadOnlyList<Series> series, Func<double, string> formatY, Func<double, string> formatYTick)
     {
         var points = series.SelectMany(s => s.Points).ToList();
         if (points.Count == 0)
@@ -51,7 +51,8 @@ internal static class SvgChart
         var svg = new StringBuilder();
         svg.Append(CultureInfo.InvariantCulture, $"<svg xmlns=\"http://www.w3.org/2000/svg\" width=\"{Width}\" height=\"{Height}\" viewBox=\"0 0 {Width} {Height}\" font-family=\"sans-serif\" font-size=\"12\">\n");
         svg.Append(CultureInfo.InvariantCulture, $"  <rect x=\"0\" y=\"0\" width=\"{Width}\" height=\"{Height}\" fill=\"white\"/>\n");
-        svg.Append(CultureInfo.InvariantCulture, $"  <text x=\"{Left + (plotW / 2)}\" y=\"24\" text-anchor=\"middle\" font-size=\"15\" font-weight=\"bold\">{Escape(title)}</text>\n");
+        svg.Append(CultureInfo.InvariantCulture, $"  <text x=\"{Left + (plotW / 2)}\" y=\"20\" text-anchor=\"middle\" font-size=\"15\" font-weight=\"bold\">{Escape(title)}</text>\n");
+        svg.Append(CultureInfo.InvariantCulture, $"  <text x=\"{Left + (plotW / 2)}\" y=\"38\" text-anchor=\"middle\" font-size=\"11\" fill=\"#555555\">{Escape(subtitle)}</text>\n");
 
         // Decade grid and tick labels.
         for (double e = xMin; e <= xMax + 1e-9; e++)
@@ -65,7 +66,7 @@ internal static class SvgChart
         {
             double y = Py(Math.Pow(10, e));
             svg.Append(CultureInfo.InvariantCulture, $"  <line x1=\"{Left}\" y1=\"{F(y)}\" x2=\"{Left + plotW}\" y2=\"{F(y)}\" stroke=\"#dddddd\"/>\n");
-            svg.Append(CultureInfo.InvariantCulture, $"  <text x=\"{Left - 8}\" y=\"{F(y + 4)}\" text-anchor=\"end\">{Escape(formatY(Math.Pow(10, e)))}</text>\n");
+            svg.Append(CultureInfo.InvariantCulture, $"  <text x=\"{Left - 8}\" y=\"{F(y + 4)}\" text-anchor=\"end\">{Escape(formatYTick(Math.Pow(10, e)))}</text>\n");
         }
 
         svg.Append(CultureInfo.InvariantCulture, $"  <rect x=\"{Left}\" y=\"{Top}\" width=\"{plotW}\" height=\"{plotH}\" fill=\"none\" stroke=\"#444444\"/>\n");
