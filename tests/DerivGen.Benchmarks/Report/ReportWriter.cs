@@ -118,6 +118,7 @@ internal static class ReportWriter
         md.Append(quick
             ? "- **Job:** quick (`--quick`): in process, 2 warm-up and 5 measured iterations of about 25 ms each per benchmark. Indicative figures.\n"
             : "- **Job:** full: BenchmarkDotNet's default iteration counts and times, in process.\n");
+        md.Append("- **JIT:** tiered compilation off (`<TieredCompilation>false</TieredCompilation>` in the benchmark project): every method runs fully optimised from its first call, so short in-process iterations never measure unoptimised code.\n");
         md.Append(ThreadCpuClock.Instance.IsAvailable
             ? "- **Clock:** the benchmark thread's CPU time (`clock_gettime(CLOCK_THREAD_CPUTIME_ID)`), not wall-clock time, so that time spent waiting for a shared core is not counted (see Noise).\n"
             : "- **Clock:** wall-clock time (BenchmarkDotNet's default; the thread CPU-time clock is available on Linux only).\n");
