@@ -62,6 +62,9 @@ internal static class ReportCommand
 
         // With --from, pass --quick too if that run was a quick one (it only changes the report's wording).
         var (machine, measurements) = BdnResults.ReadRounds(resultsDirs);
+        DateTime measured = from is null
+            ? DateTime.UtcNow
+            : resultsDirs.SelectMany(d => Directory.GetFiles(d, "*.json")).Max(File.GetLastWriteTimeUtc);
 
         var cases = new List<Case>();
         foreach (var group in measurements
@@ -78,11 +81,11 @@ internal static class ReportCommand
         }
 
         Directory.CreateDirectory(outDir);
-        string markdown = ReportWriter.Write(cases, machine, quick, rounds.Value, DateTime.UtcNow, ChartFile);
+        string markdown = ReportWriter.Write(cases, machine, quick, rounds.Value, measured, ChartFile);
         File.WriteAllText(Path.Combine(outDir, "RESULTS.md"), markdown.Replace("\r\n", "\n", StringComparison.Ordinal));
         string runtime = string.Join(" ", machine.Runtime.Split(' ').Take(2));
         string? svg = Chart(cases, string.Create(CultureInfo.InvariantCulture,
-            $"{machine.Processor}, {machine.LogicalCores} cores (shared), {runtime}, {DateTime.UtcNow:yyyy-MM-dd}{(quick ? ", quick job" : string.Empty)}; medians"));
+            $"{machine.Processor}, {machine.LogicalCores} cores (shared), {runtime}, {measured:yyyy-MM-dd}{(quick ? ", quick job" : string.Empty)}; medians"));
         if (svg is not null)
         {
             File.WriteAllText(Path.Combine(outDir, ChartFile), svg);

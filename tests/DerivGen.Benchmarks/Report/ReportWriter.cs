@@ -62,9 +62,9 @@ internal static class Describe
         nameof(RosenbrockBenchmark) => "straight-line code, 2 scalar variables",
         nameof(TrigExpBenchmark) => "straight-line code with sin, cos, exp, log and tanh, 3 scalar variables",
         nameof(DecayFitBenchmark) => "a sum over 10,000 data points, 3 scalar variables",
-        nameof(LogisticBenchmark) => "10,000 samples, a scalar bias and a vector of weights (double[]), nested loop",
+        nameof(LogisticBenchmark) => "10,000 samples, a scalar bias and a vector of weights (`double[]`), nested loop",
         nameof(TanhNetBenchmark) => "1,000 samples, 4 inputs, 8 hidden units: 49 weights in one vector variable, triply nested loop",
-        nameof(ExtendedRosenbrockBenchmark) => "one vector variable (ReadOnlySpan<double>), a loop over pairs",
+        nameof(ExtendedRosenbrockBenchmark) => "one vector variable (`ReadOnlySpan<double>`), a loop over pairs",
         nameof(TrajectoryBenchmark) => "a recurrence: 200 explicit Euler steps of a projectile with quadratic drag, 3 scalar variables",
         nameof(HuberBenchmark) => "10,000 samples, a vector of 8 coefficients, a branch (|r| ≤ δ) per sample",
         _ => string.Empty,
@@ -162,8 +162,8 @@ internal static class ReportWriter
     private static void WriteSummary(StringBuilder md, IReadOnlyList<Case> cases)
     {
         md.Append("## Summary\n\n");
-        md.Append("| Loss | n | gradient / value | generated / hand-written gradient | Hessian / value | generated / hand-written Hessian | FD / generated gradient | FD digits (gradient, Hessian) | allocated by generated |\n");
-        md.Append("| --- | ---: | ---: | ---: | ---: | ---: | ---: | --- | --- |\n");
+        md.Append("| Loss | n | generated gradient / value | hand-written gradient / value | generated / hand-written gradient | generated Hessian / value | generated / hand-written Hessian | FD / generated gradient | FD digits (gradient, Hessian) | allocated by generated (gradient / Hessian) |\n");
+        md.Append("| --- | ---: | ---: | ---: | ---: | ---: | ---: | ---: | --- | --- |\n");
         foreach (Case c in cases)
         {
             string hessValue = c.Ratio("GeneratedHessian", "Value") is double hv ? X(hv) : "—";
@@ -173,7 +173,7 @@ internal static class ReportWriter
             var allocated = new[] { "GeneratedGradient", "GeneratedHessian" }
                 .Where(c.Methods.ContainsKey)
                 .Select(m => Bytes(c.Allocated(m)));
-            md.Append(Inv, $"| {c.Title} | {c.N} | {Opt(c.Ratio("GeneratedGradient", "Value"))} | {Opt(c.Ratio("GeneratedGradient", "HandWrittenGradient"))} | {hessValue} | {hessHand} | {fdGrad} | {digits} | {string.Join(" / ", allocated)} |\n");
+            md.Append(Inv, $"| {c.Title} | {c.N} | {Opt(c.Ratio("GeneratedGradient", "Value"))} | {Opt(c.Ratio("HandWrittenGradient", "Value"))} | {Opt(c.Ratio("GeneratedGradient", "HandWrittenGradient"))} | {hessValue} | {hessHand} | {fdGrad} | {digits} | {string.Join(" / ", allocated)} |\n");
         }
 
         md.Append("\n\"—\": not measured; a generated Hessian is missing for every loss with a vector variable (see the notes " +
@@ -264,7 +264,7 @@ internal static class ReportWriter
 
     private static void WriteCase(StringBuilder md, Case c, bool quick)
     {
-        md.Append(Inv, $"#### {c.Title} (n = {c.N})\n\n");
+        md.Append(Inv, $"#### {c.Title}{(c.Title.Contains("n =", StringComparison.Ordinal) ? string.Empty : $" (n = {c.N})")}\n\n");
         md.Append("| Method | median | spread | × value | compared with | allocated | correct digits |\n");
         md.Append("| --- | ---: | ---: | ---: | --- | ---: | --- |\n");
         var notes = new List<string>();
