@@ -4,7 +4,7 @@
 #
 #   scripts/bench-report.sh --quick      a few minutes on 2 cores: in process, short iterations, 2 rounds,
 #                                        no finite-difference Hessians of the two ~50-variable data losses
-#   scripts/bench-report.sh              the full job (BenchmarkDotNet default iterations, in process): an hour or more
+#   scripts/bench-report.sh              the full job (BenchmarkDotNet default iterations, in process): about two hours
 #
 # Other arguments go to the report command: --rounds R, --filter GLOB (BenchmarkDotNet glob on Type.Method),
 # --from ARTIFACTS_DIR (rewrite the report from an earlier run's results without measuring), --out DIR.

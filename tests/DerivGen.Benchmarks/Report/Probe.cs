@@ -38,6 +38,7 @@ internal static class Probe
                 Accuracy a = Accuracy.Measure(type, parameters, methods);
                 Console.WriteLine($"{type.Name} {string.Join(",", parameters.Select(kv => kv.Key + "=" + kv.Value))} n={a.VariableCount} (accuracy pass {sw.Elapsed.TotalSeconds:0.0} s)");
                 Console.WriteLine($"  digits: gen~hand grad {a.GeneratedVsHandWrittenGradient:0.0}, gen~hand Hess {a.GeneratedVsHandWrittenHessian:0.0}, FD grad {a.FdGradient:0.0} ({a.FdGradientEvaluations} evals), FD Hess {a.FdHessian:0.0} vs {a.FdHessianReference} ({a.FdHessianEvaluations} evals), value bit-exact {a.GeneratedValueBitExact}");
+                Console.WriteLine("  allocated per call: " + string.Join(", ", a.AllocatedBytesPerCall.Select(kv => $"{kv.Key} {kv.Value.ToString("0.#", CultureInfo.InvariantCulture)} B")));
                 Time(type, parameters, methods);
             }
         }

@@ -122,7 +122,9 @@ internal static class ReportWriter
         md.Append(ThreadCpuClock.Instance.IsAvailable
             ? "- **Clock:** the benchmark thread's CPU time (`clock_gettime(CLOCK_THREAD_CPUTIME_ID)`), not wall-clock time, so that time spent waiting for a shared core is not counted (see Noise).\n"
             : "- **Clock:** wall-clock time (BenchmarkDotNet's default; the thread CPU-time clock is available on Linux only).\n");
-        md.Append(Inv, $"- **Rounds:** the whole corpus ran {rounds} time(s) one after the other; each figure is the smallest of the rounds' medians (other processes can only add time), and the spread column shows how far the rounds' medians lie apart.\n");
+        md.Append(rounds > 1
+            ? string.Create(Inv, $"- **Rounds:** the whole corpus ran {rounds} times one after the other; each figure is the smallest of the rounds' medians (other processes can only add time), and the spread column shows how far the rounds' medians lie apart.\n")
+            : "- **Rounds:** one; the spread column is the interquartile range of the measured iterations relative to their median.\n");
         md.Append("- **Noise:** the build machine's 2 cores are shared with other engineers' builds and tests while this runs " +
                   "(often several processes per core). CPU time removes most of that, but caches and memory bandwidth are " +
                   "shared too, so single figures can still be off by tens of percent, and more for calls of a few " +
@@ -353,11 +355,11 @@ internal static class ReportWriter
         md.Append("- Correct digits are normwise: −log10(max|approx − reference| / max|reference|), computed once per case " +
                   "outside the timed region; \"identical\" means bit-for-bit equal results.\n");
         md.Append("- Allocation: `GC.GetAllocatedBytesForCurrentThread()` around " + Accuracy.AllocationCalls.ToString(Inv) + " warm calls of each method " +
-                  "(one call of the finite differences), outside BenchmarkDotNet, so the count is exact. BenchmarkDotNet's " +
+                  "(the least of three such batches; one call of the finite differences), outside BenchmarkDotNet, so the count is exact. BenchmarkDotNet's " +
                   "MemoryDiagnoser figures are in the JSON and CSV it exports (under `BenchmarkDotNet.Artifacts/`); in process " +
                   "they can include a few bytes per call of the runtime's own background allocations.\n");
         md.Append("- Regenerate with `scripts/bench-report.sh --quick` (a few minutes) or `scripts/bench-report.sh` (the " +
-                  "full job; an hour or more on 2 cores).\n");
+                  "full job; about two hours on 2 cores).\n");
     }
 
     private static string Cores(Machine m) =>
