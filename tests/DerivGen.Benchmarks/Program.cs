@@ -1,6 +1,21 @@
-using BenchmarkDotNet.Configs;
+using System;
 using BenchmarkDotNet.Running;
+using DerivGen.Benchmarks;
+using DerivGen.Benchmarks.Report;
 
-// `dotnet run -c Release --project tests/DerivGen.Benchmarks -- --filter '*'` runs everything; add `--job short` for a
-// quick run (a few minutes on 2 cores). Ratios are against each class's Value() baseline, measured in the same run.
-BenchmarkSwitcher.FromAssembly(typeof(DerivGen.Benchmarks.Losses).Assembly).Run(args, DefaultConfig.Instance);
+// dotnet run -c Release --project tests/DerivGen.Benchmarks -- report [--quick]     the report (docs/benchmarks/)
+// dotnet run -c Release --project tests/DerivGen.Benchmarks -- probe                 accuracy and rough times, no BDN
+// dotnet run -c Release --project tests/DerivGen.Benchmarks -- --filter '*Huber*'    plain BenchmarkDotNet runs
+// Ratios are against each class's Value() baseline, measured in the same run. See DEVELOPERS.md.
+if (args.Length > 0 && args[0] == "report")
+{
+    return ReportCommand.Run(args[1..]);
+}
+
+if (args.Length > 0 && args[0] == "probe")
+{
+    return Probe.Run(args[1..]);
+}
+
+BenchmarkSwitcher.FromAssembly(typeof(Losses).Assembly).Run(args, BenchConfig.Interactive());
+return 0;
