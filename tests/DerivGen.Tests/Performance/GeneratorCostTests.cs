@@ -289,11 +289,14 @@ public sealed class GeneratorCostTests : IClassFixture<TwoHundredMethodsFixture>
     private static double StepSeconds(GeneratorRunResult result, string step) =>
         result.TrackedSteps[step].Sum(r => r.ElapsedTime.TotalSeconds);
 
-    /// <summary>The hint name carried by a Lower output (MethodSpec.HintName) or an Emit output (the generator's
-    /// private file record's HintName).</summary>
-    private static string HintNameOf(object emitOutput) =>
-        emitOutput.GetType().GetProperty("HintName")?.GetValue(emitOutput) as string
-        ?? throw new InvalidOperationException($"An Emit output of type {emitOutput.GetType().Name} has no HintName.");
+    /// <summary>The hint name carried by a Lower output (its lowering result's Spec.HintName) or an Emit output (the
+    /// generator's private file record's HintName).</summary>
+    private static string HintNameOf(object output)
+    {
+        object carrier = output.GetType().GetProperty("Spec")?.GetValue(output) ?? output;
+        return carrier.GetType().GetProperty("HintName")?.GetValue(carrier) as string
+            ?? throw new InvalidOperationException($"An output of type {output.GetType().Name} has no HintName.");
+    }
 
     private static string Describe(IEnumerable<IncrementalStepRunReason> reasons) =>
         string.Join(", ", reasons.GroupBy(r => r).OrderBy(g => g.Key).Select(g => $"{g.Count()} {g.Key}"));
