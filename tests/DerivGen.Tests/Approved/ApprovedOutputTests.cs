@@ -110,6 +110,29 @@ public sealed class ApprovedOutputTests
         """).Source("Samples.Fitting.Decay.HalfSquaredError.g.cs"));
 
     [Fact]
+    public void Call() => Approvals.Verify(nameof(Call), GeneratorHarness.Run("""
+        using System;
+        using DerivGen;
+
+        namespace Samples.Calls;
+
+        public static partial class Growth
+        {
+            // A logistic growth model, differentiated on its own.
+            [Differentiate(nameof(k), nameof(r))]
+            public static double Model(double k, double r, double t) => k / (1 + Math.Exp(-r * t));
+
+            // A loss that calls the model: differentiated through the model's own generated derivatives.
+            [Differentiate(nameof(k), nameof(r))]
+            public static double Misfit(double k, double r, double t, double y)
+            {
+                double e = Model(k, r, t) - y;
+                return e * e;
+            }
+        }
+        """).Source("Samples.Calls.Growth.Misfit.g.cs"));
+
+    [Fact]
     public void Branch() => Approvals.Verify(nameof(Branch), GeneratorHarness.Run("""
         using System;
         using DerivGen;
