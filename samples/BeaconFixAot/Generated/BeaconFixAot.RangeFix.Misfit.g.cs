@@ -11,6 +11,12 @@
 //       dSum_dX ← 2·(residual/sqrt(dx·dx + dy·dy)·dx) + dSum_dX   (∂sum/∂x)
 //       dSum_dY ← 2·(residual/sqrt(dx·dx + dy·dy)·dy) + dSum_dY   (∂sum/∂y)
 //       dSum_dBias ← 2·residual + dSum_dBias   (∂sum/∂bias)
+//       d2Sum_dX2 ← 2·(dx·(dx/sqrt(dx·dx + dy·dy)/sqrt(dx·dx + dy·dy) - residual/sqrt(dx·dx + dy·dy)/sqrt(dx·dx + dy·dy)·(dx/sqrt(dx·dx + dy·dy))) + residual/sqrt(dx·dx + dy·dy)) + d2Sum_dX2   (∂²sum/∂x²)
+//       d2Sum_dYdX ← 2·(dy·(dx/sqrt(dx·dx + dy·dy)/sqrt(dx·dx + dy·dy) - residual/sqrt(dx·dx + dy·dy)/sqrt(dx·dx + dy·dy)·(dx/sqrt(dx·dx + dy·dy)))) + d2Sum_dYdX   (∂²sum/∂y∂x)
+//       d2Sum_dY2 ← 2·(dy·(dy/sqrt(dx·dx + dy·dy)/sqrt(dx·dx + dy·dy) - residual/sqrt(dx·dx + dy·dy)/sqrt(dx·dx + dy·dy)·(dy/sqrt(dx·dx + dy·dy))) + residual/sqrt(dx·dx + dy·dy)) + d2Sum_dY2   (∂²sum/∂y²)
+//       d2Sum_dBiasdX ← 2·(dx/sqrt(dx·dx + dy·dy)) + d2Sum_dBiasdX   (∂²sum/∂bias∂x)
+//       d2Sum_dBiasdY ← 2·(dy/sqrt(dx·dx + dy·dy)) + d2Sum_dBiasdY   (∂²sum/∂bias∂y)
+//       d2Sum_dBias2 ← 2 + d2Sum_dBias2   (∂²sum/∂bias²)
 //   Misfit = sum
 //
 //   ∂Misfit/∂x = dSum_dX
@@ -106,6 +112,12 @@ namespace BeaconFixAot
         ///     dSum_dX ← 2·(residual/sqrt(dx·dx + dy·dy)·dx) + dSum_dX   (∂sum/∂x)
         ///     dSum_dY ← 2·(residual/sqrt(dx·dx + dy·dy)·dy) + dSum_dY   (∂sum/∂y)
         ///     dSum_dBias ← 2·residual + dSum_dBias   (∂sum/∂bias)
+        ///     d2Sum_dX2 ← 2·(dx·(dx/sqrt(dx·dx + dy·dy)/sqrt(dx·dx + dy·dy) - residual/sqrt(dx·dx + dy·dy)/sqrt(dx·dx + dy·dy)·(dx/sqrt(dx·dx + dy·dy))) + residual/sqrt(dx·dx + dy·dy)) + d2Sum_dX2   (∂²sum/∂x²)
+        ///     d2Sum_dYdX ← 2·(dy·(dx/sqrt(dx·dx + dy·dy)/sqrt(dx·dx + dy·dy) - residual/sqrt(dx·dx + dy·dy)/sqrt(dx·dx + dy·dy)·(dx/sqrt(dx·dx + dy·dy)))) + d2Sum_dYdX   (∂²sum/∂y∂x)
+        ///     d2Sum_dY2 ← 2·(dy·(dy/sqrt(dx·dx + dy·dy)/sqrt(dx·dx + dy·dy) - residual/sqrt(dx·dx + dy·dy)/sqrt(dx·dx + dy·dy)·(dy/sqrt(dx·dx + dy·dy))) + residual/sqrt(dx·dx + dy·dy)) + d2Sum_dY2   (∂²sum/∂y²)
+        ///     d2Sum_dBiasdX ← 2·(dx/sqrt(dx·dx + dy·dy)) + d2Sum_dBiasdX   (∂²sum/∂bias∂x)
+        ///     d2Sum_dBiasdY ← 2·(dy/sqrt(dx·dx + dy·dy)) + d2Sum_dBiasdY   (∂²sum/∂bias∂y)
+        ///     d2Sum_dBias2 ← 2 + d2Sum_dBias2   (∂²sum/∂bias²)
         /// Misfit = sum
         /// 
         /// ∂Misfit/∂x = dSum_dX

@@ -1089,6 +1089,23 @@ internal static class DerivativeEmitter
                         {
                             yield return inner + d.GradientNames[k] + " ← " + Formula(d.NextGradient[k]) + "   (∂" + Identifiers.Unescape(state.Name) + "/∂" + Identifiers.Unescape(Program.Variables[k]) + ")";
                         }
+
+                        // The running second derivatives too, so that a reviewer can check the Hessian from the header
+                        // (as long as the list stays short).
+                        int entries = d.GradientNames.Length * (d.GradientNames.Length + 1) / 2;
+                        if (includeHessian && d.HessianNames is { } names && d.NextHessian is { } next && entries <= MaxListedHessianEntries)
+                        {
+                            for (int k = 0; k < names.Length; k++)
+                            {
+                                for (int j = 0; j < names[k].Length; j++)
+                                {
+                                    string of = k == j
+                                        ? "∂²" + Identifiers.Unescape(state.Name) + "/∂" + Identifiers.Unescape(Program.Variables[k]) + "²"
+                                        : "∂²" + Identifiers.Unescape(state.Name) + "/∂" + Identifiers.Unescape(Program.Variables[k]) + "∂" + Identifiers.Unescape(Program.Variables[j]);
+                                    yield return inner + names[k][j] + " ← " + Formula(next[k][j]) + "   (" + of + ")";
+                                }
+                            }
+                        }
                     }
                 }
             }

@@ -8,6 +8,9 @@
 //       sum ← sum + r·r
 //       dSum_dA ← 2·(r·exp(-b·t[i])) + dSum_dA   (∂sum/∂a)
 //       dSum_dB ← -2·(r·a·exp(-b·t[i])·t[i]) + dSum_dB   (∂sum/∂b)
+//       d2Sum_dA2 ← 2·(exp(-b·t[i])·exp(-b·t[i])) + d2Sum_dA2   (∂²sum/∂a²)
+//       d2Sum_dBdA ← -2·(t[i]·(exp(-b·t[i])·(a·exp(-b·t[i]) + r))) + d2Sum_dBdA   (∂²sum/∂b∂a)
+//       d2Sum_dB2 ← -2·(t[i]·(-(exp(-b·t[i])·(a·(a·(exp(-b·t[i])·t[i])))) - r·a·(exp(-b·t[i])·t[i]))) + d2Sum_dB2   (∂²sum/∂b²)
 //   HalfSquaredError = 0.5·sum
 //
 //   ∂HalfSquaredError/∂a = 0.5·dSum_dA
@@ -88,6 +91,9 @@ namespace Samples.Fitting
         ///     sum ← sum + r·r
         ///     dSum_dA ← 2·(r·exp(-b·t[i])) + dSum_dA   (∂sum/∂a)
         ///     dSum_dB ← -2·(r·a·exp(-b·t[i])·t[i]) + dSum_dB   (∂sum/∂b)
+        ///     d2Sum_dA2 ← 2·(exp(-b·t[i])·exp(-b·t[i])) + d2Sum_dA2   (∂²sum/∂a²)
+        ///     d2Sum_dBdA ← -2·(t[i]·(exp(-b·t[i])·(a·exp(-b·t[i]) + r))) + d2Sum_dBdA   (∂²sum/∂b∂a)
+        ///     d2Sum_dB2 ← -2·(t[i]·(-(exp(-b·t[i])·(a·(a·(exp(-b·t[i])·t[i])))) - r·a·(exp(-b·t[i])·t[i]))) + d2Sum_dB2   (∂²sum/∂b²)
         /// HalfSquaredError = 0.5·sum
         /// 
         /// ∂HalfSquaredError/∂a = 0.5·dSum_dA

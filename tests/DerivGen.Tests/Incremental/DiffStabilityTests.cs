@@ -95,11 +95,12 @@ public sealed class DiffStabilityTests
     public void ChangingTheLoopBodyChangesOnlyTheUpdatesOfTheCarriedSum()
     {
         // sum += r·r → sum += 2·r·r changes the update of sum and of its running derivatives. The header and both XML
-        // docs show the updates of sum, dSum_dA and dSum_dK (3 × 3 lines); the gradient method's loop computes those 3;
-        // the Hessian method's loop those 3 and d2Sum_dA2, d2Sum_dKdA, d2Sum_dK2 (6). 18 replaced lines, bound 36.
+        // docs show the updates of sum, dSum_dA and dSum_dK (3 × 3 lines), and the header and the Hessian method's docs
+        // those of d2Sum_dA2, d2Sum_dKdA, d2Sum_dK2 (3 × 2); the gradient method's loop computes the first 3, the Hessian
+        // method's loop all 6. 24 replaced lines (each one removed and one added), bound 48.
         // The loss and gradient formulas after the loop (0.5·sum, 0.5·dSum_dA, ...) do not change.
         AssertChangedLinesAtMost(DataLoop, DataLoop.Replace("sum += r * r;", "sum += 2 * r * r;", StringComparison.Ordinal),
-            "Review.Fit.Loss.g.cs", bound: 36);
+            "Review.Fit.Loss.g.cs", bound: 48);
     }
 
     [Fact]
