@@ -51,6 +51,7 @@ internal sealed record PairHessian(MethodSpec Spec, DerivativeProgram Program, s
             Parameters = parameters.ToEquatableArray(),
             EmitHessian = true,
             Body = rewriter.Statements(spec.Body),
+            IsPairMethod = true,
         };
         return new PairHessian(pairSpec, DerivativeProgram.Create(pairSpec, cancellationToken), row, column,
             spec.Parameters.Count(p => p.IsVariable && !p.IsVector));

@@ -96,8 +96,18 @@ internal static class DerivativeEmitter
 
         // Documentation.
         writer.Line("/// <summary>");
-        writer.Line("/// Computes <see cref=\"" + Xml(spec.Cref) + "\"/> and its gradient" + (withHessian ? " and Hessian" : string.Empty)
-            + " with respect to (" + Xml(variableList) + ").");
+        if (spec.IsPairMethod)
+        {
+            writer.Line("/// <see cref=\"" + Xml(spec.Cref) + "\"/> along two slots of its vector variables, for its Hessian: every element read is");
+            writer.Line("/// shifted by tRow at slot row and by tColumn at slot column, so that at tRow = tColumn = 0 the second derivative");
+            writer.Line("/// with respect to (tRow, tColumn) is the Hessian entry [row, column], and with respect to (tRow, s) the entry [row, s].");
+        }
+        else
+        {
+            writer.Line("/// Computes <see cref=\"" + Xml(spec.Cref) + "\"/> and its gradient" + (withHessian ? " and Hessian" : string.Empty)
+                + " with respect to (" + Xml(variableList) + ").");
+        }
+
         writer.Line("/// </summary>");
         writer.Line("/// <remarks>");
         writer.Line("/// <code>");

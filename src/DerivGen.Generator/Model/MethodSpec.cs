@@ -17,6 +17,7 @@ namespace DerivGen.Generator.Model;
 /// <param name="DisplayName">Fully qualified name with parameters, for the file header.</param>
 /// <param name="Cref">The method as a documentation cref inside its type, e.g. "Loss(double, double)".</param>
 /// <param name="Body">The lowered body.</param>
+/// <param name="IsPairMethod">Whether this is the pair method a vector-variable Hessian is assembled from.</param>
 /// <param name="IsHelper">Whether the method is not marked but called from one that is (its derivatives are generated for that call).</param>
 internal sealed record MethodSpec(
     string HintName,
@@ -31,7 +32,8 @@ internal sealed record MethodSpec(
     string DisplayName,
     string Cref,
     EquatableArray<IrStatement> Body,
-    bool IsHelper = false);
+    bool IsHelper = false,
+    bool IsPairMethod = false);
 
 /// <summary>A containing type: its declaration keyword(s) ("class", "record struct", ...) and name with type parameters.</summary>
 internal sealed record ContainingTypeSpec(string Keyword, string Name);
