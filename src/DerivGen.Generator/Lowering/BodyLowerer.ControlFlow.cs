@@ -96,6 +96,11 @@ internal sealed partial class BodyLowerer
     private static bool NeedsReturnFlag(IBlockOperation body)
     {
         IOperation? last = body.Operations.Length > 0 ? body.Operations[body.Operations.Length - 1] : null;
+        if (body.Descendants().OfType<IReturnOperation>().Any(r => Ancestors(r, body).Any(a => a is ISwitchOperation)))
+        {
+            return true; // a return inside a switch section: the chain of ifs it becomes cannot return early
+        }
+
         List<IOperation> loops = body.Descendants().Where(o => o is ILoopOperation).ToList();
         if (loops.Count == 0)
         {
@@ -350,5 +355,115 @@ internal sealed partial class BodyLowerer
         iteration.AddRange(statements);
         iteration.AddRange(LowerNested(step, isTopLevel: false));
         return iteration.ToEquatableArray();
+    }
+
+    /// <summary>
+    /// <c>switch (value) { case c1: case c2: …; break; … default: …; break; }</c> with constant case labels: an
+    /// <c>if</c>/<c>else if</c> chain on the value (kept in a local), each section without its final <c>break</c>.
+    /// </summary>
+    private void LowerSwitch(ISwitchOperation switchStatement)
+    {
+        IrExpression? value = LowerExpression(switchStatement.Value);
+        if (value is null)
+        {
+            return;
+        }
+
+        var sections = new List<(IrExpression? Condition, List<IOperation> Body, ISwitchCaseOperation Case)>();
+        IrExpression subject = value is IrParameter or IrConstant or IrLocal ? value : Snapshot("switchValue", value);
+        foreach (ISwitchCaseOperation section in switchStatement.Cases)
+        {
+            IrExpression? condition = null;
+            bool isDefault = false;
+            foreach (ICaseClauseOperation clause in section.Clauses)
+            {
+                IrExpression? match = clause switch
+                {
+                    IDefaultCaseClauseOperation => null,
+                    ISingleValueCaseClauseOperation { Value: { } label } => LowerExpression(label) is { } lowered
+                        ? new IrCompare(ComparisonOperator.Equal, subject, lowered)
+                        : null,
+                    _ => Unsupported(clause, "the case label '" + Text(clause) + "'", "use constant case labels (case 1:, case 2:) or if/else"),
+                };
+                if (clause is IDefaultCaseClauseOperation)
+                {
+                    isDefault = true;
+                }
+                else if (match is null)
+                {
+                    return;
+                }
+                else
+                {
+                    condition = condition is null ? match : new IrLogical(LogicalOperator.Or, condition, match);
+                }
+            }
+
+            var body = section.Body.ToList();
+            if (body.Count > 0 && body[body.Count - 1] is IBranchOperation { BranchKind: BranchKind.Break } last
+                && SymbolEqualityComparer.Default.Equals(last.Target, switchStatement.ExitLabel))
+            {
+                body.RemoveAt(body.Count - 1);
+            }
+
+            if (body.SelectMany(b => b.DescendantsAndSelf()).OfType<IBranchOperation>().FirstOrDefault(b =>
+                SymbolEqualityComparer.Default.Equals(b.Target, switchStatement.ExitLabel)) is { } inner)
+            {
+                Unsupported(inner, "the break out of the switch before the end of its section", "end each section with its break; use if/else inside it");
+                return;
+            }
+
+            // The default section matches whatever no other section does, wherever it is written.
+            sections.Add((isDefault ? null : condition, body, section));
+        }
+
+        var ordered = sections.Where(s => s.Condition is not null).Concat(sections.Where(s => s.Condition is null)).ToList();
+        bool dependsOnVariable = DependsOnVariable(subject);
+        if (dependsOnVariable)
+        {
+            _diagnostics.Add(DiagnosticInfo.Create(DiagnosticDescriptors.NonSmoothFunction, switchStatement.Value.Syntax.GetLocation(),
+                "switch (" + Text(switchStatement.Value) + ")",
+                "the value switched on depends on a differentiation variable, so the derivative is that of the section taken and jumps where the value changes"));
+        }
+
+        _variableBranchDepth += dependsOnVariable ? 1 : 0;
+        try
+        {
+            _statements.AddRange(SwitchChain(ordered, 0));
+        }
+        finally
+        {
+            _variableBranchDepth -= dependsOnVariable ? 1 : 0;
+        }
+    }
+
+    /// <summary>The sections from <paramref name="index"/> on as an if/else-if chain (the default, if any, last).</summary>
+    private List<IrStatement> SwitchChain(List<(IrExpression? Condition, List<IOperation> Body, ISwitchCaseOperation Case)> sections, int index)
+    {
+        if (index >= sections.Count)
+        {
+            return new List<IrStatement>();
+        }
+
+        (IrExpression? condition, List<IOperation> body, ISwitchCaseOperation section) = sections[index];
+        EquatableArray<IrStatement> lowered = LowerNested(body, isTopLevel: false);
+        if (condition is null)
+        {
+            return lowered.ToList(); // the default section
+        }
+
+        List<IOperation> rest = sections.Skip(index + 1).SelectMany(s => s.Body).ToList();
+        List<IrStatement> otherwise = SwitchChain(sections, index + 1);
+        List<IrStatement> outer = _statements;
+        _statements = new List<IrStatement>();
+        try
+        {
+            AddBranch(condition, lowered, otherwise.ToEquatableArray(), new IOperation[] { section }, rest);
+            return _statements;
+        }
+        finally
+        {
+            _statements = outer;
+        }
     }
 }

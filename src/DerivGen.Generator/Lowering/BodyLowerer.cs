@@ -149,6 +149,10 @@ internal sealed partial class BodyLowerer
                 LowerIf(branch);
                 return true;
 
+            case ISwitchOperation switchStatement:
+                LowerSwitch(switchStatement);
+                return true;
+
             case IForLoopOperation loop:
                 LowerFor(loop);
                 return true;
@@ -206,25 +210,32 @@ internal sealed partial class BodyLowerer
         EquatableArray<IrStatement> whenTrue = LowerNested(branch.WhenTrue);
         EquatableArray<IrStatement> whenFalse = LowerNested(branch.WhenFalse);
         _variableBranchDepth -= dependsOnVariable ? 1 : 0;
-        if (condition is null)
+        if (condition is not null)
         {
-            return;
+            AddBranch(condition, whenTrue, whenFalse, new[] { branch.WhenTrue }, branch.WhenFalse is { } otherwise ? new[] { otherwise } : Array.Empty<IOperation>());
         }
+    }
 
+    /// <summary>
+    /// <c>if (condition) whenTrue else whenFalse</c>, lowered. With a loop inside, its statements run under the
+    /// condition and its loops loop only where the condition holds (the condition is kept in a local, since the branch
+    /// may change what it reads).
+    /// </summary>
+    private void AddBranch(IrExpression condition, EquatableArray<IrStatement> whenTrue, EquatableArray<IrStatement> whenFalse,
+        IEnumerable<IOperation> trueSource, IEnumerable<IOperation> falseSource)
+    {
         if (!ContainsLoop(whenTrue) && !ContainsLoop(whenFalse))
         {
             _statements.Add(new IrIf(condition, whenTrue, whenFalse));
             return;
         }
 
-        // A loop inside the branch: its statements run under the condition, and its loops loop only where the
-        // condition holds (the condition is kept in a local, since the branch may change what it reads).
         IrExpression taken = condition is IrParameter or IrConstant ? condition : Snapshot("branchTaken", condition);
         const string reason = "the loop inside an if whose condition depends on a differentiation variable";
-        _statements.AddRange(Guarded(taken, whenTrue, new[] { branch.WhenTrue }, reason));
-        if (branch.WhenFalse is { } otherwise)
+        _statements.AddRange(Guarded(taken, whenTrue, trueSource, reason));
+        if (whenFalse.Count > 0)
         {
-            _statements.AddRange(Guarded(Not(taken), whenFalse, new[] { otherwise }, reason));
+            _statements.AddRange(Guarded(Not(taken), whenFalse, falseSource, reason));
         }
     }
 

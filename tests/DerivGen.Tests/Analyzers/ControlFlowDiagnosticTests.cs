@@ -384,22 +384,34 @@ public sealed class ControlFlowDiagnosticTests
         """);
 
     [Fact]
-    public Task DG0001SwitchStatement() => VerifyAsync(Usings + """
+    public Task DG0001SwitchWithAPatternOrAnEarlyBreak() => VerifyAsync(Usings + """
         public static partial class C
         {
             [Differentiate(nameof(x))]
             public static double F(double x, int k)
             {
                 double s = x;
-                {|DG0001:switch (k)
+                switch (k)
                 {
-                    case 1:
+                    {|DG0001:case > 1:|}
                         s = 2 * x;
                         break;
                     default:
                         s = 3 * x;
                         break;
-                }|}
+                }
+
+                switch (k)
+                {
+                    case 0:
+                        if (s > 2)
+                        {
+                            {|DG0001:break;|}
+                        }
+
+                        s = x;
+                        break;
+                }
 
                 return s;
             }

@@ -203,6 +203,35 @@ public sealed class JumpFixture : CompiledFixture
                 return s;
             }
 
+            // A switch on an int: sections with several labels, a default that is not last, a loop in one section, a
+            // return in another.
+            [Differentiate(nameof(a))]
+            public static double Switched(double a, int mode)
+            {
+                double s = 0;
+                switch (mode)
+                {
+                    case 0:
+                    case 1:
+                        s = a * a;
+                        break;
+                    default:
+                        s = Math.Exp(a);
+                        break;
+                    case 2:
+                        for (int i = 0; i < 3; i++)
+                        {
+                            s += a * T[i];
+                        }
+
+                        break;
+                    case 3:
+                        return Math.Sin(a);
+                }
+
+                return s + a;
+            }
+
             // A return inside a nested loop leaves both loops; the statements after the inner loop are skipped.
             [Differentiate(nameof(a))]
             public static double FirstPairAbove(double a, double limit)
@@ -413,6 +442,30 @@ public sealed class JumpTests : IClassFixture<JumpFixture>
         var h = _fixture.Assembly.Method<HI3>("Jumps", "FirstPairAboveHessian");
         Probe probe = Probe.Of((F1)(p => f(p, limit)), (G1)((p, gr) => g(p, limit, gr)), (H1)((p, gr, he) => h(p, limit, gr, he)));
         Verify.At(probe, new[] { a }, new[] { d1 }, new[] { d2 }, $"FirstPairAbove(limit {limit})", closedFormAbsolute: 1e-14);
+    }
+
+    [Theory]
+    [InlineData(0.7, 0)]
+    [InlineData(0.7, 1)]
+    [InlineData(0.7, 2)]
+    [InlineData(0.7, 3)]
+    [InlineData(0.7, 9)]
+    public void SwitchTakesTheSectionItShould(double a, int mode)
+    {
+        // mode 0, 1: a² + a; 2: a (t0 + t1 + t2) + a; 3: sin a; otherwise e^a + a.
+        double t3 = T[0] + T[1] + T[2];
+        (double d1, double d2) = mode switch
+        {
+            0 or 1 => ((2 * a) + 1, 2.0),
+            2 => (t3 + 1, 0.0),
+            3 => (Math.Cos(a), -Math.Sin(a)),
+            _ => (Math.Exp(a) + 1, Math.Exp(a)),
+        };
+        var f = _fixture.Assembly.Method<FI>("Jumps", "Switched");
+        var g = _fixture.Assembly.Method<GI>("Jumps", "SwitchedGradient");
+        var h = _fixture.Assembly.Method<HI>("Jumps", "SwitchedHessian");
+        Probe probe = Probe.Of((F1)(p => f(p, mode)), (G1)((p, gr) => g(p, mode, gr)), (H1)((p, gr, he) => h(p, mode, gr, he)));
+        Verify.At(probe, new[] { a }, new[] { d1 }, new[] { d2 }, $"Switched(mode {mode})", closedFormAbsolute: 1e-14);
     }
 
     private delegate double F3(double a, double b, double c);
