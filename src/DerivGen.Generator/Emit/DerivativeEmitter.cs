@@ -348,6 +348,7 @@ internal static class DerivativeEmitter
         // used at a later stage than its own (computed once before a loop rather than in every iteration).
         var uses = new Dictionary<Node, int>();
         var hoisted = new HashSet<Node>();
+        var usedAtOwnStage = new HashSet<Node>();
         HashSet<Node> reachable = Graph.Reachable(roots.Select(r => r.Node));
         foreach (Node node in reachable)
         {
@@ -367,6 +368,21 @@ internal static class DerivativeEmitter
             if (root.Stage < useStage)
             {
                 hoisted.Add(root);
+            }
+        }
+
+        // The nodes the code needs at their own stage: the roots used there, and what they read at that stage. A node
+        // of a stage that only later stages need is computed ahead of them only to be hoisted out of a loop.
+        var neededStack = new Stack<Node>(roots.Where(r => r.Node.Stage == r.UseStage).Select(r => r.Node));
+        while (neededStack.Count > 0)
+        {
+            Node node = neededStack.Pop();
+            if (usedAtOwnStage.Add(node))
+            {
+                foreach (Node argument in node.Arguments.Where(a => a.Stage == node.Stage))
+                {
+                    neededStack.Push(argument);
+                }
             }
         }
 
@@ -410,6 +426,14 @@ internal static class DerivativeEmitter
 
         HashSet<Node> unconditional = EvaluatedUnconditionally(valueRoots);
         var mayThrow = new Dictionary<Node, bool>();
+        // A loop-invariant node that could throw and is used only inside or after loops is not computed ahead of them: a
+        // loop that runs zero times must not throw where the user's code does not. It is written where it is used
+        // (when it reads no loop-carried local, whose value would differ there).
+        foreach (Node node in reachable.Where(h => !usedAtOwnStage.Contains(h) && CanThrow(h) && !ReadsStageLeaf(h)))
+        {
+            unconditional.Remove(node);
+        }
+
         bool Guarded(Node node) => MayThrowUnlessGuarded(node, unconditional, mayThrow);
 
         // Calls of other [Differentiate] methods whose derivatives are needed: one call of their MGradient (MHessian)
@@ -871,6 +895,14 @@ internal static class DerivativeEmitter
         return always;
     }
 
+    /// <summary>An operation that can throw: a data read out of range, an int division by zero, Clamp with bounds reversed.</summary>
+    private static bool CanThrow(Node node) => node.Kind is NodeKind.Element or NodeKind.VariableElement
+        || (node.Kind == NodeKind.Divide && node.Type == ScalarType.Int32)
+        || (node.Kind == NodeKind.Call && node.Function == MathFunction.Clamp);
+
+    /// <summary>Whether the node reads a loop-carried local or a loop index (a leaf that stands for a value at a stage).</summary>
+    private static bool ReadsStageLeaf(Node node) => Graph.Reachable(new[] { node }).Any(n => n.IsLeaf && n.Stage > 0);
+
     /// <summary>
     /// Whether evaluating the node could throw where the user's code would not: it contains an operation that can throw
     /// (a data read out of range, an int division by zero, Clamp with bounds reversed) that the user's code evaluates
@@ -883,10 +915,7 @@ internal static class DerivativeEmitter
             return known;
         }
 
-        bool canThrow = node.Kind is NodeKind.Element or NodeKind.VariableElement
-            || (node.Kind == NodeKind.Divide && node.Type == ScalarType.Int32)
-            || (node.Kind == NodeKind.Call && node.Function == MathFunction.Clamp);
-        bool result = canThrow && !unconditional.Contains(node);
+        bool result = CanThrow(node) && !unconditional.Contains(node);
         foreach (Node argument in node.Arguments)
         {
             result |= MayThrowUnlessGuarded(argument, unconditional, memo);

@@ -26,6 +26,20 @@ public sealed class FoundByRandomTestsFixture : CompiledFixture
                 return gradient + hessian;
             }
 
+            // Bug: loop-invariant code that can throw (Clamp with reversed bounds, a data read) was computed before a loop
+            // that runs zero times, so the generated methods threw where the method does not.
+            [Differentiate(nameof(x))]
+            public static double InvariantThrowingCodeInAnEmptyLoop(double x, double lo, double hi, double[] t, int k, int n)
+            {
+                double s = x;
+                for (int i = 0; i < n; i++)
+                {
+                    s += Math.Clamp(x, lo, hi) * t[k];
+                }
+
+                return s;
+            }
+
             // Bug: a tuple literal with a bare name as an element (inferred element name, so a tuple conversion) was refused.
             [Differentiate]
             public static double TupleWithABareName(double x, double y)
@@ -57,6 +71,34 @@ public sealed class FoundByRandomTestsRegressionTests : IClassFixture<FoundByRan
         Verify.At(Probe.Load(_fixture.Assembly, "Found", "CarriedLocalsNamedLikeTheSpans", 1), new[] { x }, new[] { 3 + (3 * x * x) }, new[] { 6 * x },
             "CarriedLocalsNamedLikeTheSpans");
     }
+
+    [Fact]
+    public void InvariantThrowingCodeInAnEmptyLoop()
+    {
+        var f = _fixture.Assembly.Method<Invariant>("Found", "InvariantThrowingCodeInAnEmptyLoop");
+        var g = _fixture.Assembly.Method<InvariantG>("Found", "InvariantThrowingCodeInAnEmptyLoopGradient");
+        var h = _fixture.Assembly.Method<InvariantH>("Found", "InvariantThrowingCodeInAnEmptyLoopHessian");
+        double[] t = { 2.0 };
+
+        // n = 0: the loop never runs, so neither Clamp(x, 1, 0) (reversed bounds) nor t[5] is evaluated; s = x.
+        Assert.Equal(0.3, f(0.3, 1, 0, t, 5, 0));
+        var gradient = new double[1];
+        var hessian = new double[1];
+        Assert.Equal(0.3, g(0.3, 1, 0, t, 5, 0, gradient));
+        Assert.Equal(1.0, gradient[0]);
+        Assert.Equal(0.3, h(0.3, 1, 0, t, 5, 0, gradient, hessian));
+        Assert.Equal(0.0, hessian[0]);
+
+        // n = 3 inside the bounds: s = x + 3·x·t[0], ds/dx = 1 + 3 t[0] (plain calculus).
+        Assert.Equal(0.3 + (3 * 0.3 * 2.0), g(0.3, 0, 1, t, 0, 3, gradient), 12);
+        Assert.Equal(1 + (3 * 2.0), gradient[0], 12);
+    }
+
+    private delegate double Invariant(double x, double lo, double hi, double[] t, int k, int n);
+
+    private delegate double InvariantG(double x, double lo, double hi, double[] t, int k, int n, System.Span<double> gradient);
+
+    private delegate double InvariantH(double x, double lo, double hi, double[] t, int k, int n, System.Span<double> gradient, System.Span<double> hessian);
 
     [Theory]
     [InlineData(0.7, 2.5)]
