@@ -895,10 +895,11 @@ internal static class DerivativeEmitter
         return always;
     }
 
-    /// <summary>An operation that can throw: a data read out of range, an int division by zero, Clamp with bounds reversed.</summary>
+    /// <summary>An operation that can throw: a data read out of range, an int division by zero, Clamp with bounds
+    /// reversed, Sign of a NaN (ArithmeticException).</summary>
     private static bool CanThrow(Node node) => node.Kind is NodeKind.Element or NodeKind.VariableElement
         || (node.Kind == NodeKind.Divide && node.Type == ScalarType.Int32)
-        || (node.Kind == NodeKind.Call && node.Function == MathFunction.Clamp);
+        || (node.Kind == NodeKind.Call && node.Function is MathFunction.Clamp or MathFunction.Sign);
 
     /// <summary>Whether the node reads a loop-carried local or a loop index (a leaf that stands for a value at a stage).</summary>
     private static bool ReadsStageLeaf(Node node) => Graph.Reachable(new[] { node }).Any(n => n.IsLeaf && n.Stage > 0);

@@ -40,6 +40,15 @@ public sealed class FoundByRandomTestsFixture : CompiledFixture
                 return s;
             }
 
+            // Bug: Math.Sign, which throws for NaN, was evaluated on the side of a ?: the method does not take.
+            [Differentiate(nameof(x))]
+            public static double SignOnTheSideNotTaken(double x, double y)
+            {
+        #pragma warning disable DG0007
+                return y > 0 ? Math.Sign(x) * x : 2 * x;
+        #pragma warning restore DG0007
+            }
+
             // Bug: a tuple literal with a bare name as an element (inferred element name, so a tuple conversion) was refused.
             [Differentiate]
             public static double TupleWithABareName(double x, double y)
@@ -93,6 +102,18 @@ public sealed class FoundByRandomTestsRegressionTests : IClassFixture<FoundByRan
         Assert.Equal(0.3 + (3 * 0.3 * 2.0), g(0.3, 0, 1, t, 0, 3, gradient), 12);
         Assert.Equal(1 + (3 * 2.0), gradient[0], 12);
     }
+
+    [Fact]
+    public void SignOnTheSideNotTaken()
+    {
+        // y ≤ 0 takes 2x, so Sign(NaN) is never evaluated: value NaN, derivative 2 (the constant factor).
+        var g = _fixture.Assembly.Method<SignG>("Found", "SignOnTheSideNotTakenGradient");
+        var gradient = new double[1];
+        Assert.True(double.IsNaN(g(double.NaN, -1, gradient)));
+        Assert.Equal(2.0, gradient[0]);
+    }
+
+    private delegate double SignG(double x, double y, System.Span<double> gradient);
 
     private delegate double Invariant(double x, double lo, double hi, double[] t, int k, int n);
 
