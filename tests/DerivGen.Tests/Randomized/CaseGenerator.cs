@@ -225,6 +225,11 @@ internal sealed class CaseGenerator : Gen<RandomCase>
             }
 
             Fn fn = Pick(Functions);
+            if (fn == Fn.Clamp && scope.LoopDepth > 0 && KnownGeneratorBugs.ThrowingCodeHoistedOutOfLoop)
+            {
+                fn = Fn.Max;
+            }
+
             FunctionSpec spec = ReferenceFunctions.All[fn];
             Host host = !spec.HasMath || (spec.DoubleValue is not null && Chance(0.3)) ? Host.Double : Host.Math;
             var args = new Expr[spec.Arity];
