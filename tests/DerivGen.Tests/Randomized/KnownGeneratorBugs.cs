@@ -62,4 +62,11 @@ internal static class KnownGeneratorBugs
     /// inside random loops (random programs read data in loops only at the loop's own index).
     /// </summary>
     public static readonly bool ThrowingCodeHoistedOutOfLoop = true;
+
+    /// <summary>
+    /// A carried local whose value the result never uses, and that a loop reassigns a constant
+    /// (<c>double s = 1.99; for (…) { s += x; s = -0.1; }</c>), is left in the generated code as constant assignments
+    /// only: warning CS0219. While open, CS0219 in generated code is tolerated (and counted).
+    /// </summary>
+    public static readonly bool DeadCarriedLocalLeftAssigned = true;
 }
