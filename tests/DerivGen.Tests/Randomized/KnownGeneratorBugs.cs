@@ -69,4 +69,12 @@ internal static class KnownGeneratorBugs
     /// only: warning CS0219. While open, CS0219 in generated code is tolerated (and counted).
     /// </summary>
     public static readonly bool DeadCarriedLocalLeftAssigned = true;
+
+    /// <summary>
+    /// The side of a <c>?:</c> or <c>if</c> that C# does not take is computed anyway where DerivGen thinks that cannot
+    /// throw, and its derivatives can leak: <c>Math.Sign(NaN)</c> there throws ArithmeticException in MGradient, and an
+    /// infinite derivative there (<c>c ? x / 0.0 : x - x</c>) turns the gradient into NaN. While open, the repair step
+    /// keeps the untaken sides safe too.
+    /// </summary>
+    public static readonly bool UntakenSideEvaluated = true;
 }
