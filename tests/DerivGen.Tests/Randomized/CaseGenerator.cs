@@ -225,9 +225,9 @@ internal sealed class CaseGenerator : Gen<RandomCase>
             }
 
             Fn fn = Pick(Functions);
-            if (fn == Fn.Clamp && scope.LoopDepth > 0 && KnownGeneratorBugs.ThrowingCodeHoistedOutOfLoop)
+            if (fn is Fn.Clamp or Fn.Sign && scope.LoopDepth > 0 && KnownGeneratorBugs.ThrowingCodeHoistedOutOfLoop)
             {
-                fn = Fn.Max;
+                fn = Fn.Max; // Clamp (lo > hi) and Sign (NaN) throw, and loop-invariant code is computed even for zero trips
             }
 
             FunctionSpec spec = ReferenceFunctions.All[fn];

@@ -58,8 +58,9 @@ internal static class KnownGeneratorBugs
     /// <summary>
     /// EXCEPTIONS THE USER'S CODE DOES NOT THROW. Loop-invariant code is computed before the loop even when the loop
     /// runs zero times, including what can throw: <c>Math.Clamp</c> with lo &gt; hi (ArgumentException) and data reads
-    /// such as <c>d[0]</c> for an empty <c>d</c> (IndexOutOfRangeException). While open, Clamp is not generated
-    /// inside random loops (random programs read data in loops only at the loop's own index).
+    /// such as <c>d[0]</c> for an empty <c>d</c> (IndexOutOfRangeException), and <c>Math.Sign</c> of a NaN
+    /// (ArithmeticException). While open, Clamp and Sign are not generated inside random loops (random programs read
+    /// data in loops only at the loop's own index).
     /// </summary>
     public static readonly bool ThrowingCodeHoistedOutOfLoop = true;
 
