@@ -30,6 +30,9 @@ internal static class DerivativeEmitter
         var writer = new IndentedWriter();
         WriteHeader(writer, context);
         writer.Line("#nullable enable");
+        // The code keeps the user's statements: a local the user assigns but never reads (CS0219), or a comparison of a
+        // value with itself that a derivative rule produces (CS1718), must not fail a build that treats warnings as errors.
+        writer.Line("#pragma warning disable CS0219, CS1718");
         writer.Line();
 
         var scopes = new List<IndentedWriter.Scope>();

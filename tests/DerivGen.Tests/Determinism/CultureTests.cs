@@ -71,6 +71,51 @@ public sealed class CultureTests
         }
     }
 
+    [Fact]
+    public void RandomProgramsGenerateTheSameTextUnderEveryCulture()
+    {
+        // 60 random methods of the randomised suite (every function, loops, branches, odd literals and Unicode names),
+        // generated under cultures with a decimal comma, a dotless i and Arabic digits.
+        var generator = new Randomized.CaseGenerator(Randomized.CaseFamily.Program);
+        var expressions = new Randomized.CaseGenerator(Randomized.CaseFamily.Expression);
+        var master = CsCheck.PCG.Parse("9UTurB-iDMw5");
+        string source = Randomized.RandomCase.Unit(Enumerable.Range(0, 60).Select(i =>
+            (i % 2 == 0 ? generator : expressions).Generate(new CsCheck.PCG(master.Next(), master.Next64()), null, out _).MethodSource("M" + i.ToString(CultureInfo.InvariantCulture))));
+
+        string? reference = null;
+        foreach (string name in new[] { "", "de-DE", "tr-TR", "ar-SA" })
+        {
+            CultureInfo culture = name.Length == 0 ? CultureInfo.InvariantCulture : CultureInfo.GetCultureInfo(name);
+            CultureInfo oldCulture = CultureInfo.CurrentCulture, oldUi = CultureInfo.CurrentUICulture;
+            string text;
+            try
+            {
+                CultureInfo.CurrentCulture = culture;
+                CultureInfo.CurrentUICulture = culture;
+                var driver = Microsoft.CodeAnalysis.CSharp.CSharpGeneratorDriver.Create(new DerivGen.Generator.DerivativeGenerator())
+                    .RunGenerators(GeneratorHarness.CreateCompilation(source));
+                text = string.Concat(driver.GetRunResult().Results.Single().GeneratedSources
+                    .OrderBy(g => g.HintName, StringComparer.Ordinal)
+                    .Select(g => "=== " + g.HintName + "\n" + g.SourceText));
+            }
+            finally
+            {
+                CultureInfo.CurrentCulture = oldCulture;
+                CultureInfo.CurrentUICulture = oldUi;
+            }
+
+            Assert.Contains("=== Rnd.R.M59.g.cs", text);
+            if (reference is null)
+            {
+                reference = text;
+            }
+            else
+            {
+                Assert.True(reference == text, $"Generated text of random methods under '{culture.Name}' differs:\n{FirstDifference(reference, text)}");
+            }
+        }
+    }
+
     private static string GenerateUnder(CultureInfo culture)
     {
         CultureInfo oldCulture = CultureInfo.CurrentCulture, oldUi = CultureInfo.CurrentUICulture;

@@ -62,13 +62,47 @@ public sealed class HalfTypedInputTests
         }
         """;
 
+    // A vector of variables (gradient only), a while loop with an explicit Euler step, a call between [Differentiate]
+    // methods, an early return and a float method (invented models).
+    private const string VectorAndCallMethod = """
+        using System;
+        using DerivGen;
+
+        public static partial class Model
+        {
+            [Differentiate(nameof(w), Hessian = false)]
+            public static double Score(double[] w, double[] x, double bias)
+            {
+                double z = bias;
+                for (int j = 0; j < w.Length; j++) { z += w[j] * x[j]; }
+                if (z > 30) return z;
+                return Math.Log(1 + Math.Exp(z)) - 0.5 * z;
+            }
+
+            [Differentiate(nameof(k))]
+            public static double Decay(double k, double y0, double tEnd)
+            {
+                double y = y0, t = 0;
+                while (t < tEnd) { y += -k * y * 0.1; t += 0.1; }
+                return y;
+            }
+
+            [Differentiate(nameof(k), nameof(c))]
+            public static double Fit(double k, double c, double tEnd) => Decay(k, 1.0, tEnd) * c + Math.Pow(c, 2.0);
+
+            [Differentiate]
+            public static float Bump(float u) => MathF.Exp(-u * u) + float.Hypot(u, 1f);
+        }
+        """;
+
     [Theory]
-    [InlineData(Method)]
-    [InlineData(LoopMethod)]
-    public async Task EveryPrefixOfAMethodLeavesGeneratorAndAnalyzerStanding(string method)
+    [InlineData(Method, 3)]
+    [InlineData(LoopMethod, 3)]
+    [InlineData(VectorAndCallMethod, 4)]
+    public async Task EveryPrefixOfAMethodLeavesGeneratorAndAnalyzerStanding(string method, int step)
     {
         int tried = 0;
-        for (int length = 0; length <= method.Length; length += 3)
+        for (int length = 0; length <= method.Length; length += step)
         {
             string prefix = method.Substring(0, length);
             CSharpCompilation compilation = GeneratorHarness.CreateCompilation(prefix);

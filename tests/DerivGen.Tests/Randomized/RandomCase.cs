@@ -1,0 +1,128 @@
+using System;
+using System.Collections.Generic;
+using System.Globalization;
+using System.Linq;
+using System.Text;
+
+namespace DerivGen.Tests.Randomized;
+
+/// <summary>
+/// The inputs of one random method. Every random method has the same signature,
+/// <c>double M(double x0, double x1, double x2, double c0, double c1, int k, double[] d)</c>, so that one delegate type
+/// binds them all; which doubles are differentiation variables is the case's choice.
+/// </summary>
+internal sealed class CasePoint
+{
+    public static readonly string[] DoubleNames = { "x0", "x1", "x2", "c0", "c1" };
+
+    public CasePoint(double[] doubles, int k, double[] data)
+    {
+        Doubles = doubles;
+        K = k;
+        Data = data;
+    }
+
+    /// <summary>x0, x1, x2, c0, c1.</summary>
+    public double[] Doubles { get; }
+
+    public int K { get; }
+
+    public double[] Data { get; }
+
+    public override string ToString() =>
+        string.Join(", ", DoubleNames.Select((n, i) => n + " = " + Printer.Literal(Doubles[i])))
+        + ", k = " + K.ToString(CultureInfo.InvariantCulture)
+        + ", d = { " + string.Join(", ", Data.Select(Printer.Literal)) + " }";
+}
+
+/// <summary>The two families of random methods.</summary>
+internal enum CaseFamily
+{
+    /// <summary>One random expression over every function of the rule table (returned from a block or an expression body).</summary>
+    Expression,
+
+    /// <summary>A small program: locals, compound assignments, loops over data, branches, tuples, early returns.</summary>
+    Program,
+}
+
+/// <summary>One random method with the point it is checked at.</summary>
+internal sealed class RandomCase
+{
+    public RandomCase(CaseFamily family, Stmt[] body, bool expressionBodied, string[] variables, bool namesAllVariables, bool hessian, CasePoint[] points)
+    {
+        Family = family;
+        Body = body;
+        ExpressionBodied = expressionBodied;
+        Variables = variables;
+        NamesAllVariables = namesAllVariables;
+        Hessian = hessian;
+        Points = points;
+    }
+
+    public CaseFamily Family { get; }
+
+    public Stmt[] Body { get; }
+
+    /// <summary>Printed as <c>=&gt; expression;</c> (the body is a single return).</summary>
+    public bool ExpressionBodied { get; }
+
+    /// <summary>The differentiation variables, in declaration order.</summary>
+    public string[] Variables { get; }
+
+    /// <summary>True for <c>[Differentiate]</c> without names (every double parameter is a variable).</summary>
+    public bool NamesAllVariables { get; }
+
+    public bool Hessian { get; }
+
+    /// <summary>The points the case is checked at (same k and data, different doubles).</summary>
+    public CasePoint[] Points { get; }
+
+    /// <summary>The CsCheck seed the case was generated from (set by the generator).</summary>
+    public string Seed { get; set; } = "";
+
+    /// <summary>A size for shrinking: fewer nodes and statements, fewer variables, and no Hessian are "smaller".</summary>
+    public ulong Size => (ulong)((Body.Sum(s => s.Count) * 8) + Variables.Length + (Hessian ? 1 : 0) + Points[0].Data.Length);
+
+    public RandomCase WithBody(Stmt[] body) => new(Family, body, ExpressionBodied, Variables, NamesAllVariables, Hessian, Points) { Seed = Seed };
+
+    /// <summary>The method as C#, named <paramref name="name"/>.</summary>
+    public string MethodSource(string name)
+    {
+        var sb = new StringBuilder();
+        string attribute = NamesAllVariables
+            ? Hessian ? "[Differentiate]" : "[Differentiate(Hessian = false)]"
+            : "[Differentiate(" + string.Join(", ", Variables.Select(v => "nameof(" + v + ")")) + (Hessian ? "" : ", Hessian = false") + ")]";
+        sb.Append("    ").Append(attribute).Append('\n');
+        sb.Append("    public static double ").Append(name).Append("(double x0, double x1, double x2, double c0, double c1, int k, double[] d)");
+        if (ExpressionBodied && Body is [Return { Condition: null } only])
+        {
+            sb.Append(" =>\n        ").Append(Printer.Print(only.Value)).Append(";\n");
+        }
+        else
+        {
+            sb.Append("\n    {\n");
+            Printer.Print(sb, Body, 2);
+            sb.Append("    }\n");
+        }
+
+        return sb.ToString();
+    }
+
+    /// <summary>A complete compilation unit holding <paramref name="methods"/> in <c>Rnd.R</c>.</summary>
+    public static string Unit(IEnumerable<string> methods)
+    {
+        var sb = new StringBuilder();
+        sb.Append("using System;\nusing DerivGen;\n\nnamespace Rnd;\n\n#pragma warning disable CS0219, CS0162, CS1717\n\ninternal static partial class R\n{\n");
+        foreach (string method in methods)
+        {
+            sb.Append(method).Append('\n');
+        }
+
+        sb.Append("}\n");
+        return sb.ToString();
+    }
+
+    /// <summary>What a failure report shows: the method (as a complete, compilable unit) and the point.</summary>
+    public string Describe(string name = "M") =>
+        $"// seed {Seed}; {Family}; variables ({string.Join(", ", Variables)}); at\n//   {string.Join("\n//   ", Points.Select(p => p.ToString()))}\n" + Unit(new[] { MethodSource(name) });
+}
