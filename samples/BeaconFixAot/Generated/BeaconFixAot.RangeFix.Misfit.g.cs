@@ -31,6 +31,7 @@
 //   ∂²Misfit/∂bias² = d2Sum_dBias2
 
 #nullable enable
+#pragma warning disable CS0219, CS1718
 
 namespace BeaconFixAot
 {

@@ -331,6 +331,7 @@ internal sealed class ProgramGraph
 
     private Node Build(IrExpression expression, Dictionary<string, Node> locals)
     {
+        System.Runtime.CompilerServices.RuntimeHelpers.EnsureSufficientExecutionStack(); // a deep input fails as a diagnostic, never as a stack overflow
         ExpressionBuilder b = _builder;
         switch (expression)
         {

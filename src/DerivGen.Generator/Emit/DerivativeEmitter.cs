@@ -914,6 +914,7 @@ internal static class DerivativeEmitter
     /// </summary>
     private static bool MayThrowUnlessGuarded(Node node, HashSet<Node> unconditional, Dictionary<Node, bool> memo)
     {
+        System.Runtime.CompilerServices.RuntimeHelpers.EnsureSufficientExecutionStack(); // a deep input fails as a diagnostic, never as a stack overflow
         if (memo.TryGetValue(node, out bool known))
         {
             return known;

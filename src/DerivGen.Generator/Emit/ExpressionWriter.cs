@@ -59,6 +59,7 @@ internal sealed class ExpressionWriter
 
     private bool Write(Node node, int minimumPrecedence, StringBuilder text)
     {
+        System.Runtime.CompilerServices.RuntimeHelpers.EnsureSufficientExecutionStack(); // a deep input fails as a diagnostic, never as a stack overflow
         if (text.Length > _maxLength)
         {
             return false;

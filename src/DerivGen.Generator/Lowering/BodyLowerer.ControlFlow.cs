@@ -313,6 +313,7 @@ internal sealed partial class BodyLowerer
     /// </summary>
     private LoweredLoop LowerLoop(IOperation body, ImmutableArray<IOperation> step, IOperation? condition)
     {
+        RefuseUpdateBeforeNestedLoop(body);
         int diagnosticCount = _diagnostics.Count;
         int jumps = _jumps;
         LoopExits? outer = _loop;
@@ -340,6 +341,56 @@ internal sealed partial class BodyLowerer
         }
 
         return new LoweredLoop(lowered, exits, loweredCondition);
+    }
+
+    /// <summary>
+    /// A floating-point local carried by this loop, assigned in its body before a nested loop that assigns it again, is
+    /// not supported yet: its running derivatives would be updated from the wrong value (DG0001 on the nested loop).
+    /// </summary>
+    private void RefuseUpdateBeforeNestedLoop(IOperation body)
+    {
+        foreach (IOperation nested in body.Descendants().Where(o => o is ILoopOperation))
+        {
+            var assignedInside = new HashSet<ILocalSymbol>(AssignedLocals(nested), SymbolEqualityComparer.Default);
+            ILocalSymbol? clash = body.Descendants()
+                .Where(o => o.Syntax.SpanStart < nested.Syntax.SpanStart && !nested.Syntax.Span.Contains(o.Syntax.Span))
+                .SelectMany(AssignedLocalsOf)
+                .FirstOrDefault(local => assignedInside.Contains(local)
+                    && local.Type.SpecialType is SpecialType.System_Double or SpecialType.System_Single
+                    && !local.DeclaringSyntaxReferences.Any(r => body.Syntax.Span.Contains(r.Span)));
+            if (clash is not null)
+            {
+                Unsupported(nested, "the nested loop that updates '" + clash.Name + "' again",
+                    "'" + clash.Name + "' is carried by the enclosing loop and was already updated in this iteration; assign that earlier update to a new local and use it in the nested loop");
+                return;
+            }
+        }
+    }
+
+    private static IEnumerable<ILocalSymbol> AssignedLocals(IOperation root) => root.DescendantsAndSelf().SelectMany(AssignedLocalsOf);
+
+    private static IEnumerable<ILocalSymbol> AssignedLocalsOf(IOperation operation)
+    {
+        IOperation? target = operation switch
+        {
+            IAssignmentOperation assignment => assignment.Target,
+            IIncrementOrDecrementOperation increment => increment.Target,
+            _ => null,
+        };
+        if (target is ILocalReferenceOperation reference)
+        {
+            yield return reference.Local;
+        }
+        else if (target is ITupleOperation tuple)
+        {
+            foreach (IOperation element in tuple.Elements)
+            {
+                if (element is ILocalReferenceOperation local)
+                {
+                    yield return local.Local;
+                }
+            }
+        }
     }
 
     /// <summary>One iteration: the body, then the step (which runs after a continue too, not after a break).</summary>

@@ -593,7 +593,8 @@ internal sealed partial class BodyLowerer
 
     private string DeclareLocal(ILocalSymbol local)
     {
-        string name = Identifiers.Unique(local.Name, _usedLocalNames);
+        // Escaped like parameters (@double), so the name can be written into code as it is.
+        string name = Identifiers.Escape(Identifiers.Unique(local.Name, _usedLocalNames));
         _localNames[local] = name;
         return name;
     }
@@ -604,6 +605,7 @@ internal sealed partial class BodyLowerer
     /// <summary>Lowers an expression; returns null (after reporting) when it is not supported.</summary>
     private IrExpression? LowerExpression(IOperation operation)
     {
+        System.Runtime.CompilerServices.RuntimeHelpers.EnsureSufficientExecutionStack(); // a deep input fails as a diagnostic, never as a stack overflow
         _cancellationToken.ThrowIfCancellationRequested();
         if (_depth >= MaxDepth)
         {

@@ -187,11 +187,20 @@ internal static class MethodParser
             diagnostics.Add(DiagnosticInfo.Create(DiagnosticDescriptors.UnsupportedConstruct, nameLocation,
                 "The method '" + method.Name + "' without a body", "DerivGen differentiates the body of the method it is applied to"));
         }
-        else if (returnType is (ScalarType.Double or ScalarType.Single)
-            && semanticModel.GetOperation(syntax, cancellationToken) is IMethodBodyOperation { BlockBody: var block, ExpressionBody: var expression })
+        else if (returnType is (ScalarType.Double or ScalarType.Single))
         {
-            var lowerer = new BodyLowerer(method, emitHessian, new HashSet<string>(variables.Select(Identifiers.Escape), StringComparer.Ordinal), helpers, diagnostics, cancellationToken);
-            body = lowerer.Lower((block ?? expression)!);
+            if (semanticModel.GetOperation(syntax, cancellationToken) is IMethodBodyOperation { BlockBody: var block, ExpressionBody: var expression }
+                && (block ?? expression) is { } bodyOperation)
+            {
+                var lowerer = new BodyLowerer(method, emitHessian, new HashSet<string>(variables.Select(Identifiers.Escape), StringComparer.Ordinal), helpers, diagnostics, cancellationToken);
+                body = lowerer.Lower(bodyOperation);
+            }
+            else
+            {
+                // The compiler gave no operation tree for the body (it can stop binding a body nested too deeply).
+                diagnostics.Add(DiagnosticInfo.Create(DiagnosticDescriptors.UnsupportedConstruct, nameLocation,
+                    "The body of '" + method.Name + "'", "the compiler gave no analysable body (is it nested very deeply?); split it into locals"));
+            }
         }
 
         if (returnType is not (ScalarType.Double or ScalarType.Single) || diagnostics.Any(d => d.IsError))

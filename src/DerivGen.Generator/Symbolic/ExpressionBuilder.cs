@@ -100,6 +100,7 @@ internal sealed class ExpressionBuilder
 
     public Node Add(Node a, Node b)
     {
+        System.Runtime.CompilerServices.RuntimeHelpers.EnsureSufficientExecutionStack(); // a deep input fails as a diagnostic, never as a stack overflow
         Unify(ref a, ref b);
         if (a.Kind == NodeKind.Constant && b.Kind == NodeKind.Constant)
         {
@@ -187,6 +188,7 @@ internal sealed class ExpressionBuilder
 
     public Node Multiply(Node a, Node b)
     {
+        System.Runtime.CompilerServices.RuntimeHelpers.EnsureSufficientExecutionStack(); // a deep input fails as a diagnostic, never as a stack overflow
         Unify(ref a, ref b);
         if (b.Kind == NodeKind.Constant && a.Kind != NodeKind.Constant)
         {

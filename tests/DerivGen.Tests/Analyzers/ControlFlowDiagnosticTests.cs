@@ -535,4 +535,26 @@ public sealed class ControlFlowDiagnosticTests
             }
         }
         """);
+
+    [Fact]
+    public Task DG0001NestedLoopUpdatingWhatTheIterationAlreadyUpdated() => VerifyAsync(Usings + """
+        public static partial class C
+        {
+            [Differentiate(nameof(x))]
+            public static double F(double x)
+            {
+                double s = 1;
+                for (int i = 0; i < 2; i++)
+                {
+                    s = s * x;
+                    {|DG0001:for (int j = 0; j < 2; j++)
+                    {
+                        s = 0.5 * s;
+                    }|}
+                }
+
+                return s;
+            }
+        }
+        """);
 }

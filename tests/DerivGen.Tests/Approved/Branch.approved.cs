@@ -11,6 +11,7 @@
 //   ∂²Huber/∂r² = abs(r) ≤ delta ? 1 : 0
 
 #nullable enable
+#pragma warning disable CS0219, CS1718
 
 namespace Samples.Robust
 {

@@ -13,6 +13,7 @@
 //   ∂²Misfit/∂r² = 2·(∂Model/∂r·∂Model/∂r + e·∂²Model/∂r∂r)
 
 #nullable enable
+#pragma warning disable CS0219, CS1718
 
 namespace Samples.Calls
 {

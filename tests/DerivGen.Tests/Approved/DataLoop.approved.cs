@@ -21,6 +21,7 @@
 //   ∂²HalfSquaredError/∂b² = 0.5·d2Sum_dB2
 
 #nullable enable
+#pragma warning disable CS0219, CS1718
 
 namespace Samples.Fitting
 {

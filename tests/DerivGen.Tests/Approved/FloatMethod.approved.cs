@@ -8,6 +8,7 @@
 //   ∂Light/∂y = -0.25·(1 - tanh(x - y)·tanh(x - y)) - 2·(1/(1 + x·x + y·y)/(1 + x·x + y·y)·y)
 
 #nullable enable
+#pragma warning disable CS0219, CS1718
 
 namespace Samples.Graphics
 {

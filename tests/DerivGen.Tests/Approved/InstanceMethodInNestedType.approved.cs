@@ -14,6 +14,7 @@
 //   ∂²Miss/∂q2² = 2·(cos(q1 + q2)·(Arm.Link2·(Arm.Link2·cos(q1 + q2))) - ey·Arm.Link2·sin(q1 + q2)) - 2·(ex·Arm.Link2·cos(q1 + q2) - sin(q1 + q2)·(Arm.Link2·(Arm.Link2·sin(q1 + q2))))
 
 #nullable enable
+#pragma warning disable CS0219, CS1718
 
 namespace Samples.Robotics
 {

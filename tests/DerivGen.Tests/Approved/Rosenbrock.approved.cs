@@ -12,6 +12,7 @@
 //   ∂²Rosenbrock/∂y² = 200
 
 #nullable enable
+#pragma warning disable CS0219, CS1718
 
 namespace Samples.Optimization
 {

@@ -20,6 +20,7 @@
 //   ∂²Residual/∂phase² = -(-0.5·(sin(6.283185307179586·t + phase)·(envelope·(envelope·sin(6.283185307179586·t + phase)))) + r2·envelope·cos(6.283185307179586·t + phase))
 
 #nullable enable
+#pragma warning disable CS0219, CS1718
 
 namespace Samples.Signals
 {

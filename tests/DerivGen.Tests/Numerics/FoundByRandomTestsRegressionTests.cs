@@ -49,6 +49,19 @@ public sealed class FoundByRandomTestsFixture : CompiledFixture
         #pragma warning restore DG0007
             }
 
+            // Bug: a loop-carried local named like a C# keyword was declared unescaped.
+            [Differentiate(nameof(x))]
+            public static double KeywordNamedCarriedLocal(double x)
+            {
+                double @double = 1;
+                for (int i = 0; i < 3; i++)
+                {
+                    @double *= x;
+                }
+
+                return @double;
+            }
+
             // Bug: a tuple literal with a bare name as an element (inferred element name, so a tuple conversion) was refused.
             [Differentiate]
             public static double TupleWithABareName(double x, double y)
@@ -101,6 +114,15 @@ public sealed class FoundByRandomTestsRegressionTests : IClassFixture<FoundByRan
         // n = 3 inside the bounds: s = x + 3·x·t[0], ds/dx = 1 + 3 t[0] (plain calculus).
         Assert.Equal(0.3 + (3 * 0.3 * 2.0), g(0.3, 0, 1, t, 0, 3, gradient), 12);
         Assert.Equal(1 + (3 * 2.0), gradient[0], 12);
+    }
+
+    [Theory]
+    [InlineData(0.7)]
+    [InlineData(-1.3)]
+    public void KeywordNamedCarriedLocal(double x)
+    {
+        // x³: 3x² and 6x (plain calculus).
+        Verify.At(Probe.Load(_fixture.Assembly, "Found", "KeywordNamedCarriedLocal", 1), new[] { x }, new[] { 3 * x * x }, new[] { 6 * x }, "KeywordNamedCarriedLocal");
     }
 
     [Fact]

@@ -18,6 +18,7 @@
 //   ∂²Loss/∂elbow² = (too long to show here; see the code)
 
 #nullable enable
+#pragma warning disable CS0219, CS1718
 
 namespace ArmReach
 {
