@@ -16,7 +16,8 @@ namespace DerivGen.Generator.Lowering;
 /// The outcome of lowering one method: its spec when it can be generated, its diagnostics, and the specs of the helper
 /// methods it calls (static methods of the compilation that are not marked, whose derivatives are generated with it).
 /// </summary>
-internal sealed record LoweringResult(MethodSpec? Spec, EquatableArray<DiagnosticInfo> Diagnostics, EquatableArray<HelperRequest> Helpers);
+internal sealed record LoweringResult(MethodSpec? Spec, EquatableArray<DiagnosticInfo> Diagnostics, EquatableArray<HelperRequest> Helpers,
+    string? FailedHintName = null, string? Failure = null);
 
 /// <summary>A helper a marked method calls (directly or through other helpers): its documentation ID, and whether the
 /// caller needs its Hessian. The helper itself is lowered again from the current compilation when its file is written,
@@ -71,9 +72,10 @@ internal static class MethodParser
         catch (Exception exception)
         {
             // A bug of ours must never crash the compiler: report it on the method and generate nothing.
-            diagnostics.Add(DiagnosticInfo.Create(DiagnosticDescriptors.InternalError, syntax.Identifier.GetLocation(),
-                method.Name, exception.GetType().Name + ": " + exception.Message));
-            return new LoweringResult(null, diagnostics.ToEquatableArray(), EquatableArray<HelperRequest>.Empty);
+            string failure = exception.GetType().Name + ": " + exception.Message;
+            diagnostics.Add(DiagnosticInfo.Create(DiagnosticDescriptors.InternalError, syntax.Identifier.GetLocation(), method.Name, failure));
+            return new LoweringResult(null, diagnostics.ToEquatableArray(), EquatableArray<HelperRequest>.Empty,
+                HintName(method), method.ToDisplayString(HeaderFormat) + " (" + failure.Replace('\r', ' ').Replace('\n', ' ') + ")");
         }
     }
 
@@ -233,7 +235,7 @@ internal static class MethodParser
     {
         var variables = new HashSet<string>(StringComparer.Ordinal);
         var names = new List<(string? Name, int Index)>();
-        if (attribute.ConstructorArguments.Length == 1 && attribute.ConstructorArguments[0].Kind == TypedConstantKind.Array)
+        if (attribute.ConstructorArguments.Length == 1 && attribute.ConstructorArguments[0].Kind == TypedConstantKind.Array && !attribute.ConstructorArguments[0].IsNull)
         {
             ImmutableArrayIndexed(attribute.ConstructorArguments[0], names);
         }
@@ -300,7 +302,7 @@ internal static class MethodParser
     internal static IReadOnlyList<IParameterSymbol> VariablesOf(IMethodSymbol method, AttributeData attribute)
     {
         var names = new HashSet<string>(StringComparer.Ordinal);
-        if (attribute.ConstructorArguments.Length == 1 && attribute.ConstructorArguments[0].Kind == TypedConstantKind.Array)
+        if (attribute.ConstructorArguments.Length == 1 && attribute.ConstructorArguments[0].Kind == TypedConstantKind.Array && !attribute.ConstructorArguments[0].IsNull)
         {
             foreach (TypedConstant value in attribute.ConstructorArguments[0].Values)
             {

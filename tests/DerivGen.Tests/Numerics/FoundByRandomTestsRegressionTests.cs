@@ -62,6 +62,10 @@ public sealed class FoundByRandomTestsFixture : CompiledFixture
                 return @double;
             }
 
+            // Bug: a null list of names was an internal error (DG0010); it means no names, as [Differentiate] does.
+            [Differentiate(null!)]
+            public static double NullNames(double x, double y) => x * y;
+
             // Bug: a tuple literal with a bare name as an element (inferred element name, so a tuple conversion) was refused.
             [Differentiate]
             public static double TupleWithABareName(double x, double y)
@@ -124,6 +128,12 @@ public sealed class FoundByRandomTestsRegressionTests : IClassFixture<FoundByRan
         // x³: 3x² and 6x (plain calculus).
         Verify.At(Probe.Load(_fixture.Assembly, "Found", "KeywordNamedCarriedLocal", 1), new[] { x }, new[] { 3 * x * x }, new[] { 6 * x }, "KeywordNamedCarriedLocal");
     }
+
+    [Theory]
+    [InlineData(0.7, 2.5)]
+    public void NullNames(double x, double y) =>
+        // x y: gradient (y, x), Hessian [[0, 1], [1, 0]] (plain calculus).
+        Verify.At(Probe.Load(_fixture.Assembly, "Found", "NullNames", 2), new[] { x, y }, new[] { y, x }, new[] { 0, 1.0, 1.0, 0 }, "NullNames");
 
     [Fact]
     public void SignOnTheSideNotTaken()
