@@ -34,7 +34,7 @@ public sealed class DeepInputTests
     }
 
     [Fact]
-    public void NestedCalls() => OnSmallStack(string.Concat(Enumerable.Repeat("Math.Sin(", 399)) + "x" + new string(')', 399), expression: true);
+    public void NestedCalls() => OnSmallStack(string.Concat(Enumerable.Repeat("Math.Sin(", 300)) + "x" + new string(')', 300), expression: true);
 
     private static void OnSmallStack(string body, bool expression)
     {
