@@ -53,8 +53,16 @@ internal sealed partial class BodyLowerer
             arguments[argument.Parameter.Ordinal] = Convert(lowered, ScalarTypeOf(argument.Parameter.Type)!.Value);
         }
 
-        var helperDiagnostics = new List<DiagnosticInfo>();
-        MethodSpec? spec = MethodParser.LowerHelper(target, syntax, _emitHessian, _helpers, helperDiagnostics, _cancellationToken);
+        // A helper called several times (or from several helpers) is lowered once per marked method.
+        string id = target.OriginalDefinition.GetDocumentationCommentId() ?? string.Empty;
+        if (!_helpers.Lowered.TryGetValue((id, _emitHessian), out (MethodSpec? Spec, List<DiagnosticInfo> Diagnostics) cached))
+        {
+            var found = new List<DiagnosticInfo>();
+            cached = (MethodParser.LowerHelper(target, syntax, _emitHessian, _helpers, found, _cancellationToken), found);
+            _helpers.Lowered[(id, _emitHessian)] = cached;
+        }
+
+        (MethodSpec? spec, List<DiagnosticInfo> helperDiagnostics) = cached;
         if (helperDiagnostics.FirstOrDefault(d => d.IsError) is { } error)
         {
             return Unsupported(invocation, "the call to " + name, "the helper's body cannot be differentiated (" + Describe(error) + ")");
@@ -75,7 +83,6 @@ internal sealed partial class BodyLowerer
             return null;
         }
 
-        string id = target.OriginalDefinition.GetDocumentationCommentId() ?? string.Empty;
         _helpers.Requests[id] = _helpers.Requests.TryGetValue(id, out bool hessian) ? hessian || _emitHessian : _emitHessian;
 
         List<IParameterSymbol> variables = target.Parameters.Where(MethodParser.IsDefaultVariable).ToList();

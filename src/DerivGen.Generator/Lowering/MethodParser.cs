@@ -34,6 +34,9 @@ internal sealed class HelperContext
     /// <summary>The helpers called so far, by documentation ID, and whether a Hessian is needed.</summary>
     public Dictionary<string, bool> Requests { get; } = new(StringComparer.Ordinal);
 
+    /// <summary>Helpers already lowered for this marked method, by documentation ID and whether a Hessian is needed.</summary>
+    public Dictionary<(string Id, bool Hessian), (MethodSpec? Spec, List<DiagnosticInfo> Diagnostics)> Lowered { get; } = new();
+
     /// <summary>The methods being lowered, outermost first: a call back into one of them is recursion.</summary>
     public List<IMethodSymbol> Chain { get; } = new();
 }
