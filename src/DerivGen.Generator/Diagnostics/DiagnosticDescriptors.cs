@@ -34,7 +34,7 @@ internal static class DiagnosticDescriptors
     public static readonly DiagnosticDescriptor ReturnTypeNotFloatingPoint = Create(
         "DG0005", DiagnosticSeverity.Error,
         "Differentiated method must return double or float",
-        "'{0}' returns '{1}'; [Differentiate] needs a method that returns double or float");
+        "'{0}' returns '{1}'; [Differentiate] needs a method that returns double or float, or a void method whose last parameter is a Span<double> or Span<float> of outputs");
 
     public static readonly DiagnosticDescriptor GeneratedNameTaken = Create(
         "DG0006", DiagnosticSeverity.Error,

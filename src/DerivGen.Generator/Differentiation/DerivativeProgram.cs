@@ -74,7 +74,11 @@ internal sealed class DerivativeProgram
         Hessian = hessian;
         Variables = variables;
         States = states;
+        Outputs = graph.Outputs;
     }
+
+    /// <summary>The writes of a method with outputs, each with its Jacobian row; empty otherwise.</summary>
+    public IReadOnlyList<OutputWrite> Outputs { get; }
 
     public ExpressionBuilder Builder { get; }
 
@@ -223,6 +227,14 @@ internal sealed class DerivativeProgram
 
         var vectorGradient = new List<VectorTerm>();
         Node[] gradient = ReverseSweep.Gradient(builder, graph.Value, n, KnownGradient, vectorGradient, KnownVectorGradient);
+
+        // A method with outputs: one reverse sweep per output gives its Jacobian row, through the running derivatives of
+        // the loop-carried locals it reads (as for a carried local's own update). Scalar variables only (Lowering).
+        foreach (OutputWrite output in graph.Outputs)
+        {
+            cancellationToken.ThrowIfCancellationRequested();
+            output.Row = Typed(ReverseSweep.Gradient(builder, output.Value, n, KnownGradient), spec.ReturnType);
+        }
 
         // Second order: one tangent sweep per variable over every first-order expression (forward over reverse).
         Node[][]? hessian = null;

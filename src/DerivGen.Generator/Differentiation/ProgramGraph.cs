@@ -88,6 +88,32 @@ internal sealed class LoopSegment
     public List<LoopState> States { get; } = new();
 }
 
+/// <summary>An output of a method that writes its values into a span: <c>outputs[Index] = Value;</c> at a stage.</summary>
+internal sealed class OutputWrite
+{
+    public OutputWrite(Node index, Node value, int stage, int ordinal)
+    {
+        Index = index;
+        Value = value;
+        Stage = stage;
+        Ordinal = ordinal;
+    }
+
+    public Node Index { get; }
+
+    public Node Value { get; }
+
+    /// <summary>Where the write happens (the stage of the statement, not of its nodes: a loop-invariant value written in a
+    /// loop is computed once ahead of it, but written in every iteration).</summary>
+    public int Stage { get; }
+
+    /// <summary>Its number in source order.</summary>
+    public int Ordinal { get; }
+
+    /// <summary>∂Value/∂vₖ for the scalar variables, one Jacobian row (set by the Differentiate stage).</summary>
+    public Node[] Row { get; set; } = Array.Empty<Node>();
+}
+
 /// <summary>
 /// Turns the IR body into the DAG of its value, exactly as written (raw nodes only), with the user's local names on
 /// the nodes they name. Straight-line code becomes one expression once locals are substituted; an if/else becomes a
@@ -103,6 +129,8 @@ internal sealed class ProgramGraph
     private readonly HashSet<string> _named = new(StringComparer.Ordinal);
     private readonly List<LoopSegment> _loops = new();
     private readonly List<LoopSegment> _topLevel = new();
+    private readonly List<OutputWrite> _outputs = new();
+    private int _branchDepth;
     private HashSet<string>? _currentStates;
     private LoopSegment? _currentLoop;
     private int _stage;
@@ -126,6 +154,9 @@ internal sealed class ProgramGraph
 
     public Node Value { get; private set; } = null!;
 
+    /// <summary>The writes of a method with outputs, in source order (empty for a method that returns its value).</summary>
+    public IReadOnlyList<OutputWrite> Outputs => _outputs;
+
     public static ProgramGraph Build(ExpressionBuilder builder, MethodSpec spec, IReadOnlyDictionary<string, int> variableIndex,
         IReadOnlyDictionary<string, int> vectorIndex)
     {
@@ -133,6 +164,11 @@ internal sealed class ProgramGraph
         CollectLocalNames(spec.Body, graph._displayNames);
         var locals = new Dictionary<string, Node>(StringComparer.Ordinal);
         graph.Run(spec.Body, locals);
+        if (graph.Value is null && spec.HasOutputs)
+        {
+            graph.Value = builder.Zero(spec.ReturnType); // a method with outputs returns nothing; its outputs are the roots
+        }
+
         if (graph.Value is null)
         {
             throw new InvalidOperationException("The lowered body has no return statement.");
@@ -170,10 +206,12 @@ internal sealed class ProgramGraph
                     var whenFalse = new Dictionary<string, Node>(locals, StringComparer.Ordinal);
                     Node? returnedBefore = Value;
                     Value = null!;
+                    _branchDepth++;
                     Run(branch.Then, whenTrue);
                     Node? returnedThen = Value;
                     Value = null!;
                     Run(branch.Else, whenFalse);
+                    _branchDepth--;
                     Node? returnedElse = Value;
 
                     // Both sides of an if that returns from the method return (Lowering puts the rest of the method on
@@ -215,6 +253,13 @@ internal sealed class ProgramGraph
                 case IrReturn ret:
                     Value = Build(ret.Value, locals);
                     break;
+
+                case IrOutput output when _branchDepth == 0:
+                    _outputs.Add(new OutputWrite(Build(output.Index, locals), Build(output.Value, locals), _stage, output.Ordinal));
+                    break;
+
+                case IrOutput:
+                    throw new InvalidOperationException("An output is written under a condition (Lowering refuses that).");
             }
         }
     }

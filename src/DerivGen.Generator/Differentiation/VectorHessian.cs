@@ -114,6 +114,7 @@ internal sealed record PairHessian(MethodSpec Spec, DerivativeProgram Program, s
         {
             IrAssign assign => assign with { Value = Expression(assign.Value) },
             IrReturn ret => ret with { Value = Expression(ret.Value) },
+            IrOutput output => output with { Index = Expression(output.Index), Value = Expression(output.Value) },
             IrIf branch => branch with { Condition = Expression(branch.Condition), Then = Statements(branch.Then), Else = Statements(branch.Else) },
             IrFor loop => loop with { Start = Expression(loop.Start), End = Expression(loop.End), Body = Statements(loop.Body) },
             IrWhile loop => loop with { Setup = Statements(loop.Setup), Condition = Expression(loop.Condition), Body = Statements(loop.Body) },

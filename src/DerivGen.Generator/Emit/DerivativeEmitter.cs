@@ -48,7 +48,7 @@ internal static class DerivativeEmitter
             scopes.Add(writer.Block(keyword + " " + type.Name));
         }
 
-        WriteMethod(writer, context, withHessian: false);
+        WriteMethod(writer, context, withHessian: false);   // MJacobian for a method with outputs (it has no Hessian)
         if (program.Hessian is not null)
         {
             writer.Line();
@@ -94,7 +94,9 @@ internal static class DerivativeEmitter
         DerivativeProgram program = context.Program;
         int n = program.Variables.Length;
         string type = ExpressionWriter.TypeKeyword(spec.ReturnType);
-        string methodName = context.BareName + (withHessian ? Lowering.MethodParser.HessianSuffix : Lowering.MethodParser.GradientSuffix);
+        bool jacobian = spec.HasOutputs;
+        string methodName = context.BareName + (jacobian ? Lowering.MethodParser.JacobianSuffix
+            : withHessian ? Lowering.MethodParser.HessianSuffix : Lowering.MethodParser.GradientSuffix);
         string variableList = string.Join(", ", spec.Parameters.Where(p => p.IsVariable).Select(p => Identifiers.Unescape(p.Name) + (p.IsVector ? "[…]" : string.Empty)));
 
         // Documentation.
@@ -104,6 +106,11 @@ internal static class DerivativeEmitter
             writer.Line("/// <see cref=\"" + Xml(spec.Cref) + "\"/> along two slots of its vector variables, for its Hessian: every element read is");
             writer.Line("/// shifted by tRow at slot row and by tColumn at slot column, so that at tRow = tColumn = 0 the second derivative");
             writer.Line("/// with respect to (tRow, tColumn) is the Hessian entry [row, column], and with respect to (tRow, s) the entry [row, s].");
+        }
+        else if (jacobian)
+        {
+            writer.Line("/// Writes the outputs of <see cref=\"" + Xml(spec.Cref) + "\"/> into " + Xml(Identifiers.Unescape(spec.OutputName!))
+                + " as it does, and their Jacobian with respect to (" + Xml(variableList) + ").");
         }
         else
         {
@@ -124,33 +131,59 @@ internal static class DerivativeEmitter
         foreach (ParameterSpec parameter in spec.Parameters)
         {
             writer.Line("/// <param name=\"" + Xml(Identifiers.Unescape(parameter.Name)) + "\">"
-                + (parameter.IsVariable ? "A differentiation variable." : "Passed to the method unchanged; held constant.") + "</param>");
+                + (parameter.IsVariable ? "A differentiation variable."
+                    : parameter.Name == spec.OutputName ? "Receives the outputs, written as the method writes them."
+                    : "Passed to the method unchanged; held constant.") + "</param>");
         }
 
-        writer.Line("/// <param name=\"" + context.GradientName + "\">Receives ∂f/∂v for v = " + Xml(variableList) + ", in that order; needs at least "
-            + Xml(context.GradientLength) + (context.GradientLength == "1" ? " element.</param>" : " elements.</param>"));
+        if (jacobian)
+        {
+            string outputs = Xml(Identifiers.Unescape(spec.OutputName!));
+            writer.Line("/// <param name=\"" + context.JacobianName + "\">Receives ∂" + outputs + "[i]/∂v for v = " + Xml(variableList) + " in row i, row-major ("
+                + outputs + ".Length rows of " + Count(n) + "); needs at least " + outputs + ".Length × " + Count(n)
+                + " elements. Only the rows of the outputs the method writes are written.</param>");
+        }
+        else
+        {
+            writer.Line("/// <param name=\"" + context.GradientName + "\">Receives ∂f/∂v for v = " + Xml(variableList) + ", in that order; needs at least "
+                + Xml(context.GradientLength) + (context.GradientLength == "1" ? " element.</param>" : " elements.</param>"));
+        }
+
         if (withHessian)
         {
             writer.Line("/// <param name=\"" + context.HessianName + "\">Receives the " + Count(n) + "×" + Count(n)
                 + " Hessian, row-major (exactly symmetric); needs at least " + Count(n * n) + " elements.</param>");
         }
 
-        writer.Line("/// <returns>The value of the method at these arguments, bit-for-bit.</returns>");
+        if (!jacobian)
+        {
+            writer.Line("/// <returns>The value of the method at these arguments, bit-for-bit.</returns>");
+        }
+
         writer.Line("/// <exception cref=\"global::System.ArgumentException\">A span is shorter than stated.</exception>");
         writer.Line("[global::System.CodeDom.Compiler.GeneratedCode(\"" + ToolName + "\", \"" + ToolVersion + "\")]");
 
         // Signature.
         var parameters = spec.Parameters.Select(p => p.Modifiers + p.TypeName + " " + p.Name).ToList();
-        parameters.Add("global::System.Span<" + type + "> " + context.GradientName);
+        parameters.Add("global::System.Span<" + type + "> " + (jacobian ? context.JacobianName : context.GradientName));
         if (withHessian)
         {
             parameters.Add("global::System.Span<" + type + "> " + context.HessianName);
         }
 
         string modifiers = spec.Accessibility + (spec.IsStatic ? " static " : " ");
-        using (writer.Block(modifiers + type + " " + methodName + "(" + string.Join(", ", parameters) + ")"))
+        using (writer.Block(modifiers + (jacobian ? "void" : type) + " " + methodName + "(" + string.Join(", ", parameters) + ")"))
         {
-            WriteLengthCheck(writer, context.GradientName, context.GradientLength, "one per variable: " + variableList);
+            if (jacobian)
+            {
+                WriteLengthCheck(writer, context.JacobianName, "(long)" + spec.OutputName + ".Length * " + Count(n),
+                    "one row of " + Count(n) + " per output, row-major: " + variableList);
+            }
+            else
+            {
+                WriteLengthCheck(writer, context.GradientName, context.GradientLength, "one per variable: " + variableList);
+            }
+
             if (withHessian)
             {
                 WriteLengthCheck(writer, context.HessianName, Count(n * n), Count(n) + " × " + Count(n) + ", row-major");
@@ -298,6 +331,14 @@ internal static class DerivativeEmitter
             roots.AddRange(program.Hessian!.SelectMany(row => row).Select(h => (h, finalStage)));
         }
 
+        // A method with outputs: each write needs its index, its value and its Jacobian row where it is written.
+        foreach (OutputWrite output in program.Outputs)
+        {
+            roots.Add((output.Index, output.Stage));
+            roots.Add((output.Value, output.Stage));
+            roots.AddRange(output.Row.Select(entry => (entry, output.Stage)));
+        }
+
         var initial = new Dictionary<LoopSegment, List<StateUpdate>>();
         var next = new Dictionary<LoopSegment, List<StateUpdate>>();
         foreach (LoopSegment loop in program.Loops)
@@ -421,6 +462,7 @@ internal static class DerivativeEmitter
         // that could throw (a data read, an int division, Clamp) must stay inside that condition: it is written inline
         // where it is used, never computed ahead in a local.
         var valueRoots = new List<Node> { program.Value };
+        valueRoots.AddRange(program.Outputs.SelectMany(o => new[] { o.Index, o.Value }));
         foreach (LoopSegment loop in program.Loops)
         {
             valueRoots.AddRange(loop.Condition is null ? new[] { loop.Start!, loop.End! } : new[] { loop.Condition });
@@ -545,6 +587,42 @@ internal static class DerivativeEmitter
 
                 writer.Line(ExpressionWriter.TypeKeyword(node.Type) + " " + nameOf[node] + " = " + definition + ";");
                 written.Add(node);
+            }
+
+            WriteOutputs(stage);
+        }
+
+        // The outputs written at a stage, in source order, each followed by its Jacobian row:
+        // outputs[i] = value; jacobian[n·i + k] = ∂value/∂vₖ.
+        void WriteOutputs(int stage)
+        {
+            string outputs = context.Spec.OutputName ?? string.Empty;
+            foreach (OutputWrite output in program.Outputs.Where(o => o.Stage == stage))
+            {
+                string index = code.Write(output.Index);
+                writer.Line(outputs + "[" + index + "] = " + code.Write(output.Value) + ";");
+                string row;
+                if (output.Index.Kind == NodeKind.Constant)
+                {
+                    row = Count((int)output.Index.Value * n);
+                }
+                else if (n == 1 && (output.Index.IsLeaf || nameOf.ContainsKey(output.Index)))
+                {
+                    row = index;
+                }
+                else
+                {
+                    row = names.Claim("row");
+                    writer.Line("int " + row + " = " + (n == 1 ? index : Count(n) + " * " + Parenthesized(index)) + ";");
+                }
+
+                for (int k = 0; k < n; k++)
+                {
+                    string at = output.Index.Kind == NodeKind.Constant ? Count(((int)output.Index.Value * n) + k)
+                        : k == 0 ? row : row + " + " + Count(k);
+                    writer.Line(context.JacobianName + "[" + at + "] = " + code.Write(output.Row[k]) + "; // ∂"
+                        + Identifiers.Unescape(outputs) + "[" + new ExpressionWriter(x => null, formula: true).Write(output.Index) + "]/∂" + Identifiers.Unescape(program.Variables[k]));
+                }
             }
         }
 
@@ -756,6 +834,12 @@ internal static class DerivativeEmitter
             writer.Line(context.GradientName + ".Slice(" + context.VectorOffset[v] + ", " + Length(v) + ").Clear(); // ∂" + context.BareName + "/∂"
                 + Identifiers.Unescape(program.Vectors[v]) + "[…]");
             AddTerms(context.GradientName, offset, program.VectorGradient.Where(t => t.Vector == v), null);
+        }
+
+        if (context.Spec.HasOutputs)
+        {
+            writer.TrimBlank();
+            return; // The outputs and their rows are written where the method writes them.
         }
 
         for (int i = 0; i < n; i++)
@@ -1046,6 +1130,7 @@ internal static class DerivativeEmitter
             var names = new TemporaryNames(taken);
             GradientName = names.Claim("gradient");
             HessianName = names.Claim("hessian");
+            JacobianName = names.Claim("jacobian");
 
             // Where each variable's derivatives go in the gradient span: declaration order, a vector taking v.Length slots.
             (ScalarOffset, VectorOffset, GradientLength) = PairHessian.SlotOffsets(spec);
@@ -1069,6 +1154,8 @@ internal static class DerivativeEmitter
         public string GradientName { get; }
 
         public string HessianName { get; }
+
+        public string JacobianName { get; }
 
         public string PartialName(int i) => "∂" + BareName + "/∂" + Identifiers.Unescape(Program.Variables[i]);
 
@@ -1111,14 +1198,14 @@ internal static class DerivativeEmitter
                     : "for " + loop.Index + " from " + Formula(loop.Start!) + (loop.Inclusive ? " to " : " while below ") + Formula(loop.End!);
                 yield return indent + head + (several ? " (each ← uses the values from the start of the iteration):" : ":");
                 string inner = indent + "    ";
-                foreach (string line in Locals(roots, loop.InsideStage, inner))
+                foreach (string line in Locals(roots, loop.InsideStage, inner).Concat(OutputLines(loop.InsideStage, inner)))
                 {
                     yield return line;
                 }
 
                 foreach (LoopSegment nested in loop.Children)
                 {
-                    foreach (string line in LoopLines(nested, inner).Concat(Locals(roots, nested.AfterStage, inner)))
+                    foreach (string line in LoopLines(nested, inner).Concat(Locals(roots, nested.AfterStage, inner)).Concat(OutputLines(nested.AfterStage, inner)))
                     {
                         yield return line;
                     }
@@ -1154,12 +1241,45 @@ internal static class DerivativeEmitter
                 }
             }
 
+            // The outputs written at a stage (a method with outputs), with the locals they read and their Jacobian rows.
+            IEnumerable<string> OutputLines(int stage, string indent)
+            {
+                string outputs = Identifiers.Unescape(Spec.OutputName ?? string.Empty);
+                foreach (OutputWrite output in Program.Outputs.Where(o => o.Stage == stage))
+                {
+                    for (int s = 0; s <= stage; s++)
+                    {
+                        foreach (string line in Locals(new[] { output.Index, output.Value }, s, indent))
+                        {
+                            yield return line;
+                        }
+                    }
+
+                    string element = outputs + "[" + Formula(output.Index) + "]";
+                    yield return indent + element + " = " + Formula(output.Value);
+                    for (int k = 0; k < output.Row.Length; k++)
+                    {
+                        yield return indent + "∂" + element + "/∂" + Identifiers.Unescape(Program.Variables[k]) + " = " + Formula(output.Row[k]);
+                    }
+                }
+            }
+
             foreach (LoopSegment loop in Program.TopLevelLoops)
             {
-                foreach (string line in LoopLines(loop, string.Empty))
+                foreach (string line in OutputLines(loop.BeforeStage, string.Empty).Concat(LoopLines(loop, string.Empty)))
                 {
                     yield return line;
                 }
+            }
+
+            if (Spec.HasOutputs)
+            {
+                foreach (string line in OutputLines(Program.FinalStage, string.Empty))
+                {
+                    yield return line;
+                }
+
+                yield break;
             }
 
             for (int stage = 0; stage <= Program.FinalStage; stage++)

@@ -35,6 +35,18 @@ internal sealed class IndentedWriter
         return afterBlank || afterOpen || length == 0 ? this : Line();
     }
 
+    /// <summary>Removes a blank line just written (before a block closes).</summary>
+    public IndentedWriter TrimBlank()
+    {
+        int length = _text.Length;
+        if (length >= 2 && _text[length - 1] == '\n' && _text[length - 2] == '\n')
+        {
+            _text.Length = length - 1;
+        }
+
+        return this;
+    }
+
     /// <summary>Writes "{", indents until the returned scope is disposed, then writes "}".</summary>
     public Scope Block(string? header = null)
     {

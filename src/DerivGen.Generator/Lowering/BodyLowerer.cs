@@ -33,9 +33,13 @@ internal sealed partial class BodyLowerer
     private readonly HelperContext _helpers;
     private readonly bool _emitHessian;
 
+    /// <summary>The span a void method writes its outputs into (its last parameter), or null for a method that returns its value.</summary>
+    private readonly IParameterSymbol? _output;
+
     public BodyLowerer(IMethodSymbol method, bool emitHessian, HashSet<string> variables, HelperContext helpers, List<DiagnosticInfo> diagnostics,
-        CancellationToken cancellationToken)
+        CancellationToken cancellationToken, IParameterSymbol? output = null)
     {
+        _output = output;
         _helpers = helpers;
         _method = method;
         _emitHessian = emitHessian;
@@ -43,6 +47,9 @@ internal sealed partial class BodyLowerer
         _diagnostics = diagnostics;
         _cancellationToken = cancellationToken;
     }
+
+    /// <summary>Where each output write (<see cref="IrOutput.Ordinal"/>) is in the source, for diagnostics.</summary>
+    public List<Location> OutputLocations { get; } = new();
 
     public EquatableArray<IrStatement> Lower(IBlockOperation body)
     {
@@ -131,6 +138,9 @@ internal sealed partial class BodyLowerer
                 }
 
                 return false;
+
+            case IReturnOperation { ReturnedValue: null } when _output is not null && isTopLevel && position == list.Count - 1:
+                return false; // "return;" at the end of a method that writes outputs
 
             case IReturnOperation:
                 Unsupported(statement, "an early return", "return once, at the end of the method; assign the result to a local in the branches instead");
@@ -554,6 +564,16 @@ internal sealed partial class BodyLowerer
                 break;
             }
 
+            case ISimpleAssignmentOperation { Target: IPropertyReferenceOperation { Property.IsIndexer: true, Instance: { } written } target } assignment
+                when IsOutput(written):
+                LowerOutput(assignment, target);
+                break;
+
+            case IAssignmentOperation { Target: IPropertyReferenceOperation { Property.IsIndexer: true, Instance: { } updated } }
+                when IsOutput(updated):
+                Unsupported(expression, $"the update '{Text(expression)}' of an output", "outputs are written once with '=' and never read back; sum into a local and write that");
+                break;
+
             case IAssignmentOperation { Target: IParameterReferenceOperation parameterTarget }:
                 Unsupported(expression, $"the assignment to parameter '{parameterTarget.Parameter.Name}'", "assign the new value to a local instead");
                 break;
@@ -566,6 +586,31 @@ internal sealed partial class BodyLowerer
                 Unsupported(expression, $"the statement '{Text(expression)}'", "a differentiable body only declares and assigns locals and returns a value");
                 break;
         }
+    }
+
+    /// <summary>Whether the operation is the span of outputs of a method that writes its values.</summary>
+    private bool IsOutput(IOperation operation) =>
+        _output is not null && operation is IParameterReferenceOperation { Parameter: var parameter } && SymbolEqualityComparer.Default.Equals(parameter, _output);
+
+    /// <summary><c>outputs[i] = e;</c>: one output of the method, numbered in source order.</summary>
+    private void LowerOutput(ISimpleAssignmentOperation assignment, IPropertyReferenceOperation target)
+    {
+        ScalarType type = ScalarTypeOf(((INamedTypeSymbol)_output!.Type).TypeArguments[0])!.Value;
+        IrExpression? index = target.Arguments.Length == 1 ? LowerExpression(target.Arguments[0].Value) : null;
+        IrExpression? value = LowerExpression(assignment.Value);
+        if (index is not null && index.Type != ScalarType.Int32)
+        {
+            Unsupported(target.Arguments[0].Value, $"the index '{Text(target.Arguments[0].Value)}'", "indices must be int expressions");
+            return;
+        }
+
+        if (index is null || value is null)
+        {
+            return;
+        }
+
+        _statements.Add(new IrOutput(index, Convert(value, type), OutputLocations.Count));
+        OutputLocations.Add(assignment.Syntax.GetLocation());
     }
 
     private static ScalarType? ScalarTypeOfConversion(ICompoundAssignmentOperation compound) =>
@@ -683,6 +728,9 @@ internal sealed partial class BodyLowerer
             case IPropertyReferenceOperation { Property.IsIndexer: true, Instance: { } spanInstance } indexer when IsSpan(spanInstance.Type):
                 return LowerElement(indexer, spanInstance, indexer.Arguments.Select(a => a.Value).ToImmutableArray());
 
+            case IPropertyReferenceOperation { Property.Name: "Length", Instance: { } outputs } when IsOutput(outputs):
+                return new IrExternal(Identifiers.Escape(_output!.Name) + ".Length", ScalarType.Int32);
+
             case IPropertyReferenceOperation { Property.Name: "Length", Instance: { } lengthOf } when DataText(lengthOf) is { } lengthData:
                 return new IrExternal(lengthData + ".Length", ScalarType.Int32);
 
@@ -761,6 +809,11 @@ internal sealed partial class BodyLowerer
     /// <summary>An element of data read with int indices (which, being ints, cannot depend on a variable).</summary>
     private IrExpression? LowerElement(IOperation element, IOperation data, IReadOnlyList<IOperation> indices)
     {
+        if (IsOutput(data))
+        {
+            return Unsupported(element, $"reading the output '{Text(element)}'", "outputs are written, never read back; keep the value in a local and read that");
+        }
+
         if (DataText(data) is not { } text || element.Type is null || ScalarTypeOf(element.Type) is not (ScalarType.Double or ScalarType.Single or ScalarType.Int32) || indices.Count == 0)
         {
             return Unsupported(element, $"the element access '{Text(element)}'",
@@ -790,7 +843,7 @@ internal sealed partial class BodyLowerer
     /// <summary>The C# text naming data (an array or span that is not a variable), or null when it is not data.</summary>
     private string? DataText(IOperation data) => data switch
     {
-        IParameterReferenceOperation parameter when IsData(parameter.Parameter.Type) =>
+        IParameterReferenceOperation parameter when IsData(parameter.Parameter.Type) && !IsOutput(parameter) =>
             Identifiers.Escape(parameter.Parameter.Name),   // data, or a vector of variables (then its elements are variables)
         IFieldReferenceOperation { Instance: IInstanceReferenceOperation, Field: var field } when IsData(field.Type) => "this." + Identifiers.Escape(field.Name),
         IFieldReferenceOperation { Field: { IsStatic: true, IsReadOnly: true } field } when IsData(field.Type) =>

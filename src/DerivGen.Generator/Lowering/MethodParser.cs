@@ -50,6 +50,7 @@ internal static class MethodParser
     public const string AttributeMetadataName = "DerivGen.DifferentiateAttribute";
     public const string GradientSuffix = "Gradient";
     public const string HessianSuffix = "Hessian";
+    public const string JacobianSuffix = "Jacobian";
     private const string GeneratorToolName = "DerivGen";
 
     public static LoweringResult Lower(IMethodSymbol method, MethodDeclarationSyntax syntax, AttributeData attribute,
@@ -156,7 +157,15 @@ internal static class MethodParser
     {
         Location nameLocation = syntax.Identifier.GetLocation();
 
-        ScalarType? returnType = BodyLowerer.ScalarTypeOf(method.ReturnType);
+        // A void method whose last parameter is a Span<double> (Span<float>) writes its values there: its Jacobian is generated.
+        IParameterSymbol? output = OutputParameter(method);
+        if (output is not null)
+        {
+            emitHessian = false;
+            CheckOutputVariables(method, output, variables, nameLocation, diagnostics);
+        }
+
+        ScalarType? returnType = output is not null ? BodyLowerer.ScalarTypeOf(ElementType(output.Type)) : BodyLowerer.ScalarTypeOf(method.ReturnType);
         if (returnType is not (ScalarType.Double or ScalarType.Single))
         {
             diagnostics.Add(DiagnosticInfo.Create(DiagnosticDescriptors.ReturnTypeNotFloatingPoint, syntax.ReturnType.GetLocation(),
@@ -184,7 +193,7 @@ internal static class MethodParser
         }
 
         CheckGeneratedNames(method, emitHessian, emitHessian && method.Parameters.Any(p => variables.Contains(p.Name) && IsFloatingPointVector(p.Type)),
-            nameLocation, diagnostics);
+            output is not null, nameLocation, diagnostics);
 
         EquatableArray<IrStatement> body = EquatableArray<IrStatement>.Empty;
         if (syntax.Body is null && syntax.ExpressionBody is null)
@@ -197,8 +206,13 @@ internal static class MethodParser
             if (semanticModel.GetOperation(syntax, cancellationToken) is IMethodBodyOperation { BlockBody: var block, ExpressionBody: var expression }
                 && (block ?? expression) is { } bodyOperation)
             {
-                var lowerer = new BodyLowerer(method, emitHessian, new HashSet<string>(variables.Select(Identifiers.Escape), StringComparer.Ordinal), helpers, diagnostics, cancellationToken);
+                var lowerer = new BodyLowerer(method, emitHessian, new HashSet<string>(variables.Select(Identifiers.Escape), StringComparer.Ordinal), helpers, diagnostics,
+                    cancellationToken, output);
                 body = lowerer.Lower(bodyOperation);
+                if (output is not null)
+                {
+                    CheckOutputsUnconditional(body, lowerer.OutputLocations, insideBranch: false, diagnostics);
+                }
             }
             else
             {
@@ -230,7 +244,61 @@ internal static class MethodParser
             EmitHessian: emitHessian,
             DisplayName: method.ToDisplayString(HeaderFormat),
             Cref: method.Name + "(" + string.Join(", ", method.Parameters.Select(p => CrefType(p))) + ")",
-            Body: body);
+            Body: body,
+            OutputName: output is null ? null : Identifiers.Escape(output.Name));
+    }
+
+    /// <summary>
+    /// The span of outputs of a method that returns void and takes a <c>Span&lt;double&gt;</c> or <c>Span&lt;float&gt;</c>
+    /// (passed by value) last; null for any other method.
+    /// </summary>
+    internal static IParameterSymbol? OutputParameter(IMethodSymbol method) =>
+        method.ReturnsVoid && method.Parameters.Length > 0 && method.Parameters[method.Parameters.Length - 1] is
+        {
+            RefKind: RefKind.None,
+            Type: INamedTypeSymbol { Name: "Span", TypeArguments.Length: 1 } span,
+        } last
+        && span.ContainingNamespace?.ToDisplayString() == "System" && IsFloatingPoint(span.TypeArguments[0])
+            ? last
+            : null;
+
+    /// <summary>The variables of a method with outputs: scalars only, and never the outputs themselves.</summary>
+    private static void CheckOutputVariables(IMethodSymbol method, IParameterSymbol output, HashSet<string> variables, Location nameLocation, List<DiagnosticInfo> diagnostics)
+    {
+        foreach (IParameterSymbol parameter in method.Parameters.Where(p => variables.Contains(p.Name) && IsFloatingPointVector(p.Type)))
+        {
+            string hint = SymbolEqualityComparer.Default.Equals(parameter, output)
+                ? "the last parameter holds the outputs, whose Jacobian is generated; name the parameters to differentiate with respect to"
+                : "a method that writes outputs is differentiated with respect to scalar parameters only (vector variables are not supported there yet); pass the parameters as doubles";
+            diagnostics.Add(DiagnosticInfo.Create(DiagnosticDescriptors.UnsupportedConstruct, parameter.Locations.FirstOrDefault() ?? nameLocation,
+                "The vector variable '" + parameter.Name + "' of a method with outputs", hint));
+        }
+    }
+
+    /// <summary>Outputs are written unconditionally: a write inside an if, a switch or after a jump would leave its Jacobian row stale.</summary>
+    private static void CheckOutputsUnconditional(EquatableArray<IrStatement> statements, List<Location> locations, bool insideBranch, List<DiagnosticInfo> diagnostics)
+    {
+        foreach (IrStatement statement in statements)
+        {
+            switch (statement)
+            {
+                case IrOutput output when insideBranch:
+                    diagnostics.Add(DiagnosticInfo.Create(DiagnosticDescriptors.UnsupportedConstruct, locations[output.Ordinal],
+                        "An output written under a condition (in an if or a switch, or after a break, continue or return)",
+                        "write every output unconditionally, choosing its value with ?: (outputs[i] = c ? a : b)"));
+                    break;
+                case IrIf branch:
+                    CheckOutputsUnconditional(branch.Then, locations, true, diagnostics);
+                    CheckOutputsUnconditional(branch.Else, locations, true, diagnostics);
+                    break;
+                case IrFor loop:
+                    CheckOutputsUnconditional(loop.Body, locations, insideBranch, diagnostics);
+                    break;
+                case IrWhile loop:
+                    CheckOutputsUnconditional(loop.Body, locations, insideBranch, diagnostics);
+                    break;
+            }
+        }
     }
 
     private static HashSet<string> SelectVariables(IMethodSymbol method, AttributeData attribute, bool emitHessian, List<DiagnosticInfo> diagnostics,
@@ -265,7 +333,7 @@ internal static class MethodParser
             }
             else if (IsFloatingPointVector(parameter.Type))
             {
-                if (ElementType(parameter.Type).SpecialType != method.ReturnType.SpecialType)
+                if (ElementType(parameter.Type).SpecialType != (OutputParameter(method) is { } output ? ElementType(output.Type) : method.ReturnType).SpecialType)
                 {
                     diagnostics.Add(DiagnosticInfo.Create(DiagnosticDescriptors.UnsupportedConstruct, location,
                         "The vector variable '" + parameter.Name + "' of " + ElementType(parameter.Type).ToDisplayString(),
@@ -331,10 +399,10 @@ internal static class MethodParser
         }
     }
 
-    private static void CheckGeneratedNames(IMethodSymbol method, bool emitHessian, bool pairwise, Location location, List<DiagnosticInfo> diagnostics)
+    private static void CheckGeneratedNames(IMethodSymbol method, bool emitHessian, bool pairwise, bool jacobian, Location location, List<DiagnosticInfo> diagnostics)
     {
         INamedTypeSymbol type = method.ContainingType;
-        var generated = new List<string> { method.Name + GradientSuffix };
+        var generated = new List<string> { method.Name + (jacobian ? JacobianSuffix : GradientSuffix) };
         if (emitHessian)
         {
             generated.Add(method.Name + HessianSuffix);

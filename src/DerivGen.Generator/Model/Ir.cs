@@ -107,6 +107,13 @@ internal sealed record IrAssign(string Local, IrExpression Value) : IrStatement;
 /// <summary>Returns the method's value. In straight-line bodies it is the last statement.</summary>
 internal sealed record IrReturn(IrExpression Value) : IrStatement;
 
+/// <summary>
+/// A write of one output of a method that returns its values in a span (<c>outputs[Index] = Value;</c>), numbered
+/// <paramref name="Ordinal"/> in source order. Outputs are written unconditionally (never inside an <see cref="IrIf"/>)
+/// and never read back.
+/// </summary>
+internal sealed record IrOutput(IrExpression Index, IrExpression Value, int Ordinal) : IrStatement;
+
 /// <summary><c>if (Condition) { Then } else { Else }</c>.</summary>
 internal sealed record IrIf(IrExpression Condition, EquatableArray<IrStatement> Then, EquatableArray<IrStatement> Else) : IrStatement;
 

@@ -18,6 +18,9 @@ namespace DerivGen.Generator.Model;
 /// <param name="Cref">The method as a documentation cref inside its type, e.g. "Loss(double, double)".</param>
 /// <param name="Body">The lowered body.</param>
 /// <param name="IsPairMethod">Whether this is the pair method a vector-variable Hessian is assembled from.</param>
+/// <param name="OutputName">For a method that returns void and writes its values into a span (its last parameter), that
+/// parameter's name: the method gets <c>MJacobian</c> instead of <c>MGradient</c>/<c>MHessian</c>, and
+/// <paramref name="ReturnType"/> is the span's element type.</param>
 /// <param name="IsHelper">Whether the method is not marked but called from one that is (its derivatives are generated for that call).</param>
 internal sealed record MethodSpec(
     string HintName,
@@ -33,7 +36,12 @@ internal sealed record MethodSpec(
     string Cref,
     EquatableArray<IrStatement> Body,
     bool IsHelper = false,
-    bool IsPairMethod = false);
+    bool IsPairMethod = false,
+    string? OutputName = null)
+{
+    /// <summary>Whether this is a method with a span of outputs, whose Jacobian is generated.</summary>
+    public bool HasOutputs => OutputName is not null;
+}
 
 /// <summary>A containing type: its declaration keyword(s) ("class", "record struct", ...) and name with type parameters.</summary>
 internal sealed record ContainingTypeSpec(string Keyword, string Name);
