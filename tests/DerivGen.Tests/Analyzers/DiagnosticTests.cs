@@ -277,4 +277,86 @@ public sealed class DiagnosticTests
             public static double F(double x, double y) => x * y;
         }
         """);
+
+    // Methods with a span of outputs (MJacobian).
+
+    [Fact]
+    public Task MethodWithOutputsHasNoDiagnostic() => VerifyAsync(Usings + """
+        public static partial class C
+        {
+            [Differentiate(nameof(a), nameof(b))]
+            public static void R(double a, double b, ReadOnlySpan<double> t, Span<double> r)
+            {
+                r[0] = a;
+                for (int i = 0; i < t.Length; i++)
+                {
+                    r[1 + i] = a * Math.Exp(-b * t[i]);
+                }
+
+                return;
+            }
+        }
+        """);
+
+    [Fact]
+    public Task DG0005VoidMethodWithoutASpanOfOutputs() => VerifyAsync(Usings + """
+        public static partial class C
+        {
+            [Differentiate]
+            public static {|DG0005:void|} F(double x, ReadOnlySpan<double> r)
+            {
+            }
+        }
+        """);
+
+    [Fact]
+    public Task DG0001OutputWrittenUnderACondition() => VerifyAsync(Usings + """
+        public static partial class C
+        {
+            [Differentiate(nameof(a))]
+            public static void F(double a, int n, Span<double> r)
+            {
+                if (n > 2)
+                {
+                    {|DG0001:r[0] = a|};
+                }
+
+                for (int i = 0; i < n; i++)
+                {
+                    if (i == 3)
+                    {
+                        break;
+                    }
+
+                    {|DG0001:r[i] = a * i|};
+                }
+            }
+        }
+        """);
+
+    [Fact]
+    public Task DG0001OutputReadBackOrUpdated() => VerifyAsync(Usings + """
+        public static partial class C
+        {
+            [Differentiate(nameof(a))]
+            public static void F(double a, Span<double> r)
+            {
+                r[0] = a;
+                r[1] = 2 * {|DG0001:r[0]|};
+                {|DG0001:r[1] += a|};
+            }
+        }
+        """);
+
+    [Fact]
+    public Task DG0001VectorVariableInAMethodWithOutputs() => VerifyAsync(Usings + """
+        public static partial class C
+        {
+            [Differentiate(nameof(a), nameof(p))]
+            public static void F(double a, ReadOnlySpan<double> {|DG0001:p|}, Span<double> r)
+            {
+                r[0] = a * p[0];
+            }
+        }
+        """);
 }

@@ -45,6 +45,28 @@ public sealed class ApprovedOutputTests
         """).Source("Samples.Signals.Damped.Residual.g.cs"));
 
     [Fact]
+    public void Jacobian() => Approvals.Verify(nameof(Jacobian), GeneratorHarness.Run("""
+        using System;
+        using DerivGen;
+
+        namespace Samples.Fitting;
+
+        public static partial class Kinetics
+        {
+            // Invented: first-order uptake toward a plateau, c(t) = cMax·(1 − exp(−k·t)), with a lag.
+            [Differentiate(nameof(cMax), nameof(k))]
+            public static void Residuals(double cMax, double k, double lag, ReadOnlySpan<double> t, ReadOnlySpan<double> observed, Span<double> r)
+            {
+                for (int i = 0; i < t.Length; i++)
+                {
+                    double elapsed = t[i] - lag;
+                    r[i] = observed[i] - cMax * (1 - Math.Exp(-k * elapsed));
+                }
+            }
+        }
+        """).Source("Samples.Fitting.Kinetics.Residuals.g.cs"));
+
+    [Fact]
     public void FloatMethod() => Approvals.Verify(nameof(FloatMethod), GeneratorHarness.Run("""
         using System;
         using DerivGen;

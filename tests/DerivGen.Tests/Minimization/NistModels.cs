@@ -7,10 +7,10 @@ namespace DerivGen.Tests.Minimization;
 
 /// <summary>
 /// The 27 NIST StRD nonlinear regression models, each written as a user would: a <c>[Differentiate]</c> method of the
-/// parameters b1..bk (scalars; <c>Hessian = false</c>) at one data point, transcribed from the "Model:" block of the
-/// dataset's file (Data/nist). The test compilation gets, per model, the method, a residual struct implementing
-/// <c>IResidualModel</c> (rᵢ = yᵢ − f(xᵢ; b), Jacobian row i = −∇f from the generated gradient) and static entry
-/// points the tests bind to delegates.
+/// parameters b1..bk (scalars) that writes the residuals rᵢ = yᵢ − f(xᵢ; b) into a span, with f transcribed from the
+/// "Model:" block of the dataset's file (Data/nist), so that the generator writes its Jacobian (<c>MJacobian</c>). The
+/// test compilation gets, per model, that method, the model at one point (for MathNet's fit), a residual struct
+/// implementing <c>IResidualModel</c> on the generated Jacobian, and static entry points the tests bind to delegates.
 /// </summary>
 internal static class NistModels
 {
@@ -92,15 +92,19 @@ internal static class NistModels
             string parameters = string.Join(", ", Enumerable.Range(1, m.Parameters).Select(k => $"double b{k}"));
             string variables = string.Join(", ", Enumerable.Range(1, m.Parameters).Select(k => $"nameof(b{k})"));
             string predictors = string.Join(", ", m.Predictors.Select(p => $"double {p}"));
-            sb.Append($"    [Differentiate({variables}, Hessian = false)]\n");
+            string columns = string.Join(", ", m.Predictors.Select(p => $"ReadOnlySpan<double> {p}Data"));
+            string locals = string.Concat(m.Predictors.Select(p => $"            double {p} = {p}Data[i];\n"));
             sb.Append($"    public static double {m.Name}({parameters}, {predictors}) => {m.Expression};\n\n");
+            sb.Append($"    [Differentiate({variables})]\n");
+            sb.Append($"    public static void {m.Name}Residuals({parameters}, {columns}, ReadOnlySpan<double> y, Span<double> r)\n");
+            sb.Append($"    {{\n        for (int i = 0; i < y.Length; i++)\n        {{\n{locals}            r[i] = y[i] - ({m.Expression});\n        }}\n    }}\n\n");
         }
 
         sb.Append("}\n\n");
         foreach (Model m in All)
         {
             string b = string.Join(", ", Enumerable.Range(0, m.Parameters).Select(k => $"b[{k}]"));
-            string at = string.Join(", ", m.Predictors.Select((_, c) => $"_predictors[{c}][i]"));
+            string columns = string.Join(", ", m.Predictors.Select((_, c) => $"_predictors[{c}]"));
             sb.Append($$"""
                 public readonly struct {{m.Name}}Residuals : IResidualModel
                 {
@@ -115,26 +119,11 @@ internal static class NistModels
 
                     public int ResidualCount => _y.Length;
 
-                    public void Residuals(ReadOnlySpan<double> b, Span<double> residuals)
-                    {
-                        for (int i = 0; i < _y.Length; i++)
-                        {
-                            residuals[i] = _y[i] - Models.{{m.Name}}({{b}}, {{at}});
-                        }
-                    }
+                    public void Residuals(ReadOnlySpan<double> b, Span<double> residuals) =>
+                        Models.{{m.Name}}Residuals({{b}}, {{columns}}, _y, residuals);
 
-                    public void ResidualsAndJacobian(ReadOnlySpan<double> b, Span<double> residuals, Span<double> jacobian)
-                    {
-                        for (int i = 0; i < _y.Length; i++)
-                        {
-                            Span<double> row = jacobian.Slice(i * {{m.Parameters}}, {{m.Parameters}});
-                            residuals[i] = _y[i] - Models.{{m.Name}}Gradient({{b}}, {{at}}, row);
-                            for (int j = 0; j < {{m.Parameters}}; j++)
-                            {
-                                row[j] = -row[j];
-                            }
-                        }
-                    }
+                    public void ResidualsAndJacobian(ReadOnlySpan<double> b, Span<double> residuals, Span<double> jacobian) =>
+                        Models.{{m.Name}}ResidualsJacobian({{b}}, {{columns}}, _y, residuals, jacobian);
                 }
 
 
