@@ -11,7 +11,8 @@ namespace DerivGen.Tests.Minimization;
 /// Test problems of Moré, Garbow &amp; Hillstrom, "Testing unconstrained optimization software", ACM TOMS 7(1), 1981,
 /// 17–41 ("MGH"): f(x) = Σ rᵢ(x)². Each is given by its residuals, from which the test compilation gets, written as a
 /// user would: <c>F</c>, the sum of squares as a <c>[Differentiate]</c> method of scalar variables x1..xn (generated
-/// gradient and Hessian), and <c>R(x1..xn, i)</c>, the i-th residual (generated gradient = row i of the Jacobian).
+/// gradient and Hessian), <c>Rs(x1..xn, residuals)</c>, a <c>[Differentiate]</c> method writing all m residuals into
+/// a span (its generated <c>RsJacobian</c> feeds Levenberg–Marquardt), and <c>R(x1..xn, i)</c>, the i-th residual.
 /// Starting points, data and minimum values are the paper's; where they are quoted from memory the record says so,
 /// and three data sets (Meyer, Kowalik–Osborne, Osborne 1) are read from the NIST StRD files of the same problems
 /// (MGH10, MGH09, MGH17), whose certified residual sums of squares confirm the remembered minima.
@@ -169,12 +170,20 @@ internal static class MghProblems
                     chain = $"i == {i} ? {p.Residuals[i]} : {chain}";
                 }
 
-                sb.Append($"    [Differentiate({variables}, Hessian = false)]\n    public static double R({parameters}, int i) => {chain};\n");
+                sb.Append($"    public static double R({parameters}, int i) => {chain};\n\n");
+                sb.Append($"    [Differentiate({variables})]\n    public static void Rs({parameters}, Span<double> residuals)\n    {{\n");
+                for (int i = 0; i < p.Residuals.Length; i++)
+                {
+                    sb.Append($"        residuals[{i}] = {p.Residuals[i]};\n");
+                }
+
+                sb.Append("    }\n");
             }
             else
             {
                 sb.Append($"        double s = 0;\n        for (int i = 0; i < {p.M}; i++)\n        {{\n            {p.Body}\n            s += r * r;\n        }}\n\n        return s;\n    }}\n\n");
-                sb.Append($"    [Differentiate({variables}, Hessian = false)]\n    public static double R({parameters}, int i)\n    {{\n        {p.Body}\n        return r;\n    }}\n");
+                sb.Append($"    public static double R({parameters}, int i)\n    {{\n        {p.Body}\n        return r;\n    }}\n\n");
+                sb.Append($"    [Differentiate({variables})]\n    public static void Rs({parameters}, Span<double> residuals)\n    {{\n        for (int i = 0; i < {p.M}; i++)\n        {{\n            {p.Body}\n            residuals[i] = r;\n        }}\n    }}\n");
             }
 
             sb.Append("}\n\n");
@@ -192,21 +201,10 @@ internal static class MghProblems
                 {
                     public int ResidualCount => {{p.M}};
 
-                    public void Residuals(ReadOnlySpan<double> x, Span<double> residuals)
-                    {
-                        for (int i = 0; i < {{p.M}}; i++)
-                        {
-                            residuals[i] = {{type}}.R({{args}}, i);
-                        }
-                    }
+                    public void Residuals(ReadOnlySpan<double> x, Span<double> residuals) => {{type}}.Rs({{args}}, residuals);
 
-                    public void ResidualsAndJacobian(ReadOnlySpan<double> x, Span<double> residuals, Span<double> jacobian)
-                    {
-                        for (int i = 0; i < {{p.M}}; i++)
-                        {
-                            residuals[i] = {{type}}.RGradient({{args}}, i, jacobian.Slice(i * {{p.N}}, {{p.N}}));
-                        }
-                    }
+                    public void ResidualsAndJacobian(ReadOnlySpan<double> x, Span<double> residuals, Span<double> jacobian) =>
+                        {{type}}.RsJacobian({{args}}, residuals, jacobian);
                 }
 
                 public static class {{type}}Entry
