@@ -18,6 +18,8 @@ internal delegate double RandomValue(double x0, double x1, double x2, double c0,
 
 internal delegate double RandomGradient(double x0, double x1, double x2, double c0, double c1, int k, double[] d, Span<double> gradient);
 
+internal delegate void RandomJacobian(double x0, double x1, double x2, double c0, double c1, int k, double[] d, Span<double> outputs, Span<double> jacobian);
+
 internal delegate double RandomHessian(double x0, double x1, double x2, double c0, double c1, int k, double[] d, Span<double> gradient, Span<double> hessian);
 
 /// <summary>A random case that failed, and why.</summary>
@@ -33,6 +35,9 @@ internal sealed class BatchOutcome
 
     /// <summary>(case, point) pairs checked.</summary>
     public int Points { get; set; }
+
+    /// <summary>Jacobian rows checked (variants with outputs, at every point).</summary>
+    public int JacobianRows { get; set; }
 
     /// <summary>Gradient or Hessian entries compared with MathNet's finite differences.</summary>
     public int OracleEntries { get; set; }
@@ -95,6 +100,9 @@ internal static class DifferentialRunner
         return outcome;
     }
 
+    /// <summary>The name suffix of a case's variant with outputs (its <c>MJacobian</c> is checked against the gradient's reference).</summary>
+    private const string OutputSuffix = "Out";
+
     private static string MethodName(int index) => "M" + index.ToString(CultureInfo.InvariantCulture);
 
     /// <summary>Compiles the batch; returns the cases that made it fail (nothing checked then), or checks them all.</summary>
@@ -102,7 +110,7 @@ internal static class DifferentialRunner
     {
         var failures = new List<CaseFailure>();
         string[] units = cases.Select((c, i) => (c, i)).Chunk(64)
-            .Select(chunk => RandomCase.Unit(chunk.Select(p => p.c.MethodSource(MethodName(p.i)))))
+            .Select(chunk => RandomCase.Unit(chunk.Select(p => p.c.MethodSource(MethodName(p.i)) + (p.c.OutputVariantSource(MethodName(p.i) + OutputSuffix) is { } variant ? "\n" + variant : ""))))
             .ToArray();
         CSharpCompilation input = CSharpCompilation.Create(
             "RandomBatch",
@@ -159,6 +167,18 @@ internal static class DifferentialRunner
             else if (generated.SourceText.ToString().Contains("#error", StringComparison.Ordinal))
             {
                 failures.Add(new CaseFailure(cases[i], "the generated file is an #error (differentiation failed):\n" + generated.SourceText));
+            }
+            else if (cases[i].HasOutputVariant)
+            {
+                string variantHint = TypeName + "." + MethodName(i) + OutputSuffix + ".g.cs";
+                if (!byHint.TryGetValue(variantHint, out GeneratedSourceResult variant))
+                {
+                    failures.Add(new CaseFailure(cases[i], "nothing was generated for the variant with outputs (refused): " + AnalyzerDiagnostics(cases[i])));
+                }
+                else if (variant.SourceText.ToString().Contains("#error", StringComparison.Ordinal))
+                {
+                    failures.Add(new CaseFailure(cases[i], "the variant with outputs' generated file is an #error:\n" + variant.SourceText));
+                }
             }
         }
 
@@ -228,6 +248,11 @@ internal static class DifferentialRunner
         }
 
         string digits = fileName.Substring(prefix.Length, fileName.Length - prefix.Length - ".g.cs".Length);
+        if (digits.EndsWith(OutputSuffix, StringComparison.Ordinal))
+        {
+            digits = digits.Substring(0, digits.Length - OutputSuffix.Length);
+        }
+
         return int.TryParse(digits, NumberStyles.None, CultureInfo.InvariantCulture, out int index) ? index : -1;
     }
 
@@ -246,6 +271,7 @@ internal static class DifferentialRunner
         RandomValue f = assembly.Method<RandomValue>(TypeName, name);
         RandomGradient g = assembly.Method<RandomGradient>(TypeName, name + "Gradient");
         RandomHessian? h = c.Hessian ? assembly.Method<RandomHessian>(TypeName, name + "Hessian") : null;
+        RandomJacobian? jacobian = c.HasOutputVariant ? assembly.Method<RandomJacobian>(TypeName, name + OutputSuffix + "Jacobian") : null;
         if (!c.Hessian && assembly.HasMethod(TypeName, name + "Hessian"))
         {
             return "Hessian = false, yet MHessian was generated";
@@ -254,7 +280,7 @@ internal static class DifferentialRunner
         foreach (CasePoint point in c.Points)
         {
             outcome.Points++;
-            if (CheckAt(point, f, g, h, c, outcome) is { } problem)
+            if (CheckAt(point, f, g, h, jacobian, c, outcome) is { } problem)
             {
                 return "at " + point + ":\n" + problem;
             }
@@ -263,7 +289,7 @@ internal static class DifferentialRunner
         return null;
     }
 
-    private static string? CheckAt(CasePoint p, RandomValue f, RandomGradient g, RandomHessian? h, RandomCase c, BatchOutcome outcome)
+    private static string? CheckAt(CasePoint p, RandomValue f, RandomGradient g, RandomHessian? h, RandomJacobian? jacobianMethod, RandomCase c, BatchOutcome outcome)
     {
         double[] x = p.Doubles;
         int n = c.Variables.Length;
@@ -284,6 +310,21 @@ internal static class DifferentialRunner
 
         var problems = new StringBuilder();
         CompareWithReference("MGradient gradient", gradient, reference.Gradient, reference.GradientBound, outcome, problems);
+
+        if (jacobianMethod is not null)
+        {
+            // The variant with outputs: outputs[0] is the value, bit for bit, and its Jacobian row is the gradient.
+            var outputs = new double[1];
+            var row = new double[n];
+            jacobianMethod(x[0], x[1], x[2], x[3], x[4], p.K, p.Data, outputs, row);
+            if (BitConverter.DoubleToInt64Bits(outputs[0]) != BitConverter.DoubleToInt64Bits(value))
+            {
+                return $"MOutJacobian wrote outputs[0] = {R(outputs[0])}, the method returns {R(value)} (must be bit-for-bit equal)";
+            }
+
+            outcome.JacobianRows++;
+            CompareWithReference("MOutJacobian row", row, reference.Gradient, reference.GradientBound, outcome, problems);
+        }
 
         double[]? hessian = null;
         if (h is not null)

@@ -108,6 +108,35 @@ internal sealed class RandomCase
         return sb.ToString();
     }
 
+    /// <summary>
+    /// Whether the method has a variant with outputs: its only return is its last statement, unconditional, so that the
+    /// body can end in <c>outputs[0] = value;</c> instead.
+    /// </summary>
+    public bool HasOutputVariant =>
+        Body.Length > 0 && Body[^1] is Return { Condition: null } && Body.SelectMany(Descendants).Count(s => s is Return) == 1;
+
+    private static IEnumerable<Stmt> Descendants(Stmt statement) => new[] { statement }.Concat(statement.Nested.SelectMany(Descendants));
+
+    /// <summary>
+    /// The variant with outputs (null without one): the same body, writing the value into <c>outputs[0]</c>, so that its
+    /// generated <c>MJacobian</c> row must equal the method's gradient (same variables).
+    /// </summary>
+    public string? OutputVariantSource(string name)
+    {
+        if (!HasOutputVariant)
+        {
+            return null;
+        }
+
+        var sb = new StringBuilder();
+        string attribute = NamesAllVariables ? "[Differentiate]" : "[Differentiate(" + string.Join(", ", Variables.Select(v => "nameof(" + v + ")")) + ")]";
+        sb.Append("    ").Append(attribute).Append('\n');
+        sb.Append("    public static void ").Append(name).Append("(double x0, double x1, double x2, double c0, double c1, int k, double[] d, Span<double> outputs)\n    {\n");
+        Printer.Print(sb, Body[..^1], 2);
+        sb.Append("        outputs[0] = ").Append(Printer.Print(((Return)Body[^1]).Value)).Append(";\n    }\n");
+        return sb.ToString();
+    }
+
     /// <summary>A complete compilation unit holding <paramref name="methods"/> in <c>Rnd.R</c>.</summary>
     public static string Unit(IEnumerable<string> methods)
     {
@@ -124,5 +153,5 @@ internal sealed class RandomCase
 
     /// <summary>What a failure report shows: the method (as a complete, compilable unit) and the point.</summary>
     public string Describe(string name = "M") =>
-        $"// seed {Seed}; {Family}; variables ({string.Join(", ", Variables)}); at\n//   {string.Join("\n//   ", Points.Select(p => p.ToString()))}\n" + Unit(new[] { MethodSource(name) });
+        $"// seed {Seed}; {Family}; variables ({string.Join(", ", Variables)}); at\n//   {string.Join("\n//   ", Points.Select(p => p.ToString()))}\n" + Unit(new[] { MethodSource(name) }.Concat(OutputVariantSource(name + "Out") is { } variant ? new[] { variant } : Array.Empty<string>()));
 }

@@ -84,6 +84,7 @@ public sealed class RandomizedDifferentialTests
             BatchOutcome outcome = DifferentialRunner.Run(cases);
             total.Checked += outcome.Checked;
             total.Points += outcome.Points;
+            total.JacobianRows += outcome.JacobianRows;
             total.OracleEntries += outcome.OracleEntries;
             total.OracleInconclusive += outcome.OracleInconclusive;
             total.WorstReferenceRatio = Math.Max(total.WorstReferenceRatio, outcome.WorstReferenceRatio);
@@ -114,7 +115,8 @@ public sealed class RandomizedDifferentialTests
     private void Report(CaseFamily family, string runSeed, BatchOutcome outcome, int count, TimeSpan elapsed)
     {
         string replay = $"DERIVGEN_SEED={runSeed}";
-        _output.WriteLine($"{family}: seed {runSeed} ({replay} replays this run); {outcome.Checked} of {count} methods checked at {outcome.Points} points, "
+        _output.WriteLine($"{family}: seed {runSeed} ({replay} replays this run); {outcome.Checked} of {count} methods checked at {outcome.Points} points "
+            + $"({outcome.JacobianRows} Jacobian rows of variants with outputs), "
             + $"{outcome.Failures.Count} failed; {outcome.OracleEntries} entries compared with finite differences, "
             + $"{outcome.OracleInconclusive} inconclusive; worst |generated - reference| / tolerance = {outcome.WorstReferenceRatio:G3}; "
             + $"largest generated file {outcome.LargestGeneratedFile} characters (case {outcome.LargestGeneratedSeed}); {outcome.ToleratedWarnings} CS1718/CS0219 warnings in generated code tolerated (known bugs); "
