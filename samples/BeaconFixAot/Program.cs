@@ -1,12 +1,15 @@
 using System;
 using System.Globalization;
+using DerivGen.Minimization;
 
 namespace BeaconFixAot;
 
 /// <summary>
 /// A tag moving through a hall fixes its position every tick from its measured ranges to five radio beacons, by Newton
 /// steps on <see cref="RangeFix.Misfit"/> — in double precision and, as a device with a single-precision FPU would, in
-/// float. Only the methods DerivGen generated are used for derivatives; nothing here is differentiated by hand.
+/// float — and, as a cross-check, by the package's Levenberg–Marquardt on <see cref="RangeFix.RangeResiduals"/> with
+/// its generated Jacobian. Only the methods DerivGen generated are used for derivatives; nothing here is
+/// differentiated by hand.
 /// </summary>
 /// <remarks>
 /// ALL NUMBERS IN THIS SAMPLE ARE INVENTED for illustration: the hall, the beacon positions, the tag's path, the range
@@ -18,6 +21,10 @@ public static class Program
     // Invented beacon positions (metres) in a 24 m x 16 m hall.
     private static readonly double[] BeaconX = { 0.0, 24.0, 24.0, 0.0, 12.0 };
     private static readonly double[] BeaconY = { 0.0, 0.0, 16.0, 16.0, 8.5 };
+
+    internal static ReadOnlySpan<double> BeaconXs => BeaconX;
+
+    internal static ReadOnlySpan<double> BeaconYs => BeaconY;
 
     private const double TrueBias = 0.35;        // invented common range bias (m)
     private const double NoiseAmplitude = 0.02;  // invented range noise: uniform-like in [-0.02, 0.02] m
@@ -32,6 +39,7 @@ public static class Program
     private const double MaxPositionError = 0.1;      // m: five ranges with at most 2 cm noise each
     private const double MaxBiasError = 0.05;         // m
     private const double MaxFloatDoubleGap = 1e-3;    // m: float agrees with double to a millimetre
+    private const double MaxSolverGap = 1e-5;         // m: Newton and Levenberg–Marquardt find the same minimiser
 
     public static int Main()
     {
@@ -62,6 +70,18 @@ public static class Program
         Span<float> stepF = stackalloc float[3];
         Span<double> rows = stackalloc double[6 * 5]; // a few ticks to print after the loop
 
+        // Levenberg–Marquardt on the residuals: its model reads the ranges from an array filled every tick, and its
+        // workspace is made once, so a fit allocates nothing.
+        var measured = new double[BeaconX.Length];
+        var rangeModel = new RangeModel(measured);
+        var workspace = new LeastSquaresWorkspace(BeaconX.Length, 3);
+        var fitSettings = new LeastSquaresSettings();
+        Span<double> fit = stackalloc double[] { 12.0, 8.0, 0.0 };
+        Span<double> fitErrors = stackalloc double[3];
+        long fitIterations = 0;
+        int failedFits = 0;
+        double worstSolverGap = 0;
+
         double x = 12.0, y = 8.0, bias = 0.0;      // double estimate, starting in the middle of the hall
         float xF = 12.0f, yF = 8.0f, biasF = 0.0f; // float estimate
         double worstError = 0, worstBiasError = 0, worstGap = 0;
@@ -77,6 +97,7 @@ public static class Program
             {
                 range[i] = Math.Sqrt(Square(trueX - BeaconX[i]) + Square(trueY - BeaconY[i])) + TrueBias + Noise(tick, i);
                 rangeF[i] = (float)range[i];
+                measured[i] = range[i];
             }
 
             // Warm start from the previous fix, as a tracker does.
@@ -86,6 +107,11 @@ public static class Program
             {
                 failedFixes++;
             }
+
+            LeastSquaresResult result = LeastSquares.LevenbergMarquardt(rangeModel, fit, fitErrors, fitSettings, workspace);
+            failedFits += result.Converged ? 0 : 1;
+            fitIterations += result.Iterations;
+            worstSolverGap = Math.Max(worstSolverGap, Math.Sqrt(Square(fit[0] - x) + Square(fit[1] - y)));
 
             newtonSteps += Math.Abs(steps);
             newtonStepsF += Math.Abs(stepsF);
@@ -116,12 +142,16 @@ public static class Program
         Console.WriteLine(Invariant($"  largest position error (double): {worstError:F4} m (bound {MaxPositionError} m)"));
         Console.WriteLine(Invariant($"  largest bias error (double): {worstBiasError:F4} m (bound {MaxBiasError} m)"));
         Console.WriteLine(Invariant($"  largest float-vs-double position gap: {worstGap:E2} m (bound {MaxFloatDoubleGap:E0} m)"));
-        Console.WriteLine(Invariant($"  bytes allocated in the hot loop ({Ticks} double fixes + {Ticks} float fixes): {allocated}"));
+        Console.WriteLine(Invariant($"  Levenberg–Marquardt (generated Jacobian): {(double)fitIterations / Ticks:F2} iterations per fix; fits that did not converge: {failedFits}"));
+        Console.WriteLine(Invariant($"  largest Newton-vs-Levenberg–Marquardt position gap: {worstSolverGap:E2} m (bound {MaxSolverGap:E0} m)"));
+        Console.WriteLine(Invariant($"  last fit's standard errors (x, y, bias): {fitErrors[0]:E2}, {fitErrors[1]:E2}, {fitErrors[2]:E2} m"));
+        Console.WriteLine(Invariant($"  bytes allocated in the hot loop ({Ticks} double fixes + {Ticks} float fixes + {Ticks} least-squares fits): {allocated}"));
 
         ok &= Report(failedFixes == 0, "every fix converged");
         ok &= Report(worstError <= MaxPositionError, "position error within bound");
         ok &= Report(worstBiasError <= MaxBiasError, "bias error within bound");
         ok &= Report(worstGap <= MaxFloatDoubleGap, "float agrees with double");
+        ok &= Report(failedFits == 0 && worstSolverGap <= MaxSolverGap, "Levenberg–Marquardt agrees with Newton");
         ok &= Report(allocated == 0, "no allocation in the hot loop");
         Console.WriteLine(ok ? "All checks passed." : "FAILED: see above.");
         return ok ? 0 : 1;
@@ -252,4 +282,20 @@ public static class Program
     }
 
     private static string Invariant(FormattableString text) => text.ToString(CultureInfo.InvariantCulture);
+}
+
+/// <summary>The range residuals of one tick for <see cref="LeastSquares"/>: the residuals and the generated Jacobian.</summary>
+internal readonly struct RangeModel : IResidualModel
+{
+    private readonly double[] _range;
+
+    public RangeModel(double[] range) => _range = range;
+
+    public int ResidualCount => _range.Length;
+
+    public void Residuals(ReadOnlySpan<double> p, Span<double> residuals) =>
+        RangeFix.RangeResiduals(p[0], p[1], p[2], Program.BeaconXs, Program.BeaconYs, _range, residuals);
+
+    public void ResidualsAndJacobian(ReadOnlySpan<double> p, Span<double> residuals, Span<double> jacobian) =>
+        RangeFix.RangeResidualsJacobian(p[0], p[1], p[2], Program.BeaconXs, Program.BeaconYs, _range, residuals, jacobian);
 }

@@ -10,7 +10,7 @@ namespace BeaconFixAot;
 /// </summary>
 /// <remarks>
 /// The class is <c>partial</c> because DerivGen adds <c>MisfitGradient</c>, <c>MisfitHessian</c>,
-/// <c>MisfitSingleGradient</c> and <c>MisfitSingleHessian</c> to it at compile time. The generated files are written to
+/// <c>MisfitSingleGradient</c>, <c>MisfitSingleHessian</c> and <c>RangeResidualsJacobian</c> to it at compile time. The generated files are written to
 /// <c>Generated/</c> beside this file and committed (see BeaconFixAot.csproj), so that a change here shows its
 /// derivative change in review.
 /// </remarks>
@@ -50,5 +50,22 @@ public static partial class RangeFix
         }
 
         return sum;
+    }
+
+    /// <summary>
+    /// The range residuals (m), predicted minus measured range to each beacon, written into <paramref name="residuals"/>:
+    /// the same fix as a least-squares problem, for Levenberg–Marquardt with the generated Jacobian.
+    /// </summary>
+    [Differentiate(nameof(x), nameof(y), nameof(bias))]
+    public static void RangeResiduals(
+        double x, double y, double bias,
+        ReadOnlySpan<double> beaconX, ReadOnlySpan<double> beaconY, ReadOnlySpan<double> range, Span<double> residuals)
+    {
+        for (int i = 0; i < range.Length; i++)
+        {
+            double dx = x - beaconX[i];
+            double dy = y - beaconY[i];
+            residuals[i] = Math.Sqrt(dx * dx + dy * dy) + bias - range[i];
+        }
     }
 }

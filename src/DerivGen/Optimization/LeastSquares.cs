@@ -26,7 +26,9 @@ public static class LeastSquares
     /// <summary>The relative rise of Σ rᵢ² a polishing step may cause: rounding noise, not a real increase.</summary>
     private const double PolishRise = 1e-10;
 
-    private static readonly LeastSquaresSettings Defaults = new();
+    // Created on first use without settings, not in a static initialiser: a caller that passes its own settings (made
+    // before its hot loop) never allocates, not even the first time.
+    private static LeastSquaresSettings? s_defaults;
 
     /// <summary>
     /// Levenberg–Marquardt with Moré's diagonal scaling. Each trial step h solves the damped problem
@@ -62,7 +64,7 @@ public static class LeastSquares
         where TModel : IResidualModel
         where TObserver : IIterationObserver
     {
-        var s = settings ?? Defaults;
+        var s = settings ?? (s_defaults ??= new LeastSquaresSettings());
         int n = x.Length, m = model.ResidualCount;
         var w = LeastSquaresWorkspace.For(workspace, m, n);
         if (!standardErrors.IsEmpty && standardErrors.Length < n)

@@ -16,7 +16,9 @@ namespace DerivGen.Minimization;
 /// </remarks>
 public static class Minimize
 {
-    private static readonly MinimizeSettings Defaults = new();
+    // Created on first use without settings, not in a static initialiser: a caller that passes its own settings (made
+    // before its hot loop) never allocates, not even the first time.
+    private static MinimizeSettings? s_defaults;
 
     /// <summary>Gradient descent with a fixed step: x ← x − α ∇f(x). No line search: too large a step diverges
     /// (<see cref="StopReason.Diverged"/> as soon as f exceeds f(x₀), or <see cref="StopReason.NotFinite"/>), too
@@ -551,7 +553,7 @@ public static class Minimize
 
     private static MinimizeSettings Prepare(MinimizeSettings? settings)
     {
-        var s = settings ?? Defaults;
+        var s = settings ?? (s_defaults ??= new MinimizeSettings());
         s.Validate();
         return s;
     }
