@@ -94,7 +94,17 @@ internal sealed class ExpressionBuilder
 
     /// <summary>A math call exactly as the user wrote it, on the type the user called it on.</summary>
     public Node RawCall(MathFunction function, MathHost host, ScalarType type, params Node[] arguments) =>
-        Intern(NodeKind.Call, type, arguments, 0, null, function, host, default, -1);
+        Intern(NodeKind.Call, type, arguments, 0, null, function, IsDefaultHost(function, host, type) ? MathHost.Default : host, default, -1);
+
+    /// <summary>
+    /// Whether the user called the function on the type derivative code calls it on (Math for double, MathF for float;
+    /// double/float for Hypot): such a call is the same node as the derivative code's, so that one
+    /// <c>Math.Sin(u)</c> serves both the value and the derivative of a <c>Math.Cos(u)</c>.
+    /// </summary>
+    private static bool IsDefaultHost(MathFunction function, MathHost host, ScalarType type) =>
+        function == MathFunction.Hypot
+            ? host == (type == ScalarType.Single ? MathHost.Single : MathHost.Double)
+            : host == (type == ScalarType.Single ? MathHost.MathF : MathHost.Math);
 
     // ---- Simplifying constructors for derivative code -----------------------------------------------------------
 

@@ -17,7 +17,7 @@
 //   ∂²Residual/∂decay² = t·(r2·wave·amplitude·(exp(-decay·t)·t) + 0.5·(exp(-decay·t)·(amplitude·(wave·(wave·(amplitude·(exp(-decay·t)·t)))))))
 //   ∂²Residual/∂phase∂amplitude = -(sin(6.283185307179586·t + phase)·(0.5·(envelope·(wave·exp(-decay·t))) + r2·exp(-decay·t)))
 //   ∂²Residual/∂phase∂decay = sin(6.283185307179586·t + phase)·(r2·(amplitude·(exp(-decay·t)·t)) + 0.5·(envelope·(wave·(amplitude·(exp(-decay·t)·t)))))
-//   ∂²Residual/∂phase² = -(-0.5·(sin(6.283185307179586·t + phase)·(envelope·(envelope·sin(6.283185307179586·t + phase)))) + r2·envelope·cos(6.283185307179586·t + phase))
+//   ∂²Residual/∂phase² = -(-0.5·(sin(6.283185307179586·t + phase)·(envelope·(envelope·sin(6.283185307179586·t + phase)))) + r2·envelope·wave)
 
 #nullable enable
 #pragma warning disable CS0219, CS1718
@@ -94,7 +94,7 @@ namespace Samples.Signals
         /// ∂²Residual/∂decay² = t·(r2·wave·amplitude·(exp(-decay·t)·t) + 0.5·(exp(-decay·t)·(amplitude·(wave·(wave·(amplitude·(exp(-decay·t)·t)))))))
         /// ∂²Residual/∂phase∂amplitude = -(sin(6.283185307179586·t + phase)·(0.5·(envelope·(wave·exp(-decay·t))) + r2·exp(-decay·t)))
         /// ∂²Residual/∂phase∂decay = sin(6.283185307179586·t + phase)·(r2·(amplitude·(exp(-decay·t)·t)) + 0.5·(envelope·(wave·(amplitude·(exp(-decay·t)·t)))))
-        /// ∂²Residual/∂phase² = -(-0.5·(sin(6.283185307179586·t + phase)·(envelope·(envelope·sin(6.283185307179586·t + phase)))) + r2·envelope·cos(6.283185307179586·t + phase))
+        /// ∂²Residual/∂phase² = -(-0.5·(sin(6.283185307179586·t + phase)·(envelope·(envelope·sin(6.283185307179586·t + phase)))) + r2·envelope·wave)
         /// </code>
         /// </remarks>
         /// <param name="amplitude">A differentiation variable.</param>
@@ -145,7 +145,7 @@ namespace Samples.Signals
             hessian[4] = t * (t2 * t5 + 0.5 * (exp * (amplitude * (wave * t7)))); // ∂²Residual/∂decay²
             hessian[2] = hessian[6] = -(sinT1 * (0.5 * (envelope * t3) + r2 * exp)); // ∂²Residual/∂phase∂amplitude
             hessian[5] = hessian[7] = sinT1 * (r2 * t6 + 0.5 * (envelope * t7)); // ∂²Residual/∂phase∂decay
-            hessian[8] = -(-0.5 * (sinT1 * (envelope * (envelope * sinT1))) + waveAdjoint * global::System.Math.Cos(t1)); // ∂²Residual/∂phase²
+            hessian[8] = -(-0.5 * (sinT1 * (envelope * (envelope * sinT1))) + waveAdjoint * wave); // ∂²Residual/∂phase²
 
             return value;
         }

@@ -76,10 +76,12 @@ public sealed class DiffStabilityTests
     public void AddingASeventhTermChangesOnlyItsFormulasAndTheSubexpressionsItShares()
     {
         // + sin(b) depends on b only: the loss, ∂/∂b and ∂²/∂b² change (13 replaced lines, 26 changed). sin(b) and
-        // cos(b) already occur (in ∂/∂b and in the loss); used once more they may each get a local in each method:
-        // at most 2 × 2 added lines. Bound 30.
+        // cos(b) already occur (in ∂/∂b and in the loss, one call serving value and derivatives); used once more they
+        // may each get a local in each method: at most 2 × 2 added lines. Temporaries are numbered in creation order,
+        // so in MHessian the three created after the new one are renamed (t4 → t5, …): their 3 definitions and the 3
+        // entries that read them, 6 replaced lines, 12 changed. Bound 26 + 4 + 12 = 42.
         AssertChangedLinesAtMost(SixTerms, SixTerms.Replace("+ 0.125 * a * b;", "+ 0.125 * a * b + Math.Sin(b);", StringComparison.Ordinal),
-            "Review.Terms.Loss.g.cs", bound: 30);
+            "Review.Terms.Loss.g.cs", bound: 42);
     }
 
     [Fact]

@@ -64,18 +64,21 @@ namespace ArmReach
                 int t1 = 2 * i;
                 double cosUpperAngle = global::System.Math.Cos(upperAngle);
                 double cosForeAngle = global::System.Math.Cos(foreAngle);
+                double upperAngleAdjoint = upperLength * cosUpperAngle + foreLength * cosForeAngle;
                 double sinUpperAngle = global::System.Math.Sin(upperAngle);
+                double t2 = upperLength * sinUpperAngle;
                 double sinForeAngle = global::System.Math.Sin(foreAngle);
-                r[t1] = upperLength * cosUpperAngle + foreLength * cosForeAngle - measuredX[i];
+                double t3 = foreLength * sinForeAngle;
+                r[t1] = upperAngleAdjoint - measuredX[i];
                 int row = 3 * t1;
                 jacobian[row] = cosUpperAngle; // ∂r[2·i]/∂upperLength
                 jacobian[row + 1] = cosForeAngle; // ∂r[2·i]/∂foreLength
-                jacobian[row + 2] = -(upperLength * global::System.Math.Sin(upperAngle)) - foreLength * global::System.Math.Sin(foreAngle); // ∂r[2·i]/∂shoulderOffset
-                r[t1 + 1] = upperLength * sinUpperAngle + foreLength * sinForeAngle - measuredY[i];
+                jacobian[row + 2] = -t2 - t3; // ∂r[2·i]/∂shoulderOffset
+                r[t1 + 1] = t2 + t3 - measuredY[i];
                 int row2 = 3 * (t1 + 1);
                 jacobian[row2] = sinUpperAngle; // ∂r[2·i + 1]/∂upperLength
                 jacobian[row2 + 1] = sinForeAngle; // ∂r[2·i + 1]/∂foreLength
-                jacobian[row2 + 2] = upperLength * global::System.Math.Cos(upperAngle) + foreLength * global::System.Math.Cos(foreAngle); // ∂r[2·i + 1]/∂shoulderOffset
+                jacobian[row2 + 2] = upperAngleAdjoint; // ∂r[2·i + 1]/∂shoulderOffset
             }
         }
     }
