@@ -229,11 +229,11 @@ internal sealed class DerivativeProgram
         Node[] gradient = ReverseSweep.Gradient(builder, graph.Value, n, KnownGradient, vectorGradient, KnownVectorGradient);
 
         // A method with outputs: one reverse sweep per output gives its Jacobian row, through the running derivatives of
-        // the loop-carried locals it reads (as for a carried local's own update). Scalar variables only (Lowering).
+        // the loop-carried locals it reads (as for a carried local's own update), and its part for the vectors of variables.
         foreach (OutputWrite output in graph.Outputs)
         {
             cancellationToken.ThrowIfCancellationRequested();
-            output.Row = Typed(ReverseSweep.Gradient(builder, output.Value, n, KnownGradient), spec.ReturnType);
+            output.Row = Typed(ReverseSweep.Gradient(builder, output.Value, n, KnownGradient, output.VectorRow, KnownVectorGradient), spec.ReturnType);
         }
 
         // Second order: one tangent sweep per variable over every first-order expression (forward over reverse).

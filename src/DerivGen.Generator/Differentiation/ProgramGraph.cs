@@ -112,6 +112,9 @@ internal sealed class OutputWrite
 
     /// <summary>∂Value/∂vₖ for the scalar variables, one Jacobian row (set by the Differentiate stage).</summary>
     public Node[] Row { get; set; } = Array.Empty<Node>();
+
+    /// <summary>The row's part for the vectors of variables, as contributions (set by the Differentiate stage).</summary>
+    public List<VectorTerm> VectorRow { get; } = new();
 }
 
 /// <summary>

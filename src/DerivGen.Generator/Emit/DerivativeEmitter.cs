@@ -140,7 +140,7 @@ internal static class DerivativeEmitter
         {
             string outputs = Xml(Identifiers.Unescape(spec.OutputName!));
             writer.Line("/// <param name=\"" + context.JacobianName + "\">Receives ∂" + outputs + "[i]/∂v for v = " + Xml(variableList) + " in row i, row-major ("
-                + outputs + ".Length rows of " + Count(n) + "); needs at least " + outputs + ".Length × " + Count(n)
+                + outputs + ".Length rows of " + Xml(context.GradientLength) + "); needs at least " + outputs + ".Length × " + Xml(Parenthesized(context.GradientLength))
                 + " elements. Only the rows of the outputs the method writes are written.</param>");
         }
         else
@@ -176,8 +176,8 @@ internal static class DerivativeEmitter
         {
             if (jacobian)
             {
-                WriteLengthCheck(writer, context.JacobianName, "(long)" + spec.OutputName + ".Length * " + Count(n),
-                    "one row of " + Count(n) + " per output, row-major: " + variableList);
+                WriteLengthCheck(writer, context.JacobianName, "(long)" + spec.OutputName + ".Length * " + Parenthesized(context.GradientLength),
+                    "one row of " + context.GradientLength + " per output, row-major: " + variableList);
             }
             else
             {
@@ -337,6 +337,7 @@ internal static class DerivativeEmitter
             roots.Add((output.Index, output.Stage));
             roots.Add((output.Value, output.Stage));
             roots.AddRange(output.Row.Select(entry => (entry, output.Stage)));
+            roots.AddRange(TermNodes(output.VectorRow).Select(node => (node, output.Stage)));
         }
 
         var initial = new Dictionary<LoopSegment, List<StateUpdate>>();
@@ -601,27 +602,39 @@ internal static class DerivativeEmitter
             {
                 string index = code.Write(output.Index);
                 writer.Line(outputs + "[" + index + "] = " + code.Write(output.Value) + ";");
+                string element = Identifiers.Unescape(outputs) + "[" + new ExpressionWriter(x => null, formula: true).Write(output.Index) + "]";
+                string width = context.GradientLength; // n: the scalars, and each vector's length
                 string row;
-                if (output.Index.Kind == NodeKind.Constant)
+                if (output.Index.Kind == NodeKind.Constant && (program.Vectors.Length == 0 || output.Index.Value == 0))
                 {
                     row = Count((int)output.Index.Value * n);
                 }
-                else if (n == 1 && (output.Index.IsLeaf || nameOf.ContainsKey(output.Index)))
+                else if (width == "1" && (output.Index.IsLeaf || nameOf.ContainsKey(output.Index)))
                 {
                     row = index;
                 }
                 else
                 {
                     row = names.Claim("row");
-                    writer.Line("int " + row + " = " + (n == 1 ? index : Count(n) + " * " + Parenthesized(index)) + ";");
+                    writer.Line("int " + row + " = " + (width == "1" ? index : Parenthesized(width) + " * " + Parenthesized(index)) + ";");
                 }
 
                 for (int k = 0; k < n; k++)
                 {
-                    string at = output.Index.Kind == NodeKind.Constant ? Count(((int)output.Index.Value * n) + k)
-                        : k == 0 ? row : row + " + " + Count(k);
-                    writer.Line(context.JacobianName + "[" + at + "] = " + code.Write(output.Row[k]) + "; // ∂"
-                        + Identifiers.Unescape(outputs) + "[" + new ExpressionWriter(x => null, formula: true).Write(output.Index) + "]/∂" + Identifiers.Unescape(program.Variables[k]));
+                    string at = output.Index.Kind == NodeKind.Constant && program.Vectors.Length == 0 ? Count(((int)output.Index.Value * n) + k)
+                        : context.ScalarOffset[k] == "0" ? row : row + " + " + context.ScalarOffset[k];
+
+                    writer.Line(context.JacobianName + "[" + at + "] = " + code.Write(output.Row[k]) + "; // ∂" + element + "/∂" + Identifiers.Unescape(program.Variables[k]));
+                }
+
+                // The vectors' part of the row: cleared, then each contribution added (a read of w[j], or the running
+                // derivative of a carried local with respect to w).
+                for (int v = 0; v < program.Vectors.Length; v++)
+                {
+                    string offset = context.VectorOffset[v] == "0" ? row : row == "0" ? context.VectorOffset[v] : row + " + " + context.VectorOffset[v];
+                    writer.Line(context.JacobianName + ".Slice(" + offset + ", " + program.Vectors[v] + ".Length).Clear(); // ∂" + element + "/∂"
+                        + Identifiers.Unescape(program.Vectors[v]) + "[…]");
+                    AddTerms(context.JacobianName, offset, output.VectorRow.Where(t => t.Vector == v), null);
                 }
             }
         }
@@ -821,6 +834,12 @@ internal static class DerivativeEmitter
             WriteLoop(loop);
         }
 
+        if (context.Spec.HasOutputs)
+        {
+            writer.TrimBlank();
+            return; // The outputs and their rows are written where the method writes them.
+        }
+
         writer.Blank();
         for (int v = 0; v < program.Vectors.Length; v++)
         {
@@ -834,12 +853,6 @@ internal static class DerivativeEmitter
             writer.Line(context.GradientName + ".Slice(" + context.VectorOffset[v] + ", " + Length(v) + ").Clear(); // ∂" + context.BareName + "/∂"
                 + Identifiers.Unescape(program.Vectors[v]) + "[…]");
             AddTerms(context.GradientName, offset, program.VectorGradient.Where(t => t.Vector == v), null);
-        }
-
-        if (context.Spec.HasOutputs)
-        {
-            writer.TrimBlank();
-            return; // The outputs and their rows are written where the method writes them.
         }
 
         for (int i = 0; i < n; i++)
@@ -1260,6 +1273,14 @@ internal static class DerivativeEmitter
                     for (int k = 0; k < output.Row.Length; k++)
                     {
                         yield return indent + "∂" + element + "/∂" + Identifiers.Unescape(Program.Variables[k]) + " = " + Formula(output.Row[k]);
+                    }
+
+                    foreach (VectorTerm term in output.VectorRow)
+                    {
+                        string vector = Identifiers.Unescape(Program.Vectors[term.Vector]);
+                        yield return indent + (term.Index is { } at
+                            ? "∂" + element + "/∂" + vector + "[" + Formula(at) + "] += " + Formula(term.Coefficient)
+                            : "∂" + element + "/∂" + vector + " += " + Formula(term.Coefficient) + "·" + term.SourceSpan);
                     }
                 }
             }

@@ -265,13 +265,11 @@ internal static class MethodParser
     /// <summary>The variables of a method with outputs: scalars only, and never the outputs themselves.</summary>
     private static void CheckOutputVariables(IMethodSymbol method, IParameterSymbol output, HashSet<string> variables, Location nameLocation, List<DiagnosticInfo> diagnostics)
     {
-        foreach (IParameterSymbol parameter in method.Parameters.Where(p => variables.Contains(p.Name) && IsFloatingPointVector(p.Type)))
+        if (variables.Contains(output.Name))
         {
-            string hint = SymbolEqualityComparer.Default.Equals(parameter, output)
-                ? "the last parameter holds the outputs, whose Jacobian is generated; name the parameters to differentiate with respect to"
-                : "a method that writes outputs is differentiated with respect to scalar parameters only (vector variables are not supported there yet); pass the parameters as doubles";
-            diagnostics.Add(DiagnosticInfo.Create(DiagnosticDescriptors.UnsupportedConstruct, parameter.Locations.FirstOrDefault() ?? nameLocation,
-                "The vector variable '" + parameter.Name + "' of a method with outputs", hint));
+            diagnostics.Add(DiagnosticInfo.Create(DiagnosticDescriptors.UnsupportedConstruct, output.Locations.FirstOrDefault() ?? nameLocation,
+                "The outputs '" + output.Name + "' as a variable",
+                "the last parameter holds the outputs, whose Jacobian is generated; name the parameters to differentiate with respect to"));
         }
     }
 

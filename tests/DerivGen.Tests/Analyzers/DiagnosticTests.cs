@@ -349,11 +349,11 @@ public sealed class DiagnosticTests
         """);
 
     [Fact]
-    public Task DG0001VectorVariableInAMethodWithOutputs() => VerifyAsync(Usings + """
+    public Task DG0001OutputsNamedAsAVariable() => VerifyAsync(Usings + """
         public static partial class C
         {
-            [Differentiate(nameof(a), nameof(p))]
-            public static void F(double a, ReadOnlySpan<double> {|DG0001:p|}, Span<double> r)
+            [Differentiate(nameof(a), nameof(r))]
+            public static void F(double a, ReadOnlySpan<double> p, Span<double> {|DG0001:r|})
             {
                 r[0] = a * p[0];
             }

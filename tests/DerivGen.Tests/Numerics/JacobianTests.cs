@@ -95,6 +95,35 @@ public sealed class JacobianFixture : CompiledFixture
                 }
             }
 
+            // Invented: a polynomial fit with its coefficients as a vector of variables, evaluated by an inner loop.
+            [Differentiate(nameof(c))]
+            public static void Polynomial(ReadOnlySpan<double> c, ReadOnlySpan<double> t, ReadOnlySpan<double> y, Span<double> r)
+            {
+                for (int i = 0; i < t.Length; i++)
+                {
+                    double s = 0;
+                    double power = 1;
+                    for (int j = 0; j < c.Length; j++)
+                    {
+                        s += c[j] * power;
+                        power *= t[i];
+                    }
+
+                    r[i] = y[i] - s;
+                }
+            }
+
+            // Invented: a scalar and a vector of variables together, outputs before and inside a loop.
+            [Differentiate(nameof(scale), nameof(p))]
+            public static void Mixed(double scale, double[] p, ReadOnlySpan<double> t, Span<double> r)
+            {
+                r[0] = scale * p[0];
+                for (int i = 0; i < t.Length; i++)
+                {
+                    r[1 + i] = scale * (p[0] + p[1] * Math.Exp(-p[2] * t[i]));
+                }
+            }
+
             // Writes only the even outputs.
             [Differentiate(nameof(a))]
             public static void EvenOnly(double a, int count, Span<double> r)
@@ -145,6 +174,12 @@ public sealed class JacobianTests : IClassFixture<JacobianFixture>
     private delegate void AttenuationF(float k, float gain, ReadOnlySpan<float> d, Span<float> level);
 
     private delegate void AttenuationJ(float k, float gain, ReadOnlySpan<float> d, Span<float> level, Span<float> jacobian);
+
+    private delegate void PolynomialJ(ReadOnlySpan<double> c, ReadOnlySpan<double> t, ReadOnlySpan<double> y, Span<double> r, Span<double> jacobian);
+
+    private delegate void MixedF(double scale, double[] p, ReadOnlySpan<double> t, Span<double> r);
+
+    private delegate void MixedJ(double scale, double[] p, ReadOnlySpan<double> t, Span<double> r, Span<double> jacobian);
 
     private delegate void EvenOnlyF(double a, int count, Span<double> r);
 
@@ -342,6 +377,77 @@ public sealed class JacobianTests : IClassFixture<JacobianFixture>
             Check.Close((a * e) - y[i], r[i], 1e-15, 1e-15, $"r[{i}]");
             Check.Close(e, j[2 * i], 1e-14, 1e-15, $"∂r[{i}]/∂a");
             Check.Close(-a * t[i] * e, j[(2 * i) + 1], 1e-14, 1e-15, $"∂r[{i}]/∂b");
+        }
+    }
+
+    /// <summary>
+    /// A vector of variables: the Jacobian of polynomial residuals yᵢ − Σⱼ cⱼ·tᵢʲ with respect to the coefficients is
+    /// minus the Vandermonde matrix, −tᵢʲ (common practice), through the inner loop's running derivatives.
+    /// </summary>
+    [Fact]
+    public void PolynomialJacobianIsMinusTheVandermondeMatrix()
+    {
+        var jf = _fixture.Assembly.Method<PolynomialJ>(Type, "PolynomialJacobian");
+        double[] c = { 0.5, -1.25, 0.75, 0.125 };
+        double[] t = { -1.5, 0, 0.5, 2, 3.25 };
+        double[] y = { 1, 2, 3, 4, 5 };
+        var r = new double[t.Length];
+        var j = Enumerable.Repeat(double.NaN, t.Length * c.Length).ToArray();
+        jf(c, t, y, r, j);
+        for (int i = 0; i < t.Length; i++)
+        {
+            double model = 0;
+            for (int k = 0; k < c.Length; k++)
+            {
+                model += c[k] * Math.Pow(t[i], k);
+                Check.Close(-Math.Pow(t[i], k), j[(i * c.Length) + k], 1e-15, 1e-15, $"∂r[{i}]/∂c[{k}]");
+            }
+
+            Check.Close(y[i] - model, r[i], 1e-14, 1e-14, $"r[{i}]");
+        }
+    }
+
+    /// <summary>
+    /// A scalar and a vector of variables: rows laid out (scale, p[0], p[1], p[2]), against the partials derived by
+    /// hand — ∂r₀ = (p₀, scale, 0, 0); ∂rᵢ = (p₀ + p₁e, scale, scale·e, −scale·p₁·tᵢ·e) with e = e^(−p₂tᵢ) — and
+    /// against MathNet's central differences.
+    /// </summary>
+    [Fact]
+    public void MixedScalarAndVectorJacobianMatchesHandDerivedPartialsAndCentralDifferences()
+    {
+        var jf = _fixture.Assembly.Method<MixedJ>(Type, "MixedJacobian");
+        var f = _fixture.Assembly.Method<MixedF>(Type, "Mixed");
+        const double scale = 1.3;
+        double[] p = { 0.4, 2.0, 0.7 };
+        double[] t = { 0, 0.5, 1.5, 4 };
+        int m = t.Length + 1, n = 4;
+        var r = new double[m];
+        var j = Enumerable.Repeat(double.NaN, m * n).ToArray();
+        jf(scale, p, t, r, j);
+        var expected = new double[m * n];
+        expected[0] = p[0];
+        expected[1] = scale;
+        for (int i = 0; i < t.Length; i++)
+        {
+            double e = Math.Exp(-p[2] * t[i]);
+            int row = (i + 1) * n;
+            expected[row] = p[0] + (p[1] * e);
+            expected[row + 1] = scale;
+            expected[row + 2] = scale * e;
+            expected[row + 3] = -scale * p[1] * t[i] * e;
+        }
+
+        Check.Close(expected, j, 1e-14, 1e-15, "Mixed Jacobian vs hand-derived");
+        for (int row = 0; row < m; row++)
+        {
+            int output = row;
+            double[] reference = Check.NumericalGradient(v =>
+            {
+                var o = new double[m];
+                f(v[0], new[] { v[1], v[2], v[3] }, t, o);
+                return o[output];
+            }, new[] { scale, p[0], p[1], p[2] });
+            Check.Close(reference, j.AsSpan(row * n, n), Check.FiniteDifferenceGradientRelative, Check.FiniteDifferenceAbsoluteFloor, $"Mixed Jacobian row {row} vs MathNet central differences");
         }
     }
 
