@@ -1,0 +1,118 @@
+using System;
+using DerivGen.Tests.Infrastructure;
+using Xunit;
+
+namespace DerivGen.Tests.Numerics;
+
+public sealed class OpenBugFixture : CompiledFixture
+{
+    // Minimal reproductions of generator bugs that were listed as open (README "Known limitations found by these tests"),
+    // kept as regressions now that they are fixed. The harness compiles the generated code with warnings as failures.
+    public const string Source = """
+        using System;
+        using DerivGen;
+
+        public static partial class Open
+        {
+            // Bug: the locals were substituted and the generated code read 10 / 0 (CS0020, division by constant zero),
+            // although the method compiles and throws DivideByZeroException when it runs.
+            [Differentiate(nameof(x))]
+            public static double IntDivisionByALocalZero(double x, int k)
+            {
+                int n = 0;
+                int q = k / n;
+                return x * q;
+            }
+
+            // The same under a condition: only the side that is taken divides, so only k > 0 throws.
+            [Differentiate(nameof(x))]
+            public static double GuardedIntDivisionByALocalZero(double x, int k)
+            {
+                int n = 0;
+                return k > 0 ? x * (10 / n) : x * x;
+            }
+
+            // The same family: int arithmetic C# evaluates at compile time once locals are substituted
+            // (2147483647 + 1 is CS0220, (int)1E+20 is CS0221); the method's own code wraps at run time.
+            [Differentiate]
+            public static double IntOverflowThroughLocals(double x)
+            {
+                int a = int.MaxValue;
+                int b = a + 1;
+                int m = -a - 2;
+                return x * b + x * x * m;
+            }
+        }
+        """;
+
+    public OpenBugFixture()
+        : base(Source)
+    {
+    }
+}
+
+public sealed class OpenBugRegressionTests : IClassFixture<OpenBugFixture>
+{
+    private readonly OpenBugFixture _fixture;
+
+    public OpenBugRegressionTests(OpenBugFixture fixture) => _fixture = fixture;
+
+    [Fact]
+    public void IntDivisionByALocalZeroCompilesAndThrowsAtRunTime()
+    {
+        // The fixture compiled the generated code without error (CS0020 before the fix). At run time the method and both
+        // generated methods throw DivideByZeroException (C# specification, integer division operator), before writing
+        // anything into the spans.
+        var f = _fixture.Assembly.Method<FInt>("Open", "IntDivisionByALocalZero");
+        var g = _fixture.Assembly.Method<GInt>("Open", "IntDivisionByALocalZeroGradient");
+        var h = _fixture.Assembly.Method<HInt>("Open", "IntDivisionByALocalZeroHessian");
+        var gradient = new[] { 7.0 };
+        var hessian = new[] { 7.0 };
+        Assert.Throws<DivideByZeroException>(() => f(1.5, 3));
+        Assert.Throws<DivideByZeroException>(() => g(1.5, 3, gradient));
+        Assert.Throws<DivideByZeroException>(() => h(1.5, 3, gradient, hessian));
+        Assert.Equal(7.0, gradient[0]);
+        Assert.Equal(7.0, hessian[0]);
+    }
+
+    [Fact]
+    public void GuardedIntDivisionByALocalZeroThrowsOnlyWhereTheMethodDoes()
+    {
+        var f = _fixture.Assembly.Method<FInt>("Open", "GuardedIntDivisionByALocalZero");
+        var g = _fixture.Assembly.Method<GInt>("Open", "GuardedIntDivisionByALocalZeroGradient");
+        var h = _fixture.Assembly.Method<HInt>("Open", "GuardedIntDivisionByALocalZeroHessian");
+        var gradient = new double[1];
+        var hessian = new double[1];
+
+        // k > 0 takes the division: DivideByZeroException, as in the method.
+        Assert.Throws<DivideByZeroException>(() => f(1.5, 1));
+        Assert.Throws<DivideByZeroException>(() => g(1.5, 1, gradient));
+        Assert.Throws<DivideByZeroException>(() => h(1.5, 1, gradient, hessian));
+
+        // k ≤ 0 takes x²: value bit-for-bit, derivative 2x, second derivative 2 (plain calculus).
+        Assert.Equal(f(1.5, 0), g(1.5, 0, gradient));
+        Assert.Equal(3.0, gradient[0]);
+        Assert.Equal(f(1.5, 0), h(1.5, 0, gradient, hessian));
+        Assert.Equal(3.0, gradient[0]);
+        Assert.Equal(2.0, hessian[0]);
+    }
+
+    [Theory]
+    [InlineData(0.5)]
+    [InlineData(-2.0)]
+    public void IntOverflowThroughLocalsWrapsAsTheMethodDoes(double x)
+    {
+        // Unchecked int arithmetic wraps (C# specification, checked and unchecked contexts; the test compilation is
+        // unchecked): int.MaxValue + 1 = int.MinValue and −int.MaxValue − 2 = int.MaxValue. So f = b x + m x² with
+        // b = −2³¹, m = 2³¹ − 1: f' = b + 2 m x, f'' = 2 m (plain calculus).
+        double b = int.MinValue, m = int.MaxValue;
+        Verify.At(Probe.Load(_fixture.Assembly, "Open", "IntOverflowThroughLocals", 1), new[] { x }, new[] { b + (2 * m * x) }, new[] { 2 * m },
+            "IntOverflowThroughLocals");
+    }
+
+    private delegate double FInt(double x, int k);
+
+    private delegate double GInt(double x, int k, Span<double> gradient);
+
+    private delegate double HInt(double x, int k, Span<double> gradient, Span<double> hessian);
+}
