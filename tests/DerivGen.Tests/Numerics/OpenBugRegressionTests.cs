@@ -42,6 +42,24 @@ public sealed class OpenBugFixture : CompiledFixture
                 int m = -a - 2;
                 return x * b + x * x * m;
             }
+
+            // Bug: the doc comments' cref of a method named with a keyword was written unescaped, <see cref="double(double)"/>,
+            // which C# cannot resolve (CS1574; the harness fails on any warning in generated code).
+            [Differentiate]
+            public static double @double(double x) => x * x * x;
+
+            // Bug: [Differentiate] on the declaring part of a partial method generated nothing. The implementing part's
+            // body (in the same file) is differentiated.
+            [Differentiate]
+            public static partial double DeclaringPart(double x, double y);
+
+            public static partial double DeclaringPart(double x, double y) => x * Math.Sin(y);
+
+            // The attribute on the implementing part.
+            public static partial double ImplementingPart(double x);
+
+            [Differentiate]
+            public static partial double ImplementingPart(double x) => Math.Exp(2 * x);
         }
         """;
 
@@ -109,6 +127,36 @@ public sealed class OpenBugRegressionTests : IClassFixture<OpenBugFixture>
         Verify.At(Probe.Load(_fixture.Assembly, "Open", "IntOverflowThroughLocals", 1), new[] { x }, new[] { b + (2 * m * x) }, new[] { 2 * m },
             "IntOverflowThroughLocals");
     }
+
+    [Theory]
+    [InlineData(0.5)]
+    [InlineData(-1.25)]
+    public void MethodNamedWithAKeyword(double x) =>
+        // x³: 3x², 6x (plain calculus). The fixture compiled the doc comments with no CS1574.
+        Verify.At(Probe.Load(_fixture.Assembly, "Open", "double", 1), new[] { x }, new[] { 3 * x * x }, new[] { 6 * x }, "@double");
+
+    [Fact]
+    public void KeywordNamedMethodCrefIsEscaped()
+    {
+        string text = _fixture.Run.Source("Open.double.g.cs");
+        Assert.Contains("<see cref=\"@double(double)\"/>", text, StringComparison.Ordinal);
+    }
+
+    [Theory]
+    [InlineData(0.5, 0.3)]
+    [InlineData(-2.0, 1.7)]
+    public void AttributeOnTheDeclaringPartOfAPartialMethod(double x, double y) =>
+        // x sin y: gradient (sin y, x cos y), Hessian [[0, cos y], [cos y, −x sin y]] (plain calculus).
+        Verify.At(Probe.Load(_fixture.Assembly, "Open", "DeclaringPart", 2), new[] { x, y }, new[] { Math.Sin(y), x * Math.Cos(y) },
+            new[] { 0, Math.Cos(y), Math.Cos(y), -x * Math.Sin(y) }, "DeclaringPart");
+
+    [Theory]
+    [InlineData(0.5)]
+    [InlineData(-1.5)]
+    public void AttributeOnTheImplementingPartOfAPartialMethod(double x) =>
+        // e^{2x}: 2e^{2x}, 4e^{2x} (plain calculus).
+        Verify.At(Probe.Load(_fixture.Assembly, "Open", "ImplementingPart", 1), new[] { x }, new[] { 2 * Math.Exp(2 * x) }, new[] { 4 * Math.Exp(2 * x) },
+            "ImplementingPart");
 
     private delegate double FInt(double x, int k);
 
