@@ -60,6 +60,40 @@ public sealed class OpenBugFixture : CompiledFixture
 
             [Differentiate]
             public static partial double ImplementingPart(double x) => Math.Exp(2 * x);
+
+            // Bug: the side of a ?: not taken passed on its derivative as 0 · ∞ = NaN (x / 0.0 has the partial ∞).
+            [Differentiate(nameof(x))]
+            public static double InfinitePartialOnTheSideNotTaken(double x, int k) => k > 0 ? x / 0.0 : x - x;
+
+            // The same with a node shared by two conditions, both false: its adjoint is 0 + 0, its partial NaN (√ of a
+            // negative number), and the contribution is selected by "either condition", not multiplied.
+            [Differentiate(nameof(x))]
+            public static double NaNPartialUnderTwoConditionsNotTaken(double x, int k)
+            {
+                double y = x;
+                return (k > 0 ? Math.Sqrt(-y) : 1.0) + (k > 1 ? Math.Sqrt(-y) : 2.0) + x * x;
+            }
+
+            // Bug (found when the randomised suite generated untaken sides again): a local carried from one loop into the
+            // next, changed in between, had its running derivative before the second loop computed from its new value
+            // (z was assigned before dZ_dX = x * dZ_dX + z read it).
+            [Differentiate(nameof(x))]
+            public static double CarriedOnIntoASecondLoop(double x, int n)
+            {
+                double z = x;
+                for (int i = 0; i < n; i++)
+                {
+                    z += x;
+                }
+
+                z *= x;
+                for (int i = 0; i < n; i++)
+                {
+                    z += 1;
+                }
+
+                return z;
+            }
         }
         """;
 
@@ -157,6 +191,68 @@ public sealed class OpenBugRegressionTests : IClassFixture<OpenBugFixture>
         // e^{2x}: 2e^{2x}, 4e^{2x} (plain calculus).
         Verify.At(Probe.Load(_fixture.Assembly, "Open", "ImplementingPart", 1), new[] { x }, new[] { 2 * Math.Exp(2 * x) }, new[] { 4 * Math.Exp(2 * x) },
             "ImplementingPart");
+
+    [Theory]
+    [InlineData(1.5, 0)]
+    [InlineData(-0.5, -3)]
+    public void InfinitePartialOnTheSideNotTaken(double x, int k)
+    {
+        // k ≤ 0 takes x − x = 0: the derivative is exactly 0, the second derivative 0 (plain calculus; it was NaN).
+        var g = _fixture.Assembly.Method<GInt>("Open", "InfinitePartialOnTheSideNotTakenGradient");
+        var h = _fixture.Assembly.Method<HInt>("Open", "InfinitePartialOnTheSideNotTakenHessian");
+        var gradient = new double[1];
+        var hessian = new double[1];
+        Assert.Equal(0.0, g(x, k, gradient));
+        Assert.Equal(0.0, gradient[0]);
+        Assert.Equal(0.0, h(x, k, gradient, hessian));
+        Assert.Equal(0.0, gradient[0]);
+        Assert.Equal(0.0, hessian[0]);
+
+        // k > 0 takes x / 0.0: value and derivative +∞ for x > 0 (IEEE 754 division by zero), as before.
+        Assert.Equal(double.PositiveInfinity, g(1.5, 1, gradient));
+        Assert.Equal(double.PositiveInfinity, gradient[0]);
+    }
+
+    [Theory]
+    [InlineData(1.5)]
+    [InlineData(0.25)]
+    public void NaNPartialUnderTwoConditionsNotTaken(double x)
+    {
+        // k = 0 takes neither square root: f = 3 + x², f' = 2x, f'' = 2 (plain calculus; the gradient was NaN).
+        var f = _fixture.Assembly.Method<FInt>("Open", "NaNPartialUnderTwoConditionsNotTaken");
+        var h = _fixture.Assembly.Method<HInt>("Open", "NaNPartialUnderTwoConditionsNotTakenHessian");
+        var gradient = new double[1];
+        var hessian = new double[1];
+        Assert.Equal(f(x, 0), h(x, 0, gradient, hessian));
+        Assert.Equal(2 * x, gradient[0]);
+        Assert.Equal(2.0, hessian[0]);
+
+        // k = 2 takes both square roots; at y = −x < 0: f = 2√(−y) + y², f' = −1/√(−y) + 2y, f'' = −1/(2 (−y)^{3/2}) + 2
+        // (plain calculus), with −y = x.
+        double y = -x;
+        Assert.Equal(f(y, 2), h(y, 2, gradient, hessian));
+        Check.Close(new[] { (-1 / Math.Sqrt(x)) + (2 * y) }, gradient, Check.ClosedFormRelative, 1e-15, "two sides taken: gradient");
+        Check.Close(new[] { (-1 / (2 * Math.Pow(x, 1.5))) + 2 }, hessian, Check.ClosedFormRelative, 1e-15, "two sides taken: Hessian");
+    }
+
+    [Theory]
+    [InlineData(1.5, 3)]
+    [InlineData(-0.7, 5)]
+    [InlineData(2.0, 0)]
+    public void CarriedOnIntoASecondLoop(double x, int n)
+    {
+        // z = (n + 1) x after the first loop, (n + 1) x² after z *= x, (n + 1) x² + n at the end: f' = 2 (n + 1) x,
+        // f'' = 2 (n + 1) (plain calculus).
+        var g = _fixture.Assembly.Method<GInt>("Open", "CarriedOnIntoASecondLoopGradient");
+        var h = _fixture.Assembly.Method<HInt>("Open", "CarriedOnIntoASecondLoopHessian");
+        var gradient = new double[1];
+        var hessian = new double[1];
+        g(x, n, gradient);
+        Check.Close(new[] { 2.0 * (n + 1) * x }, gradient, Check.ClosedFormRelative, 1e-15, "CarriedOnIntoASecondLoop gradient");
+        h(x, n, gradient, hessian);
+        Check.Close(new[] { 2.0 * (n + 1) * x }, gradient, Check.ClosedFormRelative, 1e-15, "CarriedOnIntoASecondLoop MHessian gradient");
+        Check.Close(new[] { 2.0 * (n + 1) }, hessian, Check.ClosedFormRelative, 1e-15, "CarriedOnIntoASecondLoop Hessian");
+    }
 
     private delegate double FInt(double x, int k);
 

@@ -74,9 +74,9 @@ internal static class KnownGeneratorBugs
 
     /// <summary>
     /// The side of a <c>?:</c> or <c>if</c> that C# does not take is computed anyway where DerivGen thinks that cannot
-    /// throw, and its derivatives can leak: <c>Math.Sign(NaN)</c> there throws ArithmeticException in MGradient, and an
-    /// infinite derivative there (<c>c ? x / 0.0 : x - x</c>) turns the gradient into NaN. While open, the repair step
-    /// keeps the untaken sides safe too.
+    /// throw, and its derivatives could leak: <c>Math.Sign(NaN)</c> there threw ArithmeticException in MGradient (fixed
+    /// earlier), and an infinite derivative there (<c>c ? x / 0.0 : x - x</c>) turned the gradient into NaN (fixed: the
+    /// contributions are selected by the condition). While on, the repair step keeps the untaken sides safe too.
     /// </summary>
-    public static readonly bool UntakenSideEvaluated = true;
+    public static readonly bool UntakenSideEvaluated = false; // fixed
 }
