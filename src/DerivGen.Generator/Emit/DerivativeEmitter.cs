@@ -437,7 +437,17 @@ internal static class DerivativeEmitter
             unconditional.Remove(node);
         }
 
-        bool Guarded(Node node) => MayThrowUnlessGuarded(node, unconditional, mayThrow);
+        // A node that reads such an operation may still have a local where its own code keeps the user's guard around
+        // it (i < n ? d[i] : 0 computed where the user's code computes it): see ConditionalEvaluation.
+        var userRoots = new List<(Node, int)> { (program.Value, finalStage) };
+        foreach (LoopSegment loop in program.Loops)
+        {
+            userRoots.AddRange(loop.Condition is null ? new[] { (loop.Start!, loop.BeforeStage), (loop.End!, loop.BeforeStage) } : new[] { (loop.Condition, loop.InsideStage) });
+            userRoots.AddRange(loop.States.SelectMany(s => new[] { (s.Initial, loop.BeforeStage), (s.Next, loop.BodyEndStage) }));
+        }
+
+        var conditional = new ConditionalEvaluation(userRoots, CanThrow);
+        bool Guarded(Node node) => MayThrowUnlessGuarded(node, unconditional, mayThrow) && !conditional.SafeAhead(node);
 
         // Calls of other [Differentiate] methods whose derivatives are needed: one call of their MGradient (MHessian)
         // gives the value and fills a buffer the partial derivatives are read from.
