@@ -130,6 +130,7 @@ internal sealed class ProgramGraph
     private readonly IReadOnlyDictionary<string, int> _vectorIndex;
     private readonly HashSet<string> _displayNames = new(StringComparer.Ordinal);
     private readonly HashSet<string> _named = new(StringComparer.Ordinal);
+    private readonly HashSet<string> _givenNames = new(StringComparer.Ordinal);
     private readonly List<LoopSegment> _loops = new();
     private readonly List<LoopSegment> _topLevel = new();
     private readonly List<OutputWrite> _outputs = new();
@@ -192,7 +193,7 @@ internal sealed class ProgramGraph
                     if (!value.IsLeaf && value.LocalName is null && !isStateUpdate)
                     {
                         // A reassigned local gets a versioned name (s, s2, s3, …), the same in code and formulas.
-                        value.LocalName = _named.Add(assign.Local) ? assign.Local : Identifiers.Unique(assign.Local, _displayNames);
+                        value.LocalName = _named.Add(assign.Local) && _givenNames.Add(assign.Local) ? assign.Local : Identifiers.Unique(assign.Local, _displayNames);
                     }
                     else
                     {
@@ -392,10 +393,29 @@ internal sealed class ProgramGraph
             case IrExternal external:
                 return b.External(external.Text, external.Type);
             case IrNegate negate:
-                return b.Raw(NodeKind.Negate, negate.Type, Build(negate.Operand, locals));
+            {
+                Node operand = Build(negate.Operand, locals);
+                if (negate.Type == ScalarType.Int32 && IsConstantExpression(operand))
+                {
+                    operand = KeepLocal(negate.Operand, operand);
+                }
+
+                return b.Raw(NodeKind.Negate, negate.Type, operand);
+            }
+
             case IrConvert convert:
-                return b.Raw(NodeKind.Convert, convert.Type, Build(convert.Operand, locals));
+            {
+                Node operand = Build(convert.Operand, locals);
+                if (convert.Type == ScalarType.Int32 && IsConstantExpression(operand))
+                {
+                    operand = KeepLocal(convert.Operand, operand);
+                }
+
+                return b.Raw(NodeKind.Convert, convert.Type, operand);
+            }
+
             case IrBinary binary:
+            {
                 NodeKind kind = binary.Operator switch
                 {
                     BinaryOperator.Add => NodeKind.Add,
@@ -403,7 +423,16 @@ internal sealed class ProgramGraph
                     BinaryOperator.Multiply => NodeKind.Multiply,
                     _ => NodeKind.Divide,
                 };
-                return b.Raw(kind, binary.Type, Build(binary.Left, locals), Build(binary.Right, locals));
+                Node left = Build(binary.Left, locals), right = Build(binary.Right, locals);
+                if (binary.Type == ScalarType.Int32 && IsConstantExpression(right) && (kind == NodeKind.Divide || IsConstantExpression(left)))
+                {
+                    left = KeepLocal(binary.Left, left);
+                    right = KeepLocal(binary.Right, right);
+                }
+
+                return b.Raw(kind, binary.Type, left, right);
+            }
+
             case IrCall call:
                 return b.RawCall(call.Function, call.Host, call.Type, call.Arguments.Select(a => Build(a, locals)).ToArray());
             case IrUserCall call:
@@ -425,6 +454,50 @@ internal sealed class ProgramGraph
             default:
                 throw new InvalidOperationException("Unknown IR expression " + expression.GetType().Name);
         }
+    }
+
+    /// <summary>
+    /// Whether the node, written out, is a C# constant expression: constants combined by operators only. The user's
+    /// own constant expressions arrive as single constants (Lowering takes Roslyn's value), so a compound one exists only
+    /// where a local holding a constant was substituted.
+    /// </summary>
+    private static bool IsConstantExpression(Node node)
+    {
+        switch (node.Kind)
+        {
+            case NodeKind.Constant:
+                return true;
+            case NodeKind.Convert when node.Arguments[0].Type == node.Type:
+                return false; // a local kept by KeepLocal: written as its name
+            case NodeKind.Negate or NodeKind.Add or NodeKind.Subtract or NodeKind.Multiply or NodeKind.Divide or NodeKind.Convert
+                or NodeKind.Compare or NodeKind.Select or NodeKind.And or NodeKind.Or or NodeKind.Not:
+                return node.Arguments.All(IsConstantExpression);
+            default:
+                return false;
+        }
+    }
+
+    /// <summary>
+    /// The operand of an int operation that C# would evaluate at compile time once the user's locals are substituted:
+    /// where the operand is a local holding a constant, the local is kept (<c>int n = 0;</c> … <c>10 / n</c>), so that
+    /// the generated code compiles as the user's does (<c>10 / 0</c> is CS0020, <c>2147483647 + 1</c> CS0220) and fails
+    /// or wraps at run time exactly where the user's code does. The kept local is an identity conversion carrying the
+    /// user's name, which the emitter gives a local and writes as the constant.
+    /// </summary>
+    private Node KeepLocal(IrExpression operand, Node value)
+    {
+        if (operand is not IrLocal local || !IsConstantExpression(value))
+        {
+            return value;
+        }
+
+        Node kept = _builder.Raw(NodeKind.Convert, value.Type, value);
+        if (kept.LocalName is null)
+        {
+            kept.LocalName = _givenNames.Add(local.Name) ? local.Name : Identifiers.Unique(local.Name, _displayNames);
+        }
+
+        return kept;
     }
 
     private static Comparison ComparisonOf(ComparisonOperator op) => op switch

@@ -1,6 +1,7 @@
 using System;
 using System.Collections.Generic;
 using System.Linq;
+using DerivGen.Generator.Model;
 using DerivGen.Generator.Symbolic;
 
 namespace DerivGen.Generator.Differentiation;
@@ -60,12 +61,22 @@ internal static class ReverseSweep
         }
 
         var adjoints = new Dictionary<Node, Node> { [output] = b.One(output.Type) };
+
+        // The guard of a node: the condition under which the user's code evaluates it (null: always), from the
+        // selections on the paths from the output to it. Where a node's guard is false its adjoint is 0, but its local
+        // partials are read at values the method never computes (x / 0.0 on the side of a ?: not taken): an infinite
+        // or NaN partial times that zero would be NaN. So each contribution a guarded node passes on is selected by the
+        // guard (guard ? adjoint·partial : 0), never multiplied by a zero — unless its form already selects it.
+        var guards = new Dictionary<Node, Node?> { [output] = null };
         foreach (Node node in Graph.Reachable(new[] { output }).Where(n => n.DependsOnVariables).OrderByDescending(n => n.Id))
         {
             if (!adjoints.TryGetValue(node, out Node? adjoint))
             {
                 continue;
             }
+
+            Node? guard = guards.TryGetValue(node, out Node? known) ? known : null;
+            Node Selected(Node contribution) => Guards.Covers(contribution, guard) ? contribution : b.Select(guard!, contribution, b.Zero(contribution.Type));
 
             if (node.LocalName is not null && !adjoint.IsLeaf && adjoint.NameHint is null)
             {
@@ -87,11 +98,11 @@ internal static class ReverseSweep
 
             if (node.Arguments.Length == 0)
             {
-                Node[] known = leafGradient?.Invoke(node)
+                Node[] leafKnown = leafGradient?.Invoke(node)
                     ?? throw new InvalidOperationException("No gradient is known for the active leaf " + node.Text + ".");
                 for (int k = 0; k < variableCount; k++)
                 {
-                    gradient[k] = b.Add(gradient[k], b.Multiply(adjoint, known[k]));
+                    gradient[k] = b.Add(gradient[k], Selected(b.Multiply(adjoint, leafKnown[k])));
                 }
 
                 if (leafVectorGradient?.Invoke(node) is { } spans)
@@ -119,11 +130,106 @@ internal static class ReverseSweep
                     continue;
                 }
 
-                Node contribution = b.Multiply(adjoint, partial);
+                Node contribution = Selected(b.Multiply(adjoint, partial));
                 adjoints[argument] = adjoints.TryGetValue(argument, out Node? sum) ? b.Add(sum, contribution) : contribution;
+
+                // The argument is evaluated where this node is, and for a side of a selection only where it is taken.
+                Node? argumentGuard = node.Kind != NodeKind.Select ? guard
+                    : i == 1 ? Guards.And(b, guard, node.Arguments[0])
+                    : Guards.And(b, guard, Guards.Not(b, node.Arguments[0]));
+                guards[argument] = guards.TryGetValue(argument, out Node? other) ? Guards.Or(b, other, argumentGuard) : argumentGuard;
             }
         }
 
         return gradient;
+    }
+}
+
+/// <summary>
+/// Conditions under which the user's code evaluates a node (null: always), and whether an expression is already 0
+/// wherever such a condition is false.
+/// </summary>
+internal static class Guards
+{
+    public static Node Not(ExpressionBuilder b, Node condition) =>
+        condition.Kind == NodeKind.Not ? condition.Arguments[0]
+        : condition.Kind == NodeKind.Constant ? b.Constant(condition.Value != 0 ? 0 : 1, ScalarType.Boolean)
+        : b.Raw(NodeKind.Not, ScalarType.Boolean, condition);
+
+    /// <summary><c>guard &amp;&amp; condition</c>: the condition is read only where the guard holds, as in the user's code.</summary>
+    public static Node? And(ExpressionBuilder b, Node? guard, Node condition)
+    {
+        if (condition.Kind == NodeKind.Constant && condition.Value != 0)
+        {
+            return guard;
+        }
+
+        return guard is null || condition.Kind == NodeKind.Constant ? condition : b.Raw(NodeKind.And, ScalarType.Boolean, guard, condition);
+    }
+
+    /// <summary><c>a || b</c>; null (always) when either is, and g for (g &amp;&amp; c) || (g &amp;&amp; !c).</summary>
+    public static Node? Or(ExpressionBuilder b, Node? first, Node? second)
+    {
+        if (first is null || second is null || Complementary(first, second))
+        {
+            return null;
+        }
+
+        if (first == second)
+        {
+            return first;
+        }
+
+        if (first.Kind == NodeKind.And && second.Kind == NodeKind.And && first.Arguments[0] == second.Arguments[0]
+            && Complementary(first.Arguments[1], second.Arguments[1]))
+        {
+            return first.Arguments[0];
+        }
+
+        return b.Raw(NodeKind.Or, ScalarType.Boolean, first, second);
+    }
+
+    private static bool Complementary(Node a, Node b) =>
+        (a.Kind == NodeKind.Not && a.Arguments[0] == b) || (b.Kind == NodeKind.Not && b.Arguments[0] == a);
+
+    /// <summary>Whether <paramref name="expression"/> is exactly 0 wherever <paramref name="guard"/> is false, by its form:
+    /// a selection of 0 on the guard's false side (the usual shape of an adjoint inside a branch), or a sum of such.</summary>
+    public static bool Covers(Node expression, Node? guard)
+    {
+        if (guard is null || expression.IsZero)
+        {
+            return true;
+        }
+
+        switch (expression.Kind)
+        {
+            case NodeKind.Add or NodeKind.Subtract:
+                return Covers(expression.Arguments[0], guard) && Covers(expression.Arguments[1], guard);
+            case NodeKind.Negate:
+                return Covers(expression.Arguments[0], guard);
+            case NodeKind.Select:
+            {
+                Node condition = expression.Arguments[0], whenTrue = expression.Arguments[1], whenFalse = expression.Arguments[2];
+                if ((condition == guard && whenFalse.IsZero) || (Complementary(condition, guard) && whenTrue.IsZero))
+                {
+                    return true;
+                }
+
+                // guard = g && c: selected by g first, then by c.
+                if (guard.Kind == NodeKind.And)
+                {
+                    Node outer = guard.Arguments[0], inner = guard.Arguments[1];
+                    return (condition == outer && whenFalse.IsZero && Covers(whenTrue, inner))
+                        || (Complementary(condition, outer) && whenTrue.IsZero && Covers(whenFalse, inner))
+                        || (condition == inner && whenFalse.IsZero && Covers(whenTrue, outer))
+                        || (Complementary(condition, inner) && whenTrue.IsZero && Covers(whenFalse, outer));
+                }
+
+                return false;
+            }
+
+            default:
+                return false;
+        }
     }
 }

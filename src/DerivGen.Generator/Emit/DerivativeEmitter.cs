@@ -480,7 +480,17 @@ internal static class DerivativeEmitter
             unconditional.Remove(node);
         }
 
-        bool Guarded(Node node) => MayThrowUnlessGuarded(node, unconditional, mayThrow);
+        // A node that reads such an operation may still have a local where its own code keeps the user's guard around
+        // it (i < n ? d[i] : 0 computed where the user's code computes it): see ConditionalEvaluation.
+        var userRoots = new List<(Node, int)> { (program.Value, finalStage) };
+        foreach (LoopSegment loop in program.Loops)
+        {
+            userRoots.AddRange(loop.Condition is null ? new[] { (loop.Start!, loop.BeforeStage), (loop.End!, loop.BeforeStage) } : new[] { (loop.Condition, loop.InsideStage) });
+            userRoots.AddRange(loop.States.SelectMany(s => new[] { (s.Initial, loop.BeforeStage), (s.Next, loop.BodyEndStage) }));
+        }
+
+        var conditional = new ConditionalEvaluation(userRoots, CanThrow);
+        bool Guarded(Node node) => MayThrowUnlessGuarded(node, unconditional, mayThrow) && !conditional.SafeAhead(node);
 
         // Calls of other [Differentiate] methods whose derivatives are needed: one call of their MGradient (MHessian)
         // gives the value and fills a buffer the partial derivatives are read from.
@@ -641,19 +651,36 @@ internal static class DerivativeEmitter
 
         void WriteLoop(LoopSegment loop)
         {
-            // Before the loop: the carried locals and their running derivatives start from their values here.
-            foreach (StateUpdate update in initial[loop])
+            // Before the loop: the carried locals and their running derivatives start from their values here, all
+            // computed from the values before any of them is assigned (the running derivatives of a local carried on
+            // from an earlier loop read its value there): the vectors' first, then each scalar that no other reads in
+            // place, the others through a local assigned after all are computed.
+            WriteVectorUpdates(loop, before: true);
+            List<StateUpdate> starting = initial[loop].Where(u => !IsSameLocal(u)).ToList(); // IsSameLocal: carried on unchanged
+            var startReads = starting.ToDictionary(u => u.Target, u => LocalsRead(u.Value, nameOf), StringComparer.Ordinal);
+            var startAssignments = new List<(string Target, string Source)>();
+            foreach (StateUpdate update in starting)
             {
-                if (IsSameLocal(update))
+                if (!declared.Contains(update.Target) || !starting.Any(other => other.Target != update.Target && startReads[other.Target].Contains(update.Target)))
                 {
-                    continue; // Carried on from an earlier or enclosing loop unchanged.
+                    string prefix = declared.Add(update.Target) ? ExpressionWriter.TypeKeyword(update.Type) + " " : string.Empty;
+                    writer.Line(prefix + update.Target + " = " + code.Write(update.Value) + ";");
+                    continue;
                 }
 
-                string prefix = declared.Add(update.Target) ? ExpressionWriter.TypeKeyword(update.Type) + " " : string.Empty;
-                writer.Line(prefix + update.Target + " = " + code.Write(update.Value) + ";");
+                if (!nameOf.TryGetValue(update.Value, out string? source) && update.Value.Kind != NodeKind.Constant)
+                {
+                    source = names.Claim(Identifiers.Unescape(update.Target) + "Start");
+                    writer.Line(ExpressionWriter.TypeKeyword(update.Type) + " " + source + " = " + code.Write(update.Value) + ";");
+                }
+
+                startAssignments.Add((update.Target, source ?? code.Write(update.Value)));
             }
 
-            WriteVectorUpdates(loop, before: true);
+            foreach ((string target, string source) in startAssignments)
+            {
+                writer.Line(target + " = " + source + ";");
+            }
 
             // A while loop's condition is written in its header, inline: only what is computed before the loop is read
             // from locals, so nothing of the body runs before the condition is tested, as in the user's code.

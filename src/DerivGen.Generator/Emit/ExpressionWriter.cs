@@ -72,9 +72,11 @@ internal sealed class ExpressionWriter
             return true;
         }
 
-        if (_formula && node.Kind == NodeKind.Convert)
+        if (node.Kind == NodeKind.Convert && (_formula || node.Arguments[0].Type == node.Type))
         {
-            return Write(node.Arguments[0], minimumPrecedence, text); // Formulas are about values, not C# types.
+            // Formulas are about values, not C# types; a conversion to the operand's own type is a user's local that
+            // holds a constant (kept so that C# does not evaluate the operation using it at compile time).
+            return Write(node.Arguments[0], minimumPrecedence, text);
         }
 
         int precedence = Precedence(node);

@@ -59,6 +59,24 @@ internal static class MethodParser
         var diagnostics = new List<DiagnosticInfo>();
         try
         {
+            // [Differentiate] on the declaring part of a partial method: the body is the implementing part's. It is used
+            // when that part is in the same file (an edit of it then lowers the method again); in another file an edit of
+            // the body would not, so the attribute must move there.
+            if (syntax.Body is null && syntax.ExpressionBody is null && method.PartialImplementationPart is { } implementation
+                && implementation.DeclaringSyntaxReferences.FirstOrDefault()?.GetSyntax(cancellationToken) is MethodDeclarationSyntax implementationSyntax)
+            {
+                if (implementationSyntax.SyntaxTree != syntax.SyntaxTree)
+                {
+                    diagnostics.Add(DiagnosticInfo.Create(DiagnosticDescriptors.UnsupportedConstruct, syntax.Identifier.GetLocation(),
+                        "[Differentiate] on the declaring part of the partial method '" + method.Name + "', whose body is in another file,",
+                        "put the attribute on the implementing part (the one with the body), so that an edit of the body regenerates the derivatives"));
+                    return new LoweringResult(null, diagnostics.ToEquatableArray(), EquatableArray<HelperRequest>.Empty);
+                }
+
+                method = implementation;
+                syntax = implementationSyntax;
+            }
+
             var helpers = new HelperContext(semanticModel.Compilation);
             helpers.Chain.Add(method);
             bool emitHessian = HasHessian(attribute);
@@ -180,6 +198,17 @@ internal static class MethodParser
             }
         }
 
+        for (INamedTypeSymbol? type = method.ContainingType; type is not null; type = type.ContainingType)
+        {
+            if (type.IsFileLocal)
+            {
+                // C# lets only the file that declares a file-local type add to it; the derivatives are in a file of their own.
+                diagnostics.Add(DiagnosticInfo.Create(DiagnosticDescriptors.UnsupportedConstruct, nameLocation,
+                    "A method of the file-local type '" + type.Name + "'",
+                    "the generated derivatives are in a file of their own, and C# lets only the declaring file add members to a file-local type; declare the type 'internal' (or nest it as a private type) instead of 'file'"));
+            }
+        }
+
         if (method.IsGenericMethod)
         {
             diagnostics.Add(DiagnosticInfo.Create(DiagnosticDescriptors.UnsupportedConstruct, syntax.TypeParameterList?.GetLocation() ?? nameLocation,
@@ -243,7 +272,7 @@ internal static class MethodParser
                 variables.Contains(p.Name) && IsFloatingPointVector(p.Type))).ToEquatableArray(),
             EmitHessian: emitHessian,
             DisplayName: method.ToDisplayString(HeaderFormat),
-            Cref: method.Name + "(" + string.Join(", ", method.Parameters.Select(p => CrefType(p))) + ")",
+            Cref: Identifiers.Escape(method.Name) + "(" + string.Join(", ", method.Parameters.Select(p => CrefType(p))) + ")",
             Body: body,
             OutputName: output is null ? null : Identifiers.Escape(output.Name));
     }

@@ -431,6 +431,18 @@ internal sealed class ExpressionBuilder
     public Node Select(Node condition, Node whenTrue, Node whenFalse)
     {
         Unify(ref whenTrue, ref whenFalse);
+
+        // c ? (c ? a : b) : d = c ? a : d, and c ? a : (c ? b : d) = c ? a : d (an inner selection by the same condition).
+        if (whenTrue.Kind == NodeKind.Select && whenTrue.Arguments[0] == condition)
+        {
+            whenTrue = whenTrue.Arguments[1];
+        }
+
+        if (whenFalse.Kind == NodeKind.Select && whenFalse.Arguments[0] == condition)
+        {
+            whenFalse = whenFalse.Arguments[2];
+        }
+
         if (whenTrue == whenFalse)
         {
             return whenTrue;

@@ -26,7 +26,25 @@ internal static class AnalyzerVerifier
     public static Task VerifyAsync(string source, params DiagnosticResult[] expected) =>
         RunAsync(source, TestBehaviors.SkipSuppressionCheck, expected);
 
-    /// <summary>As <see cref="VerifyAsync"/>, and also checks that <c>#pragma warning disable</c> silences every
+    /// <summary>As <see cref="VerifyAsync(string, DiagnosticResult[])"/> for a compilation of several files.</summary>
+    public static Task VerifyAsync(string[] sources, params DiagnosticResult[] expected)
+    {
+        var test = new CSharpAnalyzerTest<DerivativeAnalyzer, DefaultVerifier>
+        {
+            ReferenceAssemblies = NoDownload,
+            TestBehaviors = TestBehaviors.SkipSuppressionCheck,
+        };
+        foreach (string source in sources)
+        {
+            test.TestState.Sources.Add(source);
+        }
+
+        test.TestState.AdditionalReferences.AddRange(GeneratorHarness.References);
+        test.ExpectedDiagnostics.AddRange(expected);
+        return test.RunAsync();
+    }
+
+    /// <summary>As <see cref="VerifyAsync(string, DiagnosticResult[])"/>, and also checks that <c>#pragma warning disable</c> silences every
     /// diagnostic (the library's suppression pass).</summary>
     public static Task VerifySuppressibleAsync(string source, params DiagnosticResult[] expected) =>
         RunAsync(source, TestBehaviors.None, expected);

@@ -125,6 +125,57 @@ public sealed class DiagnosticTests
         """);
 
     [Fact]
+    public Task DG0001MethodOfAFileLocalType() => VerifyAsync(Usings + """
+        // C# lets only the declaring file add members to a file-local type (C# 11 specification, file-local types), and
+        // the derivatives are generated into a file of their own.
+        file static partial class C
+        {
+            [Differentiate]
+            public static double {|DG0001:F|}(double x) => x * x;
+        }
+        """);
+
+    [Fact]
+    public Task DG0001AttributeOnTheDeclaringPartOfAPartialMethodWhoseBodyIsInAnotherFile() => VerifyAsync(new[]
+    {
+        Usings + """
+        public static partial class C
+        {
+            [Differentiate]
+            public static partial double {|DG0001:F|}(double x);
+        }
+        """,
+        Usings + """
+        public static partial class C
+        {
+            public static partial double F(double x) => x * x;
+        }
+        """,
+    });
+
+    [Fact]
+    public Task AttributeOnTheDeclaringPartOfAPartialMethodWithItsBodyInTheSameFile() => VerifyAsync(Usings + """
+        public static partial class C
+        {
+            [Differentiate]
+            public static partial double F(double x);
+
+            public static partial double F(double x) => x * x;
+        }
+        """);
+
+    [Fact]
+    public Task DiagnosticsOfTheImplementingPartsBodyWhenTheAttributeIsOnTheDeclaringPart() => VerifyAsync(Usings + """
+        public static partial class C
+        {
+            [Differentiate]
+            public static partial double F(double x);
+
+            public static partial double F(double x) => {|DG0001:Console.ReadLine()!.Length|} * x;
+        }
+        """);
+
+    [Fact]
     public Task DG0002TypeNotPartial() => VerifyAsync(Usings + """
         public static class C
         {

@@ -29,16 +29,18 @@ internal static class KnownGeneratorBugs
     /// A value computed from something that could throw and is evaluated under a guard (<c>i &lt; d.Length ? d[i] : 0</c>,
     /// or a data read or Clamp inside a branch) is written inline as a tree, every use repeated: the generated code
     /// grows exponentially with each statement that uses such a value twice (<c>t = t * t;</c> n times: ~2.5ⁿ).
-    /// While open, guarded reads are rare in random expressions, so batches stay small enough to compile quickly.
+    /// While open, guarded reads are rare in random expressions, so batches stay small enough to compile quickly. Fixed:
+    /// such values get locals where their own code keeps the guard (Emit/ConditionalEvaluation.cs).
     /// </summary>
-    public static readonly bool GuardedValueInlinedAsATree = true;
+    public static readonly bool GuardedValueInlinedAsATree = false; // fixed
 
     /// <summary>
     /// The same growth for values computed after an <c>if</c>/<c>else</c> in a loop body: each later statement of the
     /// iteration that uses such a value twice multiplies the generated code by ~2.3 (12 statements <c>s = s * s;</c>
-    /// after a branch: 6 MB of generated code). While open, branches are placed last in random loop bodies.
+    /// after a branch: 6 MB of generated code). While open, branches are placed last in random loop bodies. Fixed with
+    /// the previous one.
     /// </summary>
-    public static readonly bool BranchInLoopInlinedAsATree = true;
+    public static readonly bool BranchInLoopInlinedAsATree = false; // fixed
 
     /// <summary>
     /// (Now refused with DG0001 instead of a wrong derivative; the shape stays out of random programs, which expect every
@@ -74,9 +76,9 @@ internal static class KnownGeneratorBugs
 
     /// <summary>
     /// The side of a <c>?:</c> or <c>if</c> that C# does not take is computed anyway where DerivGen thinks that cannot
-    /// throw, and its derivatives can leak: <c>Math.Sign(NaN)</c> there throws ArithmeticException in MGradient, and an
-    /// infinite derivative there (<c>c ? x / 0.0 : x - x</c>) turns the gradient into NaN. While open, the repair step
-    /// keeps the untaken sides safe too.
+    /// throw, and its derivatives could leak: <c>Math.Sign(NaN)</c> there threw ArithmeticException in MGradient (fixed
+    /// earlier), and an infinite derivative there (<c>c ? x / 0.0 : x - x</c>) turned the gradient into NaN (fixed: the
+    /// contributions are selected by the condition). While on, the repair step keeps the untaken sides safe too.
     /// </summary>
-    public static readonly bool UntakenSideEvaluated = true;
+    public static readonly bool UntakenSideEvaluated = false; // fixed
 }

@@ -197,20 +197,34 @@ public sealed class HostileInputTests
         yield return new object[] { "deeply nested types", Usings + "namespace A.B.C { public partial class O1 { internal partial class O2 { private partial struct O3 { [Differentiate] internal static double M(double x) => x * x * x; } } } }" };
         yield return new object[] { "partial method (attribute on the implementation)", Usings + "public static partial class P { public static partial double M(double x);\n public static partial double M(double x) => x * x; }\n".Replace("public static partial double M(double x) =>", "[Differentiate] public static partial double M(double x) =>", StringComparison.Ordinal) };
         yield return new object[] { "partial method without implementation", Usings + "public static partial class P { [Differentiate] public static partial double M(double x); }\n" };
+        yield return new object[] { "partial method (attribute on the declaring part)", Usings + "public static partial class P { [Differentiate] public static partial double M(double x);\n public static partial double M(double x) => x * x; }\n" };
+        yield return new object[] { "method named with a keyword", Method("public static double @double(double @in) => @in * @in;") };
+        yield return new object[] { "file-local type", Usings + "file static partial class F { [Differentiate] public static double M(double x) => x * x; }\n" };
+        yield return new object[] { "null list of names", Method("public static double M(double x) => x * x;", attribute: "[Differentiate(null!)]") };
         yield return new object[] { "local function", Usings + "public static partial class H { public static double Outer(double y) { [Differentiate] static double M(double x) => x * x; return M(y); } }" };
         yield return new object[] { "lambda", Usings + "public static partial class H { public static Func<double, double> F = [Differentiate] (double x) => x * x; }" };
         yield return new object[] { "type in the global namespace named like a namespace", Usings + "public static partial class System2 { [Differentiate] public static double M(double x) => x * x; }" };
     }
-
-    // Four more inputs fail today and are kept out of this list until the generator is fixed (reported with their
-    // sources): [Differentiate(null)] (DG0010), a method named @double (unresolvable cref, CS1574), a file-local type
-    // (unresolvable cref, CS1574) and the attribute on a partial method's declaring part (neither code nor diagnostic).
 
     [Theory]
     [MemberData(nameof(Inputs))]
     public void NeitherGeneratorNorAnalyzerFails(string what, string source)
     {
         Check(what, new[] { source });
+    }
+
+    [Fact]
+    public void PartialMethodWithTheAttributeOnTheDeclaringPartAndTheBodyInAnotherFile()
+    {
+        Outcome outcome = Check("partial method, body in another file", new[]
+        {
+            Usings + "public static partial class P { [Differentiate] public static partial double M(double x); }\n",
+            Usings + "public static partial class P { public static partial double M(double x) => x * x; }\n",
+        }, requireOutcome: false); // both parts carry the attribute as symbols; the error is on the declaring part only
+        Assert.Empty(outcome.HintNames);
+        Diagnostic error = Assert.Single(outcome.Diagnostics);
+        Assert.Equal("DG0001", error.Id);
+        Assert.Equal("Source0.cs", error.Location.SourceTree?.FilePath);
     }
 
     [Fact]

@@ -1,0 +1,262 @@
+using System;
+using DerivGen.Tests.Infrastructure;
+using Xunit;
+
+namespace DerivGen.Tests.Numerics;
+
+public sealed class OpenBugFixture : CompiledFixture
+{
+    // Minimal reproductions of generator bugs that were listed as open (README "Known limitations found by these tests"),
+    // kept as regressions now that they are fixed. The harness compiles the generated code with warnings as failures.
+    public const string Source = """
+        using System;
+        using DerivGen;
+
+        public static partial class Open
+        {
+            // Bug: the locals were substituted and the generated code read 10 / 0 (CS0020, division by constant zero),
+            // although the method compiles and throws DivideByZeroException when it runs.
+            [Differentiate(nameof(x))]
+            public static double IntDivisionByALocalZero(double x, int k)
+            {
+                int n = 0;
+                int q = k / n;
+                return x * q;
+            }
+
+            // The same under a condition: only the side that is taken divides, so only k > 0 throws.
+            [Differentiate(nameof(x))]
+            public static double GuardedIntDivisionByALocalZero(double x, int k)
+            {
+                int n = 0;
+                return k > 0 ? x * (10 / n) : x * x;
+            }
+
+            // The same family: int arithmetic C# evaluates at compile time once locals are substituted
+            // (2147483647 + 1 is CS0220, (int)1E+20 is CS0221); the method's own code wraps at run time.
+            [Differentiate]
+            public static double IntOverflowThroughLocals(double x)
+            {
+                int a = int.MaxValue;
+                int b = a + 1;
+                int m = -a - 2;
+                return x * b + x * x * m;
+            }
+
+            // Bug: the doc comments' cref of a method named with a keyword was written unescaped, <see cref="double(double)"/>,
+            // which C# cannot resolve (CS1574; the harness fails on any warning in generated code).
+            [Differentiate]
+            public static double @double(double x) => x * x * x;
+
+            // Bug: [Differentiate] on the declaring part of a partial method generated nothing. The implementing part's
+            // body (in the same file) is differentiated.
+            [Differentiate]
+            public static partial double DeclaringPart(double x, double y);
+
+            public static partial double DeclaringPart(double x, double y) => x * Math.Sin(y);
+
+            // The attribute on the implementing part.
+            public static partial double ImplementingPart(double x);
+
+            [Differentiate]
+            public static partial double ImplementingPart(double x) => Math.Exp(2 * x);
+
+            // Bug: the side of a ?: not taken passed on its derivative as 0 · ∞ = NaN (x / 0.0 has the partial ∞).
+            [Differentiate(nameof(x))]
+            public static double InfinitePartialOnTheSideNotTaken(double x, int k) => k > 0 ? x / 0.0 : x - x;
+
+            // The same with a node shared by two conditions, both false: its adjoint is 0 + 0, its partial NaN (√ of a
+            // negative number), and the contribution is selected by "either condition", not multiplied.
+            [Differentiate(nameof(x))]
+            public static double NaNPartialUnderTwoConditionsNotTaken(double x, int k)
+            {
+                double y = x;
+                return (k > 0 ? Math.Sqrt(-y) : 1.0) + (k > 1 ? Math.Sqrt(-y) : 2.0) + x * x;
+            }
+
+            // Bug (found when the randomised suite generated untaken sides again): a local carried from one loop into the
+            // next, changed in between, had its running derivative before the second loop computed from its new value
+            // (z was assigned before dZ_dX = x * dZ_dX + z read it).
+            [Differentiate(nameof(x))]
+            public static double CarriedOnIntoASecondLoop(double x, int n)
+            {
+                double z = x;
+                for (int i = 0; i < n; i++)
+                {
+                    z += x;
+                }
+
+                z *= x;
+                for (int i = 0; i < n; i++)
+                {
+                    z += 1;
+                }
+
+                return z;
+            }
+        }
+        """;
+
+    public OpenBugFixture()
+        : base(Source)
+    {
+    }
+}
+
+public sealed class OpenBugRegressionTests : IClassFixture<OpenBugFixture>
+{
+    private readonly OpenBugFixture _fixture;
+
+    public OpenBugRegressionTests(OpenBugFixture fixture) => _fixture = fixture;
+
+    [Fact]
+    public void IntDivisionByALocalZeroCompilesAndThrowsAtRunTime()
+    {
+        // The fixture compiled the generated code without error (CS0020 before the fix). At run time the method and both
+        // generated methods throw DivideByZeroException (C# specification, integer division operator), before writing
+        // anything into the spans.
+        var f = _fixture.Assembly.Method<FInt>("Open", "IntDivisionByALocalZero");
+        var g = _fixture.Assembly.Method<GInt>("Open", "IntDivisionByALocalZeroGradient");
+        var h = _fixture.Assembly.Method<HInt>("Open", "IntDivisionByALocalZeroHessian");
+        var gradient = new[] { 7.0 };
+        var hessian = new[] { 7.0 };
+        Assert.Throws<DivideByZeroException>(() => f(1.5, 3));
+        Assert.Throws<DivideByZeroException>(() => g(1.5, 3, gradient));
+        Assert.Throws<DivideByZeroException>(() => h(1.5, 3, gradient, hessian));
+        Assert.Equal(7.0, gradient[0]);
+        Assert.Equal(7.0, hessian[0]);
+    }
+
+    [Fact]
+    public void GuardedIntDivisionByALocalZeroThrowsOnlyWhereTheMethodDoes()
+    {
+        var f = _fixture.Assembly.Method<FInt>("Open", "GuardedIntDivisionByALocalZero");
+        var g = _fixture.Assembly.Method<GInt>("Open", "GuardedIntDivisionByALocalZeroGradient");
+        var h = _fixture.Assembly.Method<HInt>("Open", "GuardedIntDivisionByALocalZeroHessian");
+        var gradient = new double[1];
+        var hessian = new double[1];
+
+        // k > 0 takes the division: DivideByZeroException, as in the method.
+        Assert.Throws<DivideByZeroException>(() => f(1.5, 1));
+        Assert.Throws<DivideByZeroException>(() => g(1.5, 1, gradient));
+        Assert.Throws<DivideByZeroException>(() => h(1.5, 1, gradient, hessian));
+
+        // k ≤ 0 takes x²: value bit-for-bit, derivative 2x, second derivative 2 (plain calculus).
+        Assert.Equal(f(1.5, 0), g(1.5, 0, gradient));
+        Assert.Equal(3.0, gradient[0]);
+        Assert.Equal(f(1.5, 0), h(1.5, 0, gradient, hessian));
+        Assert.Equal(3.0, gradient[0]);
+        Assert.Equal(2.0, hessian[0]);
+    }
+
+    [Theory]
+    [InlineData(0.5)]
+    [InlineData(-2.0)]
+    public void IntOverflowThroughLocalsWrapsAsTheMethodDoes(double x)
+    {
+        // Unchecked int arithmetic wraps (C# specification, checked and unchecked contexts; the test compilation is
+        // unchecked): int.MaxValue + 1 = int.MinValue and −int.MaxValue − 2 = int.MaxValue. So f = b x + m x² with
+        // b = −2³¹, m = 2³¹ − 1: f' = b + 2 m x, f'' = 2 m (plain calculus).
+        double b = int.MinValue, m = int.MaxValue;
+        Verify.At(Probe.Load(_fixture.Assembly, "Open", "IntOverflowThroughLocals", 1), new[] { x }, new[] { b + (2 * m * x) }, new[] { 2 * m },
+            "IntOverflowThroughLocals");
+    }
+
+    [Theory]
+    [InlineData(0.5)]
+    [InlineData(-1.25)]
+    public void MethodNamedWithAKeyword(double x) =>
+        // x³: 3x², 6x (plain calculus). The fixture compiled the doc comments with no CS1574.
+        Verify.At(Probe.Load(_fixture.Assembly, "Open", "double", 1), new[] { x }, new[] { 3 * x * x }, new[] { 6 * x }, "@double");
+
+    [Fact]
+    public void KeywordNamedMethodCrefIsEscaped()
+    {
+        string text = _fixture.Run.Source("Open.double.g.cs");
+        Assert.Contains("<see cref=\"@double(double)\"/>", text, StringComparison.Ordinal);
+    }
+
+    [Theory]
+    [InlineData(0.5, 0.3)]
+    [InlineData(-2.0, 1.7)]
+    public void AttributeOnTheDeclaringPartOfAPartialMethod(double x, double y) =>
+        // x sin y: gradient (sin y, x cos y), Hessian [[0, cos y], [cos y, −x sin y]] (plain calculus).
+        Verify.At(Probe.Load(_fixture.Assembly, "Open", "DeclaringPart", 2), new[] { x, y }, new[] { Math.Sin(y), x * Math.Cos(y) },
+            new[] { 0, Math.Cos(y), Math.Cos(y), -x * Math.Sin(y) }, "DeclaringPart");
+
+    [Theory]
+    [InlineData(0.5)]
+    [InlineData(-1.5)]
+    public void AttributeOnTheImplementingPartOfAPartialMethod(double x) =>
+        // e^{2x}: 2e^{2x}, 4e^{2x} (plain calculus).
+        Verify.At(Probe.Load(_fixture.Assembly, "Open", "ImplementingPart", 1), new[] { x }, new[] { 2 * Math.Exp(2 * x) }, new[] { 4 * Math.Exp(2 * x) },
+            "ImplementingPart");
+
+    [Theory]
+    [InlineData(1.5, 0)]
+    [InlineData(-0.5, -3)]
+    public void InfinitePartialOnTheSideNotTaken(double x, int k)
+    {
+        // k ≤ 0 takes x − x = 0: the derivative is exactly 0, the second derivative 0 (plain calculus; it was NaN).
+        var g = _fixture.Assembly.Method<GInt>("Open", "InfinitePartialOnTheSideNotTakenGradient");
+        var h = _fixture.Assembly.Method<HInt>("Open", "InfinitePartialOnTheSideNotTakenHessian");
+        var gradient = new double[1];
+        var hessian = new double[1];
+        Assert.Equal(0.0, g(x, k, gradient));
+        Assert.Equal(0.0, gradient[0]);
+        Assert.Equal(0.0, h(x, k, gradient, hessian));
+        Assert.Equal(0.0, gradient[0]);
+        Assert.Equal(0.0, hessian[0]);
+
+        // k > 0 takes x / 0.0: value and derivative +∞ for x > 0 (IEEE 754 division by zero), as before.
+        Assert.Equal(double.PositiveInfinity, g(1.5, 1, gradient));
+        Assert.Equal(double.PositiveInfinity, gradient[0]);
+    }
+
+    [Theory]
+    [InlineData(1.5)]
+    [InlineData(0.25)]
+    public void NaNPartialUnderTwoConditionsNotTaken(double x)
+    {
+        // k = 0 takes neither square root: f = 3 + x², f' = 2x, f'' = 2 (plain calculus; the gradient was NaN).
+        var f = _fixture.Assembly.Method<FInt>("Open", "NaNPartialUnderTwoConditionsNotTaken");
+        var h = _fixture.Assembly.Method<HInt>("Open", "NaNPartialUnderTwoConditionsNotTakenHessian");
+        var gradient = new double[1];
+        var hessian = new double[1];
+        Assert.Equal(f(x, 0), h(x, 0, gradient, hessian));
+        Assert.Equal(2 * x, gradient[0]);
+        Assert.Equal(2.0, hessian[0]);
+
+        // k = 2 takes both square roots; at y = −x < 0: f = 2√(−y) + y², f' = −1/√(−y) + 2y, f'' = −1/(2 (−y)^{3/2}) + 2
+        // (plain calculus), with −y = x.
+        double y = -x;
+        Assert.Equal(f(y, 2), h(y, 2, gradient, hessian));
+        Check.Close(new[] { (-1 / Math.Sqrt(x)) + (2 * y) }, gradient, Check.ClosedFormRelative, 1e-15, "two sides taken: gradient");
+        Check.Close(new[] { (-1 / (2 * Math.Pow(x, 1.5))) + 2 }, hessian, Check.ClosedFormRelative, 1e-15, "two sides taken: Hessian");
+    }
+
+    [Theory]
+    [InlineData(1.5, 3)]
+    [InlineData(-0.7, 5)]
+    [InlineData(2.0, 0)]
+    public void CarriedOnIntoASecondLoop(double x, int n)
+    {
+        // z = (n + 1) x after the first loop, (n + 1) x² after z *= x, (n + 1) x² + n at the end: f' = 2 (n + 1) x,
+        // f'' = 2 (n + 1) (plain calculus).
+        var g = _fixture.Assembly.Method<GInt>("Open", "CarriedOnIntoASecondLoopGradient");
+        var h = _fixture.Assembly.Method<HInt>("Open", "CarriedOnIntoASecondLoopHessian");
+        var gradient = new double[1];
+        var hessian = new double[1];
+        g(x, n, gradient);
+        Check.Close(new[] { 2.0 * (n + 1) * x }, gradient, Check.ClosedFormRelative, 1e-15, "CarriedOnIntoASecondLoop gradient");
+        h(x, n, gradient, hessian);
+        Check.Close(new[] { 2.0 * (n + 1) * x }, gradient, Check.ClosedFormRelative, 1e-15, "CarriedOnIntoASecondLoop MHessian gradient");
+        Check.Close(new[] { 2.0 * (n + 1) }, hessian, Check.ClosedFormRelative, 1e-15, "CarriedOnIntoASecondLoop Hessian");
+    }
+
+    private delegate double FInt(double x, int k);
+
+    private delegate double GInt(double x, int k, Span<double> gradient);
+
+    private delegate double HInt(double x, int k, Span<double> gradient, Span<double> hessian);
+}
