@@ -550,7 +550,10 @@ internal static class DerivativeEmitter
 
         void WriteLoop(LoopSegment loop)
         {
-            // Before the loop: the carried locals and their running derivatives start from their values here.
+            // Before the loop: the carried locals and their running derivatives start from their values here. The spans
+            // are cleared first: a call between a scalar's initial value and the loop would make the JIT keep that
+            // scalar (an accumulator) in memory for the whole loop.
+            WriteVectorClears(loop);
             foreach (StateUpdate update in initial[loop])
             {
                 if (IsSameLocal(update))
@@ -693,6 +696,24 @@ internal static class DerivativeEmitter
             }
         }
 
+        void WriteVectorClears(LoopSegment loop)
+        {
+            foreach (LoopState state in loop.States)
+            {
+                if (program.States.TryGetValue(state, out StateDerivatives? d))
+                {
+                    for (int v = 0; v < d.VectorNames.Length; v++)
+                    {
+                        var terms = d.InitialVector.Where(t => t.Vector == v).ToList();
+                        if (!(terms.Count == 1 && terms[0].SourceSpan == d.VectorNames[v] && terms[0].Coefficient.IsConstant(1)))
+                        {
+                            writer.Line(d.VectorNames[v] + ".Clear();");
+                        }
+                    }
+                }
+            }
+        }
+
         void WriteVectorUpdates(LoopSegment loop, bool before)
         {
             var copies = new List<string>();
@@ -715,8 +736,7 @@ internal static class DerivativeEmitter
 
                     if (before)
                     {
-                        writer.Line(own + ".Clear();");
-                        AddTerms(own, string.Empty, terms, null);
+                        AddTerms(own, string.Empty, terms, null); // cleared by WriteVectorClears
                     }
                     else if (UpdatesInPlace(loop, d, v))
                     {
