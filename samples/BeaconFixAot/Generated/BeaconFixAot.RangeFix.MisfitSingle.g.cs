@@ -72,7 +72,7 @@ namespace BeaconFixAot
         {
             if (gradient.Length < 3)
             {
-                throw new global::System.ArgumentException("The span must hold at least 3 elements (one per variable: x, y, bias).", nameof(gradient));
+                ThrowSpanTooShort(nameof(gradient), 3, "one per variable: x, y, bias");
             }
 
             float sum = 0f;
@@ -97,6 +97,9 @@ namespace BeaconFixAot
             gradient[2] = dSum_dBias; // ∂MisfitSingle/∂bias
 
             return sum;
+
+            static void ThrowSpanTooShort(string name, int length, string what) =>
+                throw new global::System.ArgumentException("The span must hold at least " + length + (length == 1 ? " element (" : " elements (") + what + ").", name);
         }
 
         /// <summary>
@@ -148,12 +151,12 @@ namespace BeaconFixAot
         {
             if (gradient.Length < 3)
             {
-                throw new global::System.ArgumentException("The span must hold at least 3 elements (one per variable: x, y, bias).", nameof(gradient));
+                ThrowSpanTooShort(nameof(gradient), 3, "one per variable: x, y, bias");
             }
 
             if (hessian.Length < 9)
             {
-                throw new global::System.ArgumentException("The span must hold at least 9 elements (3 × 3, row-major).", nameof(hessian));
+                ThrowSpanTooShort(nameof(hessian), 9, "3 × 3, row-major");
             }
 
             float sum = 0f;
@@ -201,6 +204,9 @@ namespace BeaconFixAot
             hessian[8] = d2Sum_dBias2; // ∂²MisfitSingle/∂bias²
 
             return sum;
+
+            static void ThrowSpanTooShort(string name, int length, string what) =>
+                throw new global::System.ArgumentException("The span must hold at least " + length + (length == 1 ? " element (" : " elements (") + what + ").", name);
         }
     }
 }

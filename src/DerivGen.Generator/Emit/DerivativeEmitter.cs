@@ -138,6 +138,10 @@ internal static class DerivativeEmitter
         writer.Line("/// <returns>The value of the method at these arguments, bit-for-bit.</returns>");
         writer.Line("/// <exception cref=\"global::System.ArgumentException\">A span is shorter than stated.</exception>");
         writer.Line("[global::System.CodeDom.Compiler.GeneratedCode(\"" + ToolName + "\", \"" + ToolVersion + "\")]");
+        if (IsSmallStraightLine(program, withHessian))
+        {
+            writer.Line("[global::System.Runtime.CompilerServices.MethodImpl(global::System.Runtime.CompilerServices.MethodImplOptions.AggressiveInlining)]");
+        }
 
         // Signature.
         var parameters = spec.Parameters.Select(p => p.Modifiers + p.TypeName + " " + p.Name).ToList();
@@ -150,13 +154,15 @@ internal static class DerivativeEmitter
         string modifiers = spec.Accessibility + (spec.IsStatic ? " static " : " ");
         using (writer.Block(modifiers + type + " " + methodName + "(" + string.Join(", ", parameters) + ")"))
         {
-            WriteLengthCheck(writer, context.GradientName, context.GradientLength, "one per variable: " + variableList);
+            string thrower = context.ThrowerName;
+            WriteLengthCheck(writer, context.GradientName, context.GradientLength, "one per variable: " + variableList, thrower);
             if (withHessian)
             {
-                WriteLengthCheck(writer, context.HessianName, Count(n * n), Count(n) + " × " + Count(n) + ", row-major");
+                WriteLengthCheck(writer, context.HessianName, Count(n * n), Count(n) + " × " + Count(n) + ", row-major", thrower);
             }
 
-            WriteBody(writer, context, withHessian);
+            WriteBody(writer, context, withHessian, thrower);
+            WriteThrower(writer, thrower);
         }
     }
 
@@ -206,9 +212,10 @@ internal static class DerivativeEmitter
         string modifiers = spec.Accessibility + (spec.IsStatic ? " static " : " ");
         using (writer.Block(modifiers + type + " " + context.BareName + Lowering.MethodParser.HessianSuffix + "(" + string.Join(", ", parameters) + ")"))
         {
+            string thrower = names.Claim(context.ThrowerName);
             writer.Line("int " + n + " = " + context.GradientLength + ";");
-            WriteLengthCheck(writer, context.GradientName, n, "one per variable: " + variableList);
-            WriteLengthCheck(writer, context.HessianName, n + " * " + n, "n × n, row-major");
+            WriteLengthCheck(writer, context.GradientName, n, "one per variable: " + variableList, thrower);
+            WriteLengthCheck(writer, context.HessianName, n + " * " + n, "n × n, row-major", thrower);
             writer.Line(type + " " + value + " = " + context.BareName + Lowering.MethodParser.GradientSuffix + "(" + arguments + ", " + context.GradientName + ");");
             writer.Line("global::System.Span<" + type + "> " + pairGradient + " = stackalloc " + type + "[" + Count(c) + "];");
             writer.Line("global::System.Span<" + type + "> " + pairHessian + " = stackalloc " + type + "[" + Count(c * c) + "];");
@@ -259,7 +266,35 @@ internal static class DerivativeEmitter
 
             writer.Line();
             writer.Line("return " + value + ";");
+            WriteThrower(writer, thrower);
         }
+    }
+
+    /// <summary>Operations (not leaves) a method may compute and still be marked for inlining.</summary>
+    internal const int InlineOperationLimit = 16;
+
+    /// <summary>
+    /// A method without loops, calls of other generated methods or vector variables that computes at most
+    /// <see cref="InlineOperationLimit"/> operations is marked AggressiveInlining: the span-length checks alone take its
+    /// IL past the JIT's default inlining size, where the same formulas written by hand (without the checks) are inlined.
+    /// </summary>
+    private static bool IsSmallStraightLine(DerivativeProgram program, bool withHessian)
+    {
+        if (program.Loops.Count > 0 || program.Vectors.Length > 0)
+        {
+            return false;
+        }
+
+        var roots = new List<Node> { program.Value };
+        roots.AddRange(program.Gradient);
+        if (withHessian)
+        {
+            roots.AddRange(program.Hessian!.SelectMany(row => row));
+        }
+
+        HashSet<Node> reachable = Graph.Reachable(roots);
+        return !reachable.Any(node => node.Kind is NodeKind.UserCall or NodeKind.CallPartial or NodeKind.CallSecondPartial)
+            && reachable.Count(node => !node.IsLeaf) <= InlineOperationLimit;
     }
 
     private static string Sum(string offset, string index) => offset == "0" ? index : offset + " + " + index;
@@ -269,22 +304,31 @@ internal static class DerivativeEmitter
     private static string Slot(string rowOffset, string n, string columnOffset) =>
         (rowOffset == "0" ? string.Empty : Parenthesized(rowOffset) + " * " + n + " + ") + Parenthesized(columnOffset);
 
-    private static void WriteLengthCheck(IndentedWriter writer, string name, string length, string what)
+    private static void WriteLengthCheck(IndentedWriter writer, string name, string length, string what, string thrower)
     {
         using (writer.Block("if (" + name + ".Length < " + length + ")"))
         {
-            string count = length.Any(char.IsLetter) ? "\" + (" + length + ") + \"" : length;
-            writer.Line("throw new global::System.ArgumentException(\"The span must hold at least " + count + (length == "1" ? " element (" : " elements (") + what.Replace("\"", "'")
-                + ").\", nameof(" + name + "));");
+            writer.Line(thrower + "(nameof(" + name + "), " + length + ", \"" + what.Replace("\"", "'") + "\");");
         }
 
         writer.Line();
     }
 
+    /// <summary>
+    /// The length checks throw through a static local function: the exception and its message are built out of line,
+    /// so that a small generated method stays within the JIT's inlining budget.
+    /// </summary>
+    private static void WriteThrower(IndentedWriter writer, string thrower)
+    {
+        writer.Line();
+        writer.Line("static void " + thrower + "(string name, int length, string what) =>");
+        writer.Line("    throw new global::System.ArgumentException(\"The span must hold at least \" + length + (length == 1 ? \" element (\" : \" elements (\") + what + \").\", name);");
+    }
+
     /// <summary>One assignment of a loop-carried local (or of one of its running derivatives) in the generated code.</summary>
     private readonly record struct StateUpdate(string Target, ScalarType Type, Node Value, bool IsDerivative = false);
 
-    private static void WriteBody(IndentedWriter writer, EmitContext context, bool withHessian)
+    private static void WriteBody(IndentedWriter writer, EmitContext context, bool withHessian, string thrower)
     {
         DerivativeProgram program = context.Program;
         int n = program.Variables.Length;
@@ -468,7 +512,7 @@ internal static class DerivativeEmitter
         }
 
         var reserved = context.Spec.Parameters.Select(p => p.Name)
-            .Concat(new[] { context.GradientName, context.HessianName })
+            .Concat(new[] { context.GradientName, context.HessianName, thrower })
             .Concat(program.StateNames)
             .Concat(program.Loops.Where(l => l.Index is not null).Select(l => l.Index!));
         var names = new TemporaryNames(reserved);
@@ -1066,10 +1110,14 @@ internal static class DerivativeEmitter
             var names = new TemporaryNames(taken);
             GradientName = names.Claim("gradient");
             HessianName = names.Claim("hessian");
+            ThrowerName = names.Claim("ThrowSpanTooShort");
 
             // Where each variable's derivatives go in the gradient span: declaration order, a vector taking v.Length slots.
             (ScalarOffset, VectorOffset, GradientLength) = PairHessian.SlotOffsets(spec);
         }
+
+        /// <summary>The static local function that throws for a span that is too short (see <see cref="WriteThrower"/>).</summary>
+        public string ThrowerName { get; }
 
         /// <summary>The index in the gradient span of each scalar variable (C# text; a run-time sum after a vector).</summary>
         public string[] ScalarOffset { get; }

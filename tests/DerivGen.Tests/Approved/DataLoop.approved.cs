@@ -56,7 +56,7 @@ namespace Samples.Fitting
         {
             if (gradient.Length < 2)
             {
-                throw new global::System.ArgumentException("The span must hold at least 2 elements (one per variable: a, b).", nameof(gradient));
+                ThrowSpanTooShort(nameof(gradient), 2, "one per variable: a, b");
             }
 
             double t1 = -b;
@@ -79,6 +79,9 @@ namespace Samples.Fitting
             gradient[1] = 0.5 * dSum_dB; // ∂HalfSquaredError/∂b
 
             return value;
+
+            static void ThrowSpanTooShort(string name, int length, string what) =>
+                throw new global::System.ArgumentException("The span must hold at least " + length + (length == 1 ? " element (" : " elements (") + what + ").", name);
         }
 
         /// <summary>
@@ -118,12 +121,12 @@ namespace Samples.Fitting
         {
             if (gradient.Length < 2)
             {
-                throw new global::System.ArgumentException("The span must hold at least 2 elements (one per variable: a, b).", nameof(gradient));
+                ThrowSpanTooShort(nameof(gradient), 2, "one per variable: a, b");
             }
 
             if (hessian.Length < 4)
             {
-                throw new global::System.ArgumentException("The span must hold at least 4 elements (2 × 2, row-major).", nameof(hessian));
+                ThrowSpanTooShort(nameof(hessian), 4, "2 × 2, row-major");
             }
 
             double t1 = -b;
@@ -159,6 +162,9 @@ namespace Samples.Fitting
             hessian[3] = 0.5 * d2Sum_dB2; // ∂²HalfSquaredError/∂b²
 
             return value;
+
+            static void ThrowSpanTooShort(string name, int length, string what) =>
+                throw new global::System.ArgumentException("The span must hold at least " + length + (length == 1 ? " element (" : " elements (") + what + ").", name);
         }
     }
 }

@@ -47,7 +47,7 @@ namespace Samples.Robotics
             {
                 if (gradient.Length < 2)
                 {
-                    throw new global::System.ArgumentException("The span must hold at least 2 elements (one per variable: q1, q2).", nameof(gradient));
+                    ThrowSpanTooShort(nameof(gradient), 2, "one per variable: q1, q2");
                 }
 
                 double t1 = q1 + q2;
@@ -60,6 +60,9 @@ namespace Samples.Robotics
                 gradient[1] = t2; // ∂Miss/∂q2
 
                 return value;
+
+                static void ThrowSpanTooShort(string name, int length, string what) =>
+                    throw new global::System.ArgumentException("The span must hold at least " + length + (length == 1 ? " element (" : " elements (") + what + ").", name);
             }
 
             /// <summary>
@@ -92,12 +95,12 @@ namespace Samples.Robotics
             {
                 if (gradient.Length < 2)
                 {
-                    throw new global::System.ArgumentException("The span must hold at least 2 elements (one per variable: q1, q2).", nameof(gradient));
+                    ThrowSpanTooShort(nameof(gradient), 2, "one per variable: q1, q2");
                 }
 
                 if (hessian.Length < 4)
                 {
-                    throw new global::System.ArgumentException("The span must hold at least 4 elements (2 × 2, row-major).", nameof(hessian));
+                    ThrowSpanTooShort(nameof(hessian), 4, "2 × 2, row-major");
                 }
 
                 double t1 = q1 + q2;
@@ -129,6 +132,9 @@ namespace Samples.Robotics
                 hessian[3] = 2.0 * (cosT1 * (global::Samples.Robotics.Arm.Link2 * t9) - t11) - 2.0 * (t12 - sinT1 * (global::Samples.Robotics.Arm.Link2 * t7)); // ∂²Miss/∂q2²
 
                 return value;
+
+                static void ThrowSpanTooShort(string name, int length, string what) =>
+                    throw new global::System.ArgumentException("The span must hold at least " + length + (length == 1 ? " element (" : " elements (") + what + ").", name);
             }
         }
     }

@@ -55,7 +55,7 @@ namespace Samples.Signals
         {
             if (gradient.Length < 3)
             {
-                throw new global::System.ArgumentException("The span must hold at least 3 elements (one per variable: amplitude, decay, phase).", nameof(gradient));
+                ThrowSpanTooShort(nameof(gradient), 3, "one per variable: amplitude, decay, phase");
             }
 
             double exp = global::System.Math.Exp(-decay * t);
@@ -72,6 +72,9 @@ namespace Samples.Signals
             gradient[2] = -(r2 * envelope * global::System.Math.Sin(t1)); // ∂Residual/∂phase
 
             return value;
+
+            static void ThrowSpanTooShort(string name, int length, string what) =>
+                throw new global::System.ArgumentException("The span must hold at least " + length + (length == 1 ? " element (" : " elements (") + what + ").", name);
         }
 
         /// <summary>
@@ -111,12 +114,12 @@ namespace Samples.Signals
         {
             if (gradient.Length < 3)
             {
-                throw new global::System.ArgumentException("The span must hold at least 3 elements (one per variable: amplitude, decay, phase).", nameof(gradient));
+                ThrowSpanTooShort(nameof(gradient), 3, "one per variable: amplitude, decay, phase");
             }
 
             if (hessian.Length < 9)
             {
-                throw new global::System.ArgumentException("The span must hold at least 9 elements (3 × 3, row-major).", nameof(hessian));
+                ThrowSpanTooShort(nameof(hessian), 9, "3 × 3, row-major");
             }
 
             double exp = global::System.Math.Exp(-decay * t);
@@ -148,6 +151,9 @@ namespace Samples.Signals
             hessian[8] = -(-0.5 * (sinT1 * (envelope * (envelope * sinT1))) + waveAdjoint * global::System.Math.Cos(t1)); // ∂²Residual/∂phase²
 
             return value;
+
+            static void ThrowSpanTooShort(string name, int length, string what) =>
+                throw new global::System.ArgumentException("The span must hold at least " + length + (length == 1 ? " element (" : " elements (") + what + ").", name);
         }
     }
 }

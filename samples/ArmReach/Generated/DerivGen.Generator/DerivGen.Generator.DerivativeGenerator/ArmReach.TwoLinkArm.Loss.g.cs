@@ -55,7 +55,7 @@ namespace ArmReach
         {
             if (gradient.Length < 2)
             {
-                throw new global::System.ArgumentException("The span must hold at least 2 elements (one per variable: shoulder, elbow).", nameof(gradient));
+                ThrowSpanTooShort(nameof(gradient), 2, "one per variable: shoulder, elbow");
             }
 
             double elbowX = upperLength * global::System.Math.Cos(shoulder);
@@ -72,6 +72,9 @@ namespace ArmReach
             gradient[1] = t2; // ∂Loss/∂elbow
 
             return value;
+
+            static void ThrowSpanTooShort(string name, int length, string what) =>
+                throw new global::System.ArgumentException("The span must hold at least " + length + (length == 1 ? " element (" : " elements (") + what + ").", name);
         }
 
         /// <summary>
@@ -110,12 +113,12 @@ namespace ArmReach
         {
             if (gradient.Length < 2)
             {
-                throw new global::System.ArgumentException("The span must hold at least 2 elements (one per variable: shoulder, elbow).", nameof(gradient));
+                ThrowSpanTooShort(nameof(gradient), 2, "one per variable: shoulder, elbow");
             }
 
             if (hessian.Length < 4)
             {
-                throw new global::System.ArgumentException("The span must hold at least 4 elements (2 × 2, row-major).", nameof(hessian));
+                ThrowSpanTooShort(nameof(hessian), 4, "2 × 2, row-major");
             }
 
             double elbowX = upperLength * global::System.Math.Cos(shoulder);
@@ -151,6 +154,9 @@ namespace ArmReach
             hessian[3] = 2.0 * (cosT1 * (foreLength * t9) - t11) - 2.0 * (t12 - sinT1 * (foreLength * t7)); // ∂²Loss/∂elbow²
 
             return value;
+
+            static void ThrowSpanTooShort(string name, int length, string what) =>
+                throw new global::System.ArgumentException("The span must hold at least " + length + (length == 1 ? " element (" : " elements (") + what + ").", name);
         }
     }
 }
