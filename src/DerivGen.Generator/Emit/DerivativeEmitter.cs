@@ -342,6 +342,10 @@ internal static class DerivativeEmitter
             roots.AddRange(program.Hessian!.SelectMany(row => row).Select(h => (h, finalStage)));
         }
 
+        // Spans of inner loops that are replayed after the loop (reverse mode) instead of being stored.
+        Dictionary<string, InnerLoopReversal> replayed = InnerLoopReversal.Find(program);
+        bool Replayed(StateDerivatives d, VectorTerm term) => replayed.ContainsKey(d.VectorNames[term.Vector]);
+
         var initial = new Dictionary<LoopSegment, List<StateUpdate>>();
         var next = new Dictionary<LoopSegment, List<StateUpdate>>();
         foreach (LoopSegment loop in program.Loops)
@@ -383,8 +387,9 @@ internal static class DerivativeEmitter
             {
                 if (program.States.TryGetValue(state, out StateDerivatives? d))
                 {
-                    roots.AddRange(TermNodes(d.InitialVector).Select(node => (node, loop.BeforeStage)));
-                    roots.AddRange(TermNodes(d.NextVector).Select(node => (node, loop.BodyEndStage)));
+                    // A replayed span's terms are written out again after the loop (see InnerLoopReversal), not here.
+                    roots.AddRange(TermNodes(d.InitialVector.Where(t => !Replayed(d, t))).Select(node => (node, loop.BeforeStage)));
+                    roots.AddRange(TermNodes(d.NextVector.Where(t => !Replayed(d, t))).Select(node => (node, loop.BodyEndStage)));
                 }
             }
         }
@@ -695,6 +700,11 @@ internal static class DerivativeEmitter
 
                 for (int v = 0; v < d.VectorNames.Length; v++)
                 {
+                    if (replayed.ContainsKey(d.VectorNames[v]))
+                    {
+                        continue;
+                    }
+
                     if (declared.Add(d.VectorNames[v]))
                     {
                         writer.Line(inGradient.TryGetValue(d.VectorNames[v], out int slice)
@@ -730,11 +740,54 @@ internal static class DerivativeEmitter
                 {
                     writer.Line(target + "[" + at + code.Write(index) + "] += " + (term.Coefficient.IsConstant(1) ? "1.0" : code.Write(term.Coefficient)) + ";");
                 }
+                else if (term.SourceSpan is { } source && replayed.TryGetValue(source, out InnerLoopReversal? reversal))
+                {
+                    WriteReplay(target, at, term, reversal);
+                }
                 else if (term.SourceSpan != skipSource)
                 {
                     using (writer.Block("for (int " + element + " = 0; " + element + " < " + Length(term.Vector) + "; " + element + "++)"))
                     {
                         writer.Line(target + "[" + at + element + "] += " + coefficient + term.SourceSpan + "[" + element + "];");
+                    }
+                }
+            }
+        }
+
+        // target += adjoint · ∂z/∂w for a span that is not stored: its contributions, written out again with the adjoint.
+        void WriteReplay(string target, string at, VectorTerm term, InnerLoopReversal reversal)
+        {
+            LoopSegment loop = reversal.Loop;
+            string adjoint;
+            if (term.Coefficient.IsLeaf || NameOf(term.Coefficient) is not null)
+            {
+                adjoint = code.Write(term.Coefficient);
+            }
+            else
+            {
+                adjoint = names.Claim(Identifiers.Unescape(reversal.State.State.Name) + "Adjoint");
+                writer.Line(ExpressionWriter.TypeKeyword(term.Coefficient.Type) + " " + adjoint + " = " + code.Write(term.Coefficient) + ";");
+            }
+
+            // Nodes of the loop's own stage were locals of its body, out of scope here: they are written out again.
+            var again = new ExpressionWriter(x => x.Stage >= loop.InsideStage ? null : NameOf(x), formula: false, calleeDerivative: CalleeDerivative);
+            bool unit = term.Coefficient.IsConstant(1);
+            string Add(VectorTerm element) => target + "[" + at + again.Write(element.Index!) + "] += "
+                + (element.Coefficient.IsConstant(1) ? adjoint : unit ? again.Write(element.Coefficient) : adjoint + " * " + again.WriteFactor(element.Coefficient)) + ";";
+            writer.Line("// " + target + " += " + adjoint + " · " + reversal.Span + ", " + reversal.Span + " not stored: the loop over " + loop.Index
+                + " replayed with the adjoint " + adjoint + " (reverse mode)");
+            foreach (VectorTerm element in reversal.InitialTerms)
+            {
+                writer.Line(Add(element));
+            }
+
+            if (reversal.LoopTerms.Count > 0)
+            {
+                using (writer.Block("for (int " + loop.Index + " = " + code.Write(loop.Start!) + "; " + loop.Index + (loop.Inclusive ? " <= " : " < ") + code.Write(loop.End!) + "; " + loop.Index + "++)"))
+                {
+                    foreach (VectorTerm element in reversal.LoopTerms)
+                    {
+                        writer.Line(Add(element));
                     }
                 }
             }
@@ -748,6 +801,11 @@ internal static class DerivativeEmitter
                 {
                     for (int v = 0; v < d.VectorNames.Length; v++)
                     {
+                        if (replayed.ContainsKey(d.VectorNames[v]))
+                        {
+                            continue;
+                        }
+
                         var terms = d.InitialVector.Where(t => t.Vector == v).ToList();
                         if (!(terms.Count == 1 && terms[0].SourceSpan == d.VectorNames[v] && terms[0].Coefficient.IsConstant(1)))
                         {
@@ -771,6 +829,11 @@ internal static class DerivativeEmitter
                 for (int v = 0; v < d.VectorNames.Length; v++)
                 {
                     string own = d.VectorNames[v];
+                    if (replayed.ContainsKey(own))
+                    {
+                        continue; // replayed after the loop, where its adjoint is known
+                    }
+
                     var terms = (before ? d.InitialVector : d.NextVector).Where(t => t.Vector == v).ToList();
                     bool identity = terms.Count == 1 && terms[0].SourceSpan == own && terms[0].Coefficient.IsConstant(1);
                     if (identity)
