@@ -506,8 +506,38 @@ internal static class DerivativeEmitter
         // that guards a throwing operation (a data read in its arguments), it is called under that condition
         // (guard ? Call(…) : 0) and its buffers are read only by derivatives selected by the same condition.
         Dictionary<Node, Node> callGuards = CallGuards(valueRoots, gradientBuffer.Keys.Where(Guarded).ToList(), program.Builder);
+        // The sine and the cosine of one argument, both needed (typically one in the value, the other in a derivative):
+        // one SinCos call gives both, each in its own local.
+        // A raw node of the value and a built one of a derivative can be equal but distinct: the later ones (sameAs) read
+        // the first one's local.
+        var sinCosPartner = new Dictionary<Node, Node>();
+        var sameAs = new Dictionary<Node, Node>();
+        if (context.Spec.HasSinCos)
+        {
+            var cosines = reachable.Where(node => IsSinOrCos(node, MathFunction.Cos) && !Guarded(node)).GroupBy(node => (node.Arguments[0], node.Type))
+                .ToDictionary(group => group.Key, group => group.OrderBy(node => node.Id).ToList());
+            foreach (List<Node> sines in reachable.Where(node => IsSinOrCos(node, MathFunction.Sin) && !Guarded(node)).GroupBy(node => (node.Arguments[0], node.Type))
+                .Select(group => group.OrderBy(node => node.Id).ToList()))
+            {
+                if (cosines.TryGetValue((sines[0].Arguments[0], sines[0].Type), out List<Node>? cos))
+                {
+                    sinCosPartner[sines[0]] = cos[0];
+                    sinCosPartner[cos[0]] = sines[0];
+                    foreach (Node later in sines.Skip(1))
+                    {
+                        sameAs[later] = sines[0];
+                    }
+
+                    foreach (Node later in cos.Skip(1))
+                    {
+                        sameAs[later] = cos[0];
+                    }
+                }
+            }
+        }
+
         List<Node> temporaries = reachable
-            .Where(node => snapshots.Contains(node) || (!node.IsLeaf && (!Guarded(node) || callGuards.ContainsKey(node))
+            .Where(node => !sameAs.ContainsKey(node)).Where(node => snapshots.Contains(node) || sinCosPartner.ContainsKey(node) || (!node.IsLeaf && (!Guarded(node) || callGuards.ContainsKey(node))
                 && (node == program.Value || node.LocalName is not null || uses[node] >= 2 || hoisted.Contains(node) || gradientBuffer.ContainsKey(node))))
             .OrderBy(node => node.Id)
             .ToList();
@@ -542,6 +572,11 @@ internal static class DerivativeEmitter
             nameOf[node] = names.For(node, x => nameOf.TryGetValue(x, out string? name) ? name : null);
         }
 
+        foreach (KeyValuePair<Node, Node> pair in sameAs)
+        {
+            nameOf[pair.Key] = nameOf[pair.Value];
+        }
+
         foreach (Node call in gradientBuffer.Keys.OrderBy(c => c.Id).ToList())
         {
             string stem = Identifiers.Unescape(call.Callee!.Method);
@@ -574,6 +609,19 @@ internal static class DerivativeEmitter
         {
             foreach (Node node in temporaries.Where(t => t.Stage == stage))
             {
+                if (sinCosPartner.TryGetValue(node, out Node? partner))
+                {
+                    if (written.Add(node) && written.Add(partner))
+                    {
+                        (Node sine, Node cosine) = node.Function == MathFunction.Sin ? (node, partner) : (partner, node);
+                        string keyword = ExpressionWriter.TypeKeyword(node.Type);
+                        writer.Line("(" + keyword + " " + nameOf[sine] + ", " + keyword + " " + nameOf[cosine] + ") = global::System." + (node.Type == ScalarType.Single ? "MathF" : "Math")
+                            + ".SinCos(" + code.Write(node.Arguments[0]) + ");");
+                    }
+
+                    continue;
+                }
+
                 // A temporary is written with its own definition, not its name; a call whose derivatives are needed
                 // calls the callee's generated method, which returns the same value and fills the buffers.
                 string definition = new ExpressionWriter(x => x == node ? null : NameOf(x), formula: false, calleeDerivative: CalleeDerivative).Write(node);
@@ -907,6 +955,9 @@ internal static class DerivativeEmitter
         writer.Line();
         writer.Line("return " + code.Write(program.Value) + ";");
     }
+
+    private static bool IsSinOrCos(Node node, MathFunction function) =>
+        node.Kind == NodeKind.Call && node.Function == function && node.Arguments.Length == 1 && node.Type is ScalarType.Double or ScalarType.Single;
 
     private static IEnumerable<Node> TermNodes(IEnumerable<VectorTerm> terms) =>
         terms.SelectMany(t => t.Index is null ? new[] { t.Coefficient } : new[] { t.Coefficient, t.Index });

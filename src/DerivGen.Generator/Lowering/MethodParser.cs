@@ -230,8 +230,14 @@ internal static class MethodParser
             EmitHessian: emitHessian,
             DisplayName: method.ToDisplayString(HeaderFormat),
             Cref: method.Name + "(" + string.Join(", ", method.Parameters.Select(p => CrefType(p))) + ")",
-            Body: body);
+            Body: body,
+            HasSinCos: HasSinCos(semanticModel.Compilation));
     }
+
+    /// <summary>Whether the target framework has Math.SinCos and MathF.SinCos (.NET 7 and later; not netstandard2.0).</summary>
+    private static bool HasSinCos(Compilation compilation) =>
+        compilation.GetTypeByMetadataName("System.Math")?.GetMembers("SinCos").Length > 0
+        && compilation.GetTypeByMetadataName("System.MathF")?.GetMembers("SinCos").Length > 0;
 
     private static HashSet<string> SelectVariables(IMethodSymbol method, AttributeData attribute, bool emitHessian, List<DiagnosticInfo> diagnostics,
         Location nameLocation, CancellationToken cancellationToken)

@@ -19,6 +19,7 @@ namespace DerivGen.Generator.Model;
 /// <param name="Body">The lowered body.</param>
 /// <param name="IsPairMethod">Whether this is the pair method a vector-variable Hessian is assembled from.</param>
 /// <param name="IsHelper">Whether the method is not marked but called from one that is (its derivatives are generated for that call).</param>
+/// <param name="HasSinCos">Whether the compilation has Math.SinCos and MathF.SinCos (one call for the sine and cosine of one argument).</param>
 internal sealed record MethodSpec(
     string HintName,
     string? Namespace,
@@ -33,7 +34,8 @@ internal sealed record MethodSpec(
     string Cref,
     EquatableArray<IrStatement> Body,
     bool IsHelper = false,
-    bool IsPairMethod = false);
+    bool IsPairMethod = false,
+    bool HasSinCos = false);
 
 /// <summary>A containing type: its declaration keyword(s) ("class", "record struct", ...) and name with type parameters.</summary>
 internal sealed record ContainingTypeSpec(string Keyword, string Name);

@@ -50,13 +50,15 @@ namespace Samples.Robotics
                     ThrowSpanTooShort(nameof(gradient), 2, "one per variable: q1, q2");
                 }
 
+                (double sinQ1, double cosQ1) = global::System.Math.SinCos(q1);
                 double t1 = q1 + q2;
-                double ex = global::Samples.Robotics.Arm.Link1 * global::System.Math.Cos(q1) + global::Samples.Robotics.Arm.Link2 * global::System.Math.Cos(t1) - px;
-                double ey = global::Samples.Robotics.Arm.Link1 * global::System.Math.Sin(q1) + global::Samples.Robotics.Arm.Link2 * global::System.Math.Sin(t1) - py;
+                (double sinT1, double cosT1) = global::System.Math.SinCos(t1);
+                double ex = global::Samples.Robotics.Arm.Link1 * cosQ1 + global::Samples.Robotics.Arm.Link2 * cosT1 - px;
+                double ey = global::Samples.Robotics.Arm.Link1 * sinQ1 + global::Samples.Robotics.Arm.Link2 * sinT1 - py;
                 double value = ex * ex + ey * ey;
-                double t2 = 2.0 * (ey * global::Samples.Robotics.Arm.Link2 * global::System.Math.Cos(t1)) - 2.0 * (ex * global::Samples.Robotics.Arm.Link2 * global::System.Math.Sin(t1));
+                double t2 = 2.0 * (ey * global::Samples.Robotics.Arm.Link2 * cosT1) - 2.0 * (ex * global::Samples.Robotics.Arm.Link2 * sinT1);
 
-                gradient[0] = 2.0 * (ey * global::Samples.Robotics.Arm.Link1 * global::System.Math.Cos(q1)) + t2 - 2.0 * (ex * global::Samples.Robotics.Arm.Link1 * global::System.Math.Sin(q1)); // ∂Miss/∂q1
+                gradient[0] = 2.0 * (ey * global::Samples.Robotics.Arm.Link1 * cosQ1) + t2 - 2.0 * (ex * global::Samples.Robotics.Arm.Link1 * sinQ1); // ∂Miss/∂q1
                 gradient[1] = t2; // ∂Miss/∂q2
 
                 return value;
@@ -103,19 +105,17 @@ namespace Samples.Robotics
                     ThrowSpanTooShort(nameof(hessian), 4, "2 × 2, row-major");
                 }
 
+                (double sinQ1, double cosQ1) = global::System.Math.SinCos(q1);
                 double t1 = q1 + q2;
-                double ex = global::Samples.Robotics.Arm.Link1 * global::System.Math.Cos(q1) + global::Samples.Robotics.Arm.Link2 * global::System.Math.Cos(t1) - px;
-                double ey = global::Samples.Robotics.Arm.Link1 * global::System.Math.Sin(q1) + global::Samples.Robotics.Arm.Link2 * global::System.Math.Sin(t1) - py;
+                (double sinT1, double cosT1) = global::System.Math.SinCos(t1);
+                double ex = global::Samples.Robotics.Arm.Link1 * cosQ1 + global::Samples.Robotics.Arm.Link2 * cosT1 - px;
+                double ey = global::Samples.Robotics.Arm.Link1 * sinQ1 + global::Samples.Robotics.Arm.Link2 * sinT1 - py;
                 double value = ex * ex + ey * ey;
                 double t2 = ey * global::Samples.Robotics.Arm.Link2;
-                double cosT1 = global::System.Math.Cos(t1);
                 double t3 = ey * global::Samples.Robotics.Arm.Link1;
-                double cosQ1 = global::System.Math.Cos(q1);
                 double t4 = ex * global::Samples.Robotics.Arm.Link2;
-                double sinT1 = global::System.Math.Sin(t1);
                 double t5 = 2.0 * (t2 * cosT1) - 2.0 * (t4 * sinT1);
                 double t6 = ex * global::Samples.Robotics.Arm.Link1;
-                double sinQ1 = global::System.Math.Sin(q1);
                 double t7 = global::Samples.Robotics.Arm.Link2 * sinT1;
                 double t8 = -(global::Samples.Robotics.Arm.Link1 * sinQ1) - t7;
                 double t9 = global::Samples.Robotics.Arm.Link2 * cosT1;

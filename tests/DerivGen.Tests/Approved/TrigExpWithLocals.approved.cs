@@ -61,7 +61,7 @@ namespace Samples.Signals
             double exp = global::System.Math.Exp(-decay * t);
             double envelope = amplitude * exp;
             double t1 = 6.283185307179586 * t + phase;
-            double wave = global::System.Math.Cos(t1);
+            (double sinT1, double wave) = global::System.Math.SinCos(t1);
             double r = envelope * wave - observed;
             double r2 = r * 0.5;
             double value = r2 * r2;
@@ -69,7 +69,7 @@ namespace Samples.Signals
 
             gradient[0] = envelopeAdjoint * exp; // ∂Residual/∂amplitude
             gradient[1] = -(envelopeAdjoint * amplitude * exp * t); // ∂Residual/∂decay
-            gradient[2] = -(r2 * envelope * global::System.Math.Sin(t1)); // ∂Residual/∂phase
+            gradient[2] = -(r2 * envelope * sinT1); // ∂Residual/∂phase
 
             return value;
 
@@ -125,13 +125,12 @@ namespace Samples.Signals
             double exp = global::System.Math.Exp(-decay * t);
             double envelope = amplitude * exp;
             double t1 = 6.283185307179586 * t + phase;
-            double wave = global::System.Math.Cos(t1);
+            (double sinT1, double wave) = global::System.Math.SinCos(t1);
             double r = envelope * wave - observed;
             double r2 = r * 0.5;
             double value = r2 * r2;
             double envelopeAdjoint = r2 * wave;
             double waveAdjoint = r2 * envelope;
-            double sinT1 = global::System.Math.Sin(t1);
             double t2 = envelopeAdjoint * amplitude;
             double t3 = wave * exp;
             double t4 = wave * t3;
@@ -148,7 +147,7 @@ namespace Samples.Signals
             hessian[4] = t * (t2 * t5 + 0.5 * (exp * (amplitude * (wave * t7)))); // ∂²Residual/∂decay²
             hessian[2] = hessian[6] = -(sinT1 * (0.5 * (envelope * t3) + r2 * exp)); // ∂²Residual/∂phase∂amplitude
             hessian[5] = hessian[7] = sinT1 * (r2 * t6 + 0.5 * (envelope * t7)); // ∂²Residual/∂phase∂decay
-            hessian[8] = -(-0.5 * (sinT1 * (envelope * (envelope * sinT1))) + waveAdjoint * global::System.Math.Cos(t1)); // ∂²Residual/∂phase²
+            hessian[8] = -(-0.5 * (sinT1 * (envelope * (envelope * sinT1))) + waveAdjoint * wave); // ∂²Residual/∂phase²
 
             return value;
 

@@ -58,17 +58,19 @@ namespace ArmReach
                 ThrowSpanTooShort(nameof(gradient), 2, "one per variable: shoulder, elbow");
             }
 
-            double elbowX = upperLength * global::System.Math.Cos(shoulder);
-            double elbowY = upperLength * global::System.Math.Sin(shoulder);
+            (double sinShoulder, double cosShoulder) = global::System.Math.SinCos(shoulder);
+            double elbowX = upperLength * cosShoulder;
+            double elbowY = upperLength * sinShoulder;
             double t1 = shoulder + elbow;
-            double tipX = elbowX + foreLength * global::System.Math.Cos(t1);
-            double tipY = elbowY + foreLength * global::System.Math.Sin(t1);
+            (double sinT1, double cosT1) = global::System.Math.SinCos(t1);
+            double tipX = elbowX + foreLength * cosT1;
+            double tipY = elbowY + foreLength * sinT1;
             double dx = tipX - targetX;
             double dy = tipY - targetY;
             double value = dx * dx + dy * dy;
-            double t2 = 2.0 * (dy * foreLength * global::System.Math.Cos(t1)) - 2.0 * (dx * foreLength * global::System.Math.Sin(t1));
+            double t2 = 2.0 * (dy * foreLength * cosT1) - 2.0 * (dx * foreLength * sinT1);
 
-            gradient[0] = t2 + 2.0 * (dy * upperLength * global::System.Math.Cos(shoulder)) - 2.0 * (dx * upperLength * global::System.Math.Sin(shoulder)); // ∂Loss/∂shoulder
+            gradient[0] = t2 + 2.0 * (dy * upperLength * cosShoulder) - 2.0 * (dx * upperLength * sinShoulder); // ∂Loss/∂shoulder
             gradient[1] = t2; // ∂Loss/∂elbow
 
             return value;
@@ -121,23 +123,21 @@ namespace ArmReach
                 ThrowSpanTooShort(nameof(hessian), 4, "2 × 2, row-major");
             }
 
-            double elbowX = upperLength * global::System.Math.Cos(shoulder);
-            double elbowY = upperLength * global::System.Math.Sin(shoulder);
+            (double sinShoulder, double cosShoulder) = global::System.Math.SinCos(shoulder);
+            double elbowX = upperLength * cosShoulder;
+            double elbowY = upperLength * sinShoulder;
             double t1 = shoulder + elbow;
-            double tipX = elbowX + foreLength * global::System.Math.Cos(t1);
-            double tipY = elbowY + foreLength * global::System.Math.Sin(t1);
+            (double sinT1, double cosT1) = global::System.Math.SinCos(t1);
+            double tipX = elbowX + foreLength * cosT1;
+            double tipY = elbowY + foreLength * sinT1;
             double dx = tipX - targetX;
             double dy = tipY - targetY;
             double value = dx * dx + dy * dy;
             double t2 = dy * foreLength;
-            double cosT1 = global::System.Math.Cos(t1);
             double t3 = dx * foreLength;
-            double sinT1 = global::System.Math.Sin(t1);
             double t4 = 2.0 * (t2 * cosT1) - 2.0 * (t3 * sinT1);
             double t5 = dy * upperLength;
-            double cosShoulder = global::System.Math.Cos(shoulder);
             double t6 = dx * upperLength;
-            double sinShoulder = global::System.Math.Sin(shoulder);
             double t7 = foreLength * sinT1;
             double t8 = -(upperLength * sinShoulder) - t7;
             double t9 = foreLength * cosT1;
