@@ -87,10 +87,15 @@ namespace BeaconFixAot
                 double residual = sqrt + bias - range[i];
                 double t1 = residual / sqrt;
                 sum += residual * residual;
-                dSum_dX += 2.0 * (t1 * dx);
-                dSum_dY += 2.0 * (t1 * dy);
-                dSum_dBias += 2.0 * residual;
+                dSum_dX += t1 * dx;
+                dSum_dY += t1 * dy;
+                dSum_dBias += residual;
             }
+
+            // The constant factor of every term of these sums, applied once:
+            dSum_dX *= 2.0;
+            dSum_dY *= 2.0;
+            dSum_dBias *= 2.0;
 
             gradient[0] = dSum_dX; // ∂Misfit/∂x
             gradient[1] = dSum_dY; // ∂Misfit/∂y
@@ -181,16 +186,26 @@ namespace BeaconFixAot
                 double t4 = t2 / sqrt - t3 * t2;
                 double t5 = dy / sqrt;
                 sum += residual * residual;
-                dSum_dX += 2.0 * (t1 * dx);
-                dSum_dY += 2.0 * (t1 * dy);
-                dSum_dBias += 2.0 * residual;
-                d2Sum_dX2 += 2.0 * (dx * t4 + t1);
-                d2Sum_dYdX += 2.0 * (dy * t4);
-                d2Sum_dY2 += 2.0 * (dy * (t5 / sqrt - t3 * t5) + t1);
-                d2Sum_dBiasdX += 2.0 * t2;
-                d2Sum_dBiasdY += 2.0 * t5;
+                dSum_dX += t1 * dx;
+                dSum_dY += t1 * dy;
+                dSum_dBias += residual;
+                d2Sum_dX2 += dx * t4 + t1;
+                d2Sum_dYdX += dy * t4;
+                d2Sum_dY2 += dy * (t5 / sqrt - t3 * t5) + t1;
+                d2Sum_dBiasdX += t2;
+                d2Sum_dBiasdY += t5;
                 d2Sum_dBias2 += 2.0;
             }
+
+            // The constant factor of every term of these sums, applied once:
+            dSum_dX *= 2.0;
+            dSum_dY *= 2.0;
+            dSum_dBias *= 2.0;
+            d2Sum_dX2 *= 2.0;
+            d2Sum_dYdX *= 2.0;
+            d2Sum_dY2 *= 2.0;
+            d2Sum_dBiasdX *= 2.0;
+            d2Sum_dBiasdY *= 2.0;
 
             gradient[0] = dSum_dX; // ∂Misfit/∂x
             gradient[1] = dSum_dY; // ∂Misfit/∂y

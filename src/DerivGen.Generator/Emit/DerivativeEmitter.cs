@@ -354,6 +354,8 @@ internal static class DerivativeEmitter
             next[loop] = StateUpdates(program, loop, withHessian, before: false);
         }
 
+        Dictionary<LoopSegment, List<(string Target, Node Factor)>> factored = FactorOutConstants(program, roots.Select(r => r.Node), initial, next);
+
         // Running derivatives nothing reads (a carried local that does not depend on the variables, such as a time
         // counter) are dropped: they would only be zeros, and an unread local is a compiler warning.
         var live = new HashSet<string>(LocalsReachable(roots.Select(r => r.Node)
@@ -375,6 +377,11 @@ internal static class DerivativeEmitter
         {
             initial[loop].RemoveAll(u => u.IsDerivative && !live.Contains(u.Target));
             next[loop].RemoveAll(u => u.IsDerivative && !live.Contains(u.Target));
+            if (factored.TryGetValue(loop, out List<(string Target, Node Factor)>? liveFactors))
+            {
+                liveFactors.RemoveAll(f => !live.Contains(f.Target));
+            }
+
             if (loop.Condition is null)
             {
                 roots.Add((loop.Start!, loop.BeforeStage));
@@ -716,6 +723,17 @@ internal static class DerivativeEmitter
             }
 
             writer.Blank();
+            if (factored.TryGetValue(loop, out List<(string Target, Node Factor)>? factors) && factors.Count > 0)
+            {
+                writer.Line("// The constant factor of every term of these sums, applied once:");
+                foreach ((string target, Node factor) in factors)
+                {
+                    writer.Line(target + " *= " + code.Write(factor) + ";");
+                }
+
+                writer.Line();
+            }
+
             WriteTemporaries(loop.AfterStage);
         }
 
@@ -1167,6 +1185,87 @@ internal static class DerivativeEmitter
 
         return update.Target + " = " + code.Write(value) + ";";
     }
+
+    /// <summary>
+    /// Running derivatives that are sums of terms with one constant factor, d = Σ c·y (d starts at 0 before the loop and
+    /// each iteration does d += c·y or d −= c·y, |c| &gt; 1, d read by nothing else in the loop), become d += y in the
+    /// loop and d *= c once after it: derivative code only, so the reassociation is allowed. The updates in
+    /// <paramref name="next"/> are replaced; the result lists the factors to apply after each loop.
+    /// </summary>
+    private static Dictionary<LoopSegment, List<(string Target, Node Factor)>> FactorOutConstants(DerivativeProgram program, IEnumerable<Node> roots,
+        Dictionary<LoopSegment, List<StateUpdate>> initial, Dictionary<LoopSegment, List<StateUpdate>> next)
+    {
+        var factored = new Dictionary<LoopSegment, List<(string Target, Node Factor)>>();
+
+        // How many nodes (or roots) read each generated local's leaf: a running derivative read only by its own update.
+        var allRoots = roots.Concat(initial.Values.Concat(next.Values).SelectMany(u => u).Select(u => u.Value))
+            .Concat(program.Loops.SelectMany(l => l.Condition is null ? new[] { l.Start!, l.End! } : new[] { l.Condition }))
+            .Concat(program.States.Values.SelectMany(d => TermNodes(d.InitialVector).Concat(TermNodes(d.NextVector))))
+            .Concat(TermNodes(program.VectorGradient))
+            .ToList();
+        var readers = new Dictionary<Node, int>();
+        void Read(Node leaf)
+        {
+            if (leaf.Kind == NodeKind.Parameter && leaf.Stage > 0)
+            {
+                readers[leaf] = readers.TryGetValue(leaf, out int count) ? count + 1 : 1;
+            }
+        }
+
+        foreach (Node node in Graph.Reachable(allRoots))
+        {
+            foreach (Node argument in node.Arguments)
+            {
+                Read(argument);
+            }
+        }
+
+        foreach (Node root in allRoots)
+        {
+            Read(root);
+        }
+
+        foreach (LoopSegment loop in program.Loops)
+        {
+            List<StateUpdate> updates = next[loop];
+            for (int i = 0; i < updates.Count; i++)
+            {
+                StateUpdate update = updates[i];
+                Node value = update.Value;
+                if (!update.IsDerivative || value.Kind is not (NodeKind.Add or NodeKind.Subtract) || value.Type != update.Type
+                    || !initial[loop].Any(u => u.Target == update.Target && u.Value.IsZero))
+                {
+                    continue;
+                }
+
+                Node current = value.Arguments[0], term = value.Arguments[1];
+                if (value.Kind == NodeKind.Add && !IsLeafOf(current, update.Target, loop))
+                {
+                    (current, term) = (term, current);
+                }
+
+                if (!IsLeafOf(current, update.Target, loop) || readers[current] != 1 || term.Kind != NodeKind.Multiply
+                    || term.Arguments[0].Kind != NodeKind.Constant || !(Math.Abs(term.Arguments[0].Value) > 1) || double.IsInfinity(term.Arguments[0].Value)
+                    || term.Arguments[0].Type != update.Type)
+                {
+                    continue;
+                }
+
+                updates[i] = update with { Value = program.Builder.Raw(value.Kind, value.Type, current, term.Arguments[1]) };
+                if (!factored.TryGetValue(loop, out List<(string Target, Node Factor)>? list))
+                {
+                    factored[loop] = list = new List<(string Target, Node Factor)>();
+                }
+
+                list.Add((update.Target, term.Arguments[0]));
+            }
+        }
+
+        return factored;
+    }
+
+    private static bool IsLeafOf(Node node, string local, LoopSegment loop) =>
+        node.Kind == NodeKind.Parameter && node.Text == local && node.Stage == loop.InsideStage;
 
     /// <summary>An update that only reads the local it assigns (a local carried on unchanged).</summary>
     private static bool IsSameLocal(StateUpdate update) =>

@@ -69,9 +69,13 @@ namespace Samples.Fitting
                 double exp = global::System.Math.Exp(t1 * tI);
                 double r = a * exp - y[i];
                 sum += r * r;
-                dSum_dA += 2.0 * (r * exp);
-                dSum_dB -= 2.0 * (r * a * exp * tI);
+                dSum_dA += r * exp;
+                dSum_dB += r * a * exp * tI;
             }
+
+            // The constant factor of every term of these sums, applied once:
+            dSum_dA *= 2.0;
+            dSum_dB *= -2.0;
 
             double value = 0.5 * sum;
 
@@ -145,12 +149,19 @@ namespace Samples.Fitting
                 double t3 = r * a;
                 double t4 = exp * tI;
                 sum += r * r;
-                dSum_dA += 2.0 * (r * exp);
-                dSum_dB -= 2.0 * (t3 * exp * tI);
-                d2Sum_dA2 += 2.0 * (exp * exp);
-                d2Sum_dBdA -= 2.0 * (tI * (exp * (t2 + r)));
-                d2Sum_dB2 -= 2.0 * (tI * (-(exp * (a * (a * t4))) - t3 * t4));
+                dSum_dA += r * exp;
+                dSum_dB += t3 * exp * tI;
+                d2Sum_dA2 += exp * exp;
+                d2Sum_dBdA += tI * (exp * (t2 + r));
+                d2Sum_dB2 += tI * (-(exp * (a * (a * t4))) - t3 * t4);
             }
+
+            // The constant factor of every term of these sums, applied once:
+            dSum_dA *= 2.0;
+            dSum_dB *= -2.0;
+            d2Sum_dA2 *= 2.0;
+            d2Sum_dBdA *= -2.0;
+            d2Sum_dB2 *= -2.0;
 
             double value = 0.5 * sum;
 
