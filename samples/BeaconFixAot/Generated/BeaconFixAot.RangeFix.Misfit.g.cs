@@ -72,7 +72,7 @@ namespace BeaconFixAot
         {
             if (gradient.Length < 3)
             {
-                throw new global::System.ArgumentException("The span must hold at least 3 elements (one per variable: x, y, bias).", nameof(gradient));
+                ThrowSpanTooShort(nameof(gradient), 3, "one per variable: x, y, bias");
             }
 
             double sum = 0.0;
@@ -87,16 +87,24 @@ namespace BeaconFixAot
                 double residual = sqrt + bias - range[i];
                 double t1 = residual / sqrt;
                 sum += residual * residual;
-                dSum_dX += 2.0 * (t1 * dx);
-                dSum_dY += 2.0 * (t1 * dy);
-                dSum_dBias += 2.0 * residual;
+                dSum_dX += t1 * dx;
+                dSum_dY += t1 * dy;
+                dSum_dBias += residual;
             }
+
+            // The constant factor of every term of these sums, applied once:
+            dSum_dX *= 2.0;
+            dSum_dY *= 2.0;
+            dSum_dBias *= 2.0;
 
             gradient[0] = dSum_dX; // ∂Misfit/∂x
             gradient[1] = dSum_dY; // ∂Misfit/∂y
             gradient[2] = dSum_dBias; // ∂Misfit/∂bias
 
             return sum;
+
+            static void ThrowSpanTooShort(string name, int length, string what) =>
+                throw new global::System.ArgumentException("The span must hold at least " + length + (length == 1 ? " element (" : " elements (") + what + ").", name);
         }
 
         /// <summary>
@@ -148,12 +156,12 @@ namespace BeaconFixAot
         {
             if (gradient.Length < 3)
             {
-                throw new global::System.ArgumentException("The span must hold at least 3 elements (one per variable: x, y, bias).", nameof(gradient));
+                ThrowSpanTooShort(nameof(gradient), 3, "one per variable: x, y, bias");
             }
 
             if (hessian.Length < 9)
             {
-                throw new global::System.ArgumentException("The span must hold at least 9 elements (3 × 3, row-major).", nameof(hessian));
+                ThrowSpanTooShort(nameof(hessian), 9, "3 × 3, row-major");
             }
 
             double sum = 0.0;
@@ -178,16 +186,26 @@ namespace BeaconFixAot
                 double t4 = t2 / sqrt - t3 * t2;
                 double t5 = dy / sqrt;
                 sum += residual * residual;
-                dSum_dX += 2.0 * (t1 * dx);
-                dSum_dY += 2.0 * (t1 * dy);
-                dSum_dBias += 2.0 * residual;
-                d2Sum_dX2 += 2.0 * (dx * t4 + t1);
-                d2Sum_dYdX += 2.0 * (dy * t4);
-                d2Sum_dY2 += 2.0 * (dy * (t5 / sqrt - t3 * t5) + t1);
-                d2Sum_dBiasdX += 2.0 * t2;
-                d2Sum_dBiasdY += 2.0 * t5;
+                dSum_dX += t1 * dx;
+                dSum_dY += t1 * dy;
+                dSum_dBias += residual;
+                d2Sum_dX2 += dx * t4 + t1;
+                d2Sum_dYdX += dy * t4;
+                d2Sum_dY2 += dy * (t5 / sqrt - t3 * t5) + t1;
+                d2Sum_dBiasdX += t2;
+                d2Sum_dBiasdY += t5;
                 d2Sum_dBias2 += 2.0;
             }
+
+            // The constant factor of every term of these sums, applied once:
+            dSum_dX *= 2.0;
+            dSum_dY *= 2.0;
+            dSum_dBias *= 2.0;
+            d2Sum_dX2 *= 2.0;
+            d2Sum_dYdX *= 2.0;
+            d2Sum_dY2 *= 2.0;
+            d2Sum_dBiasdX *= 2.0;
+            d2Sum_dBiasdY *= 2.0;
 
             gradient[0] = dSum_dX; // ∂Misfit/∂x
             gradient[1] = dSum_dY; // ∂Misfit/∂y
@@ -201,6 +219,9 @@ namespace BeaconFixAot
             hessian[8] = d2Sum_dBias2; // ∂²Misfit/∂bias²
 
             return sum;
+
+            static void ThrowSpanTooShort(string name, int length, string what) =>
+                throw new global::System.ArgumentException("The span must hold at least " + length + (length == 1 ? " element (" : " elements (") + what + ").", name);
         }
     }
 }

@@ -162,6 +162,10 @@ internal static class DerivativeEmitter
 
         writer.Line("/// <exception cref=\"global::System.ArgumentException\">A span is shorter than stated.</exception>");
         writer.Line("[global::System.CodeDom.Compiler.GeneratedCode(\"" + ToolName + "\", \"" + ToolVersion + "\")]");
+        if (IsSmallStraightLine(program, withHessian))
+        {
+            writer.Line("[global::System.Runtime.CompilerServices.MethodImpl(global::System.Runtime.CompilerServices.MethodImplOptions.AggressiveInlining)]");
+        }
 
         // Signature.
         var parameters = spec.Parameters.Select(p => p.Modifiers + p.TypeName + " " + p.Name).ToList();
@@ -174,22 +178,24 @@ internal static class DerivativeEmitter
         string modifiers = spec.Accessibility + (spec.IsStatic ? " static " : " ");
         using (writer.Block(modifiers + (jacobian ? "void" : type) + " " + methodName + "(" + string.Join(", ", parameters) + ")"))
         {
+            string thrower = context.ThrowerName;
             if (jacobian)
             {
                 WriteLengthCheck(writer, context.JacobianName, "(long)" + spec.OutputName + ".Length * " + Parenthesized(context.GradientLength),
-                    "one row of " + context.GradientLength + " per output, row-major: " + variableList);
+                    "one row of " + context.GradientLength + " per output, row-major: " + variableList, thrower);
             }
             else
             {
-                WriteLengthCheck(writer, context.GradientName, context.GradientLength, "one per variable: " + variableList);
+                WriteLengthCheck(writer, context.GradientName, context.GradientLength, "one per variable: " + variableList, thrower);
             }
 
             if (withHessian)
             {
-                WriteLengthCheck(writer, context.HessianName, Count(n * n), Count(n) + " × " + Count(n) + ", row-major");
+                WriteLengthCheck(writer, context.HessianName, Count(n * n), Count(n) + " × " + Count(n) + ", row-major", thrower);
             }
 
-            WriteBody(writer, context, withHessian);
+            WriteBody(writer, context, withHessian, thrower);
+            WriteThrower(writer, thrower);
         }
     }
 
@@ -239,9 +245,10 @@ internal static class DerivativeEmitter
         string modifiers = spec.Accessibility + (spec.IsStatic ? " static " : " ");
         using (writer.Block(modifiers + type + " " + context.BareName + Lowering.MethodParser.HessianSuffix + "(" + string.Join(", ", parameters) + ")"))
         {
+            string thrower = names.Claim(context.ThrowerName);
             writer.Line("int " + n + " = " + context.GradientLength + ";");
-            WriteLengthCheck(writer, context.GradientName, n, "one per variable: " + variableList);
-            WriteLengthCheck(writer, context.HessianName, n + " * " + n, "n × n, row-major");
+            WriteLengthCheck(writer, context.GradientName, n, "one per variable: " + variableList, thrower);
+            WriteLengthCheck(writer, context.HessianName, n + " * " + n, "n × n, row-major", thrower);
             writer.Line(type + " " + value + " = " + context.BareName + Lowering.MethodParser.GradientSuffix + "(" + arguments + ", " + context.GradientName + ");");
             writer.Line("global::System.Span<" + type + "> " + pairGradient + " = stackalloc " + type + "[" + Count(c) + "];");
             writer.Line("global::System.Span<" + type + "> " + pairHessian + " = stackalloc " + type + "[" + Count(c * c) + "];");
@@ -292,7 +299,35 @@ internal static class DerivativeEmitter
 
             writer.Line();
             writer.Line("return " + value + ";");
+            WriteThrower(writer, thrower);
         }
+    }
+
+    /// <summary>Operations (not leaves) a method may compute and still be marked for inlining.</summary>
+    internal const int InlineOperationLimit = 16;
+
+    /// <summary>
+    /// A method without loops, calls of other generated methods or vector variables that computes at most
+    /// <see cref="InlineOperationLimit"/> operations is marked AggressiveInlining: the span-length checks alone take its
+    /// IL past the JIT's default inlining size, where the same formulas written by hand (without the checks) are inlined.
+    /// </summary>
+    private static bool IsSmallStraightLine(DerivativeProgram program, bool withHessian)
+    {
+        if (program.Loops.Count > 0 || program.Vectors.Length > 0)
+        {
+            return false;
+        }
+
+        var roots = new List<Node> { program.Value };
+        roots.AddRange(program.Gradient);
+        if (withHessian)
+        {
+            roots.AddRange(program.Hessian!.SelectMany(row => row));
+        }
+
+        HashSet<Node> reachable = Graph.Reachable(roots);
+        return !reachable.Any(node => node.Kind is NodeKind.UserCall or NodeKind.CallPartial or NodeKind.CallSecondPartial)
+            && reachable.Count(node => !node.IsLeaf) <= InlineOperationLimit;
     }
 
     private static string Sum(string offset, string index) => offset == "0" ? index : offset + " + " + index;
@@ -302,22 +337,31 @@ internal static class DerivativeEmitter
     private static string Slot(string rowOffset, string n, string columnOffset) =>
         (rowOffset == "0" ? string.Empty : Parenthesized(rowOffset) + " * " + n + " + ") + Parenthesized(columnOffset);
 
-    private static void WriteLengthCheck(IndentedWriter writer, string name, string length, string what)
+    private static void WriteLengthCheck(IndentedWriter writer, string name, string length, string what, string thrower)
     {
         using (writer.Block("if (" + name + ".Length < " + length + ")"))
         {
-            string count = length.Any(char.IsLetter) ? "\" + (" + length + ") + \"" : length;
-            writer.Line("throw new global::System.ArgumentException(\"The span must hold at least " + count + (length == "1" ? " element (" : " elements (") + what.Replace("\"", "'")
-                + ").\", nameof(" + name + "));");
+            writer.Line(thrower + "(nameof(" + name + "), " + length + ", \"" + what.Replace("\"", "'") + "\");");
         }
 
         writer.Line();
     }
 
+    /// <summary>
+    /// The length checks throw through a static local function: the exception and its message are built out of line,
+    /// so that a small generated method stays within the JIT's inlining budget.
+    /// </summary>
+    private static void WriteThrower(IndentedWriter writer, string thrower)
+    {
+        writer.Line();
+        writer.Line("static void " + thrower + "(string name, long length, string what) =>");
+        writer.Line("    throw new global::System.ArgumentException(\"The span must hold at least \" + length + (length == 1 ? \" element (\" : \" elements (\") + what + \").\", name);");
+    }
+
     /// <summary>One assignment of a loop-carried local (or of one of its running derivatives) in the generated code.</summary>
     private readonly record struct StateUpdate(string Target, ScalarType Type, Node Value, bool IsDerivative = false);
 
-    private static void WriteBody(IndentedWriter writer, EmitContext context, bool withHessian)
+    private static void WriteBody(IndentedWriter writer, EmitContext context, bool withHessian, string thrower)
     {
         DerivativeProgram program = context.Program;
         int n = program.Variables.Length;
@@ -340,6 +384,10 @@ internal static class DerivativeEmitter
             roots.AddRange(TermNodes(output.VectorRow).Select(node => (node, output.Stage)));
         }
 
+        // Spans of inner loops that are replayed after the loop (reverse mode) instead of being stored.
+        Dictionary<string, InnerLoopReversal> replayed = InnerLoopReversal.Find(program);
+        bool Replayed(StateDerivatives d, VectorTerm term) => replayed.ContainsKey(d.VectorNames[term.Vector]);
+
         var initial = new Dictionary<LoopSegment, List<StateUpdate>>();
         var next = new Dictionary<LoopSegment, List<StateUpdate>>();
         foreach (LoopSegment loop in program.Loops)
@@ -347,6 +395,8 @@ internal static class DerivativeEmitter
             initial[loop] = StateUpdates(program, loop, withHessian, before: true);
             next[loop] = StateUpdates(program, loop, withHessian, before: false);
         }
+
+        Dictionary<LoopSegment, List<(string Target, Node Factor)>> factored = FactorOutConstants(program, roots.Select(r => r.Node), initial, next);
 
         // Running derivatives nothing reads (a carried local that does not depend on the variables, such as a time
         // counter) are dropped: they would only be zeros, and an unread local is a compiler warning.
@@ -369,6 +419,11 @@ internal static class DerivativeEmitter
         {
             initial[loop].RemoveAll(u => u.IsDerivative && !live.Contains(u.Target));
             next[loop].RemoveAll(u => u.IsDerivative && !live.Contains(u.Target));
+            if (factored.TryGetValue(loop, out List<(string Target, Node Factor)>? liveFactors))
+            {
+                liveFactors.RemoveAll(f => !live.Contains(f.Target));
+            }
+
             if (loop.Condition is null)
             {
                 roots.Add((loop.Start!, loop.BeforeStage));
@@ -381,8 +436,9 @@ internal static class DerivativeEmitter
             {
                 if (program.States.TryGetValue(state, out StateDerivatives? d))
                 {
-                    roots.AddRange(TermNodes(d.InitialVector).Select(node => (node, loop.BeforeStage)));
-                    roots.AddRange(TermNodes(d.NextVector).Select(node => (node, loop.BodyEndStage)));
+                    // A replayed span's terms are written out again after the loop (see InnerLoopReversal), not here.
+                    roots.AddRange(TermNodes(d.InitialVector.Where(t => !Replayed(d, t))).Select(node => (node, loop.BeforeStage)));
+                    roots.AddRange(TermNodes(d.NextVector.Where(t => !Replayed(d, t))).Select(node => (node, loop.BodyEndStage)));
                 }
             }
         }
@@ -510,8 +566,38 @@ internal static class DerivativeEmitter
         // that guards a throwing operation (a data read in its arguments), it is called under that condition
         // (guard ? Call(…) : 0) and its buffers are read only by derivatives selected by the same condition.
         Dictionary<Node, Node> callGuards = CallGuards(valueRoots, gradientBuffer.Keys.Where(Guarded).ToList(), program.Builder);
+        // The sine and the cosine of one argument, both needed (typically one in the value, the other in a derivative):
+        // one SinCos call gives both, each in its own local.
+        // A raw node of the value and a built one of a derivative can be equal but distinct: the later ones (sameAs) read
+        // the first one's local.
+        var sinCosPartner = new Dictionary<Node, Node>();
+        var sameAs = new Dictionary<Node, Node>();
+        if (context.Spec.HasSinCos)
+        {
+            var cosines = reachable.Where(node => IsSinOrCos(node, MathFunction.Cos) && !Guarded(node)).GroupBy(node => (node.Arguments[0], node.Type))
+                .ToDictionary(group => group.Key, group => group.OrderBy(node => node.Id).ToList());
+            foreach (List<Node> sines in reachable.Where(node => IsSinOrCos(node, MathFunction.Sin) && !Guarded(node)).GroupBy(node => (node.Arguments[0], node.Type))
+                .Select(group => group.OrderBy(node => node.Id).ToList()))
+            {
+                if (cosines.TryGetValue((sines[0].Arguments[0], sines[0].Type), out List<Node>? cos))
+                {
+                    sinCosPartner[sines[0]] = cos[0];
+                    sinCosPartner[cos[0]] = sines[0];
+                    foreach (Node later in sines.Skip(1))
+                    {
+                        sameAs[later] = sines[0];
+                    }
+
+                    foreach (Node later in cos.Skip(1))
+                    {
+                        sameAs[later] = cos[0];
+                    }
+                }
+            }
+        }
+
         List<Node> temporaries = reachable
-            .Where(node => snapshots.Contains(node) || (!node.IsLeaf && (!Guarded(node) || callGuards.ContainsKey(node))
+            .Where(node => !sameAs.ContainsKey(node)).Where(node => snapshots.Contains(node) || sinCosPartner.ContainsKey(node) || (!node.IsLeaf && (!Guarded(node) || callGuards.ContainsKey(node))
                 && (node == program.Value || node.LocalName is not null || uses[node] >= 2 || hoisted.Contains(node) || gradientBuffer.ContainsKey(node))))
             .OrderBy(node => node.Id)
             .ToList();
@@ -521,7 +607,7 @@ internal static class DerivativeEmitter
         }
 
         var reserved = context.Spec.Parameters.Select(p => p.Name)
-            .Concat(new[] { context.GradientName, context.HessianName })
+            .Concat(new[] { context.GradientName, context.HessianName, thrower })
             .Concat(program.StateNames)
             .Concat(program.Loops.Where(l => l.Index is not null).Select(l => l.Index!));
         var names = new TemporaryNames(reserved);
@@ -544,6 +630,11 @@ internal static class DerivativeEmitter
         foreach (Node node in temporaries.Where(t => !nameOf.ContainsKey(t)))
         {
             nameOf[node] = names.For(node, x => nameOf.TryGetValue(x, out string? name) ? name : null);
+        }
+
+        foreach (KeyValuePair<Node, Node> pair in sameAs)
+        {
+            nameOf[pair.Key] = nameOf[pair.Value];
         }
 
         foreach (Node call in gradientBuffer.Keys.OrderBy(c => c.Id).ToList())
@@ -578,6 +669,19 @@ internal static class DerivativeEmitter
         {
             foreach (Node node in temporaries.Where(t => t.Stage == stage))
             {
+                if (sinCosPartner.TryGetValue(node, out Node? partner))
+                {
+                    if (written.Add(node) && written.Add(partner))
+                    {
+                        (Node sine, Node cosine) = node.Function == MathFunction.Sin ? (node, partner) : (partner, node);
+                        string keyword = ExpressionWriter.TypeKeyword(node.Type);
+                        writer.Line("(" + keyword + " " + nameOf[sine] + ", " + keyword + " " + nameOf[cosine] + ") = global::System." + (node.Type == ScalarType.Single ? "MathF" : "Math")
+                            + ".SinCos(" + code.Write(node.Arguments[0]) + ");");
+                    }
+
+                    continue;
+                }
+
                 // A temporary is written with its own definition, not its name; a call whose derivatives are needed
                 // calls the callee's generated method, which returns the same value and fills the buffers.
                 string definition = new ExpressionWriter(x => x == node ? null : NameOf(x), formula: false, calleeDerivative: CalleeDerivative).Write(node);
@@ -653,8 +757,11 @@ internal static class DerivativeEmitter
         {
             // Before the loop: the carried locals and their running derivatives start from their values here, all
             // computed from the values before any of them is assigned (the running derivatives of a local carried on
-            // from an earlier loop read its value there): the vectors' first, then each scalar that no other reads in
-            // place, the others through a local assigned after all are computed.
+            // from an earlier loop read its value there): the vectors' first — their spans cleared before any scalar is
+            // assigned, since a call between a scalar's initial value and the loop would make the JIT keep that scalar
+            // (an accumulator) in memory for the whole loop — then each scalar that no other reads in place, the
+            // others through a local assigned after all are computed.
+            WriteVectorClears(loop);
             WriteVectorUpdates(loop, before: true);
             List<StateUpdate> starting = initial[loop].Where(u => !IsSameLocal(u)).ToList(); // IsSameLocal: carried on unchanged
             var startReads = starting.ToDictionary(u => u.Target, u => LocalsRead(u.Value, nameOf), StringComparer.Ordinal);
@@ -734,6 +841,17 @@ internal static class DerivativeEmitter
             }
 
             writer.Blank();
+            if (factored.TryGetValue(loop, out List<(string Target, Node Factor)>? factors) && factors.Count > 0)
+            {
+                writer.Line("// The constant factor of every term of these sums, applied once:");
+                foreach ((string target, Node factor) in factors)
+                {
+                    writer.Line(target + " *= " + code.Write(factor) + ";");
+                }
+
+                writer.Line();
+            }
+
             WriteTemporaries(loop.AfterStage);
         }
 
@@ -766,6 +884,11 @@ internal static class DerivativeEmitter
 
                 for (int v = 0; v < d.VectorNames.Length; v++)
                 {
+                    if (replayed.ContainsKey(d.VectorNames[v]))
+                    {
+                        continue;
+                    }
+
                     if (declared.Add(d.VectorNames[v]))
                     {
                         writer.Line(inGradient.TryGetValue(d.VectorNames[v], out int slice)
@@ -801,11 +924,77 @@ internal static class DerivativeEmitter
                 {
                     writer.Line(target + "[" + at + code.Write(index) + "] += " + (term.Coefficient.IsConstant(1) ? "1.0" : code.Write(term.Coefficient)) + ";");
                 }
+                else if (term.SourceSpan is { } source && replayed.TryGetValue(source, out InnerLoopReversal? reversal))
+                {
+                    WriteReplay(target, at, term, reversal);
+                }
                 else if (term.SourceSpan != skipSource)
                 {
                     using (writer.Block("for (int " + element + " = 0; " + element + " < " + Length(term.Vector) + "; " + element + "++)"))
                     {
                         writer.Line(target + "[" + at + element + "] += " + coefficient + term.SourceSpan + "[" + element + "];");
+                    }
+                }
+            }
+        }
+
+        // target += adjoint · ∂z/∂w for a span that is not stored: its contributions, written out again with the adjoint.
+        void WriteReplay(string target, string at, VectorTerm term, InnerLoopReversal reversal)
+        {
+            LoopSegment loop = reversal.Loop;
+            string adjoint;
+            if (term.Coefficient.IsLeaf || NameOf(term.Coefficient) is not null)
+            {
+                adjoint = code.Write(term.Coefficient);
+            }
+            else
+            {
+                adjoint = names.Claim(Identifiers.Unescape(reversal.State.State.Name) + "Adjoint");
+                writer.Line(ExpressionWriter.TypeKeyword(term.Coefficient.Type) + " " + adjoint + " = " + code.Write(term.Coefficient) + ";");
+            }
+
+            // Nodes of the loop's own stage were locals of its body, out of scope here: they are written out again.
+            var again = new ExpressionWriter(x => x.Stage >= loop.InsideStage ? null : NameOf(x), formula: false, calleeDerivative: CalleeDerivative);
+            bool unit = term.Coefficient.IsConstant(1);
+            string Add(VectorTerm element) => target + "[" + at + again.Write(element.Index!) + "] += "
+                + (element.Coefficient.IsConstant(1) ? adjoint : unit ? again.Write(element.Coefficient) : adjoint + " * " + again.WriteFactor(element.Coefficient)) + ";";
+            writer.Line("// " + target + " += " + adjoint + " · " + reversal.Span + ", " + reversal.Span + " not stored: the loop over " + loop.Index
+                + " replayed with the adjoint " + adjoint + " (reverse mode)");
+            foreach (VectorTerm element in reversal.InitialTerms)
+            {
+                writer.Line(Add(element));
+            }
+
+            if (reversal.LoopTerms.Count > 0)
+            {
+                using (writer.Block("for (int " + loop.Index + " = " + code.Write(loop.Start!) + "; " + loop.Index + (loop.Inclusive ? " <= " : " < ") + code.Write(loop.End!) + "; " + loop.Index + "++)"))
+                {
+                    foreach (VectorTerm element in reversal.LoopTerms)
+                    {
+                        writer.Line(Add(element));
+                    }
+                }
+            }
+        }
+
+        void WriteVectorClears(LoopSegment loop)
+        {
+            foreach (LoopState state in loop.States)
+            {
+                if (program.States.TryGetValue(state, out StateDerivatives? d))
+                {
+                    for (int v = 0; v < d.VectorNames.Length; v++)
+                    {
+                        if (replayed.ContainsKey(d.VectorNames[v]))
+                        {
+                            continue;
+                        }
+
+                        var terms = d.InitialVector.Where(t => t.Vector == v).ToList();
+                        if (!(terms.Count == 1 && terms[0].SourceSpan == d.VectorNames[v] && terms[0].Coefficient.IsConstant(1)))
+                        {
+                            writer.Line(d.VectorNames[v] + ".Clear();");
+                        }
                     }
                 }
             }
@@ -824,6 +1013,11 @@ internal static class DerivativeEmitter
                 for (int v = 0; v < d.VectorNames.Length; v++)
                 {
                     string own = d.VectorNames[v];
+                    if (replayed.ContainsKey(own))
+                    {
+                        continue; // replayed after the loop, where its adjoint is known
+                    }
+
                     var terms = (before ? d.InitialVector : d.NextVector).Where(t => t.Vector == v).ToList();
                     bool identity = terms.Count == 1 && terms[0].SourceSpan == own && terms[0].Coefficient.IsConstant(1);
                     if (identity)
@@ -833,8 +1027,7 @@ internal static class DerivativeEmitter
 
                     if (before)
                     {
-                        writer.Line(own + ".Clear();");
-                        AddTerms(own, string.Empty, terms, null);
+                        AddTerms(own, string.Empty, terms, null); // cleared by WriteVectorClears
                     }
                     else if (UpdatesInPlace(loop, d, v))
                     {
@@ -904,6 +1097,9 @@ internal static class DerivativeEmitter
         writer.Line();
         writer.Line("return " + code.Write(program.Value) + ";");
     }
+
+    private static bool IsSinOrCos(Node node, MathFunction function) =>
+        node.Kind == NodeKind.Call && node.Function == function && node.Arguments.Length == 1 && node.Type is ScalarType.Double or ScalarType.Single;
 
     private static IEnumerable<Node> TermNodes(IEnumerable<VectorTerm> terms) =>
         terms.SelectMany(t => t.Index is null ? new[] { t.Coefficient } : new[] { t.Coefficient, t.Index });
@@ -1114,6 +1310,87 @@ internal static class DerivativeEmitter
         return update.Target + " = " + code.Write(value) + ";";
     }
 
+    /// <summary>
+    /// Running derivatives that are sums of terms with one constant factor, d = Σ c·y (d starts at 0 before the loop and
+    /// each iteration does d += c·y or d −= c·y, |c| &gt; 1, d read by nothing else in the loop), become d += y in the
+    /// loop and d *= c once after it: derivative code only, so the reassociation is allowed. The updates in
+    /// <paramref name="next"/> are replaced; the result lists the factors to apply after each loop.
+    /// </summary>
+    private static Dictionary<LoopSegment, List<(string Target, Node Factor)>> FactorOutConstants(DerivativeProgram program, IEnumerable<Node> roots,
+        Dictionary<LoopSegment, List<StateUpdate>> initial, Dictionary<LoopSegment, List<StateUpdate>> next)
+    {
+        var factored = new Dictionary<LoopSegment, List<(string Target, Node Factor)>>();
+
+        // How many nodes (or roots) read each generated local's leaf: a running derivative read only by its own update.
+        var allRoots = roots.Concat(initial.Values.Concat(next.Values).SelectMany(u => u).Select(u => u.Value))
+            .Concat(program.Loops.SelectMany(l => l.Condition is null ? new[] { l.Start!, l.End! } : new[] { l.Condition }))
+            .Concat(program.States.Values.SelectMany(d => TermNodes(d.InitialVector).Concat(TermNodes(d.NextVector))))
+            .Concat(TermNodes(program.VectorGradient))
+            .ToList();
+        var readers = new Dictionary<Node, int>();
+        void Read(Node leaf)
+        {
+            if (leaf.Kind == NodeKind.Parameter && leaf.Stage > 0)
+            {
+                readers[leaf] = readers.TryGetValue(leaf, out int count) ? count + 1 : 1;
+            }
+        }
+
+        foreach (Node node in Graph.Reachable(allRoots))
+        {
+            foreach (Node argument in node.Arguments)
+            {
+                Read(argument);
+            }
+        }
+
+        foreach (Node root in allRoots)
+        {
+            Read(root);
+        }
+
+        foreach (LoopSegment loop in program.Loops)
+        {
+            List<StateUpdate> updates = next[loop];
+            for (int i = 0; i < updates.Count; i++)
+            {
+                StateUpdate update = updates[i];
+                Node value = update.Value;
+                if (!update.IsDerivative || value.Kind is not (NodeKind.Add or NodeKind.Subtract) || value.Type != update.Type
+                    || !initial[loop].Any(u => u.Target == update.Target && u.Value.IsZero))
+                {
+                    continue;
+                }
+
+                Node current = value.Arguments[0], term = value.Arguments[1];
+                if (value.Kind == NodeKind.Add && !IsLeafOf(current, update.Target, loop))
+                {
+                    (current, term) = (term, current);
+                }
+
+                if (!IsLeafOf(current, update.Target, loop) || readers[current] != 1 || term.Kind != NodeKind.Multiply
+                    || term.Arguments[0].Kind != NodeKind.Constant || !(Math.Abs(term.Arguments[0].Value) > 1) || double.IsInfinity(term.Arguments[0].Value)
+                    || term.Arguments[0].Type != update.Type)
+                {
+                    continue;
+                }
+
+                updates[i] = update with { Value = program.Builder.Raw(value.Kind, value.Type, current, term.Arguments[1]) };
+                if (!factored.TryGetValue(loop, out List<(string Target, Node Factor)>? list))
+                {
+                    factored[loop] = list = new List<(string Target, Node Factor)>();
+                }
+
+                list.Add((update.Target, term.Arguments[0]));
+            }
+        }
+
+        return factored;
+    }
+
+    private static bool IsLeafOf(Node node, string local, LoopSegment loop) =>
+        node.Kind == NodeKind.Parameter && node.Text == local && node.Stage == loop.InsideStage;
+
     /// <summary>An update that only reads the local it assigns (a local carried on unchanged).</summary>
     private static bool IsSameLocal(StateUpdate update) =>
         update.Value.Kind == NodeKind.Parameter && update.Value.Text == update.Target;
@@ -1171,10 +1448,14 @@ internal static class DerivativeEmitter
             GradientName = names.Claim("gradient");
             HessianName = names.Claim("hessian");
             JacobianName = names.Claim("jacobian");
+            ThrowerName = names.Claim("ThrowSpanTooShort");
 
             // Where each variable's derivatives go in the gradient span: declaration order, a vector taking v.Length slots.
             (ScalarOffset, VectorOffset, GradientLength) = PairHessian.SlotOffsets(spec);
         }
+
+        /// <summary>The static local function that throws for a span that is too short (see <see cref="WriteThrower"/>).</summary>
+        public string ThrowerName { get; }
 
         /// <summary>The index in the gradient span of each scalar variable (C# text; a run-time sum after a vector).</summary>
         public string[] ScalarOffset { get; }

@@ -274,7 +274,8 @@ internal static class MethodParser
             DisplayName: method.ToDisplayString(HeaderFormat),
             Cref: Identifiers.Escape(method.Name) + "(" + string.Join(", ", method.Parameters.Select(p => CrefType(p))) + ")",
             Body: body,
-            OutputName: output is null ? null : Identifiers.Escape(output.Name));
+            OutputName: output is null ? null : Identifiers.Escape(output.Name),
+            HasSinCos: HasSinCos(semanticModel.Compilation));
     }
 
     /// <summary>
@@ -327,6 +328,11 @@ internal static class MethodParser
             }
         }
     }
+
+    /// <summary>Whether the target framework has Math.SinCos and MathF.SinCos (.NET 7 and later; not netstandard2.0).</summary>
+    private static bool HasSinCos(Compilation compilation) =>
+        compilation.GetTypeByMetadataName("System.Math")?.GetMembers("SinCos").Length > 0
+        && compilation.GetTypeByMetadataName("System.MathF")?.GetMembers("SinCos").Length > 0;
 
     private static HashSet<string> SelectVariables(IMethodSymbol method, AttributeData attribute, bool emitHessian, List<DiagnosticInfo> diagnostics,
         Location nameLocation, CancellationToken cancellationToken)

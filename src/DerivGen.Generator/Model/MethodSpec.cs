@@ -22,6 +22,7 @@ namespace DerivGen.Generator.Model;
 /// parameter's name: the method gets <c>MJacobian</c> instead of <c>MGradient</c>/<c>MHessian</c>, and
 /// <paramref name="ReturnType"/> is the span's element type.</param>
 /// <param name="IsHelper">Whether the method is not marked but called from one that is (its derivatives are generated for that call).</param>
+/// <param name="HasSinCos">Whether the compilation has Math.SinCos and MathF.SinCos (one call for the sine and cosine of one argument).</param>
 internal sealed record MethodSpec(
     string HintName,
     string? Namespace,
@@ -37,7 +38,8 @@ internal sealed record MethodSpec(
     EquatableArray<IrStatement> Body,
     bool IsHelper = false,
     bool IsPairMethod = false,
-    string? OutputName = null)
+    string? OutputName = null,
+    bool HasSinCos = false)
 {
     /// <summary>Whether this is a method with a span of outputs, whose Jacobian is generated.</summary>
     public bool HasOutputs => OutputName is not null;

@@ -35,11 +35,12 @@ namespace Samples.Robust
         /// <returns>The value of the method at these arguments, bit-for-bit.</returns>
         /// <exception cref="global::System.ArgumentException">A span is shorter than stated.</exception>
         [global::System.CodeDom.Compiler.GeneratedCode("DerivGen", "0.1.0")]
+        [global::System.Runtime.CompilerServices.MethodImpl(global::System.Runtime.CompilerServices.MethodImplOptions.AggressiveInlining)]
         public static double HuberGradient(double r, double delta, global::System.Span<double> gradient)
         {
             if (gradient.Length < 1)
             {
-                throw new global::System.ArgumentException("The span must hold at least 1 element (one per variable: r).", nameof(gradient));
+                ThrowSpanTooShort(nameof(gradient), 1, "one per variable: r");
             }
 
             double absR = global::System.Math.Abs(r);
@@ -51,6 +52,9 @@ namespace Samples.Robust
             gradient[0] = condition ? r : delta * (r > 0.0 ? 1.0 : r < 0.0 ? -1.0 : 0.0); // ∂Huber/∂r
 
             return value;
+
+            static void ThrowSpanTooShort(string name, int length, string what) =>
+                throw new global::System.ArgumentException("The span must hold at least " + length + (length == 1 ? " element (" : " elements (") + what + ").", name);
         }
 
         /// <summary>
@@ -74,16 +78,17 @@ namespace Samples.Robust
         /// <returns>The value of the method at these arguments, bit-for-bit.</returns>
         /// <exception cref="global::System.ArgumentException">A span is shorter than stated.</exception>
         [global::System.CodeDom.Compiler.GeneratedCode("DerivGen", "0.1.0")]
+        [global::System.Runtime.CompilerServices.MethodImpl(global::System.Runtime.CompilerServices.MethodImplOptions.AggressiveInlining)]
         public static double HuberHessian(double r, double delta, global::System.Span<double> gradient, global::System.Span<double> hessian)
         {
             if (gradient.Length < 1)
             {
-                throw new global::System.ArgumentException("The span must hold at least 1 element (one per variable: r).", nameof(gradient));
+                ThrowSpanTooShort(nameof(gradient), 1, "one per variable: r");
             }
 
             if (hessian.Length < 1)
             {
-                throw new global::System.ArgumentException("The span must hold at least 1 element (1 × 1, row-major).", nameof(hessian));
+                ThrowSpanTooShort(nameof(hessian), 1, "1 × 1, row-major");
             }
 
             double absR = global::System.Math.Abs(r);
@@ -97,6 +102,9 @@ namespace Samples.Robust
             hessian[0] = condition ? 1.0 : 0.0; // ∂²Huber/∂r²
 
             return value;
+
+            static void ThrowSpanTooShort(string name, int length, string what) =>
+                throw new global::System.ArgumentException("The span must hold at least " + length + (length == 1 ? " element (" : " elements (") + what + ").", name);
         }
     }
 }

@@ -43,7 +43,7 @@ namespace Samples.Calls
         {
             if (gradient.Length < 2)
             {
-                throw new global::System.ArgumentException("The span must hold at least 2 elements (one per variable: k, r).", nameof(gradient));
+                ThrowSpanTooShort(nameof(gradient), 2, "one per variable: k, r");
             }
 
             global::System.Span<double> modelGradient = stackalloc double[2];
@@ -55,6 +55,9 @@ namespace Samples.Calls
             gradient[1] = 2.0 * (e * modelGradient[1]); // ∂Misfit/∂r
 
             return value;
+
+            static void ThrowSpanTooShort(string name, int length, string what) =>
+                throw new global::System.ArgumentException("The span must hold at least " + length + (length == 1 ? " element (" : " elements (") + what + ").", name);
         }
 
         /// <summary>
@@ -86,12 +89,12 @@ namespace Samples.Calls
         {
             if (gradient.Length < 2)
             {
-                throw new global::System.ArgumentException("The span must hold at least 2 elements (one per variable: k, r).", nameof(gradient));
+                ThrowSpanTooShort(nameof(gradient), 2, "one per variable: k, r");
             }
 
             if (hessian.Length < 4)
             {
-                throw new global::System.ArgumentException("The span must hold at least 4 elements (2 × 2, row-major).", nameof(hessian));
+                ThrowSpanTooShort(nameof(hessian), 4, "2 × 2, row-major");
             }
 
             global::System.Span<double> modelGradient = stackalloc double[2];
@@ -110,6 +113,9 @@ namespace Samples.Calls
             hessian[3] = 2.0 * (t2 * t2 + e * modelHessian[3]); // ∂²Misfit/∂r²
 
             return value;
+
+            static void ThrowSpanTooShort(string name, int length, string what) =>
+                throw new global::System.ArgumentException("The span must hold at least " + length + (length == 1 ? " element (" : " elements (") + what + ").", name);
         }
     }
 }

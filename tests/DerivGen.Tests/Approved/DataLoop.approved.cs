@@ -56,7 +56,7 @@ namespace Samples.Fitting
         {
             if (gradient.Length < 2)
             {
-                throw new global::System.ArgumentException("The span must hold at least 2 elements (one per variable: a, b).", nameof(gradient));
+                ThrowSpanTooShort(nameof(gradient), 2, "one per variable: a, b");
             }
 
             double t1 = -b;
@@ -69,9 +69,13 @@ namespace Samples.Fitting
                 double exp = global::System.Math.Exp(t1 * tI);
                 double r = a * exp - y[i];
                 sum += r * r;
-                dSum_dA += 2.0 * (r * exp);
-                dSum_dB -= 2.0 * (r * a * exp * tI);
+                dSum_dA += r * exp;
+                dSum_dB += r * a * exp * tI;
             }
+
+            // The constant factor of every term of these sums, applied once:
+            dSum_dA *= 2.0;
+            dSum_dB *= -2.0;
 
             double value = 0.5 * sum;
 
@@ -79,6 +83,9 @@ namespace Samples.Fitting
             gradient[1] = 0.5 * dSum_dB; // ∂HalfSquaredError/∂b
 
             return value;
+
+            static void ThrowSpanTooShort(string name, int length, string what) =>
+                throw new global::System.ArgumentException("The span must hold at least " + length + (length == 1 ? " element (" : " elements (") + what + ").", name);
         }
 
         /// <summary>
@@ -118,12 +125,12 @@ namespace Samples.Fitting
         {
             if (gradient.Length < 2)
             {
-                throw new global::System.ArgumentException("The span must hold at least 2 elements (one per variable: a, b).", nameof(gradient));
+                ThrowSpanTooShort(nameof(gradient), 2, "one per variable: a, b");
             }
 
             if (hessian.Length < 4)
             {
-                throw new global::System.ArgumentException("The span must hold at least 4 elements (2 × 2, row-major).", nameof(hessian));
+                ThrowSpanTooShort(nameof(hessian), 4, "2 × 2, row-major");
             }
 
             double t1 = -b;
@@ -142,12 +149,19 @@ namespace Samples.Fitting
                 double t3 = r * a;
                 double t4 = exp * tI;
                 sum += r * r;
-                dSum_dA += 2.0 * (r * exp);
-                dSum_dB -= 2.0 * (t3 * exp * tI);
-                d2Sum_dA2 += 2.0 * (exp * exp);
-                d2Sum_dBdA -= 2.0 * (tI * (exp * (t2 + r)));
-                d2Sum_dB2 -= 2.0 * (tI * (-(exp * (a * (a * t4))) - t3 * t4));
+                dSum_dA += r * exp;
+                dSum_dB += t3 * exp * tI;
+                d2Sum_dA2 += exp * exp;
+                d2Sum_dBdA += tI * (exp * (t2 + r));
+                d2Sum_dB2 += tI * (-(exp * (a * (a * t4))) - t3 * t4);
             }
+
+            // The constant factor of every term of these sums, applied once:
+            dSum_dA *= 2.0;
+            dSum_dB *= -2.0;
+            d2Sum_dA2 *= 2.0;
+            d2Sum_dBdA *= -2.0;
+            d2Sum_dB2 *= -2.0;
 
             double value = 0.5 * sum;
 
@@ -159,6 +173,9 @@ namespace Samples.Fitting
             hessian[3] = 0.5 * d2Sum_dB2; // ∂²HalfSquaredError/∂b²
 
             return value;
+
+            static void ThrowSpanTooShort(string name, int length, string what) =>
+                throw new global::System.ArgumentException("The span must hold at least " + length + (length == 1 ? " element (" : " elements (") + what + ").", name);
         }
     }
 }

@@ -35,7 +35,7 @@ namespace Samples.Graphics
         {
             if (gradient.Length < 2)
             {
-                throw new global::System.ArgumentException("The span must hold at least 2 elements (one per variable: x, y).", nameof(gradient));
+                ThrowSpanTooShort(nameof(gradient), 2, "one per variable: x, y");
             }
 
             float t1 = 1f + x * x + y * y;
@@ -49,6 +49,9 @@ namespace Samples.Graphics
             gradient[1] = -0.25f * t3 - 2f * (t4 * y); // ∂Light/∂y
 
             return value;
+
+            static void ThrowSpanTooShort(string name, int length, string what) =>
+                throw new global::System.ArgumentException("The span must hold at least " + length + (length == 1 ? " element (" : " elements (") + what + ").", name);
         }
     }
 }

@@ -35,11 +35,12 @@ namespace Samples.Optimization
         /// <returns>The value of the method at these arguments, bit-for-bit.</returns>
         /// <exception cref="global::System.ArgumentException">A span is shorter than stated.</exception>
         [global::System.CodeDom.Compiler.GeneratedCode("DerivGen", "0.1.0")]
+        [global::System.Runtime.CompilerServices.MethodImpl(global::System.Runtime.CompilerServices.MethodImplOptions.AggressiveInlining)]
         public static double RosenbrockGradient(double x, double y, global::System.Span<double> gradient)
         {
             if (gradient.Length < 2)
             {
-                throw new global::System.ArgumentException("The span must hold at least 2 elements (one per variable: x, y).", nameof(gradient));
+                ThrowSpanTooShort(nameof(gradient), 2, "one per variable: x, y");
             }
 
             double t1 = 1.0 - x;
@@ -50,6 +51,9 @@ namespace Samples.Optimization
             gradient[1] = 200.0 * t2; // ∂Rosenbrock/∂y
 
             return value;
+
+            static void ThrowSpanTooShort(string name, int length, string what) =>
+                throw new global::System.ArgumentException("The span must hold at least " + length + (length == 1 ? " element (" : " elements (") + what + ").", name);
         }
 
         /// <summary>
@@ -78,12 +82,12 @@ namespace Samples.Optimization
         {
             if (gradient.Length < 2)
             {
-                throw new global::System.ArgumentException("The span must hold at least 2 elements (one per variable: x, y).", nameof(gradient));
+                ThrowSpanTooShort(nameof(gradient), 2, "one per variable: x, y");
             }
 
             if (hessian.Length < 4)
             {
-                throw new global::System.ArgumentException("The span must hold at least 4 elements (2 × 2, row-major).", nameof(hessian));
+                ThrowSpanTooShort(nameof(hessian), 4, "2 × 2, row-major");
             }
 
             double t1 = 1.0 - x;
@@ -99,6 +103,9 @@ namespace Samples.Optimization
             hessian[3] = 200.0; // ∂²Rosenbrock/∂y²
 
             return value;
+
+            static void ThrowSpanTooShort(string name, int length, string what) =>
+                throw new global::System.ArgumentException("The span must hold at least " + length + (length == 1 ? " element (" : " elements (") + what + ").", name);
         }
     }
 }

@@ -55,13 +55,13 @@ namespace Samples.Signals
         {
             if (gradient.Length < 3)
             {
-                throw new global::System.ArgumentException("The span must hold at least 3 elements (one per variable: amplitude, decay, phase).", nameof(gradient));
+                ThrowSpanTooShort(nameof(gradient), 3, "one per variable: amplitude, decay, phase");
             }
 
             double exp = global::System.Math.Exp(-decay * t);
             double envelope = amplitude * exp;
             double t1 = 6.283185307179586 * t + phase;
-            double wave = global::System.Math.Cos(t1);
+            (double sinT1, double wave) = global::System.Math.SinCos(t1);
             double r = envelope * wave - observed;
             double r2 = r * 0.5;
             double value = r2 * r2;
@@ -69,9 +69,12 @@ namespace Samples.Signals
 
             gradient[0] = envelopeAdjoint * exp; // ∂Residual/∂amplitude
             gradient[1] = -(envelopeAdjoint * amplitude * exp * t); // ∂Residual/∂decay
-            gradient[2] = -(r2 * envelope * global::System.Math.Sin(t1)); // ∂Residual/∂phase
+            gradient[2] = -(r2 * envelope * sinT1); // ∂Residual/∂phase
 
             return value;
+
+            static void ThrowSpanTooShort(string name, int length, string what) =>
+                throw new global::System.ArgumentException("The span must hold at least " + length + (length == 1 ? " element (" : " elements (") + what + ").", name);
         }
 
         /// <summary>
@@ -111,24 +114,23 @@ namespace Samples.Signals
         {
             if (gradient.Length < 3)
             {
-                throw new global::System.ArgumentException("The span must hold at least 3 elements (one per variable: amplitude, decay, phase).", nameof(gradient));
+                ThrowSpanTooShort(nameof(gradient), 3, "one per variable: amplitude, decay, phase");
             }
 
             if (hessian.Length < 9)
             {
-                throw new global::System.ArgumentException("The span must hold at least 9 elements (3 × 3, row-major).", nameof(hessian));
+                ThrowSpanTooShort(nameof(hessian), 9, "3 × 3, row-major");
             }
 
             double exp = global::System.Math.Exp(-decay * t);
             double envelope = amplitude * exp;
             double t1 = 6.283185307179586 * t + phase;
-            double wave = global::System.Math.Cos(t1);
+            (double sinT1, double wave) = global::System.Math.SinCos(t1);
             double r = envelope * wave - observed;
             double r2 = r * 0.5;
             double value = r2 * r2;
             double envelopeAdjoint = r2 * wave;
             double waveAdjoint = r2 * envelope;
-            double sinT1 = global::System.Math.Sin(t1);
             double t2 = envelopeAdjoint * amplitude;
             double t3 = wave * exp;
             double t4 = wave * t3;
@@ -148,6 +150,9 @@ namespace Samples.Signals
             hessian[8] = -(-0.5 * (sinT1 * (envelope * (envelope * sinT1))) + waveAdjoint * wave); // ∂²Residual/∂phase²
 
             return value;
+
+            static void ThrowSpanTooShort(string name, int length, string what) =>
+                throw new global::System.ArgumentException("The span must hold at least " + length + (length == 1 ? " element (" : " elements (") + what + ").", name);
         }
     }
 }
