@@ -45,7 +45,7 @@ namespace BeaconFixAot
         {
             if (jacobian.Length < (long)residuals.Length * 3)
             {
-                throw new global::System.ArgumentException("The span must hold at least " + ((long)residuals.Length * 3) + " elements (one row of 3 per output, row-major: x, y, bias).", nameof(jacobian));
+                ThrowSpanTooShort(nameof(jacobian), (long)residuals.Length * 3, "one row of 3 per output, row-major: x, y, bias");
             }
 
             for (int i = 0; i < range.Length; i++)
@@ -59,6 +59,9 @@ namespace BeaconFixAot
                 jacobian[row + 1] = dy / sqrt; // ∂residuals[i]/∂y
                 jacobian[row + 2] = 1.0; // ∂residuals[i]/∂bias
             }
+
+            static void ThrowSpanTooShort(string name, long length, string what) =>
+                throw new global::System.ArgumentException("The span must hold at least " + length + (length == 1 ? " element (" : " elements (") + what + ").", name);
         }
     }
 }

@@ -53,7 +53,7 @@ namespace Samples.Robust
 
             return value;
 
-            static void ThrowSpanTooShort(string name, int length, string what) =>
+            static void ThrowSpanTooShort(string name, long length, string what) =>
                 throw new global::System.ArgumentException("The span must hold at least " + length + (length == 1 ? " element (" : " elements (") + what + ").", name);
         }
 
@@ -103,7 +103,7 @@ namespace Samples.Robust
 
             return value;
 
-            static void ThrowSpanTooShort(string name, int length, string what) =>
+            static void ThrowSpanTooShort(string name, long length, string what) =>
                 throw new global::System.ArgumentException("The span must hold at least " + length + (length == 1 ? " element (" : " elements (") + what + ").", name);
         }
     }

@@ -63,7 +63,7 @@ namespace Samples.Robotics
 
                 return value;
 
-                static void ThrowSpanTooShort(string name, int length, string what) =>
+                static void ThrowSpanTooShort(string name, long length, string what) =>
                     throw new global::System.ArgumentException("The span must hold at least " + length + (length == 1 ? " element (" : " elements (") + what + ").", name);
             }
 
@@ -108,32 +108,33 @@ namespace Samples.Robotics
                 (double sinQ1, double cosQ1) = global::System.Math.SinCos(q1);
                 double t1 = q1 + q2;
                 (double sinT1, double cosT1) = global::System.Math.SinCos(t1);
-                double ex = global::Samples.Robotics.Arm.Link1 * cosQ1 + global::Samples.Robotics.Arm.Link2 * cosT1 - px;
-                double ey = global::Samples.Robotics.Arm.Link1 * sinQ1 + global::Samples.Robotics.Arm.Link2 * sinT1 - py;
+                double t2 = global::Samples.Robotics.Arm.Link2 * cosT1;
+                double t3 = global::Samples.Robotics.Arm.Link1 * cosQ1 + t2;
+                double ex = t3 - px;
+                double t4 = global::Samples.Robotics.Arm.Link1 * sinQ1;
+                double t5 = global::Samples.Robotics.Arm.Link2 * sinT1;
+                double ey = t4 + t5 - py;
                 double value = ex * ex + ey * ey;
-                double t2 = ey * global::Samples.Robotics.Arm.Link2;
-                double t3 = ey * global::Samples.Robotics.Arm.Link1;
-                double t4 = ex * global::Samples.Robotics.Arm.Link2;
-                double t5 = 2.0 * (t2 * cosT1) - 2.0 * (t4 * sinT1);
-                double t6 = ex * global::Samples.Robotics.Arm.Link1;
-                double t7 = global::Samples.Robotics.Arm.Link2 * sinT1;
-                double t8 = -(global::Samples.Robotics.Arm.Link1 * sinQ1) - t7;
-                double t9 = global::Samples.Robotics.Arm.Link2 * cosT1;
-                double t10 = global::Samples.Robotics.Arm.Link1 * cosQ1 + t9;
-                double t11 = t2 * sinT1;
-                double t12 = t4 * cosT1;
-                double t13 = 2.0 * (cosT1 * (global::Samples.Robotics.Arm.Link2 * t10) - t11) - 2.0 * (sinT1 * (global::Samples.Robotics.Arm.Link2 * t8) + t12);
+                double t6 = ey * global::Samples.Robotics.Arm.Link2;
+                double t7 = ey * global::Samples.Robotics.Arm.Link1;
+                double t8 = ex * global::Samples.Robotics.Arm.Link2;
+                double t9 = 2.0 * (t6 * cosT1) - 2.0 * (t8 * sinT1);
+                double t10 = ex * global::Samples.Robotics.Arm.Link1;
+                double t11 = -t4 - t5;
+                double t12 = t6 * sinT1;
+                double t13 = t8 * cosT1;
+                double t14 = 2.0 * (cosT1 * (global::Samples.Robotics.Arm.Link2 * t3) - t12) - 2.0 * (sinT1 * (global::Samples.Robotics.Arm.Link2 * t11) + t13);
 
-                gradient[0] = 2.0 * (t3 * cosQ1) + t5 - 2.0 * (t6 * sinQ1); // ∂Miss/∂q1
-                gradient[1] = t5; // ∂Miss/∂q2
+                gradient[0] = 2.0 * (t7 * cosQ1) + t9 - 2.0 * (t10 * sinQ1); // ∂Miss/∂q1
+                gradient[1] = t9; // ∂Miss/∂q2
 
-                hessian[0] = 2.0 * (cosQ1 * (global::Samples.Robotics.Arm.Link1 * t10) - t3 * sinQ1) + t13 - 2.0 * (sinQ1 * (global::Samples.Robotics.Arm.Link1 * t8) + t6 * cosQ1); // ∂²Miss/∂q1²
-                hessian[1] = hessian[2] = t13; // ∂²Miss/∂q2∂q1
-                hessian[3] = 2.0 * (cosT1 * (global::Samples.Robotics.Arm.Link2 * t9) - t11) - 2.0 * (t12 - sinT1 * (global::Samples.Robotics.Arm.Link2 * t7)); // ∂²Miss/∂q2²
+                hessian[0] = 2.0 * (cosQ1 * (global::Samples.Robotics.Arm.Link1 * t3) - t7 * sinQ1) + t14 - 2.0 * (sinQ1 * (global::Samples.Robotics.Arm.Link1 * t11) + t10 * cosQ1); // ∂²Miss/∂q1²
+                hessian[1] = hessian[2] = t14; // ∂²Miss/∂q2∂q1
+                hessian[3] = 2.0 * (cosT1 * (global::Samples.Robotics.Arm.Link2 * t2) - t12) - 2.0 * (t13 - sinT1 * (global::Samples.Robotics.Arm.Link2 * t5)); // ∂²Miss/∂q2²
 
                 return value;
 
-                static void ThrowSpanTooShort(string name, int length, string what) =>
+                static void ThrowSpanTooShort(string name, long length, string what) =>
                     throw new global::System.ArgumentException("The span must hold at least " + length + (length == 1 ? " element (" : " elements (") + what + ").", name);
             }
         }

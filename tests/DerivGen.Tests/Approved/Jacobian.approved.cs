@@ -40,7 +40,7 @@ namespace Samples.Fitting
         {
             if (jacobian.Length < (long)r.Length * 2)
             {
-                throw new global::System.ArgumentException("The span must hold at least " + ((long)r.Length * 2) + " elements (one row of 2 per output, row-major: cMax, k).", nameof(jacobian));
+                ThrowSpanTooShort(nameof(jacobian), (long)r.Length * 2, "one row of 2 per output, row-major: cMax, k");
             }
 
             double t1 = -k;
@@ -54,6 +54,9 @@ namespace Samples.Fitting
                 jacobian[row] = exp - 1.0; // ∂r[i]/∂cMax
                 jacobian[row + 1] = cMax * exp * (lag - tI); // ∂r[i]/∂k
             }
+
+            static void ThrowSpanTooShort(string name, long length, string what) =>
+                throw new global::System.ArgumentException("The span must hold at least " + length + (length == 1 ? " element (" : " elements (") + what + ").", name);
         }
     }
 }

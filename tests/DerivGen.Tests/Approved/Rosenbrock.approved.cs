@@ -52,7 +52,7 @@ namespace Samples.Optimization
 
             return value;
 
-            static void ThrowSpanTooShort(string name, int length, string what) =>
+            static void ThrowSpanTooShort(string name, long length, string what) =>
                 throw new global::System.ArgumentException("The span must hold at least " + length + (length == 1 ? " element (" : " elements (") + what + ").", name);
         }
 
@@ -104,7 +104,7 @@ namespace Samples.Optimization
 
             return value;
 
-            static void ThrowSpanTooShort(string name, int length, string what) =>
+            static void ThrowSpanTooShort(string name, long length, string what) =>
                 throw new global::System.ArgumentException("The span must hold at least " + length + (length == 1 ? " element (" : " elements (") + what + ").", name);
         }
     }

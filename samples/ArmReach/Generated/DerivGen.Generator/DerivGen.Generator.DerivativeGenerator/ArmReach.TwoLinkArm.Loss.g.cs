@@ -14,7 +14,7 @@
 //   ∂Loss/∂elbow = 2·(dy·foreLength·cos(shoulder + elbow)) - 2·(dx·foreLength·sin(shoulder + elbow))
 //
 //   ∂²Loss/∂shoulder² = (too long to show here; see the code)
-//   ∂²Loss/∂elbow∂shoulder = (too long to show here; see the code)
+//   ∂²Loss/∂elbow∂shoulder = 2·(cos(shoulder + elbow)·(foreLength·tipX) - dy·foreLength·sin(shoulder + elbow)) - 2·(sin(shoulder + elbow)·(foreLength·(-elbowY - foreLength·sin(shoulder + elbow))) + dx·foreLength·cos(shoulder + elbow))
 //   ∂²Loss/∂elbow² = (too long to show here; see the code)
 
 #nullable enable
@@ -75,7 +75,7 @@ namespace ArmReach
 
             return value;
 
-            static void ThrowSpanTooShort(string name, int length, string what) =>
+            static void ThrowSpanTooShort(string name, long length, string what) =>
                 throw new global::System.ArgumentException("The span must hold at least " + length + (length == 1 ? " element (" : " elements (") + what + ").", name);
         }
 
@@ -96,7 +96,7 @@ namespace ArmReach
         /// ∂Loss/∂elbow = 2·(dy·foreLength·cos(shoulder + elbow)) - 2·(dx·foreLength·sin(shoulder + elbow))
         /// 
         /// ∂²Loss/∂shoulder² = (too long to show here; see the code)
-        /// ∂²Loss/∂elbow∂shoulder = (too long to show here; see the code)
+        /// ∂²Loss/∂elbow∂shoulder = 2·(cos(shoulder + elbow)·(foreLength·tipX) - dy·foreLength·sin(shoulder + elbow)) - 2·(sin(shoulder + elbow)·(foreLength·(-elbowY - foreLength·sin(shoulder + elbow))) + dx·foreLength·cos(shoulder + elbow))
         /// ∂²Loss/∂elbow² = (too long to show here; see the code)
         /// </code>
         /// </remarks>
@@ -128,34 +128,33 @@ namespace ArmReach
             double elbowY = upperLength * sinShoulder;
             double t1 = shoulder + elbow;
             (double sinT1, double cosT1) = global::System.Math.SinCos(t1);
-            double tipX = elbowX + foreLength * cosT1;
-            double tipY = elbowY + foreLength * sinT1;
+            double t2 = foreLength * cosT1;
+            double tipX = elbowX + t2;
+            double t3 = foreLength * sinT1;
+            double tipY = elbowY + t3;
             double dx = tipX - targetX;
             double dy = tipY - targetY;
             double value = dx * dx + dy * dy;
-            double t2 = dy * foreLength;
-            double t3 = dx * foreLength;
-            double t4 = 2.0 * (t2 * cosT1) - 2.0 * (t3 * sinT1);
-            double t5 = dy * upperLength;
-            double t6 = dx * upperLength;
-            double t7 = foreLength * sinT1;
-            double t8 = -(upperLength * sinShoulder) - t7;
-            double t9 = foreLength * cosT1;
-            double t10 = upperLength * cosShoulder + t9;
-            double t11 = t2 * sinT1;
-            double t12 = t3 * cosT1;
-            double t13 = 2.0 * (cosT1 * (foreLength * t10) - t11) - 2.0 * (sinT1 * (foreLength * t8) + t12);
+            double t4 = dy * foreLength;
+            double t5 = dx * foreLength;
+            double t6 = 2.0 * (t4 * cosT1) - 2.0 * (t5 * sinT1);
+            double t7 = dy * upperLength;
+            double t8 = dx * upperLength;
+            double t9 = -elbowY - t3;
+            double t10 = t4 * sinT1;
+            double t11 = t5 * cosT1;
+            double t12 = 2.0 * (cosT1 * (foreLength * tipX) - t10) - 2.0 * (sinT1 * (foreLength * t9) + t11);
 
-            gradient[0] = t4 + 2.0 * (t5 * cosShoulder) - 2.0 * (t6 * sinShoulder); // ∂Loss/∂shoulder
-            gradient[1] = t4; // ∂Loss/∂elbow
+            gradient[0] = t6 + 2.0 * (t7 * cosShoulder) - 2.0 * (t8 * sinShoulder); // ∂Loss/∂shoulder
+            gradient[1] = t6; // ∂Loss/∂elbow
 
-            hessian[0] = t13 + 2.0 * (cosShoulder * (upperLength * t10) - t5 * sinShoulder) - 2.0 * (sinShoulder * (upperLength * t8) + t6 * cosShoulder); // ∂²Loss/∂shoulder²
-            hessian[1] = hessian[2] = t13; // ∂²Loss/∂elbow∂shoulder
-            hessian[3] = 2.0 * (cosT1 * (foreLength * t9) - t11) - 2.0 * (t12 - sinT1 * (foreLength * t7)); // ∂²Loss/∂elbow²
+            hessian[0] = t12 + 2.0 * (cosShoulder * (upperLength * tipX) - t7 * sinShoulder) - 2.0 * (sinShoulder * (upperLength * t9) + t8 * cosShoulder); // ∂²Loss/∂shoulder²
+            hessian[1] = hessian[2] = t12; // ∂²Loss/∂elbow∂shoulder
+            hessian[3] = 2.0 * (cosT1 * (foreLength * t2) - t10) - 2.0 * (t11 - sinT1 * (foreLength * t3)); // ∂²Loss/∂elbow²
 
             return value;
 
-            static void ThrowSpanTooShort(string name, int length, string what) =>
+            static void ThrowSpanTooShort(string name, long length, string what) =>
                 throw new global::System.ArgumentException("The span must hold at least " + length + (length == 1 ? " element (" : " elements (") + what + ").", name);
         }
     }

@@ -54,7 +54,7 @@ namespace ArmReach
         {
             if (jacobian.Length < (long)r.Length * 3)
             {
-                throw new global::System.ArgumentException("The span must hold at least " + ((long)r.Length * 3) + " elements (one row of 3 per output, row-major: upperLength, foreLength, shoulderOffset).", nameof(jacobian));
+                ThrowSpanTooShort(nameof(jacobian), (long)r.Length * 3, "one row of 3 per output, row-major: upperLength, foreLength, shoulderOffset");
             }
 
             for (int i = 0; i < shoulder.Length; i++)
@@ -62,12 +62,10 @@ namespace ArmReach
                 double upperAngle = shoulder[i] + shoulderOffset;
                 double foreAngle = upperAngle + elbow[i];
                 int t1 = 2 * i;
-                double cosUpperAngle = global::System.Math.Cos(upperAngle);
-                double cosForeAngle = global::System.Math.Cos(foreAngle);
+                (double sinUpperAngle, double cosUpperAngle) = global::System.Math.SinCos(upperAngle);
+                (double sinForeAngle, double cosForeAngle) = global::System.Math.SinCos(foreAngle);
                 double upperAngleAdjoint = upperLength * cosUpperAngle + foreLength * cosForeAngle;
-                double sinUpperAngle = global::System.Math.Sin(upperAngle);
                 double t2 = upperLength * sinUpperAngle;
-                double sinForeAngle = global::System.Math.Sin(foreAngle);
                 double t3 = foreLength * sinForeAngle;
                 r[t1] = upperAngleAdjoint - measuredX[i];
                 int row = 3 * t1;
@@ -80,6 +78,9 @@ namespace ArmReach
                 jacobian[row2 + 1] = sinForeAngle; // ∂r[2·i + 1]/∂foreLength
                 jacobian[row2 + 2] = upperAngleAdjoint; // ∂r[2·i + 1]/∂shoulderOffset
             }
+
+            static void ThrowSpanTooShort(string name, long length, string what) =>
+                throw new global::System.ArgumentException("The span must hold at least " + length + (length == 1 ? " element (" : " elements (") + what + ").", name);
         }
     }
 }
