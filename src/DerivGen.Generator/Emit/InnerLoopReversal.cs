@@ -77,6 +77,8 @@ internal sealed class InnerLoopReversal
         }
 
         readers.AddRange(program.VectorGradient.Select(t => (t, (LoopSegment?)null, (StateDerivatives?)null, false)));
+        // A method with outputs: a row that reads a span needs it stored (the row is written where the output is).
+        readers.AddRange(program.Outputs.SelectMany(o => o.VectorRow).Select(t => (t, (LoopSegment?)null, (StateDerivatives?)null, false)));
         var spanOwners = program.States.Values.SelectMany(d => d.VectorNames).GroupBy(name => name, StringComparer.Ordinal)
             .ToDictionary(g => g.Key, g => g.Count(), StringComparer.Ordinal);
 

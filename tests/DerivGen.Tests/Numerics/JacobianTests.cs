@@ -124,6 +124,27 @@ public sealed class JacobianFixture : CompiledFixture
                 }
             }
 
+            // Invented: per sample a linear score z = w·x (inner loop), written out and also summed squared — the
+            // running derivative of z is read both by the output's row and by the outer sum.
+            [Differentiate(nameof(w))]
+            public static void Scores(ReadOnlySpan<double> w, double[,] x, Span<double> outputs)
+            {
+                double total = 0;
+                for (int i = 0; i < x.GetLength(0); i++)
+                {
+                    double z = 0;
+                    for (int j = 0; j < w.Length; j++)
+                    {
+                        z += w[j] * x[i, j];
+                    }
+
+                    total += z * z;
+                    outputs[i] = z;
+                }
+
+                outputs[x.GetLength(0)] = total;
+            }
+
             // Writes only the even outputs.
             [Differentiate(nameof(a))]
             public static void EvenOnly(double a, int count, Span<double> r)
@@ -180,6 +201,8 @@ public sealed class JacobianTests : IClassFixture<JacobianFixture>
     private delegate void MixedF(double scale, double[] p, ReadOnlySpan<double> t, Span<double> r);
 
     private delegate void MixedJ(double scale, double[] p, ReadOnlySpan<double> t, Span<double> r, Span<double> jacobian);
+
+    private delegate void ScoresJ(ReadOnlySpan<double> w, double[,] x, Span<double> outputs, Span<double> jacobian);
 
     private delegate void EvenOnlyF(double a, int count, Span<double> r);
 
@@ -449,6 +472,39 @@ public sealed class JacobianTests : IClassFixture<JacobianFixture>
             }, new[] { scale, p[0], p[1], p[2] });
             Check.Close(reference, j.AsSpan(row * n, n), Check.FiniteDifferenceGradientRelative, Check.FiniteDifferenceAbsoluteFloor, $"Mixed Jacobian row {row} vs MathNet central differences");
         }
+    }
+
+    /// <summary>
+    /// Linear scores zᵢ = Σⱼ wⱼxᵢⱼ and T = Σᵢ zᵢ²: ∂zᵢ/∂wⱼ = xᵢⱼ and ∂T/∂wⱼ = 2Σᵢ zᵢxᵢⱼ (by hand), with the inner loop's
+    /// running derivative read both by the rows of zᵢ and by the outer sum's update.
+    /// </summary>
+    [Fact]
+    public void ScoresJacobianReadsTheInnerLoopsRunningDerivativeInEveryRow()
+    {
+        var jf = _fixture.Assembly.Method<ScoresJ>(Type, "ScoresJacobian");
+        double[] w = { 0.5, -1.0, 2.0 };
+        double[,] x = { { 1, 2, 3 }, { -0.5, 0.25, 4 }, { 0, 1, -2 }, { 3, 3, 0.5 } };
+        int m = x.GetLength(0) + 1, n = w.Length;
+        var outputs = new double[m];
+        var j = Enumerable.Repeat(double.NaN, m * n).ToArray();
+        jf(w, x, outputs, j);
+        var expected = new double[m * n];
+        for (int i = 0; i < m - 1; i++)
+        {
+            double z = 0;
+            for (int k = 0; k < n; k++)
+            {
+                z += w[k] * x[i, k];
+            }
+
+            for (int k = 0; k < n; k++)
+            {
+                expected[(i * n) + k] = x[i, k];
+                expected[((m - 1) * n) + k] += 2 * z * x[i, k];
+            }
+        }
+
+        Check.Close(expected, j, 1e-14, 1e-14, "Scores Jacobian vs hand-derived");
     }
 
     /// <summary>The Jacobian method writes the rows of the outputs the method writes and leaves the others alone.</summary>
