@@ -23,8 +23,9 @@ namespace DerivGen.Generator.Differentiation;
 /// </summary>
 internal sealed class VectorTerm
 {
-    public VectorTerm(int vector, Node coefficient, Node? index, Node? sourceLeaf, string? sourceSpan)
+    public VectorTerm(int vector, Node coefficient, Node? index, Node? sourceLeaf, string? sourceSpan, Node? element = null)
     {
+        Element = element;
         Vector = vector;
         Coefficient = coefficient;
         Index = index;
@@ -41,6 +42,9 @@ internal sealed class VectorTerm
     public Node? SourceLeaf { get; }
 
     public string? SourceSpan { get; }
+
+    /// <summary>For a single element, the read of w[Index] it comes from (whose guard, if any, the update keeps).</summary>
+    public Node? Element { get; }
 }
 
 internal static class ReverseSweep
@@ -92,7 +96,7 @@ internal static class ReverseSweep
             if (node.Kind == NodeKind.VariableElement)
             {
                 (vectorTerms ?? throw new InvalidOperationException("A vector variable was read where no vector gradient is kept."))
-                    .Add(new VectorTerm((int)node.Value, adjoint, node.Arguments[0], null, null));
+                    .Add(new VectorTerm((int)node.Value, adjoint, node.Arguments[0], null, null, node));
                 continue;
             }
 

@@ -384,8 +384,22 @@ internal static class DerivativeEmitter
             roots.AddRange(TermNodes(output.VectorRow).Select(node => (node, output.Stage)));
         }
 
+        // The user's code: the value, the outputs, the loops' bounds and conditions, the carried locals' start and update.
+        var valueRoots = new List<Node> { program.Value };
+        valueRoots.AddRange(program.Outputs.SelectMany(o => new[] { o.Index, o.Value }));
+        foreach (LoopSegment loop in program.Loops)
+        {
+            valueRoots.AddRange(loop.Condition is null ? new[] { loop.Start!, loop.End! } : new[] { loop.Condition });
+            valueRoots.AddRange(loop.States.SelectMany(s => new[] { s.Initial, s.Next }));
+        }
+
         // Spans of inner loops that are replayed after the loop (reverse mode) instead of being stored.
         Dictionary<string, InnerLoopReversal> replayed = InnerLoopReversal.Find(program);
+
+        // Reads of a vector variable's element that the user's code makes only under a condition (i < w.Length ? w[i] : 0,
+        // or after a continue): their contribution is 0 where the read is not made (selected by the condition), but the
+        // index may then be out of range, so the update of that entry is made only for an index in range.
+        HashSet<Node> readAlways = EvaluatedUnconditionally(valueRoots);
         bool Replayed(StateDerivatives d, VectorTerm term) => replayed.ContainsKey(d.VectorNames[term.Vector]);
 
         var initial = new Dictionary<LoopSegment, List<StateUpdate>>();
@@ -518,14 +532,6 @@ internal static class DerivativeEmitter
         // A node the user's code evaluates only under a condition (one side of an if or ?:, the right of && or ||) and
         // that could throw (a data read, an int division, Clamp) must stay inside that condition: it is written inline
         // where it is used, never computed ahead in a local.
-        var valueRoots = new List<Node> { program.Value };
-        valueRoots.AddRange(program.Outputs.SelectMany(o => new[] { o.Index, o.Value }));
-        foreach (LoopSegment loop in program.Loops)
-        {
-            valueRoots.AddRange(loop.Condition is null ? new[] { loop.Start!, loop.End! } : new[] { loop.Condition });
-            valueRoots.AddRange(loop.States.SelectMany(s => new[] { s.Initial, s.Next }));
-        }
-
         HashSet<Node> unconditional = EvaluatedUnconditionally(valueRoots);
         var mayThrow = new Dictionary<Node, bool>();
         // A loop-invariant node that could throw and is used only inside or after loops is not computed ahead of them: a
@@ -922,7 +928,21 @@ internal static class DerivativeEmitter
                 string coefficient = term.Coefficient.IsConstant(1) ? string.Empty : code.WriteFactor(term.Coefficient) + " * ";
                 if (term.Index is { } index)
                 {
-                    writer.Line(target + "[" + at + code.Write(index) + "] += " + (term.Coefficient.IsConstant(1) ? "1.0" : code.Write(term.Coefficient)) + ";");
+                    string update = target + "[" + at + code.Write(index) + "] += " + (term.Coefficient.IsConstant(1) ? "1.0" : code.Write(term.Coefficient)) + ";";
+                    if (term.Element is { } read && !readAlways.Contains(read))
+                    {
+                        // The user's code reads w[i] only under a condition (i < w.Length ? w[i] : 0). Where it does not,
+                        // the contribution is 0 (selected by that condition), but i may be out of range: the update is
+                        // made only for an index in range, which is every index the user's code can have read.
+                        using (writer.Block("if ((uint)" + Parenthesized(code.Write(index)) + " < (uint)" + Length(term.Vector) + ")"))
+                        {
+                            writer.Line(update);
+                        }
+                    }
+                    else
+                    {
+                        writer.Line(update);
+                    }
                 }
                 else if (term.SourceSpan is { } source && replayed.TryGetValue(source, out InnerLoopReversal? reversal))
                 {
@@ -956,8 +976,14 @@ internal static class DerivativeEmitter
             // Nodes of the loop's own stage were locals of its body, out of scope here: they are written out again.
             var again = new ExpressionWriter(x => x.Stage >= loop.InsideStage ? null : NameOf(x), formula: false, calleeDerivative: CalleeDerivative);
             bool unit = term.Coefficient.IsConstant(1);
-            string Add(VectorTerm element) => target + "[" + at + again.Write(element.Index!) + "] += "
-                + (element.Coefficient.IsConstant(1) ? adjoint : unit ? again.Write(element.Coefficient) : adjoint + " * " + again.WriteFactor(element.Coefficient)) + ";";
+            string Add(VectorTerm element)
+            {
+                string update = target + "[" + at + again.Write(element.Index!) + "] += "
+                    + (element.Coefficient.IsConstant(1) ? adjoint : unit ? again.Write(element.Coefficient) : adjoint + " * " + again.WriteFactor(element.Coefficient)) + ";";
+                return element.Element is { } read && !readAlways.Contains(read)
+                    ? "if ((uint)" + Parenthesized(again.Write(element.Index!)) + " < (uint)" + Length(element.Vector) + ") " + update
+                    : update;
+            }
             writer.Line("// " + target + " += " + adjoint + " · " + reversal.Span + ", " + reversal.Span + " not stored: the loop over " + loop.Index
                 + " replayed with the adjoint " + adjoint + " (reverse mode)");
             foreach (VectorTerm element in reversal.InitialTerms)

@@ -39,6 +39,11 @@ internal sealed class BatchOutcome
     /// <summary>Jacobian rows checked (variants with outputs, at every point).</summary>
     public int JacobianRows { get; set; }
 
+    /// <summary>Variants with d as a vector variable that were generated and checked, and those DerivGen refused.</summary>
+    public int VectorVariants { get; set; }
+
+    public int VectorVariantsRefused { get; set; }
+
     /// <summary>Gradient or Hessian entries compared with MathNet's finite differences.</summary>
     public int OracleEntries { get; set; }
 
@@ -103,6 +108,9 @@ internal static class DifferentialRunner
     /// <summary>The name suffix of a case's variant with outputs (its <c>MJacobian</c> is checked against the gradient's reference).</summary>
     private const string OutputSuffix = "Out";
 
+    /// <summary>The name suffix of a case's variant with the data d as a vector of variables (gradient only).</summary>
+    private const string VectorSuffix = "Vec";
+
     private static string MethodName(int index) => "M" + index.ToString(CultureInfo.InvariantCulture);
 
     /// <summary>Compiles the batch; returns the cases that made it fail (nothing checked then), or checks them all.</summary>
@@ -110,7 +118,8 @@ internal static class DifferentialRunner
     {
         var failures = new List<CaseFailure>();
         string[] units = cases.Select((c, i) => (c, i)).Chunk(64)
-            .Select(chunk => RandomCase.Unit(chunk.Select(p => p.c.MethodSource(MethodName(p.i)) + (p.c.OutputVariantSource(MethodName(p.i) + OutputSuffix) is { } variant ? "\n" + variant : ""))))
+            .Select(chunk => RandomCase.Unit(chunk.Select(p => p.c.MethodSource(MethodName(p.i)) + "\n" + p.c.VectorVariantSource(MethodName(p.i) + VectorSuffix)
+                + (p.c.OutputVariantSource(MethodName(p.i) + OutputSuffix) is { } variant ? "\n" + variant : ""))))
             .ToArray();
         CSharpCompilation input = CSharpCompilation.Create(
             "RandomBatch",
@@ -167,6 +176,11 @@ internal static class DifferentialRunner
             else if (generated.SourceText.ToString().Contains("#error", StringComparison.Ordinal))
             {
                 failures.Add(new CaseFailure(cases[i], "the generated file is an #error (differentiation failed):\n" + generated.SourceText));
+            }
+            else if (byHint.TryGetValue(TypeName + "." + MethodName(i) + VectorSuffix + ".g.cs", out GeneratedSourceResult vector)
+                && vector.SourceText.ToString().Contains("#error", StringComparison.Ordinal))
+            {
+                failures.Add(new CaseFailure(cases[i], "the variant with d as a vector variable's generated file is an #error:\n" + vector.SourceText));
             }
             else if (cases[i].HasOutputVariant)
             {
@@ -248,9 +262,12 @@ internal static class DifferentialRunner
         }
 
         string digits = fileName.Substring(prefix.Length, fileName.Length - prefix.Length - ".g.cs".Length);
-        if (digits.EndsWith(OutputSuffix, StringComparison.Ordinal))
+        foreach (string suffix in new[] { OutputSuffix, VectorSuffix })
         {
-            digits = digits.Substring(0, digits.Length - OutputSuffix.Length);
+            if (digits.EndsWith(suffix, StringComparison.Ordinal))
+            {
+                digits = digits.Substring(0, digits.Length - suffix.Length);
+            }
         }
 
         return int.TryParse(digits, NumberStyles.None, CultureInfo.InvariantCulture, out int index) ? index : -1;
@@ -272,6 +289,19 @@ internal static class DifferentialRunner
         RandomGradient g = assembly.Method<RandomGradient>(TypeName, name + "Gradient");
         RandomHessian? h = c.Hessian ? assembly.Method<RandomHessian>(TypeName, name + "Hessian") : null;
         RandomJacobian? jacobian = c.HasOutputVariant ? assembly.Method<RandomJacobian>(TypeName, name + OutputSuffix + "Jacobian") : null;
+
+        // The variant with d as a vector variable: refused (no generated method) where a variable would decide control
+        // flow (a data read in a loop condition, a break or a return in a loop) or for a foreach over it, and counted.
+        RandomGradient? vector = null;
+        if (assembly.HasMethod(TypeName, name + VectorSuffix + "Gradient"))
+        {
+            vector = assembly.Method<RandomGradient>(TypeName, name + VectorSuffix + "Gradient");
+            outcome.VectorVariants++;
+        }
+        else
+        {
+            outcome.VectorVariantsRefused++;
+        }
         if (!c.Hessian && assembly.HasMethod(TypeName, name + "Hessian"))
         {
             return "Hessian = false, yet MHessian was generated";
@@ -283,6 +313,11 @@ internal static class DifferentialRunner
             if (CheckAt(point, f, g, h, jacobian, c, outcome) is { } problem)
             {
                 return "at " + point + ":\n" + problem;
+            }
+
+            if (vector is not null && CheckVectorVariantAt(point, f, vector, c, outcome) is { } vectorProblem)
+            {
+                return "at " + point + ", the variant with d as a vector variable:\n" + vectorProblem;
             }
         }
 
@@ -352,6 +387,25 @@ internal static class DifferentialRunner
         }
 
         CompareWithFiniteDifferences(c, p, f, value, gradient, hessian, outcome, problems);
+        return problems.Length == 0 ? null : problems.ToString();
+    }
+
+    /// <summary>The variant with d as a vector variable: its value bit for bit, its gradient (the scalars, then one entry
+    /// per element of d) against the dual-number reference with d's elements as variables.</summary>
+    private static string? CheckVectorVariantAt(CasePoint p, RandomValue f, RandomGradient vector, RandomCase c, BatchOutcome outcome)
+    {
+        double[] x = p.Doubles;
+        double value = f(x[0], x[1], x[2], x[3], x[4], p.K, p.Data);
+        Jet reference = new Interpreter(p, c.Variables, dataIsVariable: true).Run(c.Body);
+        var gradient = new double[c.Variables.Length + p.Data.Length];
+        double returned = vector(x[0], x[1], x[2], x[3], x[4], p.K, p.Data, gradient);
+        if (BitConverter.DoubleToInt64Bits(returned) != BitConverter.DoubleToInt64Bits(value))
+        {
+            return $"MVecGradient returned {R(returned)}, the method {R(value)} (must be bit-for-bit equal)";
+        }
+
+        var problems = new StringBuilder();
+        CompareWithReference("MVecGradient gradient", gradient, reference.Gradient, reference.GradientBound, outcome, problems);
         return problems.Length == 0 ? null : problems.ToString();
     }
 

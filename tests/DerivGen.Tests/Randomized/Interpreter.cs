@@ -17,16 +17,22 @@ internal sealed class Interpreter
     private readonly Dictionary<string, bool> _bools = new(StringComparer.Ordinal);
     private readonly double[] _data;
     private readonly int _n;
+    private readonly bool _dataIsVariable;
+    private readonly int _dataOffset;
     private readonly Action<Expr, double[], double>? _observe;
     private readonly bool _observeUntakenSides;
 
     /// <param name="point">The case's inputs.</param>
     /// <param name="variables">The parameters differentiated with respect to, in order (n = their count).</param>
     /// <param name="observe">Called after every expression node with its operands' values and its own value.</param>
-    public Interpreter(CasePoint point, IReadOnlyList<string> variables, Action<Expr, double[], double>? observe = null, bool observeUntakenSides = false)
+    /// <param name="dataIsVariable">Whether the data d is a vector of variables too (after the scalars: n = their count + d.Length).</param>
+    public Interpreter(CasePoint point, IReadOnlyList<string> variables, Action<Expr, double[], double>? observe = null, bool observeUntakenSides = false,
+        bool dataIsVariable = false)
     {
         _observeUntakenSides = observeUntakenSides && observe is not null;
-        _n = variables.Count;
+        _dataIsVariable = dataIsVariable;
+        _dataOffset = variables.Count;
+        _n = variables.Count + (dataIsVariable ? point.Data.Length : 0);
         _data = point.Data;
         _observe = observe;
         for (int p = 0; p < CasePoint.DoubleNames.Length; p++)
@@ -38,6 +44,10 @@ internal sealed class Interpreter
 
         _ints["k"] = point.K;
     }
+
+    /// <summary>d[index]: a constant, or a variable when the data is a vector of variables.</summary>
+    private Jet Element(int index) =>
+        _dataIsVariable ? Jet.Variable(_data[index], _dataOffset + index, _n) : Jet.Constant(_data[index], _n);
 
     private static int IndexOf(IReadOnlyList<string> list, string name)
     {
@@ -107,9 +117,9 @@ internal sealed class Interpreter
                 return taken ? Execute(f.WhenTrue) : f.WhenFalse is null ? null : Execute(f.WhenFalse);
             }
             case Loop { Kind: LoopKind.ForEach } l:
-                foreach (double element in _data)
+                for (int e = 0; e < _data.Length; e++)
                 {
-                    _doubles[l.Index] = Jet.Constant(element, _n);
+                    _doubles[l.Index] = Element(e);
                     Jet? r = Execute(l.Body);
                     if (r is not null)
                     {
@@ -164,7 +174,7 @@ internal sealed class Interpreter
                 operands = Array.Empty<double>();
                 break;
             case DataRef d:
-                result = Jet.Constant(_data[Eval(d.Index)], _n);
+                result = Element(Eval(d.Index));
                 operands = Array.Empty<double>();
                 break;
             case IntAsDouble i:

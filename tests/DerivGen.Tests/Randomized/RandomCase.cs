@@ -88,10 +88,23 @@ internal sealed class RandomCase
     /// <summary>The method as C#, named <paramref name="name"/>.</summary>
     public string MethodSource(string name)
     {
-        var sb = new StringBuilder();
         string attribute = NamesAllVariables
             ? Hessian ? "[Differentiate]" : "[Differentiate(Hessian = false)]"
             : "[Differentiate(" + string.Join(", ", Variables.Select(v => "nameof(" + v + ")")) + (Hessian ? "" : ", Hessian = false") + ")]";
+        return MethodSource(name, attribute);
+    }
+
+    /// <summary>
+    /// The variant with a vector of variables: the same method with the data <c>d</c> named as a vector variable too
+    /// (gradient only), so that every read of <c>d</c> is differentiated; its gradient is checked against the same
+    /// reference run with d's elements as variables.
+    /// </summary>
+    public string VectorVariantSource(string name) =>
+        MethodSource(name, "[Differentiate(" + string.Join(", ", Variables.Select(v => "nameof(" + v + ")").Append("nameof(d)")) + ", Hessian = false)]");
+
+    private string MethodSource(string name, string attribute)
+    {
+        var sb = new StringBuilder();
         sb.Append("    ").Append(attribute).Append('\n');
         sb.Append("    public static double ").Append(name).Append("(double x0, double x1, double x2, double c0, double c1, int k, double[] d)");
         if (ExpressionBodied && Body is [Return { Condition: null } only])
@@ -153,5 +166,5 @@ internal sealed class RandomCase
 
     /// <summary>What a failure report shows: the method (as a complete, compilable unit) and the point.</summary>
     public string Describe(string name = "M") =>
-        $"// seed {Seed}; {Family}; variables ({string.Join(", ", Variables)}); at\n//   {string.Join("\n//   ", Points.Select(p => p.ToString()))}\n" + Unit(new[] { MethodSource(name) }.Concat(OutputVariantSource(name + "Out") is { } variant ? new[] { variant } : Array.Empty<string>()));
+        $"// seed {Seed}; {Family}; variables ({string.Join(", ", Variables)}); at\n//   {string.Join("\n//   ", Points.Select(p => p.ToString()))}\n" + Unit(new[] { MethodSource(name), VectorVariantSource(name + "Vec") }.Concat(OutputVariantSource(name + "Out") is { } variant ? new[] { variant } : Array.Empty<string>()));
 }

@@ -1,0 +1,105 @@
+using System;
+using DerivGen.Tests.Infrastructure;
+using Xunit;
+
+namespace DerivGen.Tests.Numerics;
+
+public sealed class GuardedVectorReadFixture : CompiledFixture
+{
+    // Minimal reproductions of a generator bug the randomised tests found once the data became a vector of variables
+    // (seed 3-NZoWKxGlRGWNb13): a read of w[3] guarded by 3 < w.Length had its derivative added to gradient[3]
+    // unconditionally, so for a shorter w the generated method threw IndexOutOfRangeException (or, where the gradient
+    // span is longer, would have written another variable's entry).
+    public const string Source = """
+        using System;
+        using DerivGen;
+
+        public static partial class Guarded
+        {
+            [Differentiate(nameof(x), nameof(w), Hessian = false)]
+            public static double ReadIfPresent(double x, double[] w) => x * (3 < w.Length ? w[3] : -2.5) + w[0];
+
+            // The same read inside a loop that is replayed (reverse mode over the inner loop) where it is unguarded.
+            [Differentiate(nameof(w), Hessian = false)]
+            public static double GuardedInInnerLoop(double[] w, double[,] x, int skip)
+            {
+                double total = 0;
+                for (int i = 0; i < x.GetLength(0); i++)
+                {
+                    double z = 0;
+                    for (int j = 0; j < x.GetLength(1); j++)
+                    {
+                        z += (j + skip < w.Length ? w[j + skip] : 0) * x[i, j];
+                    }
+
+                    total += z * z;
+                }
+
+                return total;
+            }
+        }
+        """;
+
+    public GuardedVectorReadFixture()
+        : base(Source)
+    {
+    }
+}
+
+/// <summary>Derivatives of guarded reads of a vector variable, against partials derived by hand.</summary>
+public sealed class GuardedVectorReadTests : IClassFixture<GuardedVectorReadFixture>
+{
+    private readonly GuardedVectorReadFixture _fixture;
+
+    public GuardedVectorReadTests(GuardedVectorReadFixture fixture) => _fixture = fixture;
+
+    private delegate double ReadIfPresentG(double x, double[] w, Span<double> gradient);
+
+    private delegate double InnerLoopG(double[] w, double[,] x, int skip, Span<double> gradient);
+
+    [Fact]
+    public void AGuardedReadOfAMissingElementContributesNothingAndDoesNotThrow()
+    {
+        var g = _fixture.Assembly.Method<ReadIfPresentG>("Guarded", "ReadIfPresentGradient");
+
+        // w has 3 elements: w[3] is not read; f = −2.5·x + w[0], so ∂f/∂x = −2.5, ∂f/∂w = (1, 0, 0).
+        var gradient = new double[4];
+        Assert.Equal((-2.5 * 2.0) + 0.5, g(2.0, new[] { 0.5, 1.0, 1.5 }, gradient));
+        Assert.Equal(new[] { -2.5, 1.0, 0.0, 0.0 }, gradient);
+
+        // w has 4 elements: f = x·w[3] + w[0], so ∂f/∂x = w[3], ∂f/∂w = (1, 0, 0, x).
+        gradient = new double[5];
+        Assert.Equal((2.0 * 4.0) + 0.5, g(2.0, new[] { 0.5, 1.0, 1.5, 4.0 }, gradient));
+        Assert.Equal(new[] { 4.0, 1.0, 0.0, 0.0, 2.0 }, gradient);
+    }
+
+    /// <summary>T = Σᵢ zᵢ², zᵢ = Σⱼ w[j+s]·xᵢⱼ over the j with j + s &lt; w.Length: ∂T/∂w[j+s] = 2Σᵢ zᵢxᵢⱼ (by hand).</summary>
+    [Fact]
+    public void AGuardedReadInAnInnerLoopMatchesTheHandDerivedGradient()
+    {
+        var g = _fixture.Assembly.Method<InnerLoopG>("Guarded", "GuardedInInnerLoopGradient");
+        double[] w = { 0.5, -1.0, 2.0 };
+        double[,] x = { { 1, 2, 3 }, { -0.5, 0.25, 4 } };
+        const int skip = 1;
+        var expected = new double[w.Length];
+        double total = 0;
+        for (int i = 0; i < x.GetLength(0); i++)
+        {
+            double z = 0;
+            for (int j = 0; j + skip < w.Length; j++)
+            {
+                z += w[j + skip] * x[i, j];
+            }
+
+            total += z * z;
+            for (int j = 0; j + skip < w.Length; j++)
+            {
+                expected[j + skip] += 2 * z * x[i, j];
+            }
+        }
+
+        var gradient = new double[w.Length];
+        Check.Close(total, g(w, x, skip, gradient), 1e-15, 0, "value");
+        Check.Close(expected, gradient, 1e-14, 1e-14, "gradient vs hand-derived");
+    }
+}
