@@ -1012,10 +1012,22 @@ internal static class DerivativeEmitter
 
                         if (singleWrite.TryGetValue(d.VectorNames[v], out int stride))
                         {
-                            // Assigned once each by the loop: only the elements after its last pair (or triple, …) are cleared.
-                            writer.Line(stride > 1
-                                ? d.VectorNames[v] + ".Slice(" + stride + " * (" + code.Write(loop.End!) + ")).Clear(); // the loop assigns each element before these exactly once"
-                                : "// " + d.VectorNames[v] + " is not cleared: the loop assigns each element exactly once");
+                            // Assigned once each by the loop: only the elements after its last pair (or triple, …) are cleared,
+                            // by a loop of fewer than `stride` iterations rather than a call of Span.Clear.
+                            if (stride == 1)
+                            {
+                                writer.Line("// " + d.VectorNames[v] + " is not cleared: the loop assigns each element exactly once");
+                            }
+                            else
+                            {
+                                using (writer.Block("for (int " + element + " = " + stride + " * (" + code.Write(loop.End!) + "); " + element + " < " + Length(v) + "; "
+                                    + element + "++) // the loop below assigns each element before these exactly once"))
+                                {
+                                    writer.Line(d.VectorNames[v] + "[" + element + "] = " + code.Write(program.Builder.Zero(context.Spec.ReturnType)) + ";");
+                                }
+
+                                writer.Blank();
+                            }
 
                             continue;
                         }

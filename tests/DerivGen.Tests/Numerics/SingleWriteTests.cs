@@ -127,14 +127,14 @@ public sealed class SingleWriteTests : IClassFixture<SingleWriteFixture>
     private string Text(string method) => _fixture.Run.Source("Single." + method + ".g.cs");
 
     [Theory]
-    [InlineData("ExtendedRosenbrock", "dF_dX.Slice(2 * (x.Length / 2)).Clear();")]
-    [InlineData("Triples", "dF_dX.Slice(3 * (x.Length / 3)).Clear();")]
+    [InlineData("ExtendedRosenbrock", "for (int k = 2 * (x.Length / 2); k < x.Length; k++)")]
+    [InlineData("Triples", "for (int k = 3 * (x.Length / 3); k < x.Length; k++)")]
     [InlineData("Squares", "// dF_dX is not cleared")]
     public void SingleWriteShapesAssignTheGradient(string method, string clear)
     {
         string text = Text(method);
         Assert.Contains(clear, text, StringComparison.Ordinal);
-        Assert.DoesNotContain("dF_dX.Clear();", text, StringComparison.Ordinal);
+        Assert.DoesNotContain(".Clear();", text, StringComparison.Ordinal);
         Assert.DoesNotContain("] += ", text, StringComparison.Ordinal);
         Assert.Contains("dF_dX[", text, StringComparison.Ordinal);
     }
