@@ -137,6 +137,21 @@ internal sealed class DerivativeProgram
 
         ProgramGraph graph = ProgramGraph.Build(builder, spec, index, vectorIndex);
 
+        // Loop-carried locals that do not depend on the variables (a power of the data, a counter kept in a double) get no
+        // running derivatives: the graph is built again with them inactive, in a fresh builder, and kept only if the
+        // nodes' own activity confirms it.
+        HashSet<string> passive = ProgramGraph.PassiveStates(graph);
+        if (passive.Count > 0)
+        {
+            var passiveBuilder = new ExpressionBuilder(cancellationToken);
+            ProgramGraph passiveGraph = ProgramGraph.Build(passiveBuilder, spec, index, vectorIndex, passive);
+            if (passiveGraph.ArePassive(passive))
+            {
+                builder = passiveBuilder;
+                graph = passiveGraph;
+            }
+        }
+
         // Names for the running derivatives, clear of every parameter and local of the method.
         var taken = new HashSet<string>(spec.Parameters.Select(p => Identifiers.Unescape(p.Name)), StringComparer.Ordinal) { "gradient", "hessian", "value" };
         foreach (LoopState state in graph.Loops.SelectMany(l => l.States))

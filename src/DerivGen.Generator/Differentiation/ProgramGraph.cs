@@ -139,12 +139,15 @@ internal sealed class ProgramGraph
     private LoopSegment? _currentLoop;
     private int _stage;
     private int _stageCount;
+    private readonly ISet<string>? _passive;
 
-    private ProgramGraph(ExpressionBuilder builder, IReadOnlyDictionary<string, int> variableIndex, IReadOnlyDictionary<string, int> vectorIndex)
+    private ProgramGraph(ExpressionBuilder builder, IReadOnlyDictionary<string, int> variableIndex, IReadOnlyDictionary<string, int> vectorIndex,
+        ISet<string>? passive)
     {
         _builder = builder;
         _variableIndex = variableIndex;
         _vectorIndex = vectorIndex;
+        _passive = passive;
     }
 
     /// <summary>Every loop of the method, outer loops before the loops nested in them, in emission order.</summary>
@@ -161,10 +164,15 @@ internal sealed class ProgramGraph
     /// <summary>The writes of a method with outputs, in source order (empty for a method that returns its value).</summary>
     public IReadOnlyList<OutputWrite> Outputs => _outputs;
 
+    /// <summary>
+    /// Builds the graph. <paramref name="passive"/> names loop-carried locals (by <see cref="StateKey"/>) known not to
+    /// depend on the variables (see <see cref="PassiveStates"/>): their leaves are built inactive, so they get no
+    /// running derivatives at all.
+    /// </summary>
     public static ProgramGraph Build(ExpressionBuilder builder, MethodSpec spec, IReadOnlyDictionary<string, int> variableIndex,
-        IReadOnlyDictionary<string, int> vectorIndex)
+        IReadOnlyDictionary<string, int> vectorIndex, ISet<string>? passive = null)
     {
-        var graph = new ProgramGraph(builder, variableIndex, vectorIndex);
+        var graph = new ProgramGraph(builder, variableIndex, vectorIndex, passive);
         CollectLocalNames(spec.Body, graph._displayNames);
         var locals = new Dictionary<string, Node>(StringComparer.Ordinal);
         graph.Run(spec.Body, locals);
@@ -179,6 +187,87 @@ internal sealed class ProgramGraph
         }
 
         return graph;
+    }
+
+    /// <summary>Identifies a loop-carried local across two builds of one method: the loop's number and the local's name.</summary>
+    public static string StateKey(int loopOrdinal, string name) => loopOrdinal.ToString(System.Globalization.CultureInfo.InvariantCulture) + ":" + name;
+
+    /// <summary>
+    /// The floating-point loop-carried locals whose value does not depend on the variables (e.g. <c>power *= t[i]</c>),
+    /// by <see cref="StateKey"/>. A graph is built with every such local active, because its update is only known after
+    /// the loop body; this finds the least fixed point: a local is active when its initial value or its update reads a
+    /// variable or an active local (coupled recurrences included), starting from none.
+    /// </summary>
+    public static HashSet<string> PassiveStates(ProgramGraph graph)
+    {
+        var stateOfLeaf = new Dictionary<Node, LoopState>();
+        var keys = new Dictionary<LoopState, string>();
+        for (int l = 0; l < graph._loops.Count; l++)
+        {
+            foreach (LoopState state in graph._loops[l].States.Where(s => s.IsActive))
+            {
+                stateOfLeaf[state.Current] = state;
+                stateOfLeaf[state.Final] = state;
+                keys[state] = StateKey(l, state.Name);
+            }
+        }
+
+        // Children have smaller ids than their parents: one pass in id order evaluates every node after its arguments.
+        Node[] nodes = Graph.Reachable(keys.Keys.SelectMany(s => new[] { s.Initial, s.Next })).OrderBy(n => n.Id).ToArray();
+        var active = new HashSet<LoopState>();
+        bool grew = true;
+        while (grew)
+        {
+            grew = false;
+            var depends = new HashSet<Node>();
+            foreach (Node node in nodes)
+            {
+                bool d;
+                if (node.Type is ScalarType.Int32 or ScalarType.Boolean)
+                {
+                    d = false;                                   // flat, as in Node.DependsOnVariables
+                }
+                else if (stateOfLeaf.TryGetValue(node, out LoopState? of))
+                {
+                    d = active.Contains(of);
+                }
+                else
+                {
+                    d = node.VariableIndex >= 0 || node.Kind == NodeKind.VariableElement || (node.IsLeaf && node.DependsOnVariables)
+                        || node.Arguments.Any(depends.Contains);
+                }
+
+                if (d)
+                {
+                    depends.Add(node);
+                }
+            }
+
+            foreach (LoopState state in keys.Keys.Where(s => !active.Contains(s) && (depends.Contains(s.Initial) || depends.Contains(s.Next))).ToList())
+            {
+                grew |= active.Add(state);
+            }
+        }
+
+        return new HashSet<string>(keys.Where(p => !active.Contains(p.Key)).Select(p => p.Value), StringComparer.Ordinal);
+    }
+
+    /// <summary>True when every local named in <paramref name="passive"/> was built inactive and stays so: its initial value
+    /// and its update depend on no variable (checked with the nodes' own activity, so the analysis above is only a guess).</summary>
+    public bool ArePassive(ISet<string> passive)
+    {
+        for (int l = 0; l < _loops.Count; l++)
+        {
+            foreach (LoopState state in _loops[l].States.Where(s => passive.Contains(StateKey(l, s.Name))))
+            {
+                if (state.IsActive || state.Initial.DependsOnVariables || state.Next.DependsOnVariables)
+                {
+                    return false;
+                }
+            }
+        }
+
+        return true;
     }
 
     private void Run(EquatableArray<IrStatement> statements, Dictionary<string, Node> locals)
@@ -322,6 +411,7 @@ internal sealed class ProgramGraph
     {
         var segment = new LoopSegment(index, start is null ? null : Build(start, locals), end is null ? null : Build(end, locals), inclusive,
             _currentLoop, _stage, ++_stageCount);
+        int ordinal = _loops.Count;
         _loops.Add(segment);
         (_currentLoop?.Children ?? _topLevel).Add(segment);
         int inside = segment.InsideStage;
@@ -338,7 +428,7 @@ internal sealed class ProgramGraph
         foreach (string name in assigned.Where(locals.ContainsKey).OrderBy(n => n, StringComparer.Ordinal))
         {
             Node initial = locals[name];
-            bool active = initial.Type is ScalarType.Double or ScalarType.Single;
+            bool active = (initial.Type is ScalarType.Double or ScalarType.Single) && _passive?.Contains(StateKey(ordinal, name)) != true;
             var state = new LoopState(name, initial.Type, initial, _builder.StageLeaf(name, initial.Type, inside, active));
             if (initial.LocalName == name)
             {

@@ -911,6 +911,26 @@ internal static class DerivativeEmitter
             }
         }
 
+        // A span whose loop writes each element exactly once (SingleWriteLoop) is assigned, not cleared and added to.
+        var singleWrite = new Dictionary<string, int>(StringComparer.Ordinal);
+        foreach (LoopSegment loop in program.Loops)
+        {
+            foreach (LoopState state in loop.States)
+            {
+                if (program.States.TryGetValue(state, out StateDerivatives? d))
+                {
+                    for (int v = 0; v < d.VectorNames.Length; v++)
+                    {
+                        int stride = UpdatesInPlace(loop, d, v) ? SingleWriteLoop.Stride(program, loop, d, v, Length(v), replayed) : 0;
+                        if (stride > 0)
+                        {
+                            singleWrite[d.VectorNames[v]] = stride;
+                        }
+                    }
+                }
+            }
+        }
+
         bool UpdatesInPlace(LoopSegment loop, StateDerivatives d, int v)
         {
             // In place when the span carries on with factor 1 and no other update at the end of the same loop reads it.
@@ -1016,6 +1036,28 @@ internal static class DerivativeEmitter
                             continue;
                         }
 
+                        if (singleWrite.TryGetValue(d.VectorNames[v], out int stride))
+                        {
+                            // Assigned once each by the loop: only the elements after its last pair (or triple, …) are cleared,
+                            // by a loop of fewer than `stride` iterations rather than a call of Span.Clear.
+                            if (stride == 1)
+                            {
+                                writer.Line("// " + d.VectorNames[v] + " is not cleared: the loop assigns each element exactly once");
+                            }
+                            else
+                            {
+                                using (writer.Block("for (int " + element + " = " + stride + " * (" + code.Write(loop.End!) + "); " + element + " < " + Length(v) + "; "
+                                    + element + "++) // the loop below assigns each element before these exactly once"))
+                                {
+                                    writer.Line(d.VectorNames[v] + "[" + element + "] = " + code.Write(program.Builder.Zero(context.Spec.ReturnType)) + ";");
+                                }
+
+                                writer.Blank();
+                            }
+
+                            continue;
+                        }
+
                         var terms = d.InitialVector.Where(t => t.Vector == v).ToList();
                         if (!(terms.Count == 1 && terms[0].SourceSpan == d.VectorNames[v] && terms[0].Coefficient.IsConstant(1)))
                         {
@@ -1054,6 +1096,13 @@ internal static class DerivativeEmitter
                     if (before)
                     {
                         AddTerms(own, string.Empty, terms, null); // cleared by WriteVectorClears
+                    }
+                    else if (singleWrite.ContainsKey(own))
+                    {
+                        foreach (VectorTerm term in terms.Where(t => t.Index is not null))
+                        {
+                            writer.Line(own + "[" + code.Write(term.Index!) + "] = " + code.Write(term.Coefficient) + ";");
+                        }
                     }
                     else if (UpdatesInPlace(loop, d, v))
                     {
