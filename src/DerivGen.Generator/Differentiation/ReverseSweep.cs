@@ -136,10 +136,17 @@ internal static class ReverseSweep
                 Node contribution = IsFiniteConstant(partial) ? b.Multiply(adjoint, partial) : Selected(b.Multiply(adjoint, partial));
                 adjoints[argument] = adjoints.TryGetValue(argument, out Node? sum) ? b.Add(sum, contribution) : contribution;
 
-                // The argument is evaluated where this node is, and for a side of a selection only where it is taken.
-                Node? argumentGuard = node.Kind != NodeKind.Select ? guard
-                    : i == 1 ? Guards.And(b, guard, node.Arguments[0])
-                    : Guards.And(b, guard, Guards.Not(b, node.Arguments[0]));
+                // The argument is evaluated where this node is, and for a side of a selection only where it is taken
+                // (either side, when it is both: c ? s : s).
+                Node? argumentGuard = guard;
+                if (node.Kind == NodeKind.Select)
+                {
+                    bool onTrueSide = node.Arguments[1] == argument, onFalseSide = node.Arguments[2] == argument;
+                    Node? whenTrue = onTrueSide ? Guards.And(b, guard, node.Arguments[0]) : null;
+                    Node? whenFalse = onFalseSide ? Guards.And(b, guard, Guards.Not(b, node.Arguments[0])) : null;
+                    argumentGuard = !onFalseSide ? whenTrue : !onTrueSide ? whenFalse : Guards.Or(b, whenTrue, whenFalse);
+                }
+
                 guards[argument] = guards.TryGetValue(argument, out Node? other) ? Guards.Or(b, other, argumentGuard) : argumentGuard;
             }
         }
