@@ -79,6 +79,26 @@ public sealed class OpenBugFixture : CompiledFixture
             [Differentiate(nameof(x))]
             public static double InfiniteTangentOnTheSideNotTaken(double x, int k) => k > 0 ? Math.Sin(x / 0.0) : x * x;
 
+            // Found by a soak run once guarded reads were generated again: a derivative written inline (it reads a guarded
+            // value) read the running derivative of s after the second loop had changed it, instead of a copy.
+            [Differentiate(nameof(x))]
+            public static double GuardedReadAfterTwoLoops(double x, double[] d, int k)
+            {
+                double s = x;
+                for (int i = 0; i < d.Length; i++)
+                {
+                    s = s * x;
+                }
+
+                double w = s / 3.0;
+                for (int j = 0; j < k; j++)
+                {
+                    s = Math.Sin(x);
+                }
+
+                return (2 < d.Length ? d[2] : -2.5) / (w * x);
+            }
+
             // Found by a soak run while fixing the above: a selection with the same value on both sides (c ? s : s) must
             // pass its derivative on whichever side is taken (the guard of s is "c or not c", not "c").
             [Differentiate(nameof(x))]
@@ -248,6 +268,24 @@ public sealed class OpenBugRegressionTests : IClassFixture<OpenBugFixture>
         Check.Close(new[] { (-1 / Math.Sqrt(x)) + (2 * y) }, gradient, Check.ClosedFormRelative, 1e-15, "two sides taken: gradient");
         Check.Close(new[] { (-1 / (2 * Math.Pow(x, 1.5))) + 2 }, hessian, Check.ClosedFormRelative, 1e-15, "two sides taken: Hessian");
     }
+
+    [Theory]
+    [InlineData(0.8, 2)]
+    [InlineData(1.3, 0)]
+    public void GuardedReadAfterTwoLoops(double x, int k)
+    {
+        // d has 3 elements: s = x⁴ after the first loop, w = x⁴/3, f = 3 d₂ / x⁵, f' = −15 d₂ / x⁶, f'' = 90 d₂ / x⁷
+        // (plain calculus); the second loop changes s but not f.
+        double[] d = { 0.5, 0.25, 1.5 };
+        var h = _fixture.Assembly.Method<HData>("Open", "GuardedReadAfterTwoLoopsHessian");
+        var gradient = new double[1];
+        var hessian = new double[1];
+        h(x, d, k, gradient, hessian);
+        Check.Close(new[] { -15 * d[2] / Math.Pow(x, 6) }, gradient, Check.ClosedFormRelative, 1e-15, "GuardedReadAfterTwoLoops gradient");
+        Check.Close(new[] { 90 * d[2] / Math.Pow(x, 7) }, hessian, Check.ClosedFormRelative, 1e-15, "GuardedReadAfterTwoLoops Hessian");
+    }
+
+    private delegate double HData(double x, double[] d, int k, Span<double> gradient, Span<double> hessian);
 
     [Theory]
     [InlineData(0.5)]
