@@ -70,7 +70,8 @@ internal static class ReverseSweep
         // selections on the paths from the output to it. Where a node's guard is false its adjoint is 0, but its local
         // partials are read at values the method never computes (x / 0.0 on the side of a ?: not taken): an infinite
         // or NaN partial times that zero would be NaN. So each contribution a guarded node passes on is selected by the
-        // guard (guard ? adjoint·partial : 0), never multiplied by a zero — unless its form already selects it.
+        // guard (guard ? adjoint·partial : 0), never multiplied by a zero — unless its form already selects it, or the
+        // partial is a finite constant (the adjoint is exactly 0 wherever the guard is false, as every contribution is).
         var guards = new Dictionary<Node, Node?> { [output] = null };
         foreach (Node node in Graph.Reachable(new[] { output }).Where(n => n.DependsOnVariables).OrderByDescending(n => n.Id))
         {
@@ -134,19 +135,32 @@ internal static class ReverseSweep
                     continue;
                 }
 
-                Node contribution = Selected(b.Multiply(adjoint, partial));
+                // A finite constant partial (±1 of a sum, the 1 or 0 of a selection's side) times an adjoint that is 0
+                // where the guard is false stays 0 there: only other partials need the selection.
+                Node contribution = IsFiniteConstant(partial) ? b.Multiply(adjoint, partial) : Selected(b.Multiply(adjoint, partial));
                 adjoints[argument] = adjoints.TryGetValue(argument, out Node? sum) ? b.Add(sum, contribution) : contribution;
 
-                // The argument is evaluated where this node is, and for a side of a selection only where it is taken.
-                Node? argumentGuard = node.Kind != NodeKind.Select ? guard
-                    : i == 1 ? Guards.And(b, guard, node.Arguments[0])
-                    : Guards.And(b, guard, Guards.Not(b, node.Arguments[0]));
+                // The argument is evaluated where this node is, and for a side of a selection only where it is taken
+                // (either side, when it is both: c ? s : s).
+                Node? argumentGuard = guard;
+                if (node.Kind == NodeKind.Select)
+                {
+                    bool onTrueSide = node.Arguments[1] == argument, onFalseSide = node.Arguments[2] == argument;
+                    Node? whenTrue = onTrueSide ? Guards.And(b, guard, node.Arguments[0]) : null;
+                    Node? whenFalse = onFalseSide ? Guards.And(b, guard, Guards.Not(b, node.Arguments[0])) : null;
+                    argumentGuard = !onFalseSide ? whenTrue : !onTrueSide ? whenFalse : Guards.Or(b, whenTrue, whenFalse);
+                }
+
                 guards[argument] = guards.TryGetValue(argument, out Node? other) ? Guards.Or(b, other, argumentGuard) : argumentGuard;
             }
         }
 
         return gradient;
     }
+
+    private static bool IsFiniteConstant(Node node) =>
+        (node.Kind == NodeKind.Constant && !double.IsNaN(node.Value) && !double.IsInfinity(node.Value))
+        || (node.Kind == NodeKind.Select && IsFiniteConstant(node.Arguments[1]) && IsFiniteConstant(node.Arguments[2]));
 }
 
 /// <summary>

@@ -607,6 +607,34 @@ internal static class DerivativeEmitter
                 && (node == program.Value || node.LocalName is not null || uses[node] >= 2 || hoisted.Contains(node) || gradientBuffer.ContainsKey(node))))
             .OrderBy(node => node.Id)
             .ToList();
+
+        // A node without a local is written where its user is (inline): a loop-carried local it reads may have been
+        // updated by a loop in between there too, so the same copy is taken (a derivative that reads a guarded value).
+        var temporarySet = new HashSet<Node>(temporaries);
+        var inline = new Stack<(Node Node, int Stage)>(roots.Where(r => !temporarySet.Contains(r.Node)).Concat(temporaries.Select(t => (t, t.Stage))));
+        var inlineSeen = new HashSet<(Node, int)>();
+        int snapshotCount = snapshots.Count;
+        while (inline.Count > 0)
+        {
+            (Node node, int stage) = inline.Pop();
+            foreach (Node argument in node.Arguments)
+            {
+                if (argument.IsLeaf)
+                {
+                    CheckSnapshot(argument, stage);
+                }
+                else if (!temporarySet.Contains(argument) && inlineSeen.Add((argument, stage)))
+                {
+                    inline.Push((argument, stage));
+                }
+            }
+        }
+
+        if (snapshots.Count > snapshotCount)
+        {
+            temporaries = temporaries.Concat(snapshots.Where(n => !temporarySet.Contains(n))).OrderBy(node => node.Id).ToList();
+        }
+
         if (gradientBuffer.Keys.Any(call => !temporaries.Contains(call)))
         {
             throw new InvalidOperationException("A call whose derivatives are needed is only evaluated under a condition that guards a throwing operation.");

@@ -39,6 +39,10 @@ internal sealed class HelperContext
 
     /// <summary>The methods being lowered, outermost first: a call back into one of them is recursion.</summary>
     public List<IMethodSymbol> Chain { get; } = new();
+
+    /// <summary>Why the method could not be lowered, where that may depend on the thread's stack (so the analyzer, on
+    /// another thread, may not report it): the generator then writes an #error file instead of nothing.</summary>
+    public string? Failure { get; set; }
 }
 
 /// <summary>
@@ -83,6 +87,12 @@ internal static class MethodParser
             HashSet<string> variables = SelectVariables(method, attribute, emitHessian, diagnostics, syntax.Identifier.GetLocation(), cancellationToken);
             MethodSpec? spec = LowerCore(method, syntax, emitHessian, variables, semanticModel, helpers, diagnostics, cancellationToken);
             bool hasErrors = diagnostics.Any(d => d.IsError);
+            if (helpers.Failure is { } failure && hasErrors)
+            {
+                return new LoweringResult(null, diagnostics.ToEquatableArray(), EquatableArray<HelperRequest>.Empty, HintName(method),
+                    method.ToDisplayString(HeaderFormat) + " (" + failure + ")");
+            }
+
             return new LoweringResult(hasErrors ? null : spec, diagnostics.ToEquatableArray(),
                 hasErrors ? EquatableArray<HelperRequest>.Empty
                     : helpers.Requests.OrderBy(p => p.Key, StringComparer.Ordinal).Select(p => new HelperRequest(p.Key, p.Value)).ToEquatableArray());
@@ -230,6 +240,13 @@ internal static class MethodParser
             diagnostics.Add(DiagnosticInfo.Create(DiagnosticDescriptors.UnsupportedConstruct, nameLocation,
                 "The method '" + method.Name + "' without a body", "DerivGen differentiates the body of the method it is applied to"));
         }
+        else if (returnType is (ScalarType.Double or ScalarType.Single) && ExpressionDepth(syntax, BodyLowerer.MaxDepth, cancellationToken) > BodyLowerer.MaxDepth)
+        {
+            // Refused from the syntax, before the compiler builds the operation tree: its builder recurses once per level
+            // and overflows a 1 MB stack (an editor's worker thread) at about 410 nested calls, a crash no code can catch.
+            diagnostics.Add(DiagnosticInfo.Create(DiagnosticDescriptors.UnsupportedConstruct, nameLocation,
+                "An expression nested more than " + BodyLowerer.MaxDepth.ToString(System.Globalization.CultureInfo.InvariantCulture) + " levels deep", "split it into locals"));
+        }
         else if (returnType is (ScalarType.Double or ScalarType.Single))
         {
             if (semanticModel.GetOperation(syntax, cancellationToken) is IMethodBodyOperation { BlockBody: var block, ExpressionBody: var expression }
@@ -245,9 +262,11 @@ internal static class MethodParser
             }
             else
             {
-                // The compiler gave no operation tree for the body (it can stop binding a body nested too deeply).
+                // The compiler gave no operation tree for the body (it can stop binding a body nested too deeply). That can
+                // depend on the thread's stack, so the analyzer may not see it: the generator writes an #error too.
                 diagnostics.Add(DiagnosticInfo.Create(DiagnosticDescriptors.UnsupportedConstruct, nameLocation,
                     "The body of '" + method.Name + "'", "the compiler gave no analysable body (is it nested very deeply?); split it into locals"));
+                helpers.Failure ??= "the compiler gave no analysable body for '" + method.Name + "' (is it nested very deeply?); split it into locals";
             }
         }
 
@@ -333,6 +352,48 @@ internal static class MethodParser
     private static bool HasSinCos(Compilation compilation) =>
         compilation.GetTypeByMetadataName("System.Math")?.GetMembers("SinCos").Length > 0
         && compilation.GetTypeByMetadataName("System.MathF")?.GetMembers("SinCos").Length > 0;
+
+    /// <summary>
+    /// The deepest nesting of expressions in the method's body (each expression inside another counts one level), found
+    /// without recursion; stops counting once past <paramref name="limit"/>.
+    /// </summary>
+    internal static int ExpressionDepth(MethodDeclarationSyntax syntax, int limit, CancellationToken cancellationToken)
+    {
+        SyntaxNode? body = (SyntaxNode?)syntax.Body ?? syntax.ExpressionBody;
+        if (body is null)
+        {
+            return 0;
+        }
+
+        int deepest = 0;
+        var stack = new Stack<(SyntaxNode Node, int Depth)>();
+        stack.Push((body, 0));
+        while (stack.Count > 0)
+        {
+            (SyntaxNode node, int depth) = stack.Pop();
+            if ((stack.Count & 0xFFF) == 0)
+            {
+                cancellationToken.ThrowIfCancellationRequested();
+            }
+
+            foreach (SyntaxNode child in node.ChildNodes())
+            {
+                int childDepth = child is ExpressionSyntax ? depth + 1 : depth;
+                if (childDepth > deepest)
+                {
+                    deepest = childDepth;
+                    if (deepest > limit)
+                    {
+                        return deepest;
+                    }
+                }
+
+                stack.Push((child, childDepth));
+            }
+        }
+
+        return deepest;
+    }
 
     private static HashSet<string> SelectVariables(IMethodSymbol method, AttributeData attribute, bool emitHessian, List<DiagnosticInfo> diagnostics,
         Location nameLocation, CancellationToken cancellationToken)

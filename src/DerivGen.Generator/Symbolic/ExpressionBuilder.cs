@@ -279,14 +279,17 @@ internal sealed class ExpressionBuilder
 
         // Multiply inside a selection with a zero (or constant) branch: the zero of the branch not taken stays an
         // exact 0 even where the other factor is NaN or infinite there (√x differentiated in a branch guarded by x > 0).
+        // (Not folded to 0 · ∞ = NaN when the other factor is an infinite constant.)
         if (IsDistributableSelect(a))
         {
-            return Select(a.Arguments[0], Multiply(a.Arguments[1], b), Multiply(a.Arguments[2], b));
+            return Select(a.Arguments[0], a.Arguments[1].IsZero ? ZeroOf(a.Arguments[1], b) : Multiply(a.Arguments[1], b),
+                a.Arguments[2].IsZero ? ZeroOf(a.Arguments[2], b) : Multiply(a.Arguments[2], b));
         }
 
         if (IsDistributableSelect(b))
         {
-            return Select(b.Arguments[0], Multiply(a, b.Arguments[1]), Multiply(a, b.Arguments[2]));
+            return Select(b.Arguments[0], b.Arguments[1].IsZero ? ZeroOf(b.Arguments[1], a) : Multiply(a, b.Arguments[1]),
+                b.Arguments[2].IsZero ? ZeroOf(b.Arguments[2], a) : Multiply(a, b.Arguments[2]));
         }
 
         return Raw(NodeKind.Multiply, a.Type, a, b);
@@ -327,7 +330,8 @@ internal sealed class ExpressionBuilder
 
         if (IsDistributableSelect(a))
         {
-            return Select(a.Arguments[0], Divide(a.Arguments[1], b), Divide(a.Arguments[2], b));
+            return Select(a.Arguments[0], a.Arguments[1].IsZero ? ZeroOf(a.Arguments[1], b) : Divide(a.Arguments[1], b),
+                a.Arguments[2].IsZero ? ZeroOf(a.Arguments[2], b) : Divide(a.Arguments[2], b));
         }
 
         if (b.Kind == NodeKind.Negate)
@@ -452,6 +456,10 @@ internal sealed class ExpressionBuilder
     }
 
     // ---- Internals ----------------------------------------------------------------------------------------------
+
+    /// <summary>The zero side of a selection distributed over a product or quotient stays an exact 0 of the result's type
+    /// (never 0 · ∞ or 0 / 0 folded to NaN).</summary>
+    private Node ZeroOf(Node side, Node other) => Zero(Rank(side.Type) >= Rank(other.Type) ? side.Type : other.Type);
 
     /// <summary>The negation of a negative term (a constant k &lt; 0, or k·y), built directly as |k| or |k|·y.</summary>
     private Node PositiveTerm(Node node) => node.Kind == NodeKind.Constant

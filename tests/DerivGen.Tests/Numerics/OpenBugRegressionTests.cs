@@ -74,6 +74,40 @@ public sealed class OpenBugFixture : CompiledFixture
                 return (k > 0 ? Math.Sqrt(-y) : 1.0) + (k > 1 ? Math.Sqrt(-y) : 2.0) + x * x;
             }
 
+            // Found by a soak run: the second derivative of the side not taken folded 0 · ∞ into NaN (the tangent of
+            // x / 0.0 is the constant ∞, times the 0 of the side's selection).
+            [Differentiate(nameof(x))]
+            public static double InfiniteTangentOnTheSideNotTaken(double x, int k) => k > 0 ? Math.Sin(x / 0.0) : x * x;
+
+            // Found by a soak run once guarded reads were generated again: a derivative written inline (it reads a guarded
+            // value) read the running derivative of s after the second loop had changed it, instead of a copy.
+            [Differentiate(nameof(x))]
+            public static double GuardedReadAfterTwoLoops(double x, double[] d, int k)
+            {
+                double s = x;
+                for (int i = 0; i < d.Length; i++)
+                {
+                    s = s * x;
+                }
+
+                double w = s / 3.0;
+                for (int j = 0; j < k; j++)
+                {
+                    s = Math.Sin(x);
+                }
+
+                return (2 < d.Length ? d[2] : -2.5) / (w * x);
+            }
+
+            // Found by a soak run while fixing the above: a selection with the same value on both sides (c ? s : s) must
+            // pass its derivative on whichever side is taken (the guard of s is "c or not c", not "c").
+            [Differentiate(nameof(x))]
+            public static double SameValueOnBothSides(double x, double c)
+            {
+                double s = x * x;
+                return (c > 0 ? s : s) * 3;
+            }
+
             // Bug (found when the randomised suite generated untaken sides again): a local carried from one loop into the
             // next, changed in between, had its running derivative before the second loop computed from its new value
             // (z was assigned before dZ_dX = x * dZ_dX + z read it).
@@ -234,6 +268,54 @@ public sealed class OpenBugRegressionTests : IClassFixture<OpenBugFixture>
         Check.Close(new[] { (-1 / Math.Sqrt(x)) + (2 * y) }, gradient, Check.ClosedFormRelative, 1e-15, "two sides taken: gradient");
         Check.Close(new[] { (-1 / (2 * Math.Pow(x, 1.5))) + 2 }, hessian, Check.ClosedFormRelative, 1e-15, "two sides taken: Hessian");
     }
+
+    [Theory]
+    [InlineData(0.8, 2)]
+    [InlineData(1.3, 0)]
+    public void GuardedReadAfterTwoLoops(double x, int k)
+    {
+        // d has 3 elements: s = x⁴ after the first loop, w = x⁴/3, f = 3 d₂ / x⁵, f' = −15 d₂ / x⁶, f'' = 90 d₂ / x⁷
+        // (plain calculus); the second loop changes s but not f.
+        double[] d = { 0.5, 0.25, 1.5 };
+        var h = _fixture.Assembly.Method<HData>("Open", "GuardedReadAfterTwoLoopsHessian");
+        var gradient = new double[1];
+        var hessian = new double[1];
+        h(x, d, k, gradient, hessian);
+        Check.Close(new[] { -15 * d[2] / Math.Pow(x, 6) }, gradient, Check.ClosedFormRelative, 1e-15, "GuardedReadAfterTwoLoops gradient");
+        Check.Close(new[] { 90 * d[2] / Math.Pow(x, 7) }, hessian, Check.ClosedFormRelative, 1e-15, "GuardedReadAfterTwoLoops Hessian");
+    }
+
+    private delegate double HData(double x, double[] d, int k, Span<double> gradient, Span<double> hessian);
+
+    [Theory]
+    [InlineData(0.5)]
+    [InlineData(-2.0)]
+    public void InfiniteTangentOnTheSideNotTaken(double x)
+    {
+        // k = 0 takes x²: 2x and 2 (plain calculus); the second derivative was NaN.
+        var h = _fixture.Assembly.Method<HInt>("Open", "InfiniteTangentOnTheSideNotTakenHessian");
+        var gradient = new double[1];
+        var hessian = new double[1];
+        Assert.Equal(x * x, h(x, 0, gradient, hessian));
+        Assert.Equal(2 * x, gradient[0]);
+        Assert.Equal(2.0, hessian[0]);
+    }
+
+    [Theory]
+    [InlineData(0.5, 1.0)]
+    [InlineData(0.5, -1.0)]
+    public void SameValueOnBothSides(double x, double c)
+    {
+        // 3x² whatever c: 6x and 6 (plain calculus); the gradient was 0 where c ≤ 0.
+        var h = _fixture.Assembly.Method<HDouble>("Open", "SameValueOnBothSidesHessian");
+        var gradient = new double[1];
+        var hessian = new double[1];
+        Assert.Equal(3 * x * x, h(x, c, gradient, hessian));
+        Assert.Equal(6 * x, gradient[0]);
+        Assert.Equal(6.0, hessian[0]);
+    }
+
+    private delegate double HDouble(double x, double c, Span<double> gradient, Span<double> hessian);
 
     [Theory]
     [InlineData(1.5, 3)]
