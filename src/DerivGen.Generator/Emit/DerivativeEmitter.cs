@@ -1086,8 +1086,10 @@ internal static class DerivativeEmitter
                             continue;
                         }
 
+                        // A span that starts from its own value (a local carried on from an earlier loop, scaled in between)
+                        // is scaled in place by WriteVectorUpdates, not cleared.
                         var terms = d.InitialVector.Where(t => t.Vector == v).ToList();
-                        if (!(terms.Count == 1 && terms[0].SourceSpan == d.VectorNames[v] && terms[0].Coefficient.IsConstant(1)))
+                        if (!terms.Any(t => t.SourceSpan == d.VectorNames[v]))
                         {
                             writer.Line(d.VectorNames[v] + ".Clear();");
                         }
@@ -1123,7 +1125,23 @@ internal static class DerivativeEmitter
 
                     if (before)
                     {
-                        AddTerms(own, string.Empty, terms, null); // cleared by WriteVectorClears
+                        // Cleared by WriteVectorClears, unless it starts from its own value (carried on from an earlier loop):
+                        // then it is scaled in place first (own ← c · own), and the other contributions are added to it.
+                        var self = terms.Where(t => t.SourceSpan == own).ToList();
+                        if (self.Count > 1)
+                        {
+                            throw new InvalidOperationException("A running derivative starts from its own value through several terms.");
+                        }
+
+                        if (self.Count == 1 && !self[0].Coefficient.IsConstant(1))
+                        {
+                            using (writer.Block("for (int " + element + " = 0; " + element + " < " + Length(v) + "; " + element + "++)"))
+                            {
+                                writer.Line(own + "[" + element + "] *= " + code.Write(self[0].Coefficient) + ";");
+                            }
+                        }
+
+                        AddTerms(own, string.Empty, terms, own);
                     }
                     else if (singleWrite.ContainsKey(own))
                     {

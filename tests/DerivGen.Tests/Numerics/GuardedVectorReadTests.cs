@@ -19,6 +19,27 @@ public sealed class GuardedVectorReadFixture : CompiledFixture
             [Differentiate(nameof(x), nameof(w), Hessian = false)]
             public static double ReadIfPresent(double x, double[] w) => x * (3 < w.Length ? w[3] : -2.5) + w[0];
 
+            // Found the same way (seed 2yuzwNnzWm-u4u02): a sum carried from one loop into the next, scaled in between.
+            // Its running derivative with respect to w was cleared before the second loop and then "scaled" from the
+            // cleared values: a zero gradient.
+            [Differentiate(nameof(w), Hessian = false)]
+            public static double ScaledBetweenLoops(double[] w, double c)
+            {
+                double s = 0;
+                for (int i = 0; i < w.Length; i++)
+                {
+                    s += w[i];
+                }
+
+                s *= c;
+                for (int j = 0; j < 2; j++)
+                {
+                    s *= 1.5;
+                }
+
+                return s * s;
+            }
+
             // The same read inside a loop that is replayed (reverse mode over the inner loop) where it is unguarded.
             [Differentiate(nameof(w), Hessian = false)]
             public static double GuardedInInnerLoop(double[] w, double[,] x, int skip)
@@ -55,6 +76,8 @@ public sealed class GuardedVectorReadTests : IClassFixture<GuardedVectorReadFixt
 
     private delegate double ReadIfPresentG(double x, double[] w, Span<double> gradient);
 
+    private delegate double ScaledG(double[] w, double c, Span<double> gradient);
+
     private delegate double InnerLoopG(double[] w, double[,] x, int skip, Span<double> gradient);
 
     [Fact]
@@ -71,6 +94,19 @@ public sealed class GuardedVectorReadTests : IClassFixture<GuardedVectorReadFixt
         gradient = new double[5];
         Assert.Equal((2.0 * 4.0) + 0.5, g(2.0, new[] { 0.5, 1.0, 1.5, 4.0 }, gradient));
         Assert.Equal(new[] { 4.0, 1.0, 0.0, 0.0, 2.0 }, gradient);
+    }
+
+    /// <summary>f = (2.25·c·Σw)², so ∂f/∂wᵢ = 2·(2.25·c·Σw)·2.25·c for every i (by hand).</summary>
+    [Fact]
+    public void ASumScaledBetweenTwoLoopsKeepsItsGradient()
+    {
+        var g = _fixture.Assembly.Method<ScaledG>("Guarded", "ScaledBetweenLoopsGradient");
+        double[] w = { 0.5, -1.25, 2.0 };
+        const double c = 0.8;
+        double inner = 2.25 * c * (0.5 - 1.25 + 2.0);
+        var gradient = new double[3];
+        Check.Close(inner * inner, g(w, c, gradient), 1e-14, 0, "value");
+        Check.Close(new[] { 2 * inner * 2.25 * c, 2 * inner * 2.25 * c, 2 * inner * 2.25 * c }, gradient, 1e-14, 0, "gradient vs hand-derived");
     }
 
     /// <summary>T = Σᵢ zᵢ², zᵢ = Σⱼ w[j+s]·xᵢⱼ over the j with j + s &lt; w.Length: ∂T/∂w[j+s] = 2Σᵢ zᵢxᵢⱼ (by hand).</summary>
