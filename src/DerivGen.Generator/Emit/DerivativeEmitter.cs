@@ -537,7 +537,10 @@ internal static class DerivativeEmitter
         // A loop-invariant node that could throw and is used only inside or after loops is not computed ahead of them: a
         // loop that runs zero times must not throw where the user's code does not. It is written where it is used
         // (when it reads no loop-carried local, whose value would differ there).
-        foreach (Node node in reachable.Where(h => !usedAtOwnStage.Contains(h) && CanThrow(h) && !ReadsStageLeaf(h)))
+        // A loop index is the same wherever the node is written inside that loop (an inner loop's body included), so
+        // reading one does not prevent this; a loop-carried local does.
+        var loopIndices = new HashSet<string>(program.Loops.Where(l => l.Index is not null).Select(l => l.Index!), StringComparer.Ordinal);
+        foreach (Node node in reachable.Where(h => !usedAtOwnStage.Contains(h) && CanThrow(h) && !ReadsStageLeaf(h, loopIndices)))
         {
             unconditional.Remove(node);
         }
@@ -1345,8 +1348,9 @@ internal static class DerivativeEmitter
         || (node.Kind == NodeKind.Divide && node.Type == ScalarType.Int32)
         || (node.Kind == NodeKind.Call && node.Function is MathFunction.Clamp or MathFunction.Sign);
 
-    /// <summary>Whether the node reads a loop-carried local or a loop index (a leaf that stands for a value at a stage).</summary>
-    private static bool ReadsStageLeaf(Node node) => Graph.Reachable(new[] { node }).Any(n => n.IsLeaf && n.Stage > 0);
+    /// <summary>Whether the node reads a loop-carried local (a leaf that stands for a value at a stage, other than a loop index).</summary>
+    private static bool ReadsStageLeaf(Node node, HashSet<string> loopIndices) =>
+        Graph.Reachable(new[] { node }).Any(n => n.IsLeaf && n.Stage > 0 && !(n.Kind == NodeKind.Parameter && n.Type == ScalarType.Int32 && loopIndices.Contains(n.Text!)));
 
     /// <summary>
     /// Whether evaluating the node could throw where the user's code would not: it contains an operation that can throw

@@ -40,6 +40,23 @@ public sealed class GuardedVectorReadFixture : CompiledFixture
                 return s * s;
             }
 
+            // Found by the randomised suite (seed cb2B-AsuChLwFVBC): Clamp reading the outer loop's index, inside an inner
+            // loop that runs zero times, was computed ahead of the inner loop and threw (lo > hi) where the method does not.
+            [Differentiate(nameof(x))]
+            public static double ClampInAnInnerLoopThatDoesNotRun(double x, double[] lo)
+            {
+                double s = 0;
+                for (int i = 0; i < lo.Length; i++)
+                {
+                    for (int j = 1; j < lo.Length; j++)
+                    {
+                        s += Math.Atan(Math.Clamp(x, lo[i], x + 1));
+                    }
+                }
+
+                return s + x;
+            }
+
             // The same read inside a loop that is replayed (reverse mode over the inner loop) where it is unguarded.
             [Differentiate(nameof(w), Hessian = false)]
             public static double GuardedInInnerLoop(double[] w, double[,] x, int skip)
@@ -76,6 +93,8 @@ public sealed class GuardedVectorReadTests : IClassFixture<GuardedVectorReadFixt
 
     private delegate double ReadIfPresentG(double x, double[] w, Span<double> gradient);
 
+    private delegate double ClampH(double x, double[] lo, Span<double> gradient, Span<double> hessian);
+
     private delegate double ScaledG(double[] w, double c, Span<double> gradient);
 
     private delegate double InnerLoopG(double[] w, double[,] x, int skip, Span<double> gradient);
@@ -94,6 +113,19 @@ public sealed class GuardedVectorReadTests : IClassFixture<GuardedVectorReadFixt
         gradient = new double[5];
         Assert.Equal((2.0 * 4.0) + 0.5, g(2.0, new[] { 0.5, 1.0, 1.5, 4.0 }, gradient));
         Assert.Equal(new[] { 4.0, 1.0, 0.0, 0.0, 2.0 }, gradient);
+    }
+
+    [Fact]
+    public void ClampInAnInnerLoopThatRunsZeroTimesDoesNotThrow()
+    {
+        var h = _fixture.Assembly.Method<ClampH>("Guarded", "ClampInAnInnerLoopThatDoesNotRunHessian");
+        var gradient = new double[1];
+        var hessian = new double[1];
+
+        // One element: the inner loop never runs, so Clamp(x, 5, x + 1) with lo > hi is never called; f = x.
+        Assert.Equal(1.0, h(1.0, new[] { 5.0 }, gradient, hessian));
+        Assert.Equal(1.0, gradient[0]);
+        Assert.Equal(0.0, hessian[0]);
     }
 
     /// <summary>f = (2.25·c·Σw)², so ∂f/∂wᵢ = 2·(2.25·c·Σw)·2.25·c for every i (by hand).</summary>
