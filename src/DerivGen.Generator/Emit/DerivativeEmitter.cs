@@ -332,6 +332,12 @@ internal static class DerivativeEmitter
 
     private static string Sum(string offset, string index) => offset == "0" ? index : offset + " + " + index;
 
+    /// <summary>a + b as C# text: folded when both are int literals, without a "0 +" or "+ 0".</summary>
+    private static string Plus(string a, string b) =>
+        int.TryParse(a, NumberStyles.None, CultureInfo.InvariantCulture, out int x) && int.TryParse(b, NumberStyles.None, CultureInfo.InvariantCulture, out int y)
+            ? Count(x + y)
+            : b == "0" ? a : a == "0" ? b : a + " + " + b;
+
     private static string Parenthesized(string expression) => expression.Contains(" ") ? "(" + expression + ")" : expression;
 
     private static string Slot(string rowOffset, string n, string columnOffset) =>
@@ -758,7 +764,7 @@ internal static class DerivativeEmitter
                 string row;
                 if (output.Index.Kind == NodeKind.Constant && (program.Vectors.Length == 0 || output.Index.Value == 0))
                 {
-                    row = Count((int)output.Index.Value * n);
+                    row = Count((int)output.Index.Value * n); // a constant row start when n is known
                 }
                 else if (width == "1" && (output.Index.IsLeaf || nameOf.ContainsKey(output.Index)))
                 {
@@ -772,17 +778,15 @@ internal static class DerivativeEmitter
 
                 for (int k = 0; k < n; k++)
                 {
-                    string at = output.Index.Kind == NodeKind.Constant && program.Vectors.Length == 0 ? Count(((int)output.Index.Value * n) + k)
-                        : context.ScalarOffset[k] == "0" ? row : row + " + " + context.ScalarOffset[k];
-
-                    writer.Line(context.JacobianName + "[" + at + "] = " + code.Write(output.Row[k]) + "; // ∂" + element + "/∂" + Identifiers.Unescape(program.Variables[k]));
+                    writer.Line(context.JacobianName + "[" + Plus(row, context.ScalarOffset[k]) + "] = " + code.Write(output.Row[k]) + "; // ∂" + element + "/∂"
+                        + Identifiers.Unescape(program.Variables[k]));
                 }
 
                 // The vectors' part of the row: cleared, then each contribution added (a read of w[j], or the running
                 // derivative of a carried local with respect to w).
                 for (int v = 0; v < program.Vectors.Length; v++)
                 {
-                    string offset = context.VectorOffset[v] == "0" ? row : row == "0" ? context.VectorOffset[v] : row + " + " + context.VectorOffset[v];
+                    string offset = Plus(row, context.VectorOffset[v]);
                     writer.Line(context.JacobianName + ".Slice(" + offset + ", " + program.Vectors[v] + ".Length).Clear(); // ∂" + element + "/∂"
                         + Identifiers.Unescape(program.Vectors[v]) + "[…]");
                     AddTerms(context.JacobianName, offset, output.VectorRow.Where(t => t.Vector == v), null);
@@ -897,6 +901,9 @@ internal static class DerivativeEmitter
         string element = names.Claim("k");
         string Length(int vector) => program.Vectors[vector] + ".Length";
 
+        // The guard of an update of a vector's entry read only under a condition: the index is in range.
+        string InRange(string index, int vector) => "if ((uint)" + Parenthesized(index) + " < (uint)" + Length(vector) + ")";
+
         // A vector's part of the gradient that is exactly one running-derivative span (factor 1) is accumulated in place:
         // the span is that slice of the gradient, so there is no buffer to allocate and nothing to copy at the end.
         var inGradient = new Dictionary<string, int>(StringComparer.Ordinal);
@@ -985,7 +992,7 @@ internal static class DerivativeEmitter
                         // The user's code reads w[i] only under a condition (i < w.Length ? w[i] : 0). Where it does not,
                         // the contribution is 0 (selected by that condition), but i may be out of range: the update is
                         // made only for an index in range, which is every index the user's code can have read.
-                        using (writer.Block("if ((uint)" + Parenthesized(code.Write(index)) + " < (uint)" + Length(term.Vector) + ")"))
+                        using (writer.Block(InRange(code.Write(index), term.Vector)))
                         {
                             writer.Line(update);
                         }
@@ -1032,7 +1039,7 @@ internal static class DerivativeEmitter
                 string update = target + "[" + at + again.Write(element.Index!) + "] += "
                     + (element.Coefficient.IsConstant(1) ? adjoint : unit ? again.Write(element.Coefficient) : adjoint + " * " + again.WriteFactor(element.Coefficient)) + ";";
                 return element.Element is { } read && !readAlways.Contains(read)
-                    ? "if ((uint)" + Parenthesized(again.Write(element.Index!)) + " < (uint)" + Length(element.Vector) + ") " + update
+                    ? InRange(again.Write(element.Index!), element.Vector) + " " + update
                     : update;
             }
             writer.Line("// " + target + " += " + adjoint + " · " + reversal.Span + ", " + reversal.Span + " not stored: the loop over " + loop.Index

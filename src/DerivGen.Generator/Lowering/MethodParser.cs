@@ -190,7 +190,7 @@ internal static class MethodParser
         if (output is not null)
         {
             emitHessian = false;
-            CheckOutputVariables(method, output, variables, nameLocation, diagnostics);
+            CheckOutputVariables(output, variables, nameLocation, diagnostics);
         }
 
         ScalarType? returnType = output is not null ? BodyLowerer.ScalarTypeOf(ElementType(output.Type)) : BodyLowerer.ScalarTypeOf(method.ReturnType);
@@ -311,8 +311,8 @@ internal static class MethodParser
             ? last
             : null;
 
-    /// <summary>The variables of a method with outputs: scalars only, and never the outputs themselves.</summary>
-    private static void CheckOutputVariables(IMethodSymbol method, IParameterSymbol output, HashSet<string> variables, Location nameLocation, List<DiagnosticInfo> diagnostics)
+    /// <summary>The variables of a method with outputs never include the outputs themselves.</summary>
+    private static void CheckOutputVariables(IParameterSymbol output, HashSet<string> variables, Location nameLocation, List<DiagnosticInfo> diagnostics)
     {
         if (variables.Contains(output.Name))
         {

@@ -86,12 +86,13 @@ internal sealed class RandomCase
     public RandomCase WithBody(Stmt[] body) => new(Family, body, ExpressionBodied, Variables, NamesAllVariables, Hessian, Points) { Seed = Seed };
 
     /// <summary>The method as C#, named <paramref name="name"/>.</summary>
-    public string MethodSource(string name)
+    public string MethodSource(string name) => MethodSource(name, Attribute(NamesAllVariables ? Array.Empty<string>() : Variables, Hessian));
+
+    /// <summary><c>[Differentiate(nameof(a), …)]</c> with <c>Hessian = false</c> unless <paramref name="hessian"/>; no names means all.</summary>
+    private static string Attribute(IEnumerable<string> names, bool hessian)
     {
-        string attribute = NamesAllVariables
-            ? Hessian ? "[Differentiate]" : "[Differentiate(Hessian = false)]"
-            : "[Differentiate(" + string.Join(", ", Variables.Select(v => "nameof(" + v + ")")) + (Hessian ? "" : ", Hessian = false") + ")]";
-        return MethodSource(name, attribute);
+        var arguments = names.Select(v => "nameof(" + v + ")").Concat(hessian ? Array.Empty<string>() : new[] { "Hessian = false" }).ToList();
+        return arguments.Count == 0 ? "[Differentiate]" : "[Differentiate(" + string.Join(", ", arguments) + ")]";
     }
 
     /// <summary>
@@ -100,7 +101,7 @@ internal sealed class RandomCase
     /// reference run with d's elements as variables.
     /// </summary>
     public string VectorVariantSource(string name) =>
-        MethodSource(name, "[Differentiate(" + string.Join(", ", Variables.Select(v => "nameof(" + v + ")").Append("nameof(d)")) + ", Hessian = false)]");
+        MethodSource(name, Attribute(Variables.Append("d"), hessian: false));
 
     private string MethodSource(string name, string attribute)
     {
@@ -142,7 +143,7 @@ internal sealed class RandomCase
         }
 
         var sb = new StringBuilder();
-        string attribute = NamesAllVariables ? "[Differentiate]" : "[Differentiate(" + string.Join(", ", Variables.Select(v => "nameof(" + v + ")")) + ")]";
+        string attribute = Attribute(NamesAllVariables ? Array.Empty<string>() : Variables, hessian: true); // Hessian is ignored with outputs
         sb.Append("    ").Append(attribute).Append('\n');
         sb.Append("    public static void ").Append(name).Append("(double x0, double x1, double x2, double c0, double c1, int k, double[] d, Span<double> outputs)\n    {\n");
         Printer.Print(sb, Body[..^1], 2);
