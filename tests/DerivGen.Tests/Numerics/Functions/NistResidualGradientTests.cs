@@ -3,7 +3,7 @@ using DerivGen.Tests.Infrastructure;
 using MathNet.Numerics.LinearAlgebra;
 using Xunit;
 
-namespace DerivGen.Tests.Numerics;
+namespace DerivGen.Tests.Numerics.Functions;
 
 public sealed class NistRegressionFixture : CompiledFixture
 {

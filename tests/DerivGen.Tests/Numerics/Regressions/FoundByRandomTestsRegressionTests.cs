@@ -1,7 +1,7 @@
 using DerivGen.Tests.Infrastructure;
 using Xunit;
 
-namespace DerivGen.Tests.Numerics;
+namespace DerivGen.Tests.Numerics.Regressions;
 
 public sealed class FoundByRandomTestsFixture : CompiledFixture
 {
