@@ -1,8 +1,7 @@
 using System;
-using DerivGen.Tests.Infrastructure;
 using Xunit;
 
-namespace DerivGen.Tests.Numerics;
+namespace DerivGen.Tests.Infrastructure;
 
 /// <summary>
 /// The finite-difference oracle checked on its own against closed forms, so that the tolerances in

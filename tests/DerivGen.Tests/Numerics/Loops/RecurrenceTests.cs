@@ -4,7 +4,7 @@ using DerivGen.Tests.Infrastructure;
 using MathNet.Numerics.LinearAlgebra;
 using Xunit;
 
-namespace DerivGen.Tests.Numerics;
+namespace DerivGen.Tests.Numerics.Loops;
 
 public sealed class RecurrenceFixture : CompiledFixture
 {

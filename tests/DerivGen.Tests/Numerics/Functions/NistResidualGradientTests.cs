@@ -3,9 +3,9 @@ using DerivGen.Tests.Infrastructure;
 using MathNet.Numerics.LinearAlgebra;
 using Xunit;
 
-namespace DerivGen.Tests.Numerics;
+namespace DerivGen.Tests.Numerics.Functions;
 
-public sealed class NistRegressionFixture : CompiledFixture
+public sealed class NistResidualFixture : CompiledFixture
 {
     // The residuals r = y - model(b; x) of two NIST StRD nonlinear regression problems, written as a user would.
     public const string Source = """
@@ -30,7 +30,7 @@ public sealed class NistRegressionFixture : CompiledFixture
         }
         """;
 
-    public NistRegressionFixture()
+    public NistResidualFixture()
         : base(Source)
     {
     }
@@ -48,7 +48,7 @@ public sealed class NistRegressionFixture : CompiledFixture
 /// standard deviations by ~3e-5 relative, while the exact Jacobian (hand-derived, checked while writing this test)
 /// matches them to ~1e-12.
 /// </summary>
-public sealed class NistRegressionTests : IClassFixture<NistRegressionFixture>
+public sealed class NistResidualGradientTests : IClassFixture<NistResidualFixture>
 {
     /// <summary>NIST certifies 11 significant digits; quantities recomputed from rounded certified parameters agree
     /// to ~1e-10 relative, so 1e-8 leaves margin while still failing any wrong derivative.</summary>
@@ -57,9 +57,9 @@ public sealed class NistRegressionTests : IClassFixture<NistRegressionFixture>
     /// <summary>|cos| between a Jacobian column and r at the rounded certified minimiser (measured ~1e-8).</summary>
     private const double StationaryCosine = 1e-6;
 
-    private readonly NistRegressionFixture _fixture;
+    private readonly NistResidualFixture _fixture;
 
-    public NistRegressionTests(NistRegressionFixture fixture) => _fixture = fixture;
+    public NistResidualGradientTests(NistResidualFixture fixture) => _fixture = fixture;
 
     private delegate double Misra1aF(double b1, double b2, double x, double y);
 

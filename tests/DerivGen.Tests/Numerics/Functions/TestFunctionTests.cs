@@ -2,7 +2,7 @@ using System;
 using DerivGen.Tests.Infrastructure;
 using Xunit;
 
-namespace DerivGen.Tests.Numerics;
+namespace DerivGen.Tests.Numerics.Functions;
 
 public sealed class TestFunctionFixture : CompiledFixture
 {

@@ -1,8 +1,9 @@
 using System;
 using DerivGen.Tests.Infrastructure;
+using DerivGen.Tests.Numerics.Loops;
 using Xunit;
 
-namespace DerivGen.Tests.Numerics;
+namespace DerivGen.Tests.Numerics.Branches;
 
 public sealed class BranchFixture : CompiledFixture
 {

@@ -3,7 +3,7 @@ using System.Collections.Generic;
 using DerivGen.Tests.Infrastructure;
 using Xunit;
 
-namespace DerivGen.Tests.Numerics;
+namespace DerivGen.Tests.Numerics.Functions;
 
 public sealed class ElementaryFunctionFixture : CompiledFixture
 {

@@ -3,7 +3,7 @@ using System.Linq;
 using DerivGen.Tests.Infrastructure;
 using Xunit;
 
-namespace DerivGen.Tests.Numerics;
+namespace DerivGen.Tests.Numerics.Calls;
 
 public sealed class HelperCallFixture : CompiledFixture
 {

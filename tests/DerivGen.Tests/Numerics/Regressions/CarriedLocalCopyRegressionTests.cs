@@ -2,9 +2,9 @@ using System;
 using DerivGen.Tests.Infrastructure;
 using Xunit;
 
-namespace DerivGen.Tests.Numerics;
+namespace DerivGen.Tests.Numerics.Regressions;
 
-public sealed class NestedLoopFixture : CompiledFixture
+public sealed class CarriedLocalCopyFixture : CompiledFixture
 {
     public const string Source = """
         using System;
@@ -74,22 +74,28 @@ public sealed class NestedLoopFixture : CompiledFixture
         }
         """;
 
-    public NestedLoopFixture()
+    public CarriedLocalCopyFixture()
         : base(Source)
     {
     }
 }
 
 /// <summary>
-/// Loops that change a local that the enclosing iteration read earlier: the derivative must use
-/// the value from before that loop (regression tests: the generated code once read the updated local).
+/// Bug pins: loops that change a carried local that the enclosing iteration (or the code between two loops) read
+/// earlier; the value and the derivatives must use the value from before that loop. The generated code once read the
+/// updated local instead.
 /// </summary>
-public sealed class NestedLoopTests : IClassFixture<NestedLoopFixture>
+public sealed class CarriedLocalCopyRegressionTests : IClassFixture<CarriedLocalCopyFixture>
 {
-    private readonly NestedLoopFixture _fixture;
+    private readonly CarriedLocalCopyFixture _fixture;
 
-    public NestedLoopTests(NestedLoopFixture fixture) => _fixture = fixture;
+    public CarriedLocalCopyRegressionTests(CarriedLocalCopyFixture fixture) => _fixture = fixture;
 
+    /// <summary>
+    /// Bug: a nested loop updated s while the enclosing iteration read s's earlier value later (q += before·b + …); the
+    /// generated code read the updated s instead of a copy, a wrong value and derivative. Fixed in b1ba81c (copy the
+    /// carried local before the nested loop); how it was found is not recorded in the history.
+    /// </summary>
     [Theory]
     [InlineData(0.8, -0.6)]
     [InlineData(-1.3, 2.2)]
@@ -112,6 +118,12 @@ public sealed class NestedLoopTests : IClassFixture<NestedLoopFixture>
         Verify.At(Bind("BeforeAndAfter", x), new[] { a, b }, gradient, hessian, "BeforeAndAfter");
     }
 
+    /// <summary>
+    /// Bug: a second loop updated s while reading s1, the value s had after the first loop, and the generated code read
+    /// the updated s (value and derivatives). Fixed in e2a4355 together with the nested-loop case above; how it was found
+    /// is not recorded in the history. The same source, checked as a feature, is
+    /// <c>Loops/RecurrenceTests.ValueSavedBetweenLoopsKeepsItsValueWhileTheSecondLoopUpdatesTheOriginal</c>.
+    /// </summary>
     [Theory]
     [InlineData(0.8, -0.6)]
     [InlineData(-1.3, 2.2)]
@@ -126,6 +138,11 @@ public sealed class NestedLoopTests : IClassFixture<NestedLoopFixture>
             new[] { 0.0, sum * sum, sum * sum, 0.0 }, "AfterFirstLoop");
     }
 
+    /// <summary>
+    /// Bug: s1's new running derivative, computed before the inner loop, was recomputed in place after s0's derivatives
+    /// had been updated at the end of the iteration, so it read s0's new derivatives. Found by a randomised differential
+    /// run; fixed in e7ef2e9.
+    /// </summary>
     [Theory]
     [InlineData(0.37, -0.52)]
     [InlineData(1.1, 0.8)]

@@ -4,7 +4,7 @@ using DerivGen.Tests.Infrastructure;
 using MathNet.Numerics.LinearAlgebra;
 using Xunit;
 
-namespace DerivGen.Tests.Numerics;
+namespace DerivGen.Tests.Numerics.Jacobians;
 
 public sealed class JacobianFixture : CompiledFixture
 {

@@ -2,20 +2,19 @@ using System;
 using DerivGen.Tests.Infrastructure;
 using Xunit;
 
-namespace DerivGen.Tests.Numerics;
+namespace DerivGen.Tests.Numerics.Regressions;
 
-public sealed class GuardedVectorReadFixture : CompiledFixture
+public sealed class VectorVariableRegressionFixture : CompiledFixture
 {
-    // Minimal reproductions of a generator bug the randomised tests found once the data became a vector of variables
-    // (seed 3-NZoWKxGlRGWNb13): a read of w[3] guarded by 3 < w.Length had its derivative added to gradient[3]
-    // unconditionally, so for a shorter w the generated method threw IndexOutOfRangeException (or, where the gradient
-    // span is longer, would have written another variable's entry).
+    // Minimal reproductions of generator bugs in methods with a vector of variables, found by the randomised tests; each
+    // test below names its bug.
     public const string Source = """
         using System;
         using DerivGen;
 
         public static partial class Guarded
         {
+            // Found by the randomised suite once the data became a vector of variables (seed 3-NZoWKxGlRGWNb13).
             [Differentiate(nameof(x), nameof(w), Hessian = false)]
             public static double ReadIfPresent(double x, double[] w) => x * (3 < w.Length ? w[3] : -2.5) + w[0];
 
@@ -75,21 +74,42 @@ public sealed class GuardedVectorReadFixture : CompiledFixture
 
                 return total;
             }
+
+            // Found by a randomised differential run: the running derivative's own factor is a selection, which the
+            // generated code must parenthesize when it multiplies the span.
+            [Differentiate(nameof(w), Hessian = false)]
+            public static double BranchyRecurrence(double[] w, double[] x)
+            {
+                double s = w[2];
+                for (int i = 0; i < x.Length; i++)
+                {
+                    if (x[i] > 0.2)
+                    {
+                        s += w[1];
+                    }
+                    else
+                    {
+                        s -= Math.Cos(Math.Tanh(s));
+                    }
+                }
+
+                return s;
+            }
         }
         """;
 
-    public GuardedVectorReadFixture()
+    public VectorVariableRegressionFixture()
         : base(Source)
     {
     }
 }
 
-/// <summary>Derivatives of guarded reads of a vector variable, against partials derived by hand.</summary>
-public sealed class GuardedVectorReadTests : IClassFixture<GuardedVectorReadFixture>
+/// <summary>Bug pins for methods with a vector of variables, each against partials derived by hand or MathNet.</summary>
+public sealed class VectorVariableRegressionTests : IClassFixture<VectorVariableRegressionFixture>
 {
-    private readonly GuardedVectorReadFixture _fixture;
+    private readonly VectorVariableRegressionFixture _fixture;
 
-    public GuardedVectorReadTests(GuardedVectorReadFixture fixture) => _fixture = fixture;
+    public VectorVariableRegressionTests(VectorVariableRegressionFixture fixture) => _fixture = fixture;
 
     private delegate double ReadIfPresentG(double x, double[] w, Span<double> gradient);
 
@@ -99,6 +119,12 @@ public sealed class GuardedVectorReadTests : IClassFixture<GuardedVectorReadFixt
 
     private delegate double InnerLoopG(double[] w, double[,] x, int skip, Span<double> gradient);
 
+    /// <summary>
+    /// Bug: a read of w[3] guarded by 3 &lt; w.Length had its derivative added to gradient[3] unconditionally, so for a
+    /// shorter w the generated method threw IndexOutOfRangeException (or, with a longer gradient span, would have written
+    /// another variable's entry). Found by the randomised suite's vector-variable variant (seed 3-NZoWKxGlRGWNb13);
+    /// fixed in aa4271e.
+    /// </summary>
     [Fact]
     public void AGuardedReadOfAMissingElementContributesNothingAndDoesNotThrow()
     {
@@ -115,6 +141,11 @@ public sealed class GuardedVectorReadTests : IClassFixture<GuardedVectorReadFixt
         Assert.Equal(new[] { 4.0, 1.0, 0.0, 0.0, 2.0 }, gradient);
     }
 
+    /// <summary>
+    /// Bug: Clamp(x, lo[i], x + 1), which reads the outer loop's index, was computed ahead of an inner loop that runs
+    /// zero times and threw ArgumentException (lo &gt; hi) where the method does not. Found by the randomised suite
+    /// (seed cb2B-AsuChLwFVBC); fixed in b982fa5.
+    /// </summary>
     [Fact]
     public void ClampInAnInnerLoopThatRunsZeroTimesDoesNotThrow()
     {
@@ -128,7 +159,12 @@ public sealed class GuardedVectorReadTests : IClassFixture<GuardedVectorReadFixt
         Assert.Equal(0.0, hessian[0]);
     }
 
-    /// <summary>f = (2.25·c·Σw)², so ∂f/∂wᵢ = 2·(2.25·c·Σw)·2.25·c for every i (by hand).</summary>
+    /// <summary>
+    /// Bug: a sum of w carried from one loop into the next and scaled in between had its vector running derivative
+    /// cleared before the second loop and then "scaled" from the cleared values: a zero gradient. Found by the
+    /// randomised suite's vector-variable variant (seed 2yuzwNnzWm-u4u02); fixed in 67f2b48.
+    /// f = (2.25·c·Σw)², so ∂f/∂wᵢ = 2·(2.25·c·Σw)·2.25·c for every i (by hand).
+    /// </summary>
     [Fact]
     public void ASumScaledBetweenTwoLoopsKeepsItsGradient()
     {
@@ -141,7 +177,12 @@ public sealed class GuardedVectorReadTests : IClassFixture<GuardedVectorReadFixt
         Check.Close(new[] { 2 * inner * 2.25 * c, 2 * inner * 2.25 * c, 2 * inner * 2.25 * c }, gradient, 1e-14, 0, "gradient vs hand-derived");
     }
 
-    /// <summary>T = Σᵢ zᵢ², zᵢ = Σⱼ w[j+s]·xᵢⱼ over the j with j + s &lt; w.Length: ∂T/∂w[j+s] = 2Σᵢ zᵢxᵢⱼ (by hand).</summary>
+    /// <summary>
+    /// Bug: the same unconditional gradient update as in <see cref="AGuardedReadOfAMissingElementContributesNothingAndDoesNotThrow"/>,
+    /// on the path that replays an inner loop in reverse mode (<c>WriteReplay</c>); pinned with the fix of the randomised
+    /// suite's finding (aa4271e). T = Σᵢ zᵢ², zᵢ = Σⱼ w[j+s]·xᵢⱼ over the j with j + s &lt; w.Length:
+    /// ∂T/∂w[j+s] = 2Σᵢ zᵢxᵢⱼ (by hand).
+    /// </summary>
     [Fact]
     public void AGuardedReadInAnInnerLoopMatchesTheHandDerivedGradient()
     {
@@ -170,4 +211,32 @@ public sealed class GuardedVectorReadTests : IClassFixture<GuardedVectorReadFixt
         Check.Close(total, g(w, x, skip, gradient), 1e-15, 0, "value");
         Check.Close(expected, gradient, 1e-14, 1e-14, "gradient vs hand-derived");
     }
+
+    /// <summary>
+    /// Bug: a running derivative's own factor that is a selection (c ? 1 : …) was printed bare where it multiplies the
+    /// span, which changed the meaning of the generated expression. Found by a randomised differential run over
+    /// vector-variable programs; fixed in 0c040b4. Reference: MathNet.Numerics central differences (smooth here: the
+    /// branch depends on data only); agreement to 1e-7 relative is what a central difference of this order reaches
+    /// (common practice).
+    /// </summary>
+    [Fact]
+    public void SelectedRecurrenceMatchesFiniteDifferences()
+    {
+        double[] x = { 0.7, -0.4, 1.1, 0.1, -0.9 }; // invented data
+        double[] w = { 0.37, -0.52, 0.81 };
+        var f = _fixture.Assembly.Method<ArrF>("Guarded", "BranchyRecurrence");
+        var g = _fixture.Assembly.Method<ArrG>("Guarded", "BranchyRecurrenceGradient");
+        var gradient = new double[3];
+        Assert.Equal(BitConverter.DoubleToInt64Bits(f(w, x)), BitConverter.DoubleToInt64Bits(g(w, x, gradient)));
+        var numerical = new MathNet.Numerics.Differentiation.NumericalDerivative();
+        for (int k = 0; k < 3; k++)
+        {
+            double expected = numerical.EvaluatePartialDerivative(v => f(v, x), (double[])w.Clone(), k, 1);
+            Check.Close(expected, gradient[k], 1e-7, 1e-9, $"BranchyRecurrence ∂/∂w[{k}]");
+        }
+    }
+
+    private delegate double ArrF(double[] w, double[] x);
+
+    private delegate double ArrG(double[] w, double[] x, Span<double> gradient);
 }

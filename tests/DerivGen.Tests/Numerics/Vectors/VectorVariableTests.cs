@@ -2,7 +2,7 @@ using System;
 using DerivGen.Tests.Infrastructure;
 using Xunit;
 
-namespace DerivGen.Tests.Numerics;
+namespace DerivGen.Tests.Numerics.Vectors;
 
 public sealed class VectorVariableFixture : CompiledFixture
 {
@@ -26,27 +26,6 @@ public sealed class VectorVariableFixture : CompiledFixture
                 }
 
                 return f;
-            }
-
-            // Found by a randomised differential run: the running derivative's own factor is a selection, which the
-            // generated code must parenthesize when it multiplies the span.
-            [Differentiate(nameof(w), Hessian = false)]
-            public static double BranchyRecurrence(double[] w, double[] x)
-            {
-                double s = w[2];
-                for (int i = 0; i < x.Length; i++)
-                {
-                    if (x[i] > 0.2)
-                    {
-                        s += w[1];
-                    }
-                    else
-                    {
-                        s -= Math.Cos(Math.Tanh(s));
-                    }
-                }
-
-                return s;
             }
 
             // Logistic regression negative log-likelihood with weights w and bias b, rows of x as features.
@@ -159,30 +138,6 @@ public sealed class VectorVariableTests : IClassFixture<VectorVariableFixture>
             Check.Close(expected[k], gradient[k], 1e-12, 1e-14, $"Logistic ∂/∂v[{k}]");
         }
     }
-
-    [Fact]
-    public void SelectedRecurrenceMatchesFiniteDifferences()
-    {
-        double[] x = { 0.7, -0.4, 1.1, 0.1, -0.9 }; // invented data
-        double[] w = { 0.37, -0.52, 0.81 };
-        var f = _fixture.Assembly.Method<ArrF>("Vectors", "BranchyRecurrence");
-        var g = _fixture.Assembly.Method<ArrG>("Vectors", "BranchyRecurrenceGradient");
-        var gradient = new double[3];
-        Assert.Equal(BitConverter.DoubleToInt64Bits(f(w, x)), BitConverter.DoubleToInt64Bits(g(w, x, gradient)));
-
-        // Reference: MathNet.Numerics central differences (smooth here: the branch depends on data only); agreement
-        // to 1e-7 relative is what a central difference of this order reaches (common practice).
-        var numerical = new MathNet.Numerics.Differentiation.NumericalDerivative();
-        for (int k = 0; k < 3; k++)
-        {
-            double expected = numerical.EvaluatePartialDerivative(v => f(v, x), (double[])w.Clone(), k, 1);
-            Check.Close(expected, gradient[k], 1e-7, 1e-9, $"BranchyRecurrence ∂/∂w[{k}]");
-        }
-    }
-
-    private delegate double ArrF(double[] w, double[] x);
-
-    private delegate double ArrG(double[] w, double[] x, Span<double> gradient);
 
     private delegate double SpanF(ReadOnlySpan<double> x);
 
