@@ -80,7 +80,7 @@ internal static class MethodParser
             var helpers = new HelperContext(semanticModel.Compilation);
             helpers.Chain.Add(method);
             bool emitHessian = HasHessian(attribute);
-            HashSet<string> variables = SelectVariables(method, attribute, emitHessian, diagnostics, syntax.Identifier.GetLocation(), cancellationToken);
+            HashSet<string> variables = SelectVariables(method, attribute, diagnostics, syntax.Identifier.GetLocation(), cancellationToken);
             MethodSpec? spec = LowerCore(method, syntax, emitHessian, variables, semanticModel, helpers, diagnostics, cancellationToken);
             bool hasErrors = diagnostics.Any(d => d.IsError);
             if (helpers.Failure is { } failure && hasErrors)
@@ -391,7 +391,7 @@ internal static class MethodParser
         return deepest;
     }
 
-    private static HashSet<string> SelectVariables(IMethodSymbol method, AttributeData attribute, bool emitHessian, List<DiagnosticInfo> diagnostics,
+    private static HashSet<string> SelectVariables(IMethodSymbol method, AttributeData attribute, List<DiagnosticInfo> diagnostics,
         Location nameLocation, CancellationToken cancellationToken)
     {
         var variables = new HashSet<string>(StringComparer.Ordinal);
