@@ -1,10 +1,11 @@
-using System;
 using System.Collections.Immutable;
 using System.Composition;
 using System.Globalization;
 using System.Linq;
 using System.Threading;
 using System.Threading.Tasks;
+using DerivGen.Generator.Diagnostics;
+using DerivGen.Generator.Model;
 using Microsoft.CodeAnalysis;
 using Microsoft.CodeAnalysis.CodeActions;
 using Microsoft.CodeAnalysis.CodeFixes;
@@ -14,17 +15,17 @@ using Microsoft.CodeAnalysis.Rename;
 namespace DerivGen.CodeFixes;
 
 /// <summary>
-/// DG0006: the type already has a member named <c>MGradient</c> or <c>MHessian</c> (typically a hand-written
-/// derivative from before DerivGen). Renames that member — with every reference to it, across the solution — to
-/// <c>MGradientByHand</c> (<c>MHessianByHand</c>; a number is appended if that is taken too), so that DerivGen can
+/// DG0006: the type already has a member with a name DerivGen generates for the marked method <c>M</c> —
+/// <c>MGradient</c>, <c>MHessian</c>, <c>MJacobian</c> or <c>MPairHessian</c> (typically a hand-written derivative from
+/// before DerivGen). Renames that member — with every reference to it, across the solution — to
+/// <c>MGradientByHand</c> (<c>MHessianByHand</c>, …; a number is appended if that is taken too), so that DerivGen can
 /// generate its own and the hand-written one stays available for comparison. All overloads of a method are renamed
-/// together.
+/// together. Which name is taken is read from the diagnostic's <see cref="DiagnosticProperties.TakenName"/> property.
 /// </summary>
 [ExportCodeFixProvider(LanguageNames.CSharp, Name = nameof(RenameCollidingMemberCodeFix)), Shared]
 public sealed class RenameCollidingMemberCodeFix : CodeFixProvider
 {
     internal const string Suffix = "ByHand";
-    private const string GeneratorToolName = "DerivGen";
 
     public override ImmutableArray<string> FixableDiagnosticIds { get; } = ImmutableArray.Create(DiagnosticIds.GeneratedNameTaken);
 
@@ -41,17 +42,15 @@ public sealed class RenameCollidingMemberCodeFix : CodeFixProvider
 
         foreach (Diagnostic diagnostic in context.Diagnostics)
         {
-            if (root.FindNode(diagnostic.Location.SourceSpan, getInnermostNodeForTie: true).AncestorsAndSelf().OfType<MethodDeclarationSyntax>().FirstOrDefault() is not { } method
-                || model.GetDeclaredSymbol(method, context.CancellationToken) is not { ContainingType: { } type } marked)
+            // The diagnostic is reported once per taken name, at the marked method's name; the name is a property.
+            if (!diagnostic.Properties.TryGetValue(DiagnosticProperties.TakenName, out string? taken) || string.IsNullOrEmpty(taken)
+                || root.FindNode(diagnostic.Location.SourceSpan, getInnermostNodeForTie: true).AncestorsAndSelf().OfType<MethodDeclarationSyntax>().FirstOrDefault() is not { } method
+                || model.GetDeclaredSymbol(method, context.CancellationToken) is not { ContainingType: { } type })
             {
                 continue;
             }
 
-            // The diagnostic is reported once per taken name, at the same place; its message names the member.
-            string message = diagnostic.GetMessage(CultureInfo.InvariantCulture);
-            string? taken = new[] { marked.Name + "Gradient", marked.Name + "Hessian" }
-                .FirstOrDefault(name => message.IndexOf("'" + name + "'", StringComparison.Ordinal) >= 0);
-            ISymbol? member = taken is null ? null : type.GetMembers(taken).FirstOrDefault(m => !m.IsImplicitlyDeclared && !IsGeneratedByDerivGen(m));
+            ISymbol? member = type.GetMembers(taken!).FirstOrDefault(m => !m.IsImplicitlyDeclared && !IsGeneratedByDerivGen(m));
             if (member is null)
             {
                 continue;
@@ -84,5 +83,5 @@ public sealed class RenameCollidingMemberCodeFix : CodeFixProvider
 
     private static bool IsGeneratedByDerivGen(ISymbol member) => member.GetAttributes().Any(a =>
         a.AttributeClass?.ToDisplayString() == "System.CodeDom.Compiler.GeneratedCodeAttribute"
-        && a.ConstructorArguments.Length > 0 && a.ConstructorArguments[0].Value is GeneratorToolName);
+        && a.ConstructorArguments.Length > 0 && a.ConstructorArguments[0].Value is GeneratedNames.ToolName);
 }

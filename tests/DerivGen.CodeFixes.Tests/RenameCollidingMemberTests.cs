@@ -134,4 +134,114 @@ public sealed class RenameCollidingMemberTests
             public static double Use() => LevelGradientByHand(1.0) + LevelGradientByHand(1.0f);
         }
         """);
+    // A method with outputs generates MJacobian (DEVELOPERS "Jacobians of methods with outputs"), which the fix did not
+    // offer to rename while it looked for MGradient and MHessian in the message. The fixed state is compiled with the
+    // generator: the generated ResidualsJacobian then sits beside ResidualsJacobianByHand.
+    [Fact]
+    public Task HandWrittenJacobianIsRenamed() => Verify.VerifyAsync(
+        """
+        using System;
+        using DerivGen;
+
+        public static partial class Fit
+        {
+            [Differentiate(nameof(a), nameof(b))]
+            public static void {|DG0006:Residuals|}(double a, double b, Span<double> r)
+            {
+                r[0] = a - 1;
+                r[1] = a * b - 2;
+            }
+
+            // Written by hand: the 2×2 Jacobian, row-major.
+            public static void ResidualsJacobian(double a, double b, Span<double> j)
+            {
+                j[0] = 1;
+                j[1] = 0;
+                j[2] = b;
+                j[3] = a;
+            }
+
+            public static double Corner(double a, double b)
+            {
+                Span<double> j = stackalloc double[4];
+                ResidualsJacobian(a, b, j);
+                return j[3];
+            }
+        }
+        """,
+        """
+        using System;
+        using DerivGen;
+
+        public static partial class Fit
+        {
+            [Differentiate(nameof(a), nameof(b))]
+            public static void Residuals(double a, double b, Span<double> r)
+            {
+                r[0] = a - 1;
+                r[1] = a * b - 2;
+            }
+
+            // Written by hand: the 2×2 Jacobian, row-major.
+            public static void ResidualsJacobianByHand(double a, double b, Span<double> j)
+            {
+                j[0] = 1;
+                j[1] = 0;
+                j[2] = b;
+                j[3] = a;
+            }
+
+            public static double Corner(double a, double b)
+            {
+                Span<double> j = stackalloc double[4];
+                ResidualsJacobianByHand(a, b, j);
+                return j[3];
+            }
+        }
+        """);
+
+    // The Hessian of a method with a vector variable goes through a private pair method MPair whose MPairHessian is
+    // generated too (DEVELOPERS "Hessians w.r.t. vectors"); a member with that name is a clash like the others.
+    [Fact]
+    public Task MemberNamedLikeThePairHessianIsRenamed() => Verify.VerifyAsync(
+        """
+        using DerivGen;
+
+        public static partial class Ridge
+        {
+            [Differentiate(nameof(w))]
+            public static double {|DG0006:Loss|}(double[] w)
+            {
+                double s = 0;
+                for (int i = 0; i < w.Length; i++)
+                {
+                    s += w[i] * w[i] * w[i];
+                }
+
+                return s;
+            }
+
+            public static int LossPairHessian() => 2;
+        }
+        """,
+        """
+        using DerivGen;
+
+        public static partial class Ridge
+        {
+            [Differentiate(nameof(w))]
+            public static double Loss(double[] w)
+            {
+                double s = 0;
+                for (int i = 0; i < w.Length; i++)
+                {
+                    s += w[i] * w[i] * w[i];
+                }
+
+                return s;
+            }
+
+            public static int LossPairHessianByHand() => 2;
+        }
+        """);
 }

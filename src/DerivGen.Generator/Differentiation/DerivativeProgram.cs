@@ -153,7 +153,7 @@ internal sealed class DerivativeProgram
         }
 
         // Names for the running derivatives, clear of every parameter and local of the method.
-        var taken = new HashSet<string>(spec.Parameters.Select(p => Identifiers.Unescape(p.Name)), StringComparer.Ordinal) { "gradient", "hessian", "value" };
+        var taken = new HashSet<string>(spec.Parameters.Select(p => Identifiers.Unescape(p.Name)).Concat(GeneratedNames.Reserved), StringComparer.Ordinal);
         foreach (LoopState state in graph.Loops.SelectMany(l => l.States))
         {
             taken.Add(state.Name);

@@ -16,9 +16,6 @@ namespace DerivGen.Generator.Differentiation;
 /// </summary>
 internal sealed record PairHessian(MethodSpec Spec, DerivativeProgram Program, string Row, string Column, int ScalarCount)
 {
-    /// <summary>Name suffix of the pair method: <c>LossPair</c> generates <c>LossPairHessian</c>.</summary>
-    public const string Suffix = "Pair";
-
     public static PairHessian Create(MethodSpec spec, CancellationToken cancellationToken)
     {
         var taken = new HashSet<string>(spec.Parameters.Select(p => p.Name), StringComparer.Ordinal);
@@ -46,7 +43,7 @@ internal sealed record PairHessian(MethodSpec Spec, DerivativeProgram Program, s
 
         MethodSpec pairSpec = spec with
         {
-            Name = Identifiers.Escape(Identifiers.Unescape(spec.Name) + Suffix),
+            Name = Identifiers.Escape(GeneratedNames.PairMethod(Identifiers.Unescape(spec.Name))),
             Accessibility = "private",
             Parameters = parameters.ToEquatableArray(),
             EmitHessian = true,

@@ -15,9 +15,6 @@ namespace DerivGen.Generator.Emit;
 /// </summary>
 internal static class DerivativeEmitter
 {
-    public const string ToolName = "DerivGen";
-    public const string ToolVersion = "0.1.0";
-
     /// <summary>Formulas longer than this are not spelled out in comments (the code is the reference).</summary>
     private const int MaxFormulaLength = 200;
 
@@ -95,8 +92,8 @@ internal static class DerivativeEmitter
         int n = program.Variables.Length;
         string type = ExpressionWriter.TypeKeyword(spec.ReturnType);
         bool jacobian = spec.HasOutputs;
-        string methodName = context.BareName + (jacobian ? Lowering.MethodParser.JacobianSuffix
-            : withHessian ? Lowering.MethodParser.HessianSuffix : Lowering.MethodParser.GradientSuffix);
+        string methodName = jacobian ? GeneratedNames.JacobianMethod(context.BareName)
+            : withHessian ? GeneratedNames.HessianMethod(context.BareName) : GeneratedNames.GradientMethod(context.BareName);
         string variableList = string.Join(", ", spec.Parameters.Where(p => p.IsVariable).Select(p => Identifiers.Unescape(p.Name) + (p.IsVector ? "[…]" : string.Empty)));
 
         // Documentation.
@@ -161,7 +158,7 @@ internal static class DerivativeEmitter
         }
 
         writer.Line("/// <exception cref=\"global::System.ArgumentException\">A span is shorter than stated.</exception>");
-        writer.Line("[global::System.CodeDom.Compiler.GeneratedCode(\"" + ToolName + "\", \"" + ToolVersion + "\")]");
+        writer.Line("[global::System.CodeDom.Compiler.GeneratedCode(\"" + GeneratedNames.ToolName + "\", \"" + GeneratedNames.ToolVersion + "\")]");
         if (IsSmallStraightLine(program, withHessian))
         {
             writer.Line("[global::System.Runtime.CompilerServices.MethodImpl(global::System.Runtime.CompilerServices.MethodImplOptions.AggressiveInlining)]");
@@ -209,20 +206,20 @@ internal static class DerivativeEmitter
         string type = ExpressionWriter.TypeKeyword(spec.ReturnType);
         string variableList = string.Join(", ", spec.Parameters.Where(p => p.IsVariable).Select(p => Identifiers.Unescape(p.Name) + (p.IsVector ? "[…]" : string.Empty)));
         var names = new TemporaryNames(spec.Parameters.Select(p => p.Name).Concat(new[] { context.GradientName, context.HessianName }));
-        string n = names.Claim("n"), value = names.Claim("value"), pairGradient = names.Claim("pairGradient"), pairHessian = names.Claim("pairHessian");
+        string n = names.Claim("n"), value = names.Claim(GeneratedNames.ValueLocal), pairGradient = names.Claim("pairGradient"), pairHessian = names.Claim("pairHessian");
         string row = names.Claim("row"), column = names.Claim("column"), i = names.Claim("i"), j = names.Claim("j");
         int m = pairs.ScalarCount, c = m + 2;
         string along = Count(m * c + m + 1); // ∂²/∂tRow∂tColumn in the pair method's Hessian
         var vectors = spec.Parameters.Where(p => p.IsVector).ToList();
         string arguments = string.Join(", ", spec.Parameters.Select(p => p.Name));
-        string Pair(string r, string col) => context.BareName + PairHessian.Suffix + Lowering.MethodParser.HessianSuffix + "(" + arguments + ", " + r + ", " + col
+        string Pair(string r, string col) => GeneratedNames.PairHessianMethod(context.BareName) + "(" + arguments + ", " + r + ", " + col
             + ", 0, 0, " + pairGradient + ", " + pairHessian + ");";
 
         writer.Line("/// <summary>");
         writer.Line("/// Computes <see cref=\"" + Xml(spec.Cref) + "\"/> and its gradient and Hessian with respect to (" + Xml(variableList) + ").");
         writer.Line("/// </summary>");
         writer.Line("/// <remarks>");
-        writer.Line("/// The gradient comes from <see cref=\"" + Xml(context.BareName + Lowering.MethodParser.GradientSuffix) + "\"/>. The Hessian entries that involve a vector");
+        writer.Line("/// The gradient comes from <see cref=\"" + Xml(GeneratedNames.GradientMethod(context.BareName)) + "\"/>. The Hessian entries that involve a vector");
         writer.Line("/// element come one pair of slots at a time from the pair method, which differentiates the method along the two");
         writer.Line("/// slots: n_v(n_v + 1)/2 passes over the method for n_v vector elements.");
         writer.Line("/// </remarks>");
@@ -238,18 +235,18 @@ internal static class DerivativeEmitter
             + Xml(context.GradientLength) + ")² elements.</param>");
         writer.Line("/// <returns>The value of the method at these arguments, bit-for-bit.</returns>");
         writer.Line("/// <exception cref=\"global::System.ArgumentException\">A span is shorter than stated.</exception>");
-        writer.Line("[global::System.CodeDom.Compiler.GeneratedCode(\"" + ToolName + "\", \"" + ToolVersion + "\")]");
+        writer.Line("[global::System.CodeDom.Compiler.GeneratedCode(\"" + GeneratedNames.ToolName + "\", \"" + GeneratedNames.ToolVersion + "\")]");
         var parameters = spec.Parameters.Select(p => p.Modifiers + p.TypeName + " " + p.Name).ToList();
         parameters.Add("global::System.Span<" + type + "> " + context.GradientName);
         parameters.Add("global::System.Span<" + type + "> " + context.HessianName);
         string modifiers = spec.Accessibility + (spec.IsStatic ? " static " : " ");
-        using (writer.Block(modifiers + type + " " + context.BareName + Lowering.MethodParser.HessianSuffix + "(" + string.Join(", ", parameters) + ")"))
+        using (writer.Block(modifiers + type + " " + GeneratedNames.HessianMethod(context.BareName) + "(" + string.Join(", ", parameters) + ")"))
         {
             string thrower = names.Claim(context.ThrowerName);
             writer.Line("int " + n + " = " + context.GradientLength + ";");
             WriteLengthCheck(writer, context.GradientName, n, "one per variable: " + variableList, thrower);
             WriteLengthCheck(writer, context.HessianName, n + " * " + n, "n × n, row-major", thrower);
-            writer.Line(type + " " + value + " = " + context.BareName + Lowering.MethodParser.GradientSuffix + "(" + arguments + ", " + context.GradientName + ");");
+            writer.Line(type + " " + value + " = " + GeneratedNames.GradientMethod(context.BareName) + "(" + arguments + ", " + context.GradientName + ");");
             writer.Line("global::System.Span<" + type + "> " + pairGradient + " = stackalloc " + type + "[" + Count(c) + "];");
             writer.Line("global::System.Span<" + type + "> " + pairHessian + " = stackalloc " + type + "[" + Count(c * c) + "];");
             if (m > 0)
@@ -650,14 +647,14 @@ internal static class DerivativeEmitter
         }
 
         var reserved = context.Spec.Parameters.Select(p => p.Name)
-            .Concat(new[] { context.GradientName, context.HessianName, thrower })
+            .Concat(new[] { context.GradientName, context.HessianName, context.JacobianName, thrower })
             .Concat(program.StateNames)
             .Concat(program.Loops.Where(l => l.Index is not null).Select(l => l.Index!));
         var names = new TemporaryNames(reserved);
         var nameOf = new Dictionary<Node, string>();
         if (temporaries.Contains(program.Value) && program.Value.LocalName is null)
         {
-            nameOf[program.Value] = names.Claim("value");
+            nameOf[program.Value] = names.Claim(GeneratedNames.ValueLocal);
         }
 
         foreach (Node node in temporaries.Where(t => t.LocalName is not null && !nameOf.ContainsKey(t)))
@@ -731,9 +728,8 @@ internal static class DerivativeEmitter
                 if (gradientBuffer.TryGetValue(node, out string? buffer))
                 {
                     bool second = hessianBuffer.TryGetValue(node, out string? hessian);
-                    string suffix = second ? Lowering.MethodParser.HessianSuffix : Lowering.MethodParser.GradientSuffix;
                     var arguments = node.Arguments.Select(code.Write).Concat(second ? new[] { buffer, hessian! } : new[] { buffer });
-                    definition = node.Text + suffix + "(" + string.Join(", ", arguments) + ")";
+                    definition = (second ? GeneratedNames.HessianMethod(node.Text!) : GeneratedNames.GradientMethod(node.Text!)) + "(" + string.Join(", ", arguments) + ")";
                     if (callGuards.TryGetValue(node, out Node? guard))
                     {
                         // The condition is written out in full (with && and || short-circuiting as in the user's code),
@@ -1577,9 +1573,9 @@ internal static class DerivativeEmitter
             var taken = new HashSet<string>(spec.Parameters.Select(p => p.Name), StringComparer.Ordinal);
             ProgramGraph.CollectLocalNames(spec.Body, taken);
             var names = new TemporaryNames(taken);
-            GradientName = names.Claim("gradient");
-            HessianName = names.Claim("hessian");
-            JacobianName = names.Claim("jacobian");
+            GradientName = names.Claim(GeneratedNames.GradientParameter);
+            HessianName = names.Claim(GeneratedNames.HessianParameter);
+            JacobianName = names.Claim(GeneratedNames.JacobianParameter);
             ThrowerName = names.Claim("ThrowSpanTooShort");
 
             // Where each variable's derivatives go in the gradient span: declaration order, a vector taking v.Length slots.
@@ -1767,7 +1763,7 @@ internal static class DerivativeEmitter
             int entries = Program.Variables.Length * (Program.Variables.Length + 1) / 2;
             if (entries > MaxListedHessianEntries)
             {
-                yield return "Hessian: " + Count(entries) + " distinct entries (symmetric); see " + BareName + Lowering.MethodParser.HessianSuffix + ".";
+                yield return "Hessian: " + Count(entries) + " distinct entries (symmetric); see " + GeneratedNames.HessianMethod(BareName) + ".";
                 yield break;
             }
 

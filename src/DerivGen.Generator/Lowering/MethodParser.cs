@@ -52,10 +52,6 @@ internal sealed class HelperContext
 internal static class MethodParser
 {
     public const string AttributeMetadataName = "DerivGen.DifferentiateAttribute";
-    public const string GradientSuffix = "Gradient";
-    public const string HessianSuffix = "Hessian";
-    public const string JacobianSuffix = "Jacobian";
-    private const string GeneratorToolName = "DerivGen";
 
     public static LoweringResult Lower(IMethodSymbol method, MethodDeclarationSyntax syntax, AttributeData attribute,
         SemanticModel semanticModel, CancellationToken cancellationToken)
@@ -84,7 +80,7 @@ internal static class MethodParser
             var helpers = new HelperContext(semanticModel.Compilation);
             helpers.Chain.Add(method);
             bool emitHessian = HasHessian(attribute);
-            HashSet<string> variables = SelectVariables(method, attribute, emitHessian, diagnostics, syntax.Identifier.GetLocation(), cancellationToken);
+            HashSet<string> variables = SelectVariables(method, attribute, diagnostics, syntax.Identifier.GetLocation(), cancellationToken);
             MethodSpec? spec = LowerCore(method, syntax, emitHessian, variables, semanticModel, helpers, diagnostics, cancellationToken);
             bool hasErrors = diagnostics.Any(d => d.IsError);
             if (helpers.Failure is { } failure && hasErrors)
@@ -395,7 +391,7 @@ internal static class MethodParser
         return deepest;
     }
 
-    private static HashSet<string> SelectVariables(IMethodSymbol method, AttributeData attribute, bool emitHessian, List<DiagnosticInfo> diagnostics,
+    private static HashSet<string> SelectVariables(IMethodSymbol method, AttributeData attribute, List<DiagnosticInfo> diagnostics,
         Location nameLocation, CancellationToken cancellationToken)
     {
         var variables = new HashSet<string>(StringComparer.Ordinal);
@@ -496,30 +492,21 @@ internal static class MethodParser
     private static void CheckGeneratedNames(IMethodSymbol method, bool emitHessian, bool pairwise, bool jacobian, Location location, List<DiagnosticInfo> diagnostics)
     {
         INamedTypeSymbol type = method.ContainingType;
-        var generated = new List<string> { method.Name + (jacobian ? JacobianSuffix : GradientSuffix) };
-        if (emitHessian)
-        {
-            generated.Add(method.Name + HessianSuffix);
-        }
-
-        if (pairwise)
-        {
-            generated.Add(method.Name + Differentiation.PairHessian.Suffix + HessianSuffix);
-        }
-
-        foreach (string name in generated)
+        foreach (string name in GeneratedNames.AllFor(method.Name, jacobian, emitHessian, pairwise))
         {
             // The analyzer sees the compilation with our own output in it: those members are ours, not a collision.
             if (type.GetMembers(name).Any(member => !IsGeneratedByUs(member)))
             {
-                diagnostics.Add(DiagnosticInfo.Create(DiagnosticDescriptors.GeneratedNameTaken, location, type.Name, name, method.Name));
+                // The taken name travels as a property too, so that the code fix does not have to parse the message.
+                diagnostics.Add(DiagnosticInfo.Create(DiagnosticDescriptors.GeneratedNameTaken, location,
+                    new[] { new DiagnosticProperty(DiagnosticProperties.TakenName, name) }.ToEquatableArray(), type.Name, name, method.Name));
             }
         }
     }
 
     private static bool IsGeneratedByUs(ISymbol member) => member.GetAttributes().Any(a =>
         a.AttributeClass?.ToDisplayString() == "System.CodeDom.Compiler.GeneratedCodeAttribute"
-        && a.ConstructorArguments.Length > 0 && a.ConstructorArguments[0].Value is GeneratorToolName);
+        && a.ConstructorArguments.Length > 0 && a.ConstructorArguments[0].Value is GeneratedNames.ToolName);
 
     private static ITypeSymbol ElementType(ITypeSymbol type) =>
         type is IArrayTypeSymbol array ? array.ElementType : ((INamedTypeSymbol)type).TypeArguments[0];

@@ -26,6 +26,7 @@ internal sealed class CaseGenerator : Gen<RandomCase>
 
     private static readonly string[] SpanParameterNames = { "gradient", "hessian" };
     private static readonly string[] Keywords = { "@double", "@in", "@var", "@return" };
+    private static readonly string[] HostileNames = Hostile.Concat(SpanParameterNames).Concat(Keywords).ToArray();
 
     private readonly CaseFamily _family;
 
@@ -179,18 +180,7 @@ internal sealed class CaseGenerator : Gen<RandomCase>
 
         private string Name(string? prefix = null)
         {
-            IEnumerable<string> hostile = Hostile;
-            if (!KnownGeneratorBugs.CarriedLocalNamedLikeASpanParameter)
-            {
-                hostile = hostile.Concat(SpanParameterNames);
-            }
-
-            if (!KnownGeneratorBugs.CarriedLocalWithKeywordName)
-            {
-                hostile = hostile.Concat(Keywords);
-            }
-
-            string name = prefix ?? (Chance(0.25) ? Pick(hostile.ToList()) : Pick(Plain) + _counter++);
+            string name = prefix ?? (Chance(0.25) ? Pick(HostileNames) : Pick(Plain) + _counter++);
             while (!_names.Add(name))
             {
                 name = (prefix ?? Pick(Plain)) + _counter++;
@@ -225,11 +215,6 @@ internal sealed class CaseGenerator : Gen<RandomCase>
             }
 
             Fn fn = Pick(Functions);
-            if (fn is Fn.Clamp or Fn.Sign && scope.LoopDepth > 0 && KnownGeneratorBugs.ThrowingCodeHoistedOutOfLoop)
-            {
-                fn = Fn.Max; // Clamp (lo > hi) and Sign (NaN) throw, and loop-invariant code is computed even for zero trips
-            }
-
             FunctionSpec spec = ReferenceFunctions.All[fn];
             Host host = !spec.HasMath || (spec.DoubleValue is not null && Chance(0.3)) ? Host.Double : Host.Math;
             var args = new Expr[spec.Arity];
@@ -289,7 +274,7 @@ internal sealed class CaseGenerator : Gen<RandomCase>
                 return new LocalRef(Pick(scope.Constants));
             }
 
-            if (choice < 97 && (!KnownGeneratorBugs.GuardedValueInlinedAsATree || Chance(0.2)))
+            if (choice < 97)
             {
                 return GuardedData(scope);
             }
@@ -327,7 +312,7 @@ internal sealed class CaseGenerator : Gen<RandomCase>
                 return new DoubleCompare(op, data, new Lit(Math.Round(Uniform(-1.5, 1.5), 1)));
             }
 
-            if (choice < 75 && (!KnownGeneratorBugs.GuardedValueInlinedAsATree || Chance(0.2)))
+            if (choice < 75)
             {
                 return new DoubleCompare(op, GuardedData(scope), new Lit(Math.Round(Uniform(-1.5, 1.5), 1)));
             }
@@ -464,8 +449,7 @@ internal sealed class CaseGenerator : Gen<RandomCase>
 
         private Expr TupleElement(Scope scope)
         {
-            Expr e = Expression(scope, Int(3));
-            return KnownGeneratorBugs.TupleElementThatIsABareName && e is ParamRef or LocalRef ? new Neg(new Neg(e)) : e;
+            return Expression(scope, Int(3));
         }
 
         private Stmt LoopStatement(Scope scope)
@@ -487,12 +471,6 @@ internal sealed class CaseGenerator : Gen<RandomCase>
                         < 40 => TupleStatement(inner),
                         _ => Simple(inner),
                     });
-                }
-
-                if (KnownGeneratorBugs.BranchInLoopInlinedAsATree)
-                {
-                    // Branches last: what follows a branch in the same iteration is what grows.
-                    body = body.Where(s => s is not If).Concat(body.Where(s => s is If)).ToList();
                 }
 
                 return new Loop(kind, index, start, end, form, body.ToArray());

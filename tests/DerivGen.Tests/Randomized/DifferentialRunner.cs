@@ -50,9 +50,6 @@ internal sealed class BatchOutcome
     /// <summary>Entries where two finite-difference step sizes disagreed with each other, so MathNet could not judge.</summary>
     public int OracleInconclusive { get; set; }
 
-    /// <summary>Warnings (CS1718, CS0219) in generated code that a known, reported bug explains (see <see cref="KnownGeneratorBugs"/>).</summary>
-    public int ToleratedWarnings { get; set; }
-
     /// <summary>Characters of the largest generated file (generated code that grows out of proportion shows here).</summary>
     public int LargestGeneratedFile { get; set; }
 
@@ -200,12 +197,6 @@ internal static class DifferentialRunner
         var emit = output.Emit(image);
         foreach (Diagnostic d in emit.Diagnostics.Where(d => d.Severity >= DiagnosticSeverity.Warning))
         {
-            if ((KnownGeneratorBugs.ComparisonOfANodeWithItself && d.Id == "CS1718") || (KnownGeneratorBugs.DeadCarriedLocalLeftAssigned && d.Id == "CS0219"))
-            {
-                outcome.ToleratedWarnings++;
-                continue;
-            }
-
             string path = d.Location.SourceTree?.FilePath ?? "";
             int index = IndexFromHint(Path.GetFileName(path));
             if (index >= 0)

@@ -20,16 +20,13 @@ internal sealed class Interpreter
     private readonly bool _dataIsVariable;
     private readonly int _dataOffset;
     private readonly Action<Expr, double[], double>? _observe;
-    private readonly bool _observeUntakenSides;
 
     /// <param name="point">The case's inputs.</param>
     /// <param name="variables">The parameters differentiated with respect to, in order (n = their count).</param>
     /// <param name="observe">Called after every expression node with its operands' values and its own value.</param>
     /// <param name="dataIsVariable">Whether the data d is a vector of variables too (after the scalars: n = their count + d.Length).</param>
-    public Interpreter(CasePoint point, IReadOnlyList<string> variables, Action<Expr, double[], double>? observe = null, bool observeUntakenSides = false,
-        bool dataIsVariable = false)
+    public Interpreter(CasePoint point, IReadOnlyList<string> variables, Action<Expr, double[], double>? observe = null, bool dataIsVariable = false)
     {
-        _observeUntakenSides = observeUntakenSides && observe is not null;
         _dataIsVariable = dataIsVariable;
         _dataOffset = variables.Count;
         _n = variables.Count + (dataIsVariable ? point.Data.Length : 0);
@@ -108,12 +105,6 @@ internal sealed class Interpreter
             case If f:
             {
                 bool taken = Eval(f.Condition);
-                Stmt[]? untaken = taken ? f.WhenFalse : f.WhenTrue;
-                if (_observeUntakenSides && untaken is not null)
-                {
-                    Untaken(() => Execute(untaken));
-                }
-
                 return taken ? Execute(f.WhenTrue) : f.WhenFalse is null ? null : Execute(f.WhenFalse);
             }
             case Loop { Kind: LoopKind.ForEach } l:
@@ -227,11 +218,6 @@ internal sealed class Interpreter
             case Conditional c:
             {
                 bool taken = Eval(c.Condition);
-                if (_observeUntakenSides)
-                {
-                    Untaken(() => Eval(taken ? c.WhenFalse : c.WhenTrue));
-                }
-
                 result = taken ? Eval(c.WhenTrue) : Eval(c.WhenFalse);
                 operands = Array.Empty<double>();
                 break;
@@ -242,39 +228,6 @@ internal sealed class Interpreter
 
         _observe?.Invoke(e, operands, result.Value);
         return result;
-    }
-
-    /// <summary>
-    /// Runs the side of a branch C# does not take, for the observer only (see <see cref="KnownGeneratorBugs.UntakenSideEvaluated"/>):
-    /// the locals are restored afterwards, and a data read out of range there (which a guard would have prevented) is ignored.
-    /// </summary>
-    private void Untaken(Action run)
-    {
-        var doubles = new Dictionary<string, Jet>(_doubles);
-        var ints = new Dictionary<string, int>(_ints);
-        var bools = new Dictionary<string, bool>(_bools);
-        try
-        {
-            run();
-        }
-        catch (IndexOutOfRangeException)
-        {
-        }
-        finally
-        {
-            Restore(_doubles, doubles);
-            Restore(_ints, ints);
-            Restore(_bools, bools);
-        }
-    }
-
-    private static void Restore<T>(Dictionary<string, T> target, Dictionary<string, T> saved)
-    {
-        target.Clear();
-        foreach (KeyValuePair<string, T> pair in saved)
-        {
-            target[pair.Key] = pair.Value;
-        }
     }
 
     private int Eval(IntExpr e) => e switch

@@ -44,7 +44,7 @@ internal static class Repair
             {
                 foreach (CasePoint point in points)
                 {
-                    new Interpreter(point, Array.Empty<string>(), Observe, KnownGeneratorBugs.UntakenSideEvaluated).Run(body);
+                    new Interpreter(point, Array.Empty<string>(), Observe).Run(body);
                 }
             }
             catch (Exception e) when (e is IndexOutOfRangeException or ArgumentException or KeyNotFoundException)
