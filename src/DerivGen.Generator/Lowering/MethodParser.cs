@@ -27,15 +27,24 @@ internal sealed record HelperRequest(string DocumentationId, bool Hessian);
 /// <summary>What the lowering of one marked method shares with the lowering of the helpers it calls.</summary>
 internal sealed class HelperContext
 {
-    public HelperContext(Compilation compilation) => Compilation = compilation;
+    public HelperContext(Compilation compilation)
+    {
+        Compilation = compilation;
+        Shared = CompilationLowerings.For(compilation);
+    }
 
     public Compilation Compilation { get; }
 
-    /// <summary>The helpers called so far, by documentation ID, and whether a Hessian is needed.</summary>
-    public Dictionary<string, bool> Requests { get; } = new(StringComparer.Ordinal);
+    /// <summary>The helpers lowered cleanly in this compilation, shared by every method lowered in it.</summary>
+    public CompilationLowerings Shared { get; }
 
-    /// <summary>Helpers already lowered for this marked method, by documentation ID and whether a Hessian is needed.</summary>
-    public Dictionary<(string Id, bool Hessian), (MethodSpec? Spec, List<DiagnosticInfo> Diagnostics)> Lowered { get; } = new();
+    /// <summary>The helpers called so far, by documentation ID, and whether a Hessian is needed. While a helper is
+    /// lowered this collects the helpers it calls (see <c>BodyLowerer.LowerHelperCall</c>), then they are added here.</summary>
+    public Dictionary<string, bool> Requests { get; set; } = new(StringComparer.Ordinal);
+
+    /// <summary>Helpers already lowered for this marked method, by documentation ID and whether a Hessian is needed, with
+    /// the helpers each one calls (directly or not).</summary>
+    public Dictionary<(string Id, bool Hessian), (MethodSpec? Spec, IReadOnlyList<DiagnosticInfo> Diagnostics, IReadOnlyList<string> Reaches)> Lowered { get; } = new();
 
     /// <summary>The methods being lowered, outermost first: a call back into one of them is recursion.</summary>
     public List<IMethodSymbol> Chain { get; } = new();
@@ -81,6 +90,7 @@ internal static class MethodParser
                 syntax = implementationSyntax;
             }
 
+            CompilationLowerings.CountMethod(semanticModel.Compilation, method);
             var helpers = new HelperContext(semanticModel.Compilation);
             helpers.Chain.Add(method);
             bool emitHessian = HasHessian(attribute);
@@ -126,7 +136,8 @@ internal static class MethodParser
             return null;
         }
 
-        SemanticModel model = helpers.Compilation.GetSemanticModel(syntax.SyntaxTree);
+        CompilationLowerings.CountHelper(helpers.Compilation, method);
+        SemanticModel model = helpers.Shared.SemanticModel(helpers.Compilation, syntax.SyntaxTree);
         helpers.Chain.Add(method);
         try
         {
@@ -141,16 +152,26 @@ internal static class MethodParser
     }
 
     /// <summary>
-    /// The specs of the requested helpers, lowered from <paramref name="compilation"/>, each once (with a Hessian if any
-    /// caller needs one), in hint-name order. A helper that no longer lowers cleanly is left out: the analyzer reports
-    /// it at the call, and the caller's call of its missing derivative method fails to compile rather than go wrong.
+    /// The specs of the requested helpers in <paramref name="compilation"/>, each once (with a Hessian if any caller
+    /// needs one), in hint-name order. The callers' lowering put them in the compilation's table
+    /// (<see cref="CompilationLowerings"/>); one that is not there is lowered from the compilation. A helper that no
+    /// longer lowers cleanly is left out: the analyzer reports it at the call, and the caller's call of its missing
+    /// derivative method fails to compile rather than go wrong.
     /// </summary>
     internal static IEnumerable<MethodSpec> LowerHelpers(IEnumerable<HelperRequest> requests, Compilation compilation, CancellationToken cancellationToken)
     {
         var specs = new SortedDictionary<string, MethodSpec>(StringComparer.Ordinal);
+        CompilationLowerings shared = CompilationLowerings.For(compilation);
         foreach (IGrouping<string, HelperRequest> group in requests.GroupBy(r => r.DocumentationId, StringComparer.Ordinal))
         {
             cancellationToken.ThrowIfCancellationRequested();
+            if (shared.TryGetHelper(group.Key, group.Any(r => r.Hessian)) is { } lowered)
+            {
+                // Lowered cleanly by a caller: the same spec as lowering it alone here (its chain is only itself).
+                specs[lowered.Spec.HintName] = lowered.Spec;
+                continue;
+            }
+
             if (DocumentationCommentId.GetFirstSymbolForDeclarationId(group.Key, compilation) is not IMethodSymbol method
                 || method.DeclaringSyntaxReferences.Length != 1
                 || method.DeclaringSyntaxReferences[0].GetSyntax(cancellationToken) is not MethodDeclarationSyntax syntax)
@@ -376,8 +397,13 @@ internal static class MethodParser
                 cancellationToken.ThrowIfCancellationRequested();
             }
 
-            foreach (SyntaxNode child in node.ChildNodes())
+            foreach (SyntaxNodeOrToken item in node.ChildNodesAndTokens())
             {
+                if (item.AsNode() is not { } child)
+                {
+                    continue;
+                }
+
                 int childDepth = child is ExpressionSyntax ? depth + 1 : depth;
                 if (childDepth > deepest)
                 {

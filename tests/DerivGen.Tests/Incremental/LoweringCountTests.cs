@@ -1,0 +1,255 @@
+using System;
+using System.Collections.Generic;
+using System.Collections.Immutable;
+using System.Linq;
+using DerivGen.Generator;
+using DerivGen.Generator.Lowering;
+using DerivGen.Tests.Infrastructure;
+using Microsoft.CodeAnalysis;
+using Microsoft.CodeAnalysis.CSharp;
+using Xunit;
+
+namespace DerivGen.Tests.Incremental;
+
+/// <summary>
+/// Counts the lowerings one driver run does (the lowering's own counter, kept per compilation by
+/// <see cref="CompilationLowerings"/>), rather than trusting the tracked steps' reasons, which say "Cached" for a step
+/// that sits after an unchanged result even when the work before it ran again.
+/// What Roslyn forces: <c>ForAttributeWithMetadataName</c> finds the attributed nodes incrementally per syntax tree, but
+/// combines them with the whole compilation before it calls the transform, so after any change of the compilation (any
+/// edit, even of a file unrelated to DerivGen) the transform — the Lower step — runs again for every marked method.
+/// These tests pin that down: each marked method is lowered exactly once per edit (never more), each helper once per
+/// edit however many methods call it, and only the edited method's file is written again.
+/// </summary>
+public sealed class LoweringCountTests
+{
+    private const string Kernels = """
+        using System;
+
+        namespace Count;
+
+        public static partial class Kernels
+        {
+            public static double Shared(double v, double s) => Inner(v) * s + Math.Exp(-v * s);
+
+            public static double Inner(double v) => v * v + 1.0;
+
+            public static double Lonely(double v) => Math.Sin(v) * v;
+        }
+        """;
+
+    private const string First = """
+        using System;
+        using DerivGen;
+
+        namespace Count;
+
+        public static partial class A
+        {
+            [Differentiate]
+            public static double A1(double x, double y) => Kernels.Shared(x, y) + x * y;
+
+            [Differentiate]
+            public static double A2(double x) => Kernels.Shared(x, 2.0) * Kernels.Shared(x, 3.0);
+
+            [Differentiate]
+            public static double A3(double x, double[] t)
+            {
+                double s = 0;
+                for (int i = 0; i < t.Length; i++)
+                {
+                    s += Kernels.Shared(x, t[i]);
+                }
+
+                return s;
+            }
+        }
+        """;
+
+    private const string Second = """
+        using System;
+        using DerivGen;
+
+        namespace Count;
+
+        public static partial class B
+        {
+            [Differentiate]
+            public static double B1(double u) => Kernels.Shared(u, u) - u;
+
+            [Differentiate]
+            public static double B2(double u, double v) => Kernels.Shared(v, u) + Kernels.Lonely(u);
+
+            [Differentiate]
+            public static double B3(double u) => Math.Exp(-u * u);
+        }
+        """;
+
+    private const string Unrelated = """
+        namespace Count;
+
+        public static class Unrelated
+        {
+            public static int Twice(int k) => 2 * k;
+        }
+        """;
+
+    private static readonly string[] Marked =
+    {
+        "Count.A.A1(double, double)", "Count.A.A2(double)", "Count.A.A3(double, double[])",
+        "Count.B.B1(double)", "Count.B.B2(double, double)", "Count.B.B3(double)",
+    };
+
+    private const string SharedId = "M:Count.Kernels.Shared(System.Double,System.Double)";
+    private const string InnerId = "M:Count.Kernels.Inner(System.Double)";
+    private const string LonelyId = "M:Count.Kernels.Lonely(System.Double)";
+
+    public LoweringCountTests()
+    {
+        // Counting is off in production; turning it on only counts (tests running in parallel are not disturbed).
+        CompilationLowerings.CountLowerings = true;
+    }
+
+    [Fact]
+    public void TheFirstRunLowersEachMethodAndEachHelperOnce()
+    {
+        var (_, compilation) = RunOnce();
+        CompilationLowerings counts = CompilationLowerings.Find(compilation)!;
+        AssertEachOnce(counts.MethodLowerings, Marked);
+
+        // Shared is called by five methods (A2 twice, A3 in a loop) and calls Inner: before the table of lowered helpers,
+        // it was lowered once per calling method plus once more by the Helpers step (6 times), Inner as often.
+        AssertEachOnce(counts.HelperLowerings, SharedId, InnerId, LonelyId);
+    }
+
+    [Fact]
+    public void AnUnrelatedEditLowersEachMarkedMethodOnceAndEachHelperOnceAndWritesNothing()
+    {
+        var (driver, compilation) = RunOnce();
+        SyntaxTree old = compilation.SyntaxTrees.Single(t => t.FilePath == "Source3.cs");
+        Compilation edited = compilation.ReplaceSyntaxTree(old, Parse(Unrelated.Replace("2 * k", "3 * k + 1", StringComparison.Ordinal), "Source3.cs"));
+        GeneratorRunResult after = Rerun(driver, edited);
+
+        // Roslyn runs the transform again for every marked method (see the class comment); it is the lowering, so each
+        // method is lowered once — and its model is equal to the last one, which the Lower step reports as Unchanged.
+        CompilationLowerings counts = CompilationLowerings.Find(edited)!;
+        AssertEachOnce(counts.MethodLowerings, Marked);
+        AssertEachOnce(counts.HelperLowerings, SharedId, InnerId, LonelyId);
+        Assert.All(Reasons(after, DerivativeGenerator.LowerStep), r => Assert.Equal(IncrementalStepRunReason.Unchanged, r));
+        Assert.All(Reasons(after, DerivativeGenerator.EmitStep), r => Assert.Equal(IncrementalStepRunReason.Cached, r));
+        Assert.All(Reasons(after, DerivativeGenerator.EmitHelperStep), r => Assert.Contains(r, new[] { IncrementalStepRunReason.Cached, IncrementalStepRunReason.Unchanged }));
+    }
+
+    [Fact]
+    public void AnEditOfOneBodyChangesOnlyThatMethodsModelAndFile()
+    {
+        var (driver, compilation) = RunOnce();
+        SyntaxTree old = compilation.SyntaxTrees.Single(t => t.FilePath == "Source1.cs");
+        Compilation edited = compilation.ReplaceSyntaxTree(old, Parse(Second.Replace("Math.Exp(-u * u)", "Math.Exp(-u * u * 0.5)", StringComparison.Ordinal), "Source1.cs"));
+        GeneratorRunResult after = Rerun(driver, edited);
+
+        CompilationLowerings counts = CompilationLowerings.Find(edited)!;
+        AssertEachOnce(counts.MethodLowerings, Marked);
+        AssertEachOnce(counts.HelperLowerings, SharedId, InnerId, LonelyId);
+
+        var lower = Outputs(after, DerivativeGenerator.LowerStep);
+        var changed = lower.Where(o => o.Reason is IncrementalStepRunReason.Modified or IncrementalStepRunReason.New).ToList();
+        Assert.Equal("Count.B.B3.g.cs", Assert.Single(changed).HintName);
+        var emitted = Outputs(after, DerivativeGenerator.EmitStep).Where(o => o.Reason is IncrementalStepRunReason.Modified or IncrementalStepRunReason.New).ToList();
+        Assert.Equal("Count.B.B3.g.cs", Assert.Single(emitted).HintName);
+    }
+
+    [Fact]
+    public void AnEditOfASharedHelperLowersItOnceAndRewritesOnlyItsFile()
+    {
+        var (driver, compilation) = RunOnce();
+        GeneratorRunResult before = driver.GetRunResult().Results.Single();
+        SyntaxTree old = compilation.SyntaxTrees.Single(t => t.FilePath == "Source2.cs");
+        Compilation edited = compilation.ReplaceSyntaxTree(old, Parse(Kernels.Replace("Math.Exp(-v * s)", "Math.Exp(-2.0 * v * s)", StringComparison.Ordinal), "Source2.cs"));
+        GeneratorRunResult after = Rerun(driver, edited);
+
+        CompilationLowerings counts = CompilationLowerings.Find(edited)!;
+        AssertEachOnce(counts.HelperLowerings, SharedId, InnerId, LonelyId);
+
+        var textBefore = before.GeneratedSources.ToDictionary(s => s.HintName, s => s.SourceText.ToString(), StringComparer.Ordinal);
+        var textAfter = after.GeneratedSources.ToDictionary(s => s.HintName, s => s.SourceText.ToString(), StringComparer.Ordinal);
+        Assert.Equal(textBefore.Keys.OrderBy(k => k, StringComparer.Ordinal), textAfter.Keys.OrderBy(k => k, StringComparer.Ordinal));
+        Assert.Equal(new[] { "Count.Kernels.Shared.g.cs" }, textBefore.Keys.Where(k => textBefore[k] != textAfter[k]).ToArray());
+        Assert.Contains("2.0 * v", textAfter["Count.Kernels.Shared.g.cs"], StringComparison.Ordinal);
+    }
+
+    [Fact]
+    public void AHelperWantedWithAndWithoutItsHessianIsLoweredOncePerKind()
+    {
+        // G wants Shared's Hessian, H (Hessian = false) does not: two lowerings (their models differ), and one file,
+        // with the Hessian, as before.
+        const string mixed = """
+            using DerivGen;
+
+            namespace Count;
+
+            public static partial class Mixed
+            {
+                [Differentiate]
+                public static double G(double x) => Kernels.Shared(x, x);
+
+                [Differentiate(Hessian = false)]
+                public static double H(double x) => Kernels.Shared(x, 1.0);
+            }
+            """;
+        GeneratorHarness.Run(mixed, Kernels);
+        Compilation compilation = GeneratorHarness.CreateCompilation(mixed, Kernels);
+        GeneratorDriver driver = GeneratorHarness.CreateDriver().RunGenerators(compilation);
+        CompilationLowerings counts = CompilationLowerings.Find(compilation)!;
+        Assert.Equal(2, counts.HelperLowerings[SharedId]);
+        Assert.Equal(2, counts.HelperLowerings[InnerId]);
+        string shared = driver.GetRunResult().GeneratedTrees.Single(t => t.FilePath.EndsWith("Count.Kernels.Shared.g.cs", StringComparison.Ordinal)).ToString();
+        Assert.Contains("SharedHessian", shared, StringComparison.Ordinal);
+    }
+
+    private static (GeneratorDriver Driver, Compilation Compilation) RunOnce()
+    {
+        string[] sources = { First, Second, Kernels, Unrelated };
+        GeneratorHarness.Run(sources);
+        Compilation compilation = GeneratorHarness.CreateCompilation(sources);
+        GeneratorDriver driver = GeneratorHarness.CreateDriver().RunGenerators(compilation);
+        Assert.Null(driver.GetRunResult().Results.Single().Exception);
+        return (driver, compilation);
+    }
+
+    private static GeneratorRunResult Rerun(GeneratorDriver driver, Compilation edited)
+    {
+        GeneratorRunResult result = driver.RunGenerators(edited).GetRunResult().Results.Single();
+        Assert.Null(result.Exception);
+        return result;
+    }
+
+    private static void AssertEachOnce(IReadOnlyDictionary<string, int> counts, params string[] expected)
+    {
+        Assert.Equal(expected.OrderBy(k => k, StringComparer.Ordinal), counts.Keys.OrderBy(k => k, StringComparer.Ordinal));
+        Assert.All(expected, key => Assert.True(counts[key] == 1, $"{key} was lowered {counts[key]} times"));
+    }
+
+    private static SyntaxTree Parse(string text, string path) => CSharpSyntaxTree.ParseText(text, GeneratorHarness.ParseOptions, path);
+
+    private static List<(string HintName, IncrementalStepRunReason Reason)> Outputs(GeneratorRunResult result, string step)
+    {
+        Assert.True(result.TrackedSteps.TryGetValue(step, out ImmutableArray<IncrementalGeneratorRunStep> runs), $"No tracked step '{step}'");
+        return runs.SelectMany(r => r.Outputs).Select(o => (HintNameOf(o.Value), o.Reason)).ToList();
+    }
+
+    private static List<IncrementalStepRunReason> Reasons(GeneratorRunResult result, string step) =>
+        Outputs(result, step).Select(o => o.Reason).ToList();
+
+    /// <summary>The hint name carried by a Lower output (the lowering result's Spec) or an Emit output (the file).</summary>
+    private static string HintNameOf(object? output)
+    {
+        if (output is null)
+        {
+            return string.Empty;
+        }
+
+        object carrier = output.GetType().GetProperty("Spec")?.GetValue(output) ?? output;
+        return carrier.GetType().GetProperty("HintName")?.GetValue(carrier) as string ?? string.Empty;
+    }
+}
