@@ -99,6 +99,8 @@ internal sealed class CompilationLowerings
     private readonly Dictionary<(string Id, bool Hessian), LoweredHelper> _helpers = new();
     private readonly Dictionary<SyntaxTree, SemanticModel> _models = new();
     private readonly Dictionary<IMethodSymbol, HelperTarget> _targets = new(SymbolEqualityComparer.Default);
+    private readonly Dictionary<(ISymbol Symbol, object Compute), object> _memo = new(MemoKeyComparer.Instance);
+    private bool? _hasSinCos;
     private Dictionary<string, int>? _methodCounts;
     private Dictionary<string, int>? _helperCounts;
 
@@ -127,6 +129,51 @@ internal sealed class CompilationLowerings
 
             return model;
         }
+    }
+
+    /// <summary>
+    /// <paramref name="compute"/> of <paramref name="symbol"/>, once per compilation (display strings of parameter and
+    /// containing types, which every method of a project repeats). Symbols are compared with their nullable annotations.
+    /// </summary>
+    public T Memo<TSymbol, T>(TSymbol symbol, Func<TSymbol, T> compute)
+        where TSymbol : ISymbol
+    {
+        var key = (symbol, (object)compute);
+        lock (_gate)
+        {
+            if (_memo.TryGetValue(key, out object? known))
+            {
+                return (T)known;
+            }
+        }
+
+        T value = compute(symbol);
+        lock (_gate)
+        {
+            _memo[key] = value!;
+        }
+
+        return value;
+    }
+
+    /// <summary>Whether the target framework has Math.SinCos and MathF.SinCos, found once per compilation.</summary>
+    public bool HasSinCos(Compilation compilation, Func<Compilation, bool> compute)
+    {
+        lock (_gate)
+        {
+            if (_hasSinCos is { } known)
+            {
+                return known;
+            }
+        }
+
+        bool value = compute(compilation);
+        lock (_gate)
+        {
+            _hasSinCos = value;
+        }
+
+        return value;
     }
 
     /// <summary>What calls of <paramref name="target"/> need, found once per compilation.</summary>
@@ -204,5 +251,17 @@ internal sealed class CompilationLowerings
         {
             return counts is null ? new Dictionary<string, int>(StringComparer.Ordinal) : new Dictionary<string, int>(counts, StringComparer.Ordinal);
         }
+    }
+
+    /// <summary>Symbols with their nullable annotations (string? and string are written differently), functions by reference.</summary>
+    private sealed class MemoKeyComparer : IEqualityComparer<(ISymbol Symbol, object Compute)>
+    {
+        public static readonly MemoKeyComparer Instance = new();
+
+        public bool Equals((ISymbol Symbol, object Compute) x, (ISymbol Symbol, object Compute) y) =>
+            ReferenceEquals(x.Compute, y.Compute) && SymbolEqualityComparer.IncludeNullability.Equals(x.Symbol, y.Symbol);
+
+        public int GetHashCode((ISymbol Symbol, object Compute) obj) =>
+            (SymbolEqualityComparer.IncludeNullability.GetHashCode(obj.Symbol) * 31) + System.Runtime.CompilerServices.RuntimeHelpers.GetHashCode(obj.Compute);
     }
 }

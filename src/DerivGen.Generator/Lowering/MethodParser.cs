@@ -299,7 +299,7 @@ internal static class MethodParser
         return new MethodSpec(
             HintName: HintName(method),
             Namespace: method.ContainingNamespace is { IsGlobalNamespace: false } ns ? ns.ToDisplayString() : null,
-            ContainingTypes: ContainingTypes(method.ContainingType),
+            ContainingTypes: helpers.Shared.Memo(method.ContainingType, ContainingTypesOf),
             Name: Identifiers.Escape(method.Name),
             Accessibility: AccessibilityText(method.DeclaredAccessibility),
             IsStatic: method.IsStatic,
@@ -307,15 +307,15 @@ internal static class MethodParser
             Parameters: method.Parameters.Select(p => new ParameterSpec(
                 Identifiers.Escape(p.Name),
                 Modifiers(p, method),
-                p.Type.ToDisplayString(SymbolDisplayFormat.FullyQualifiedFormat.AddMiscellaneousOptions(SymbolDisplayMiscellaneousOptions.IncludeNullableReferenceTypeModifier)),
+                helpers.Shared.Memo(p.Type, ParameterTypeOf),
                 variables.Contains(p.Name),
                 variables.Contains(p.Name) && IsFloatingPointVector(p.Type))).ToEquatableArray(),
             EmitHessian: emitHessian,
             DisplayName: method.ToDisplayString(HeaderFormat),
-            Cref: Identifiers.Escape(method.Name) + "(" + string.Join(", ", method.Parameters.Select(p => CrefType(p))) + ")",
+            Cref: Identifiers.Escape(method.Name) + "(" + string.Join(", ", method.Parameters.Select(p => RefKindPrefix(p) + helpers.Shared.Memo(p.Type, CrefTypeOf))) + ")",
             Body: body,
             OutputName: output is null ? null : Identifiers.Escape(output.Name),
-            HasSinCos: HasSinCos(semanticModel.Compilation));
+            HasSinCos: helpers.Shared.HasSinCos(semanticModel.Compilation, HasSinCosOf));
     }
 
     /// <summary>
@@ -576,10 +576,21 @@ internal static class MethodParser
         _ => string.Empty,
     };
 
-    private static string CrefType(IParameterSymbol parameter)
-    {
-        return RefKindPrefix(parameter) + parameter.Type.ToDisplayString(SymbolDisplayFormat.FullyQualifiedFormat).Replace('<', '{').Replace('>', '}');
-    }
+    /// <summary>A parameter's type as the generated signatures write it (fully qualified, with nullable annotations).</summary>
+    private static string ParameterTypeText(ITypeSymbol type) => type.ToDisplayString(ParameterTypeFormat);
+
+    /// <summary>A parameter's type as a doc-comment cref writes it (after the ref kind).</summary>
+    private static string CrefTypeText(ITypeSymbol type) =>
+        type.ToDisplayString(SymbolDisplayFormat.FullyQualifiedFormat).Replace('<', '{').Replace('>', '}');
+
+    // One delegate each, so that CompilationLowerings.Memo finds its entries again (it compares them by reference).
+    private static readonly Func<INamedTypeSymbol, EquatableArray<ContainingTypeSpec>> ContainingTypesOf = ContainingTypes;
+    private static readonly Func<ITypeSymbol, string> ParameterTypeOf = ParameterTypeText;
+    private static readonly Func<ITypeSymbol, string> CrefTypeOf = CrefTypeText;
+    private static readonly Func<Compilation, bool> HasSinCosOf = HasSinCos;
+
+    private static readonly SymbolDisplayFormat ParameterTypeFormat =
+        SymbolDisplayFormat.FullyQualifiedFormat.AddMiscellaneousOptions(SymbolDisplayMiscellaneousOptions.IncludeNullableReferenceTypeModifier);
 
     private static EquatableArray<ContainingTypeSpec> ContainingTypes(INamedTypeSymbol innermost)
     {
