@@ -82,8 +82,25 @@ public sealed class DerivativeGenerator : IIncrementalGenerator
             return null;
         }
 
-        LoweringResult result = MethodParser.Lower(method, syntax, context.Attributes[0], context.SemanticModel, cancellationToken);
-        return result with { Diagnostics = EquatableArray<Diagnostics.DiagnosticInfo>.Empty }; // The analyzer reports them.
+        // After an edit that cannot have changed this method's lowering (see CompilationLowerings.FindReusable), the
+        // lowering of the previous compilation is taken over instead of binding and lowering the body again.
+        Compilation compilation = context.SemanticModel.Compilation;
+        CompilationLowerings table = CompilationLowerings.For(compilation);
+        string key = method.GetDocumentationCommentId() ?? method.ToDisplayString();
+        if (table.FindReusable(compilation, key, syntax, cancellationToken) is { } reused)
+        {
+            table.RecordMethod(compilation, key, reused);
+            return reused.Result;
+        }
+
+        LoweringResult result = MethodParser.Lower(method, syntax, context.Attributes[0], context.SemanticModel, out var reads, cancellationToken)
+            with { Diagnostics = EquatableArray<Diagnostics.DiagnosticInfo>.Empty }; // The analyzer reports them.
+        if (reads is not null && result.Failure is null)
+        {
+            table.RecordMethod(compilation, key, new ReusableLowering(result, syntax, reads));
+        }
+
+        return result;
     }
 
     private static GeneratedFile EmitFile(MethodSpec spec, CancellationToken cancellationToken)

@@ -18,6 +18,7 @@ internal sealed partial class BodyLowerer
 {
     private IrExpression? LowerHelperCall(IInvocationOperation invocation, IMethodSymbol target)
     {
+        RecordReads(target);
         HelperTarget helper = _helpers.Shared.Target(target, _cancellationToken);
         string name = helper.DisplayName;
         if (_helpers.Chain.Contains(target.OriginalDefinition, SymbolEqualityComparer.Default))
@@ -57,7 +58,7 @@ internal sealed partial class BodyLowerer
         if (!_helpers.Lowered.TryGetValue((id, _emitHessian), out var cached))
         {
             cached = _helpers.Shared.TryGetHelper(id, _emitHessian) is { } shared && !ReachesChain(shared.Reaches)
-                ? (shared.Spec, shared.Diagnostics, shared.Reaches)
+                ? (shared.Spec, shared.Diagnostics, shared.Reaches, shared.ReadFiles)
                 : LowerHelperHere(target, syntax, id);
             _helpers.Lowered[(id, _emitHessian)] = cached;
         }
@@ -67,7 +68,9 @@ internal sealed partial class BodyLowerer
             AddRequest(reached);
         }
 
-        (MethodSpec? spec, IReadOnlyList<DiagnosticInfo> helperDiagnostics, _) = cached;
+        _helpers.Reads.UnionWith(cached.ReadFiles);
+
+        (MethodSpec? spec, IReadOnlyList<DiagnosticInfo> helperDiagnostics, _, _) = cached;
         if (helperDiagnostics.FirstOrDefault(d => d.IsError) is { } error)
         {
             return Unsupported(invocation, "the call to " + name, "the helper's body cannot be differentiated (" + Describe(error) + ")");
@@ -98,13 +101,16 @@ internal sealed partial class BodyLowerer
     /// Lowers the helper in this method's chain of callers, collecting the helpers it calls. A clean result (a spec, no
     /// error) is the same for every caller whose chain it does not reach, so it goes into the compilation's table.
     /// </summary>
-    private (MethodSpec? Spec, IReadOnlyList<DiagnosticInfo> Diagnostics, IReadOnlyList<string> Reaches) LowerHelperHere(
+    private (MethodSpec? Spec, IReadOnlyList<DiagnosticInfo> Diagnostics, IReadOnlyList<string> Reaches, IReadOnlyCollection<string> ReadFiles) LowerHelperHere(
         IMethodSymbol target, MethodDeclarationSyntax syntax, string id)
     {
         var found = new List<DiagnosticInfo>();
         Dictionary<string, bool> outer = _helpers.Requests;
         Dictionary<string, bool> inner = new(StringComparer.Ordinal);
+        HashSet<string> outerReads = _helpers.Reads;
+        HashSet<string> innerReads = new(StringComparer.Ordinal) { syntax.SyntaxTree.FilePath };
         _helpers.Requests = inner;
+        _helpers.Reads = innerReads;
         MethodSpec? spec;
         try
         {
@@ -113,15 +119,26 @@ internal sealed partial class BodyLowerer
         finally
         {
             _helpers.Requests = outer;
+            _helpers.Reads = outerReads;
         }
 
         string[] reaches = inner.Keys.OrderBy(k => k, StringComparer.Ordinal).ToArray();
+        string[] readFiles = innerReads.OrderBy(k => k, StringComparer.Ordinal).ToArray();
         if (spec is not null && !found.Any(d => d.IsError))
         {
-            _helpers.Shared.AddHelper(id, _emitHessian, new LoweredHelper(spec, found, reaches));
+            _helpers.Shared.AddHelper(id, _emitHessian, new LoweredHelper(spec, found, reaches, readFiles));
         }
 
-        return (spec, found, reaches);
+        return (spec, found, reaches, readFiles);
+    }
+
+    /// <summary>The files declaring a called method are read by this lowering (its declaration, and a helper's body).</summary>
+    private void RecordReads(IMethodSymbol target)
+    {
+        foreach (SyntaxReference reference in target.DeclaringSyntaxReferences)
+        {
+            _helpers.Reads.Add(reference.SyntaxTree.FilePath);
+        }
     }
 
     /// <summary>Whether a helper that calls <paramref name="reaches"/> would call back into this method's chain (recursion).</summary>

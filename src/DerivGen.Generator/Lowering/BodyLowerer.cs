@@ -983,6 +983,7 @@ internal sealed partial class BodyLowerer
     /// </summary>
     private IrExpression? LowerUserCall(IInvocationOperation invocation, IMethodSymbol target, AttributeData attribute)
     {
+        RecordReads(target);
         string name = "'" + target.ContainingType?.Name + "." + target.Name + "'";
         if (SymbolEqualityComparer.Default.Equals(target.OriginalDefinition, _method.OriginalDefinition))
         {

@@ -44,7 +44,11 @@ internal sealed class HelperContext
 
     /// <summary>Helpers already lowered for this marked method, by documentation ID and whether a Hessian is needed, with
     /// the helpers each one calls (directly or not).</summary>
-    public Dictionary<(string Id, bool Hessian), (MethodSpec? Spec, IReadOnlyList<DiagnosticInfo> Diagnostics, IReadOnlyList<string> Reaches)> Lowered { get; } = new();
+    public Dictionary<(string Id, bool Hessian), (MethodSpec? Spec, IReadOnlyList<DiagnosticInfo> Diagnostics, IReadOnlyList<string> Reaches, IReadOnlyCollection<string> ReadFiles)> Lowered { get; } = new();
+
+    /// <summary>The files (paths) of every method the lowering called (helpers, directly or not, whose bodies it read,
+    /// and marked methods); see <see cref="CompilationLowerings.FindReusable"/>.</summary>
+    public HashSet<string> Reads { get; set; } = new(StringComparer.Ordinal);
 
     /// <summary>The methods being lowered, outermost first: a call back into one of them is recursion.</summary>
     public List<IMethodSymbol> Chain { get; } = new();
@@ -67,9 +71,20 @@ internal static class MethodParser
     private const string GeneratorToolName = "DerivGen";
 
     public static LoweringResult Lower(IMethodSymbol method, MethodDeclarationSyntax syntax, AttributeData attribute,
-        SemanticModel semanticModel, CancellationToken cancellationToken)
+        SemanticModel semanticModel, CancellationToken cancellationToken) =>
+        Lower(method, syntax, attribute, semanticModel, out _, cancellationToken);
+
+    /// <summary>
+    /// <see cref="Lower(IMethodSymbol, MethodDeclarationSyntax, AttributeData, SemanticModel, CancellationToken)"/>, with
+    /// the files whose declarations the lowering read (<see cref="HelperContext.Reads"/>); null when the result may not be
+    /// reused after an edit (the body is another part's, or the lowering failed inside DerivGen).
+    /// </summary>
+    public static LoweringResult Lower(IMethodSymbol method, MethodDeclarationSyntax syntax, AttributeData attribute,
+        SemanticModel semanticModel, out IReadOnlyCollection<string>? reads, CancellationToken cancellationToken)
     {
+        reads = null;
         var diagnostics = new List<DiagnosticInfo>();
+        MethodDeclarationSyntax originalSyntax = syntax;
         try
         {
             // [Differentiate] on the declaring part of a partial method: the body is the implementing part's. It is used
@@ -90,6 +105,7 @@ internal static class MethodParser
                 syntax = implementationSyntax;
             }
 
+            bool ownBody = ReferenceEquals(syntax, originalSyntax);
             CompilationLowerings.CountMethod(semanticModel.Compilation, method);
             var helpers = new HelperContext(semanticModel.Compilation);
             helpers.Chain.Add(method);
@@ -103,6 +119,7 @@ internal static class MethodParser
                     method.ToDisplayString(HeaderFormat) + " (" + failure + ")");
             }
 
+            reads = ownBody ? helpers.Reads : null;
             return new LoweringResult(hasErrors ? null : spec, diagnostics.ToEquatableArray(),
                 hasErrors ? EquatableArray<HelperRequest>.Empty
                     : helpers.Requests.OrderBy(p => p.Key, StringComparer.Ordinal).Select(p => new HelperRequest(p.Key, p.Value)).ToEquatableArray());

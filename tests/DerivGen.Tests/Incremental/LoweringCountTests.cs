@@ -13,13 +13,14 @@ namespace DerivGen.Tests.Incremental;
 
 /// <summary>
 /// Counts the lowerings one driver run does (the lowering's own counter, kept per compilation by
-/// <see cref="CompilationLowerings"/>), rather than trusting the tracked steps' reasons, which say "Cached" for a step
-/// that sits after an unchanged result even when the work before it ran again.
+/// <see cref="CompilationLowerings"/>), rather than trusting the tracked steps' reasons alone.
 /// What Roslyn forces: <c>ForAttributeWithMetadataName</c> finds the attributed nodes incrementally per syntax tree, but
 /// combines them with the whole compilation before it calls the transform, so after any change of the compilation (any
 /// edit, even of a file unrelated to DerivGen) the transform — the Lower step — runs again for every marked method.
-/// These tests pin that down: each marked method is lowered exactly once per edit (never more), each helper once per
-/// edit however many methods call it, and only the edited method's file is written again.
+/// The transform then takes over the earlier compilation's lowering when the edit cannot have changed it (only bodies
+/// changed, and neither the method's own nor that of a helper it calls): such edits lower nothing, or the edited method
+/// only; an edit that adds a file or changes a declaration lowers every method once; a helper is lowered once per edit
+/// however many methods call it.
 /// </summary>
 public sealed class LoweringCountTests
 {
@@ -123,25 +124,39 @@ public sealed class LoweringCountTests
     }
 
     [Fact]
-    public void AnUnrelatedEditLowersEachMarkedMethodOnceAndEachHelperOnceAndWritesNothing()
+    public void AnEditOfAnUnrelatedBodyLowersNothingAndWritesNothing()
     {
         var (driver, compilation) = RunOnce();
         SyntaxTree old = compilation.SyntaxTrees.Single(t => t.FilePath == "Source3.cs");
         Compilation edited = compilation.ReplaceSyntaxTree(old, Parse(Unrelated.Replace("2 * k", "3 * k + 1", StringComparison.Ordinal), "Source3.cs"));
         GeneratorRunResult after = Rerun(driver, edited);
 
-        // Roslyn runs the transform again for every marked method (see the class comment); it is the lowering, so each
-        // method is lowered once — and its model is equal to the last one, which the Lower step reports as Unchanged.
+        // The transform runs for every marked method (Unchanged: it ran, and gave an equal model) but lowers none.
         CompilationLowerings counts = CompilationLowerings.Find(edited)!;
-        AssertEachOnce(counts.MethodLowerings, Marked);
-        AssertEachOnce(counts.HelperLowerings, SharedId, InnerId, LonelyId);
+        Assert.Empty(counts.MethodLowerings);
+        Assert.Empty(counts.HelperLowerings);
         Assert.All(Reasons(after, DerivativeGenerator.LowerStep), r => Assert.Equal(IncrementalStepRunReason.Unchanged, r));
         Assert.All(Reasons(after, DerivativeGenerator.EmitStep), r => Assert.Equal(IncrementalStepRunReason.Cached, r));
         Assert.All(Reasons(after, DerivativeGenerator.EmitHelperStep), r => Assert.Contains(r, new[] { IncrementalStepRunReason.Cached, IncrementalStepRunReason.Unchanged }));
+        AssertTextsChanged(driver, after, edited);
     }
 
     [Fact]
-    public void AnEditOfOneBodyChangesOnlyThatMethodsModelAndFile()
+    public void AddingAFileLowersEachMarkedMethodOnceAndEachHelperOnce()
+    {
+        // A new file may declare anything (a type that changes what a name in a body binds to): nothing is taken over.
+        var (driver, compilation) = RunOnce();
+        Compilation edited = compilation.AddSyntaxTrees(Parse("namespace Count;\n\npublic static class More\n{\n    public static int Three() => 3;\n}\n", "Source4.cs"));
+        GeneratorRunResult after = Rerun(driver, edited);
+
+        CompilationLowerings counts = CompilationLowerings.Find(edited)!;
+        AssertEachOnce(counts.MethodLowerings, Marked);
+        AssertEachOnce(counts.HelperLowerings, SharedId, InnerId, LonelyId);
+        AssertTextsChanged(driver, after, edited);
+    }
+
+    [Fact]
+    public void AnEditOfOneBodyLowersThatMethodOnly()
     {
         var (driver, compilation) = RunOnce();
         SyntaxTree old = compilation.SyntaxTrees.Single(t => t.FilePath == "Source1.cs");
@@ -149,33 +164,149 @@ public sealed class LoweringCountTests
         GeneratorRunResult after = Rerun(driver, edited);
 
         CompilationLowerings counts = CompilationLowerings.Find(edited)!;
-        AssertEachOnce(counts.MethodLowerings, Marked);
-        AssertEachOnce(counts.HelperLowerings, SharedId, InnerId, LonelyId);
+        AssertEachOnce(counts.MethodLowerings, "Count.B.B3(double)");
+        Assert.Empty(counts.HelperLowerings);
 
         var lower = Outputs(after, DerivativeGenerator.LowerStep);
         var changed = lower.Where(o => o.Reason is IncrementalStepRunReason.Modified or IncrementalStepRunReason.New).ToList();
         Assert.Equal("Count.B.B3.g.cs", Assert.Single(changed).HintName);
         var emitted = Outputs(after, DerivativeGenerator.EmitStep).Where(o => o.Reason is IncrementalStepRunReason.Modified or IncrementalStepRunReason.New).ToList();
         Assert.Equal("Count.B.B3.g.cs", Assert.Single(emitted).HintName);
+        AssertTextsChanged(driver, after, edited, "Count.B.B3.g.cs");
     }
 
     [Fact]
-    public void AnEditOfASharedHelperLowersItOnceAndRewritesOnlyItsFile()
+    public void AnEditOfASharedHelperLowersItOnceAndItsCallersOnceAndRewritesOnlyItsFile()
     {
         var (driver, compilation) = RunOnce();
-        GeneratorRunResult before = driver.GetRunResult().Results.Single();
         SyntaxTree old = compilation.SyntaxTrees.Single(t => t.FilePath == "Source2.cs");
         Compilation edited = compilation.ReplaceSyntaxTree(old, Parse(Kernels.Replace("Math.Exp(-v * s)", "Math.Exp(-2.0 * v * s)", StringComparison.Ordinal), "Source2.cs"));
         GeneratorRunResult after = Rerun(driver, edited);
 
+        // Every method that calls a helper of the edited file is lowered again (B3 calls none); each helper once.
         CompilationLowerings counts = CompilationLowerings.Find(edited)!;
+        AssertEachOnce(counts.MethodLowerings, Marked.Where(m => !m.StartsWith("Count.B.B3", StringComparison.Ordinal)).ToArray());
         AssertEachOnce(counts.HelperLowerings, SharedId, InnerId, LonelyId);
+        AssertTextsChanged(driver, after, edited, "Count.Kernels.Shared.g.cs");
+        Assert.Contains("2.0 * v", after.GeneratedSources.Single(s => s.HintName == "Count.Kernels.Shared.g.cs").SourceText.ToString(), StringComparison.Ordinal);
+    }
 
-        var textBefore = before.GeneratedSources.ToDictionary(s => s.HintName, s => s.SourceText.ToString(), StringComparer.Ordinal);
-        var textAfter = after.GeneratedSources.ToDictionary(s => s.HintName, s => s.SourceText.ToString(), StringComparer.Ordinal);
-        Assert.Equal(textBefore.Keys.OrderBy(k => k, StringComparer.Ordinal), textAfter.Keys.OrderBy(k => k, StringComparer.Ordinal));
-        Assert.Equal(new[] { "Count.Kernels.Shared.g.cs" }, textBefore.Keys.Where(k => textBefore[k] != textAfter[k]).ToArray());
-        Assert.Contains("2.0 * v", textAfter["Count.Kernels.Shared.g.cs"], StringComparison.Ordinal);
+    [Fact]
+    public void AHelperThatStopsLoweringTakesItsCallerWithItAsAFreshRunWould()
+    {
+        // Lonely gets a while loop (DG0001): B2, which calls it, is generated no more, exactly as a driver that never saw
+        // the earlier compilation decides; B2's earlier lowering is not taken over, since it read Lonely's file.
+        var (driver, compilation) = RunOnce();
+        SyntaxTree old = compilation.SyntaxTrees.Single(t => t.FilePath == "Source2.cs");
+        string broken = Kernels.Replace("public static double Lonely(double v) => Math.Sin(v) * v;",
+            "public static double Lonely(double v)\n    {\n        double s = v;\n        while (s > 1)\n        {\n            s /= 2;\n        }\n\n        return s;\n    }", StringComparison.Ordinal);
+        Assert.NotEqual(Kernels, broken);
+        Compilation edited = compilation.ReplaceSyntaxTree(old, Parse(broken, "Source2.cs"));
+        GeneratorRunResult after = Rerun(driver, edited);
+
+        Assert.DoesNotContain(after.GeneratedSources, s => s.HintName is "Count.B.B2.g.cs" or "Count.Kernels.Lonely.g.cs");
+        GeneratorRunResult fresh = GeneratorHarness.CreateDriver().RunGenerators(edited).GetRunResult().Results.Single();
+        Assert.Equal(
+            fresh.GeneratedSources.Select(s => (s.HintName, s.SourceText.ToString())).OrderBy(p => p.HintName, StringComparer.Ordinal),
+            after.GeneratedSources.Select(s => (s.HintName, s.SourceText.ToString())).OrderBy(p => p.HintName, StringComparer.Ordinal));
+    }
+
+    [Fact]
+    public void AnEditOfAHelperInItsCallersFileLowersTheCallerAgain()
+    {
+        // The caller's own body is unchanged, but it reads a helper whose body changed in the same file: nothing of the
+        // earlier lowering may be taken over (whether the helper still lowers cleanly decides whether the caller does).
+        const string together = """
+            using System;
+            using DerivGen;
+
+            namespace Count;
+
+            public static partial class Together
+            {
+                [Differentiate]
+                public static double Caller(double x) => Near(x) * x;
+
+                public static double Near(double v) => Math.Sin(v) + v;
+            }
+            """;
+        GeneratorHarness.Run(together);
+        Compilation compilation = GeneratorHarness.CreateCompilation(together);
+        GeneratorDriver driver = GeneratorHarness.CreateDriver().RunGenerators(compilation);
+        SyntaxTree old = compilation.SyntaxTrees.Single();
+        Compilation edited = compilation.ReplaceSyntaxTree(old, Parse(together.Replace("Math.Sin(v) + v", "Math.Sin(v) * v", StringComparison.Ordinal), old.FilePath));
+        GeneratorRunResult after = Rerun(driver, edited);
+
+        CompilationLowerings counts = CompilationLowerings.Find(edited)!;
+        AssertEachOnce(counts.MethodLowerings, "Count.Together.Caller(double)");
+        AssertEachOnce(counts.HelperLowerings, "M:Count.Together.Near(System.Double)");
+        AssertTextsChanged(driver, after, edited, "Count.Together.Near.g.cs");
+    }
+
+    [Fact]
+    public void AnEditOfAConstantOrADefaultValueElsewhereIsNeverMissed()
+    {
+        // Constants and default parameter values are declarations (Roslyn's top-level comparison sees them), so an edit of
+        // either lowers every method again, and the derivatives follow. Worked by hand: d/dx (K * x * x) = 2 K x.
+        const string marked = """
+            using DerivGen;
+
+            namespace Count;
+
+            public static partial class UsesOthers
+            {
+                [Differentiate]
+                public static double Scaled(double x) => Settings.K * x * x;
+
+                [Differentiate]
+                public static double Defaulted(double x) => Shapes.Power(x);
+            }
+            """;
+        const string others = """
+            namespace Count;
+
+            public static class Settings
+            {
+                public const double K = 3.0;
+            }
+
+            public static partial class Shapes
+            {
+                public static double Power(double v, int n = 2)
+                {
+                    double p = 1;
+                    for (int i = 0; i < n; i++)
+                    {
+                        p *= v;
+                    }
+
+                    return p;
+                }
+            }
+            """;
+        GeneratorHarness.Run(marked, others);
+        Compilation compilation = GeneratorHarness.CreateCompilation(marked, others);
+        GeneratorDriver driver = GeneratorHarness.CreateDriver().RunGenerators(compilation);
+        GeneratorRunResult before = driver.GetRunResult().Results.Single();
+        SyntaxTree old = compilation.SyntaxTrees.Single(t => t.FilePath == "Source1.cs");
+        string changed = others.Replace("K = 3.0", "K = 5.0", StringComparison.Ordinal).Replace("int n = 2", "int n = 3", StringComparison.Ordinal);
+        Compilation edited = compilation.ReplaceSyntaxTree(old, Parse(changed, "Source1.cs"));
+        GeneratorRunResult after = Rerun(driver, edited);
+
+        CompilationLowerings counts = CompilationLowerings.Find(edited)!;
+        AssertEachOnce(counts.MethodLowerings, "Count.UsesOthers.Scaled(double)", "Count.UsesOthers.Defaulted(double)");
+        string scaledBefore = before.GeneratedSources.Single(s => s.HintName == "Count.UsesOthers.Scaled.g.cs").SourceText.ToString();
+        string scaledAfter = after.GeneratedSources.Single(s => s.HintName == "Count.UsesOthers.Scaled.g.cs").SourceText.ToString();
+        Assert.NotEqual(scaledBefore, scaledAfter);
+        string defaultedBefore = before.GeneratedSources.Single(s => s.HintName == "Count.UsesOthers.Defaulted.g.cs").SourceText.ToString();
+        string defaultedAfter = after.GeneratedSources.Single(s => s.HintName == "Count.UsesOthers.Defaulted.g.cs").SourceText.ToString();
+        Assert.NotEqual(defaultedBefore, defaultedAfter);
+
+        // The same texts as a driver that never saw the earlier compilation writes.
+        GeneratorRunResult fresh = GeneratorHarness.CreateDriver().RunGenerators(edited).GetRunResult().Results.Single();
+        Assert.Equal(
+            fresh.GeneratedSources.Select(s => (s.HintName, s.SourceText.ToString())).OrderBy(p => p.HintName, StringComparer.Ordinal),
+            after.GeneratedSources.Select(s => (s.HintName, s.SourceText.ToString())).OrderBy(p => p.HintName, StringComparer.Ordinal));
     }
 
     [Fact]
@@ -205,6 +336,20 @@ public sealed class LoweringCountTests
         Assert.Equal(2, counts.HelperLowerings[InnerId]);
         string shared = driver.GetRunResult().GeneratedTrees.Single(t => t.FilePath.EndsWith("Count.Kernels.Shared.g.cs", StringComparison.Ordinal)).ToString();
         Assert.Contains("SharedHessian", shared, StringComparison.Ordinal);
+    }
+
+    /// <summary>Only the named files' texts differ from the driver's previous run, and every text equals what a fresh
+    /// driver (which never saw an earlier compilation) writes for the same compilation.</summary>
+    private static void AssertTextsChanged(GeneratorDriver before, GeneratorRunResult after, Compilation edited, params string[] changedHints)
+    {
+        GeneratorRunResult fresh = GeneratorHarness.CreateDriver().RunGenerators(edited).GetRunResult().Results.Single();
+        Assert.Equal(
+            fresh.GeneratedSources.Select(s => (s.HintName, s.SourceText.ToString())).OrderBy(p => p.HintName, StringComparer.Ordinal),
+            after.GeneratedSources.Select(s => (s.HintName, s.SourceText.ToString())).OrderBy(p => p.HintName, StringComparer.Ordinal));
+        var textBefore = before.GetRunResult().Results.Single().GeneratedSources.ToDictionary(s => s.HintName, s => s.SourceText.ToString(), StringComparer.Ordinal);
+        var textAfter = after.GeneratedSources.ToDictionary(s => s.HintName, s => s.SourceText.ToString(), StringComparer.Ordinal);
+        Assert.Equal(textBefore.Keys.OrderBy(k => k, StringComparer.Ordinal), textAfter.Keys.OrderBy(k => k, StringComparer.Ordinal));
+        Assert.Equal(changedHints.OrderBy(h => h, StringComparer.Ordinal), textBefore.Keys.Where(k => textBefore[k] != textAfter[k]).OrderBy(k => k, StringComparer.Ordinal));
     }
 
     private static (GeneratorDriver Driver, Compilation Compilation) RunOnce()
