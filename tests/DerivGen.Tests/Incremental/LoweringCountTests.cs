@@ -194,18 +194,18 @@ public sealed class LoweringCountTests
     [Fact]
     public void AHelperThatStopsLoweringTakesItsCallerWithItAsAFreshRunWould()
     {
-        // Lonely gets a while loop (DG0001): B2, which calls it, is generated no more, exactly as a driver that never saw
-        // the earlier compilation decides; B2's earlier lowering is not taken over, since it read Lonely's file.
+        // Lonely's body (only its body) gets an object creation and a call DerivGen cannot differentiate (DG0001): B2,
+        // which calls it, is generated no more, exactly as a driver that never saw the earlier compilation decides; B2's
+        // earlier lowering is not taken over, since it read Lonely's file.
         var (driver, compilation) = RunOnce();
         SyntaxTree old = compilation.SyntaxTrees.Single(t => t.FilePath == "Source2.cs");
-        string broken = Kernels.Replace("public static double Lonely(double v) => Math.Sin(v) * v;",
-            "public static double Lonely(double v)\n    {\n        double s = v;\n        while (s > 1)\n        {\n            s /= 2;\n        }\n\n        return s;\n    }", StringComparison.Ordinal);
+        string broken = Kernels.Replace("Lonely(double v) => Math.Sin(v) * v;", "Lonely(double v) => Math.Sin(v) * v + new Random(1).Next();", StringComparison.Ordinal);
         Assert.NotEqual(Kernels, broken);
         Compilation edited = compilation.ReplaceSyntaxTree(old, Parse(broken, "Source2.cs"));
         GeneratorRunResult after = Rerun(driver, edited);
 
         Assert.DoesNotContain(after.GeneratedSources, s => s.HintName is "Count.B.B2.g.cs" or "Count.Kernels.Lonely.g.cs");
-        GeneratorRunResult fresh = GeneratorHarness.CreateDriver().RunGenerators(edited).GetRunResult().Results.Single();
+        GeneratorRunResult fresh = FreshRun(edited);
         Assert.Equal(
             fresh.GeneratedSources.Select(s => (s.HintName, s.SourceText.ToString())).OrderBy(p => p.HintName, StringComparer.Ordinal),
             after.GeneratedSources.Select(s => (s.HintName, s.SourceText.ToString())).OrderBy(p => p.HintName, StringComparer.Ordinal));
@@ -303,7 +303,7 @@ public sealed class LoweringCountTests
         Assert.NotEqual(defaultedBefore, defaultedAfter);
 
         // The same texts as a driver that never saw the earlier compilation writes.
-        GeneratorRunResult fresh = GeneratorHarness.CreateDriver().RunGenerators(edited).GetRunResult().Results.Single();
+        GeneratorRunResult fresh = FreshRun(edited);
         Assert.Equal(
             fresh.GeneratedSources.Select(s => (s.HintName, s.SourceText.ToString())).OrderBy(p => p.HintName, StringComparer.Ordinal),
             after.GeneratedSources.Select(s => (s.HintName, s.SourceText.ToString())).OrderBy(p => p.HintName, StringComparer.Ordinal));
@@ -338,11 +338,84 @@ public sealed class LoweringCountTests
         Assert.Contains("SharedHessian", shared, StringComparison.Ordinal);
     }
 
+    /// <summary>
+    /// Edits chosen to tempt a wrong takeover of an earlier lowering; after each, the driver that saw the earlier
+    /// compilation must write exactly what a fresh driver writes. (Source0 holds the marked methods, Source1 the rest.)
+    /// </summary>
+    [Theory]
+    [InlineData("a body of a marked method that another one calls", "Source1.cs", "return 2.0 * v;", "return 3.0 * v;")]
+    [InlineData("a preprocessor symbol tested by a helper", "Source1.cs", "#if FAST", "#if !FAST")]
+    [InlineData("a nested type that captures the name Math", "Source0.cs", "public static partial class Marked\n{", "public static partial class Marked\n{\n    private static class Math\n    {\n        public static double Sin(double v) => v;\n    }\n")]
+    [InlineData("a comment in a marked method's file", "Source0.cs", "namespace Count;", "namespace Count; // a note")]
+    [InlineData("a directive outside the method that changes its nullable context", "Source0.cs", "namespace Count;", "namespace Count;\n#nullable disable")]
+    [InlineData("a helper's parameter from double to int", "Source1.cs", "Twist(double v, double w)", "Twist(double v, int w)")]
+    [InlineData("a body that stops compiling", "Source1.cs", "return 2.0 * v;", "return 2.0 * undefined;")]
+    [InlineData("a helper's body that stops lowering", "Source1.cs", "return Math.Cos(v) * w;", "return Math.Cos(v) * w + new Random(1).Next();")]
+    [InlineData("a helper's body that changes", "Source1.cs", "return Math.Cos(v) * w;", "return Math.Sin(v) * w;")]
+    public void TemptingEditsNeverMakeTheOutputDifferFromAFreshRun(string what, string file, string from, string to)
+    {
+        const string marked = """
+            using System;
+            using DerivGen;
+
+            namespace Count;
+
+            public static partial class Marked
+            {
+                [Differentiate]
+                public static double Outer(double x) => Other.Doubled(x) + Math.Sin(x);
+
+                [Differentiate]
+                public static double UsesHelper(double x, double y) => Other.Twist(x, y) * y;
+
+                [Differentiate(nameof(x))]
+                public static double WithData(double x, double[]? t) => x * t!.Length;
+            }
+            """;
+        const string others = """
+            using System;
+            using DerivGen;
+
+            namespace Count;
+
+            public static partial class Other
+            {
+                [Differentiate]
+                public static double Doubled(double v)
+                {
+                    return 2.0 * v;
+                }
+
+                public static double Twist(double v, double w)
+                {
+            #if FAST
+                    return v * w;
+            #else
+                    return Math.Cos(v) * w;
+            #endif
+                }
+            }
+            """;
+        Compilation compilation = GeneratorHarness.CreateCompilation(marked, others);
+        GeneratorDriver driver = GeneratorHarness.CreateDriver().RunGenerators(compilation);
+        Assert.Equal(5, driver.GetRunResult().GeneratedTrees.Length);
+        SyntaxTree old = compilation.SyntaxTrees.Single(t => t.FilePath == file);
+        string text = old.ToString();
+        string changed = text.Replace(from.Replace("\\n", "\n", StringComparison.Ordinal), to.Replace("\\n", "\n", StringComparison.Ordinal), StringComparison.Ordinal);
+        Assert.True(text != changed, "The edit '" + what + "' did not apply.");
+        Compilation edited = compilation.ReplaceSyntaxTree(old, Parse(changed, file));
+        GeneratorRunResult after = Rerun(driver, edited);
+        GeneratorRunResult fresh = FreshRun(edited);
+        Assert.Equal(
+            fresh.GeneratedSources.Select(s => (s.HintName, s.SourceText.ToString())).OrderBy(p => p.HintName, StringComparer.Ordinal),
+            after.GeneratedSources.Select(s => (s.HintName, s.SourceText.ToString())).OrderBy(p => p.HintName, StringComparer.Ordinal));
+    }
+
     /// <summary>Only the named files' texts differ from the driver's previous run, and every text equals what a fresh
     /// driver (which never saw an earlier compilation) writes for the same compilation.</summary>
     private static void AssertTextsChanged(GeneratorDriver before, GeneratorRunResult after, Compilation edited, params string[] changedHints)
     {
-        GeneratorRunResult fresh = GeneratorHarness.CreateDriver().RunGenerators(edited).GetRunResult().Results.Single();
+        GeneratorRunResult fresh = FreshRun(edited);
         Assert.Equal(
             fresh.GeneratedSources.Select(s => (s.HintName, s.SourceText.ToString())).OrderBy(p => p.HintName, StringComparer.Ordinal),
             after.GeneratedSources.Select(s => (s.HintName, s.SourceText.ToString())).OrderBy(p => p.HintName, StringComparer.Ordinal));
@@ -350,6 +423,21 @@ public sealed class LoweringCountTests
         var textAfter = after.GeneratedSources.ToDictionary(s => s.HintName, s => s.SourceText.ToString(), StringComparer.Ordinal);
         Assert.Equal(textBefore.Keys.OrderBy(k => k, StringComparer.Ordinal), textAfter.Keys.OrderBy(k => k, StringComparer.Ordinal));
         Assert.Equal(changedHints.OrderBy(h => h, StringComparer.Ordinal), textBefore.Keys.Where(k => textBefore[k] != textAfter[k]).OrderBy(k => k, StringComparer.Ordinal));
+    }
+
+    /// <summary>
+    /// A fresh driver's run on the same sources parsed again: new syntax trees and a new compilation share nothing with
+    /// any earlier run (running a new driver on <paramref name="edited"/> itself would find the lowerings recorded for
+    /// that compilation object, and so would not be independent).
+    /// </summary>
+    private static GeneratorRunResult FreshRun(Compilation edited)
+    {
+        Compilation reparsed = GeneratorHarness.CreateCompilation(edited.SyntaxTrees.Select(t => t.ToString()).ToArray());
+        Assert.Equal(edited.SyntaxTrees.Select(t => t.FilePath), reparsed.SyntaxTrees.Select(t => t.FilePath));
+        GeneratorRunResult fresh = GeneratorHarness.CreateDriver().RunGenerators(reparsed).GetRunResult().Results.Single();
+        Assert.Null(fresh.Exception);
+        Assert.DoesNotContain(CompilationLowerings.Find(reparsed)!.MethodLowerings, m => m.Value != 1);
+        return fresh;
     }
 
     private static (GeneratorDriver Driver, Compilation Compilation) RunOnce()
