@@ -35,10 +35,11 @@ public sealed class DerivativeGenerator : IIncrementalGenerator
     public void Initialize(IncrementalGeneratorInitializationContext context)
     {
         // Discover + Lower: only methods carrying [Differentiate]; each becomes an equatable spec (the cache boundary),
-        // with the specs of the unmarked helpers it calls.
-        // The tracking name is on the transform itself: Roslyn runs it again for every marked method whenever the
-        // compilation changes (ForAttributeWithMetadataName combines the found nodes with the compilation), so an
-        // unrelated edit shows here as "Unchanged" (lowered again, equal model), never as "Cached".
+        // with the documentation IDs of the unmarked helpers it calls. The tracking name is on the transform itself:
+        // Roslyn runs it again for every marked method whenever the compilation changes (ForAttributeWithMetadataName
+        // combines the found nodes with the compilation), so an unrelated edit shows here as "Unchanged" (the transform
+        // ran and gave an equal model), never as "Cached". The transform takes over the previous compilation's lowering
+        // when the edit cannot have changed it (LowerMethod), so that such a run is cheap.
         IncrementalValuesProvider<LoweringResult> lowered = context.SyntaxProvider
             .ForAttributeWithMetadataName(
                 MethodParser.AttributeMetadataName,
