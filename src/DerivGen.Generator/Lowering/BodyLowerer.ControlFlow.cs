@@ -96,18 +96,32 @@ internal sealed partial class BodyLowerer
     private static bool NeedsReturnFlag(IBlockOperation body)
     {
         IOperation? last = body.Operations.Length > 0 ? body.Operations[body.Operations.Length - 1] : null;
-        if (body.Descendants().OfType<IReturnOperation>().Any(r => Ancestors(r, body).Any(a => a is ISwitchOperation)))
+        // One walk of the body finds the returns and the loops (each walk of an operation tree allocates).
+        var returns = new List<IReturnOperation>();
+        var loops = new List<IOperation>();
+        foreach (IOperation operation in body.Descendants())
+        {
+            if (operation is IReturnOperation found)
+            {
+                returns.Add(found);
+            }
+            else if (operation is ILoopOperation)
+            {
+                loops.Add(operation);
+            }
+        }
+
+        if (returns.Any(r => Ancestors(r, body).Any(a => a is ISwitchOperation)))
         {
             return true; // a return inside a switch section: the chain of ifs it becomes cannot return early
         }
 
-        List<IOperation> loops = body.Descendants().Where(o => o is ILoopOperation).ToList();
         if (loops.Count == 0)
         {
             return false;
         }
 
-        foreach (IReturnOperation ret in body.Descendants().OfType<IReturnOperation>())
+        foreach (IReturnOperation ret in returns)
         {
             if (ret == last)
             {

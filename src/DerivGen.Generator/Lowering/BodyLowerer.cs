@@ -861,10 +861,19 @@ internal sealed partial class BodyLowerer
         _ => IsSpan(type),
     };
 
+    /// <summary>System.Math or System.MathF (the name is checked before the display string is built), else null.</summary>
+    private static MathHost? MathTypeHost(INamedTypeSymbol? type) => type is { Name: "Math" or "MathF" }
+        ? type.ToDisplayString() switch
+        {
+            "System.Math" => MathHost.Math,
+            "System.MathF" => MathHost.MathF,
+            _ => null,
+        }
+        : null;
+
     private static bool IsSpan(ITypeSymbol? type) =>
-        type is INamedTypeSymbol { IsGenericType: true, TypeArguments.Length: 1 } named
+        type is INamedTypeSymbol { IsGenericType: true, TypeArguments.Length: 1, Name: "Span" or "ReadOnlySpan" } named
         && named.ContainingNamespace?.ToDisplayString() == "System"
-        && named.Name is "Span" or "ReadOnlySpan"
         && ScalarTypeOf(named.TypeArguments[0]) is ScalarType.Double or ScalarType.Single or ScalarType.Int32;
 
     private static bool TryBinaryOperator(BinaryOperatorKind kind, out BinaryOperator op)
@@ -902,13 +911,15 @@ internal sealed partial class BodyLowerer
             return new IrExternal(arrayText + ".GetLength(" + dimension.ToString(System.Globalization.CultureInfo.InvariantCulture) + ")", ScalarType.Int32);
         }
 
-        if (target.GetAttributes().FirstOrDefault(a => a.AttributeClass?.ToDisplayString() == MethodParser.AttributeMetadataName) is { } attribute)
+        // Names are compared before display strings are built (ToDisplayString allocates; this runs for every call).
+        if (target.GetAttributes().FirstOrDefault(a => a.AttributeClass is { Name: "DifferentiateAttribute" } type
+                && type.ToDisplayString() == MethodParser.AttributeMetadataName) is { } attribute)
         {
             return LowerUserCall(invocation, target, attribute);
         }
 
         if (target.IsStatic && target.DeclaringSyntaxReferences.Length == 1 && target.ContainingType?.SpecialType == SpecialType.None
-            && target.ContainingType.ToDisplayString() is not ("System.Math" or "System.MathF")
+            && MathTypeHost(target.ContainingType) is null
             && SymbolEqualityComparer.Default.Equals(target.ContainingAssembly, _helpers.Compilation.Assembly))
         {
             return LowerHelperCall(invocation, target);
@@ -918,12 +929,7 @@ internal sealed partial class BodyLowerer
         {
             SpecialType.System_Double => MathHost.Double,
             SpecialType.System_Single => MathHost.Single,
-            _ => target.ContainingType?.ToDisplayString() switch
-            {
-                "System.Math" => MathHost.Math,
-                "System.MathF" => MathHost.MathF,
-                _ => null,
-            },
+            _ => MathTypeHost(target.ContainingType),
         };
 
         if (host is null || !target.IsStatic || !MathFunctions.TryGet(target.Name, invocation.Arguments.Length, out MathFunction function)
@@ -977,6 +983,7 @@ internal sealed partial class BodyLowerer
     /// </summary>
     private IrExpression? LowerUserCall(IInvocationOperation invocation, IMethodSymbol target, AttributeData attribute)
     {
+        RecordReads(target);
         string name = "'" + target.ContainingType?.Name + "." + target.Name + "'";
         if (SymbolEqualityComparer.Default.Equals(target.OriginalDefinition, _method.OriginalDefinition))
         {

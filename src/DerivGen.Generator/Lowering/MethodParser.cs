@@ -27,15 +27,28 @@ internal sealed record HelperRequest(string DocumentationId, bool Hessian);
 /// <summary>What the lowering of one marked method shares with the lowering of the helpers it calls.</summary>
 internal sealed class HelperContext
 {
-    public HelperContext(Compilation compilation) => Compilation = compilation;
+    public HelperContext(Compilation compilation)
+    {
+        Compilation = compilation;
+        Shared = CompilationLowerings.For(compilation);
+    }
 
     public Compilation Compilation { get; }
 
-    /// <summary>The helpers called so far, by documentation ID, and whether a Hessian is needed.</summary>
-    public Dictionary<string, bool> Requests { get; } = new(StringComparer.Ordinal);
+    /// <summary>The helpers lowered cleanly in this compilation, shared by every method lowered in it.</summary>
+    public CompilationLowerings Shared { get; }
 
-    /// <summary>Helpers already lowered for this marked method, by documentation ID and whether a Hessian is needed.</summary>
-    public Dictionary<(string Id, bool Hessian), (MethodSpec? Spec, List<DiagnosticInfo> Diagnostics)> Lowered { get; } = new();
+    /// <summary>The helpers called so far, by documentation ID, and whether a Hessian is needed. While a helper is
+    /// lowered this collects the helpers it calls (see <c>BodyLowerer.LowerHelperCall</c>), then they are added here.</summary>
+    public Dictionary<string, bool> Requests { get; set; } = new(StringComparer.Ordinal);
+
+    /// <summary>Helpers already lowered for this marked method, by documentation ID and whether a Hessian is needed, with
+    /// the helpers each one calls (directly or not).</summary>
+    public Dictionary<(string Id, bool Hessian), (MethodSpec? Spec, IReadOnlyList<DiagnosticInfo> Diagnostics, IReadOnlyList<string> Reaches, IReadOnlyCollection<string> ReadFiles)> Lowered { get; } = new();
+
+    /// <summary>The files (paths) of every method the lowering called (helpers, directly or not, whose bodies it read,
+    /// and marked methods); see <see cref="CompilationLowerings.FindReusable"/>.</summary>
+    public HashSet<string> Reads { get; set; } = new(StringComparer.Ordinal);
 
     /// <summary>The methods being lowered, outermost first: a call back into one of them is recursion.</summary>
     public List<IMethodSymbol> Chain { get; } = new();
@@ -54,9 +67,20 @@ internal static class MethodParser
     public const string AttributeMetadataName = "DerivGen.DifferentiateAttribute";
 
     public static LoweringResult Lower(IMethodSymbol method, MethodDeclarationSyntax syntax, AttributeData attribute,
-        SemanticModel semanticModel, CancellationToken cancellationToken)
+        SemanticModel semanticModel, CancellationToken cancellationToken) =>
+        Lower(method, syntax, attribute, semanticModel, out _, cancellationToken);
+
+    /// <summary>
+    /// <see cref="Lower(IMethodSymbol, MethodDeclarationSyntax, AttributeData, SemanticModel, CancellationToken)"/>, with
+    /// the files whose declarations the lowering read (<see cref="HelperContext.Reads"/>); null when the result may not be
+    /// reused after an edit (the body is another part's, or the lowering failed inside DerivGen).
+    /// </summary>
+    public static LoweringResult Lower(IMethodSymbol method, MethodDeclarationSyntax syntax, AttributeData attribute,
+        SemanticModel semanticModel, out IReadOnlyCollection<string>? reads, CancellationToken cancellationToken)
     {
+        reads = null;
         var diagnostics = new List<DiagnosticInfo>();
+        MethodDeclarationSyntax originalSyntax = syntax;
         try
         {
             // [Differentiate] on the declaring part of a partial method: the body is the implementing part's. It is used
@@ -77,6 +101,8 @@ internal static class MethodParser
                 syntax = implementationSyntax;
             }
 
+            bool ownBody = ReferenceEquals(syntax, originalSyntax);
+            CompilationLowerings.CountMethod(semanticModel.Compilation, method);
             var helpers = new HelperContext(semanticModel.Compilation);
             helpers.Chain.Add(method);
             bool emitHessian = HasHessian(attribute);
@@ -89,6 +115,7 @@ internal static class MethodParser
                     method.ToDisplayString(HeaderFormat) + " (" + failure + ")");
             }
 
+            reads = ownBody ? helpers.Reads : null;
             return new LoweringResult(hasErrors ? null : spec, diagnostics.ToEquatableArray(),
                 hasErrors ? EquatableArray<HelperRequest>.Empty
                     : helpers.Requests.OrderBy(p => p.Key, StringComparer.Ordinal).Select(p => new HelperRequest(p.Key, p.Value)).ToEquatableArray());
@@ -122,7 +149,8 @@ internal static class MethodParser
             return null;
         }
 
-        SemanticModel model = helpers.Compilation.GetSemanticModel(syntax.SyntaxTree);
+        CompilationLowerings.CountHelper(helpers.Compilation, method);
+        SemanticModel model = helpers.Shared.SemanticModel(helpers.Compilation, syntax.SyntaxTree);
         helpers.Chain.Add(method);
         try
         {
@@ -137,16 +165,26 @@ internal static class MethodParser
     }
 
     /// <summary>
-    /// The specs of the requested helpers, lowered from <paramref name="compilation"/>, each once (with a Hessian if any
-    /// caller needs one), in hint-name order. A helper that no longer lowers cleanly is left out: the analyzer reports
-    /// it at the call, and the caller's call of its missing derivative method fails to compile rather than go wrong.
+    /// The specs of the requested helpers in <paramref name="compilation"/>, each once (with a Hessian if any caller
+    /// needs one), in hint-name order. The callers' lowering put them in the compilation's table
+    /// (<see cref="CompilationLowerings"/>); one that is not there is lowered from the compilation. A helper that no
+    /// longer lowers cleanly is left out: the analyzer reports it at the call, and the caller's call of its missing
+    /// derivative method fails to compile rather than go wrong.
     /// </summary>
     internal static IEnumerable<MethodSpec> LowerHelpers(IEnumerable<HelperRequest> requests, Compilation compilation, CancellationToken cancellationToken)
     {
         var specs = new SortedDictionary<string, MethodSpec>(StringComparer.Ordinal);
+        CompilationLowerings shared = CompilationLowerings.For(compilation);
         foreach (IGrouping<string, HelperRequest> group in requests.GroupBy(r => r.DocumentationId, StringComparer.Ordinal))
         {
             cancellationToken.ThrowIfCancellationRequested();
+            if (shared.TryGetHelper(group.Key, group.Any(r => r.Hessian)) is { } lowered)
+            {
+                // Lowered cleanly by a caller: the same spec as lowering it alone here (its chain is only itself).
+                specs[lowered.Spec.HintName] = lowered.Spec;
+                continue;
+            }
+
             if (DocumentationCommentId.GetFirstSymbolForDeclarationId(group.Key, compilation) is not IMethodSymbol method
                 || method.DeclaringSyntaxReferences.Length != 1
                 || method.DeclaringSyntaxReferences[0].GetSyntax(cancellationToken) is not MethodDeclarationSyntax syntax)
@@ -274,7 +312,7 @@ internal static class MethodParser
         return new MethodSpec(
             HintName: HintName(method),
             Namespace: method.ContainingNamespace is { IsGlobalNamespace: false } ns ? ns.ToDisplayString() : null,
-            ContainingTypes: ContainingTypes(method.ContainingType),
+            ContainingTypes: helpers.Shared.Memo(method.ContainingType, ContainingTypesOf),
             Name: Identifiers.Escape(method.Name),
             Accessibility: AccessibilityText(method.DeclaredAccessibility),
             IsStatic: method.IsStatic,
@@ -282,15 +320,15 @@ internal static class MethodParser
             Parameters: method.Parameters.Select(p => new ParameterSpec(
                 Identifiers.Escape(p.Name),
                 Modifiers(p, method),
-                p.Type.ToDisplayString(SymbolDisplayFormat.FullyQualifiedFormat.AddMiscellaneousOptions(SymbolDisplayMiscellaneousOptions.IncludeNullableReferenceTypeModifier)),
+                helpers.Shared.Memo(p.Type, ParameterTypeOf),
                 variables.Contains(p.Name),
                 variables.Contains(p.Name) && IsFloatingPointVector(p.Type))).ToEquatableArray(),
             EmitHessian: emitHessian,
             DisplayName: method.ToDisplayString(HeaderFormat),
-            Cref: Identifiers.Escape(method.Name) + "(" + string.Join(", ", method.Parameters.Select(p => CrefType(p))) + ")",
+            Cref: Identifiers.Escape(method.Name) + "(" + string.Join(", ", method.Parameters.Select(p => RefKindPrefix(p) + helpers.Shared.Memo(p.Type, CrefTypeOf))) + ")",
             Body: body,
             OutputName: output is null ? null : Identifiers.Escape(output.Name),
-            HasSinCos: HasSinCos(semanticModel.Compilation));
+            HasSinCos: helpers.Shared.HasSinCos(semanticModel.Compilation, HasSinCosOf));
     }
 
     /// <summary>
@@ -372,8 +410,13 @@ internal static class MethodParser
                 cancellationToken.ThrowIfCancellationRequested();
             }
 
-            foreach (SyntaxNode child in node.ChildNodes())
+            foreach (SyntaxNodeOrToken item in node.ChildNodesAndTokens())
             {
+                if (item.AsNode() is not { } child)
+                {
+                    continue;
+                }
+
                 int childDepth = child is ExpressionSyntax ? depth + 1 : depth;
                 if (childDepth > deepest)
                 {
@@ -537,10 +580,21 @@ internal static class MethodParser
         _ => string.Empty,
     };
 
-    private static string CrefType(IParameterSymbol parameter)
-    {
-        return RefKindPrefix(parameter) + parameter.Type.ToDisplayString(SymbolDisplayFormat.FullyQualifiedFormat).Replace('<', '{').Replace('>', '}');
-    }
+    /// <summary>A parameter's type as the generated signatures write it (fully qualified, with nullable annotations).</summary>
+    private static string ParameterTypeText(ITypeSymbol type) => type.ToDisplayString(ParameterTypeFormat);
+
+    /// <summary>A parameter's type as a doc-comment cref writes it (after the ref kind).</summary>
+    private static string CrefTypeText(ITypeSymbol type) =>
+        type.ToDisplayString(SymbolDisplayFormat.FullyQualifiedFormat).Replace('<', '{').Replace('>', '}');
+
+    // One delegate each, so that CompilationLowerings.Memo finds its entries again (it compares them by reference).
+    private static readonly Func<INamedTypeSymbol, EquatableArray<ContainingTypeSpec>> ContainingTypesOf = ContainingTypes;
+    private static readonly Func<ITypeSymbol, string> ParameterTypeOf = ParameterTypeText;
+    private static readonly Func<ITypeSymbol, string> CrefTypeOf = CrefTypeText;
+    private static readonly Func<Compilation, bool> HasSinCosOf = HasSinCos;
+
+    private static readonly SymbolDisplayFormat ParameterTypeFormat =
+        SymbolDisplayFormat.FullyQualifiedFormat.AddMiscellaneousOptions(SymbolDisplayMiscellaneousOptions.IncludeNullableReferenceTypeModifier);
 
     private static EquatableArray<ContainingTypeSpec> ContainingTypes(INamedTypeSymbol innermost)
     {

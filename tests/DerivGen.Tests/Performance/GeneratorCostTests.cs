@@ -6,6 +6,7 @@ using System.Globalization;
 using System.Linq;
 using System.Text;
 using DerivGen.Generator;
+using DerivGen.Generator.Lowering;
 using DerivGen.Tests.Infrastructure;
 using Microsoft.CodeAnalysis;
 using Microsoft.CodeAnalysis.CSharp;
@@ -144,7 +145,9 @@ public sealed class TwoHundredMethodsFixture
 /// <summary>
 /// The generator's cost on 200 marked methods (reported, never asserted: machines are shared) and its incremental
 /// behaviour on that compilation: an edit in one method body regenerates that method's file only; an unrelated edit
-/// regenerates nothing. Read from the tracked steps "Lower" and "Emit" and from the generated texts.
+/// regenerates nothing; a new file (or a changed declaration) lowers every method exactly once, an edit of one body
+/// lowers that method only (see Incremental/LoweringCountTests). Read from the tracked steps
+/// "Lower" and "Emit", the lowering's counter, and the generated texts.
 /// </summary>
 public sealed class GeneratorCostTests : IClassFixture<TwoHundredMethodsFixture>
 {
@@ -152,6 +155,9 @@ public sealed class GeneratorCostTests : IClassFixture<TwoHundredMethodsFixture>
     {
         IncrementalStepRunReason.Cached, IncrementalStepRunReason.Unchanged,
     };
+
+    /// <summary>The compilation of the last <see cref="Rerun"/> (xunit makes one instance per test).</summary>
+    private Compilation? _edited;
 
     private readonly TwoHundredMethodsFixture _fixture;
     private readonly ITestOutputHelper _output;
@@ -210,8 +216,12 @@ public sealed class GeneratorCostTests : IClassFixture<TwoHundredMethodsFixture>
         Assert.Equal(TwoHundredMethodsFixture.HintName(file, slot), HintNameOf(changed[0].Value));
         Assert.All(emit.Except(changed), o => Assert.Contains(o.Reason, CachedOrUnchanged));
 
-        // Lower: only the edited method's model changed (it carries the same hint name); every other method's model
-        // is taken from the cache or lowered again to an equal model (Cached or Unchanged), never Modified.
+        // Lower: only the edited method's model changed (it carries the same hint name); Roslyn reruns the transform
+        // for every method after any change of the compilation, but the other 199 take over their earlier lowering (the
+        // edit changed one body only), so they are Unchanged, never Modified; the counter shows one lowering, Loss137's.
+        IReadOnlyDictionary<string, int> counts = CompilationLowerings.Find(_edited!)!.MethodLowerings;
+        Assert.Equal(1, Assert.Single(counts, c => c.Key.Contains("Loss137", StringComparison.Ordinal)).Value);
+        Assert.Single(counts);
         var lowerOutputs = Outputs(after, DerivativeGenerator.LowerStep);
         var lowerChanged = lowerOutputs.Where(o => o.Reason is IncrementalStepRunReason.Modified or IncrementalStepRunReason.New).ToList();
         Assert.Single(lowerChanged);
@@ -246,9 +256,21 @@ public sealed class GeneratorCostTests : IClassFixture<TwoHundredMethodsFixture>
 
     private void AssertNothingRegenerated(GeneratorRunResult after)
     {
+        AssertEachMethodLoweredOnce(after);
         Assert.All(Reasons(after, DerivativeGenerator.LowerStep), r => Assert.Contains(r, CachedOrUnchanged));
         Assert.All(Reasons(after, DerivativeGenerator.EmitStep), r => Assert.Contains(r, CachedOrUnchanged));
         AssertOnlyTheseChanged(after);
+    }
+
+    /// <summary>Each of the 200 methods was lowered once in the run's compilation (no method twice, none skipped): these
+    /// edits add a declaration, so no earlier lowering may be taken over.</summary>
+    private void AssertEachMethodLoweredOnce(GeneratorRunResult after)
+    {
+        Assert.NotNull(_edited);
+        IReadOnlyDictionary<string, int> counts = CompilationLowerings.Find(_edited!)!.MethodLowerings;
+        Assert.Equal(TwoHundredMethodsFixture.Methods, counts.Count);
+        Assert.All(counts, c => Assert.Equal(1, c.Value));
+        Assert.Null(after.Exception);
     }
 
     private void AssertOnlyTheseChanged(GeneratorRunResult after, params string[] changedHints)
@@ -269,6 +291,8 @@ public sealed class GeneratorCostTests : IClassFixture<TwoHundredMethodsFixture>
 
     private GeneratorRunResult Rerun(Compilation edited)
     {
+        CompilationLowerings.CountLowerings = true;
+        _edited = edited;
         GeneratorRunResult result = _fixture.Driver.RunGenerators(edited).GetRunResult().Results.Single();
         Assert.Null(result.Exception);
         return result;
