@@ -60,12 +60,38 @@ public sealed class IncrementalCacheTests
     };
 
     [Fact]
-    public void StepNamesAreThePublicConstants()
+    public void EveryPublicStepNameIsAStepThatRuns()
     {
-        Assert.Equal("Lower", DerivativeGenerator.LowerStep);
-        Assert.Equal("Emit", DerivativeGenerator.EmitStep);
-        Assert.Equal("Helpers", DerivativeGenerator.HelperStep);
-        Assert.Equal("EmitHelper", DerivativeGenerator.EmitHelperStep);
+        // The constants are what tests and users filter tracked steps by: each must name a step of a real run (one with a
+        // marked method and an unmarked helper, so the helper steps run too), or a filter on it silently sees nothing.
+        const string marked = """
+            using DerivGen;
+
+            namespace Cache;
+
+            public static partial class Loss
+            {
+                [Differentiate]
+                public static double Total(double x) => Kernels.Bump(x) + x;
+            }
+            """;
+        const string helper = """
+            using System;
+
+            namespace Cache;
+
+            public static partial class Kernels
+            {
+                public static double Bump(double v) => Math.Exp(-v * v);
+            }
+            """;
+        var (driver, _) = RunOnce(marked, helper);
+        GeneratorRunResult result = driver.GetRunResult().Results.Single();
+        foreach (string step in new[] { DerivativeGenerator.LowerStep, DerivativeGenerator.EmitStep, DerivativeGenerator.HelperStep, DerivativeGenerator.EmitHelperStep })
+        {
+            Assert.True(result.TrackedSteps.TryGetValue(step, out ImmutableArray<IncrementalGeneratorRunStep> runs) && !runs.IsEmpty,
+                $"No tracked step named '{step}' ran; tracked: {string.Join(", ", result.TrackedSteps.Keys)}");
+        }
     }
 
     [Fact]
