@@ -18,12 +18,6 @@ internal static class DerivativeEmitter
     public const string ToolName = "DerivGen";
     public const string ToolVersion = "0.1.0";
 
-    /// <summary>Formulas longer than this are not spelled out in comments (the code is the reference).</summary>
-    private const int MaxFormulaLength = 200;
-
-    /// <summary>Hessians with more entries in their lower triangle than this are not listed in comments.</summary>
-    private const int MaxListedHessianEntries = 10;
-
     public static string Emit(MethodSpec spec, DerivativeProgram program, PairHessian? pairs = null)
     {
         var context = new EmitContext(spec, program);
@@ -103,19 +97,19 @@ internal static class DerivativeEmitter
         writer.Line("/// <summary>");
         if (spec.IsPairMethod)
         {
-            writer.Line("/// <see cref=\"" + Xml(spec.Cref) + "\"/> along two slots of its vector variables, for its Hessian: every element read is");
+            writer.Line("/// <see cref=\"" + Text.Xml(spec.Cref) + "\"/> along two slots of its vector variables, for its Hessian: every element read is");
             writer.Line("/// shifted by tRow at slot row and by tColumn at slot column, so that at tRow = tColumn = 0 the second derivative");
             writer.Line("/// with respect to (tRow, tColumn) is the Hessian entry [row, column], and with respect to (tRow, s) the entry [row, s].");
         }
         else if (jacobian)
         {
-            writer.Line("/// Writes the outputs of <see cref=\"" + Xml(spec.Cref) + "\"/> into " + Xml(Identifiers.Unescape(spec.OutputName!))
-                + " as it does, and their Jacobian with respect to (" + Xml(variableList) + ").");
+            writer.Line("/// Writes the outputs of <see cref=\"" + Text.Xml(spec.Cref) + "\"/> into " + Text.Xml(Identifiers.Unescape(spec.OutputName!))
+                + " as it does, and their Jacobian with respect to (" + Text.Xml(variableList) + ").");
         }
         else
         {
-            writer.Line("/// Computes <see cref=\"" + Xml(spec.Cref) + "\"/> and its gradient" + (withHessian ? " and Hessian" : string.Empty)
-                + " with respect to (" + Xml(variableList) + ").");
+            writer.Line("/// Computes <see cref=\"" + Text.Xml(spec.Cref) + "\"/> and its gradient" + (withHessian ? " and Hessian" : string.Empty)
+                + " with respect to (" + Text.Xml(variableList) + ").");
         }
 
         writer.Line("/// </summary>");
@@ -123,14 +117,14 @@ internal static class DerivativeEmitter
         writer.Line("/// <code>");
         foreach (string line in context.FormulaLines(withHessian))
         {
-            writer.Line("/// " + Xml(line));
+            writer.Line("/// " + Text.Xml(line));
         }
 
         writer.Line("/// </code>");
         writer.Line("/// </remarks>");
         foreach (ParameterSpec parameter in spec.Parameters)
         {
-            writer.Line("/// <param name=\"" + Xml(Identifiers.Unescape(parameter.Name)) + "\">"
+            writer.Line("/// <param name=\"" + Text.Xml(Identifiers.Unescape(parameter.Name)) + "\">"
                 + (parameter.IsVariable ? "A differentiation variable."
                     : parameter.Name == spec.OutputName ? "Receives the outputs, written as the method writes them."
                     : "Passed to the method unchanged; held constant.") + "</param>");
@@ -138,21 +132,21 @@ internal static class DerivativeEmitter
 
         if (jacobian)
         {
-            string outputs = Xml(Identifiers.Unescape(spec.OutputName!));
-            writer.Line("/// <param name=\"" + context.JacobianName + "\">Receives ∂" + outputs + "[i]/∂v for v = " + Xml(variableList) + " in row i, row-major ("
-                + outputs + ".Length rows of " + Xml(context.GradientLength) + "); needs at least " + outputs + ".Length × " + Xml(Parenthesized(context.GradientLength))
+            string outputs = Text.Xml(Identifiers.Unescape(spec.OutputName!));
+            writer.Line("/// <param name=\"" + context.JacobianName + "\">Receives ∂" + outputs + "[i]/∂v for v = " + Text.Xml(variableList) + " in row i, row-major ("
+                + outputs + ".Length rows of " + Text.Xml(context.GradientLength) + "); needs at least " + outputs + ".Length × " + Text.Xml(Text.Parenthesized(context.GradientLength))
                 + " elements. Only the rows of the outputs the method writes are written.</param>");
         }
         else
         {
-            writer.Line("/// <param name=\"" + context.GradientName + "\">Receives ∂f/∂v for v = " + Xml(variableList) + ", in that order; needs at least "
-                + Xml(context.GradientLength) + (context.GradientLength == "1" ? " element.</param>" : " elements.</param>"));
+            writer.Line("/// <param name=\"" + context.GradientName + "\">Receives ∂f/∂v for v = " + Text.Xml(variableList) + ", in that order; needs at least "
+                + Text.Xml(context.GradientLength) + (context.GradientLength == "1" ? " element.</param>" : " elements.</param>"));
         }
 
         if (withHessian)
         {
-            writer.Line("/// <param name=\"" + context.HessianName + "\">Receives the " + Count(n) + "×" + Count(n)
-                + " Hessian, row-major (exactly symmetric); needs at least " + Count(n * n) + " elements.</param>");
+            writer.Line("/// <param name=\"" + context.HessianName + "\">Receives the " + Text.Count(n) + "×" + Text.Count(n)
+                + " Hessian, row-major (exactly symmetric); needs at least " + Text.Count(n * n) + " elements.</param>");
         }
 
         if (!jacobian)
@@ -181,7 +175,7 @@ internal static class DerivativeEmitter
             string thrower = context.ThrowerName;
             if (jacobian)
             {
-                WriteLengthCheck(writer, context.JacobianName, "(long)" + spec.OutputName + ".Length * " + Parenthesized(context.GradientLength),
+                WriteLengthCheck(writer, context.JacobianName, "(long)" + spec.OutputName + ".Length * " + Text.Parenthesized(context.GradientLength),
                     "one row of " + context.GradientLength + " per output, row-major: " + variableList, thrower);
             }
             else
@@ -191,10 +185,10 @@ internal static class DerivativeEmitter
 
             if (withHessian)
             {
-                WriteLengthCheck(writer, context.HessianName, Count(n * n), Count(n) + " × " + Count(n) + ", row-major", thrower);
+                WriteLengthCheck(writer, context.HessianName, Text.Count(n * n), Text.Count(n) + " × " + Text.Count(n) + ", row-major", thrower);
             }
 
-            WriteBody(writer, context, withHessian, thrower);
+            MethodBodyWriter.Write(writer, context, withHessian, thrower);
             WriteThrower(writer, thrower);
         }
     }
@@ -212,30 +206,30 @@ internal static class DerivativeEmitter
         string n = names.Claim("n"), value = names.Claim("value"), pairGradient = names.Claim("pairGradient"), pairHessian = names.Claim("pairHessian");
         string row = names.Claim("row"), column = names.Claim("column"), i = names.Claim("i"), j = names.Claim("j");
         int m = pairs.ScalarCount, c = m + 2;
-        string along = Count(m * c + m + 1); // ∂²/∂tRow∂tColumn in the pair method's Hessian
+        string along = Text.Count(m * c + m + 1); // ∂²/∂tRow∂tColumn in the pair method's Hessian
         var vectors = spec.Parameters.Where(p => p.IsVector).ToList();
         string arguments = string.Join(", ", spec.Parameters.Select(p => p.Name));
         string Pair(string r, string col) => context.BareName + PairHessian.Suffix + Lowering.MethodParser.HessianSuffix + "(" + arguments + ", " + r + ", " + col
             + ", 0, 0, " + pairGradient + ", " + pairHessian + ");";
 
         writer.Line("/// <summary>");
-        writer.Line("/// Computes <see cref=\"" + Xml(spec.Cref) + "\"/> and its gradient and Hessian with respect to (" + Xml(variableList) + ").");
+        writer.Line("/// Computes <see cref=\"" + Text.Xml(spec.Cref) + "\"/> and its gradient and Hessian with respect to (" + Text.Xml(variableList) + ").");
         writer.Line("/// </summary>");
         writer.Line("/// <remarks>");
-        writer.Line("/// The gradient comes from <see cref=\"" + Xml(context.BareName + Lowering.MethodParser.GradientSuffix) + "\"/>. The Hessian entries that involve a vector");
+        writer.Line("/// The gradient comes from <see cref=\"" + Text.Xml(context.BareName + Lowering.MethodParser.GradientSuffix) + "\"/>. The Hessian entries that involve a vector");
         writer.Line("/// element come one pair of slots at a time from the pair method, which differentiates the method along the two");
         writer.Line("/// slots: n_v(n_v + 1)/2 passes over the method for n_v vector elements.");
         writer.Line("/// </remarks>");
         foreach (ParameterSpec parameter in spec.Parameters)
         {
-            writer.Line("/// <param name=\"" + Xml(Identifiers.Unescape(parameter.Name)) + "\">"
+            writer.Line("/// <param name=\"" + Text.Xml(Identifiers.Unescape(parameter.Name)) + "\">"
                 + (parameter.IsVariable ? "A differentiation variable." : "Passed to the method unchanged; held constant.") + "</param>");
         }
 
-        writer.Line("/// <param name=\"" + context.GradientName + "\">Receives ∂f/∂v for v = " + Xml(variableList) + ", in that order; needs at least "
-            + Xml(context.GradientLength) + " elements.</param>");
+        writer.Line("/// <param name=\"" + context.GradientName + "\">Receives ∂f/∂v for v = " + Text.Xml(variableList) + ", in that order; needs at least "
+            + Text.Xml(context.GradientLength) + " elements.</param>");
         writer.Line("/// <param name=\"" + context.HessianName + "\">Receives the Hessian, row-major (exactly symmetric); needs at least ("
-            + Xml(context.GradientLength) + ")² elements.</param>");
+            + Text.Xml(context.GradientLength) + ")² elements.</param>");
         writer.Line("/// <returns>The value of the method at these arguments, bit-for-bit.</returns>");
         writer.Line("/// <exception cref=\"global::System.ArgumentException\">A span is shorter than stated.</exception>");
         writer.Line("[global::System.CodeDom.Compiler.GeneratedCode(\"" + ToolName + "\", \"" + ToolVersion + "\")]");
@@ -250,8 +244,8 @@ internal static class DerivativeEmitter
             WriteLengthCheck(writer, context.GradientName, n, "one per variable: " + variableList, thrower);
             WriteLengthCheck(writer, context.HessianName, n + " * " + n, "n × n, row-major", thrower);
             writer.Line(type + " " + value + " = " + context.BareName + Lowering.MethodParser.GradientSuffix + "(" + arguments + ", " + context.GradientName + ");");
-            writer.Line("global::System.Span<" + type + "> " + pairGradient + " = stackalloc " + type + "[" + Count(c) + "];");
-            writer.Line("global::System.Span<" + type + "> " + pairHessian + " = stackalloc " + type + "[" + Count(c * c) + "];");
+            writer.Line("global::System.Span<" + type + "> " + pairGradient + " = stackalloc " + type + "[" + Text.Count(c) + "];");
+            writer.Line("global::System.Span<" + type + "> " + pairHessian + " = stackalloc " + type + "[" + Text.Count(c * c) + "];");
             if (m > 0)
             {
                 writer.Line();
@@ -261,11 +255,11 @@ internal static class DerivativeEmitter
                 {
                     for (int b = 0; b <= a; b++)
                     {
-                        string entry = pairHessian + "[" + Count((a * c) + b) + "]";
+                        string entry = pairHessian + "[" + Text.Count((a * c) + b) + "]";
                         writer.Line(a == b
-                            ? context.HessianName + "[" + Slot(context.ScalarOffset[a], n, context.ScalarOffset[a]) + "] = " + entry + ";"
-                            : context.HessianName + "[" + Slot(context.ScalarOffset[a], n, context.ScalarOffset[b]) + "] = " + context.HessianName + "["
-                                + Slot(context.ScalarOffset[b], n, context.ScalarOffset[a]) + "] = " + entry + ";");
+                            ? context.HessianName + "[" + Text.Slot(context.ScalarOffset[a], n, context.ScalarOffset[a]) + "] = " + entry + ";"
+                            : context.HessianName + "[" + Text.Slot(context.ScalarOffset[a], n, context.ScalarOffset[b]) + "] = " + context.HessianName + "["
+                                + Text.Slot(context.ScalarOffset[b], n, context.ScalarOffset[a]) + "] = " + entry + ";");
                     }
                 }
             }
@@ -275,20 +269,20 @@ internal static class DerivativeEmitter
                 writer.Line();
                 using (writer.Block("for (int " + i + " = 0; " + i + " < " + vectors[v].Name + ".Length; " + i + "++)"))
                 {
-                    writer.Line("int " + row + " = " + Sum(context.VectorOffset[v], i) + ";");
+                    writer.Line("int " + row + " = " + Text.Sum(context.VectorOffset[v], i) + ";");
                     writer.Line(Pair(row, row));
                     writer.Line(context.HessianName + "[" + row + " * " + n + " + " + row + "] = " + pairHessian + "[" + along + "];");
                     for (int a = 0; a < m; a++)
                     {
-                        writer.Line(context.HessianName + "[" + row + " * " + n + " + " + Parenthesized(context.ScalarOffset[a]) + "] = " + context.HessianName + "["
-                            + Slot(context.ScalarOffset[a], n, row) + "] = " + pairHessian + "[" + Count((m * c) + a) + "];");
+                        writer.Line(context.HessianName + "[" + row + " * " + n + " + " + Text.Parenthesized(context.ScalarOffset[a]) + "] = " + context.HessianName + "["
+                            + Text.Slot(context.ScalarOffset[a], n, row) + "] = " + pairHessian + "[" + Text.Count((m * c) + a) + "];");
                     }
 
                     for (int u = v; u < vectors.Count; u++)
                     {
                         using (writer.Block("for (int " + j + " = " + (u == v ? i + " + 1" : "0") + "; " + j + " < " + vectors[u].Name + ".Length; " + j + "++)"))
                         {
-                            writer.Line("int " + column + " = " + Sum(context.VectorOffset[u], j) + ";");
+                            writer.Line("int " + column + " = " + Text.Sum(context.VectorOffset[u], j) + ";");
                             writer.Line(Pair(row, column));
                             writer.Line(context.HessianName + "[" + row + " * " + n + " + " + column + "] = " + context.HessianName + "[" + column + " * " + n + " + " + row + "] = "
                                 + pairHessian + "[" + along + "];");
@@ -330,19 +324,6 @@ internal static class DerivativeEmitter
             && reachable.Count(node => !node.IsLeaf) <= InlineOperationLimit;
     }
 
-    private static string Sum(string offset, string index) => offset == "0" ? index : offset + " + " + index;
-
-    /// <summary>a + b as C# text: folded when both are int literals, without a "0 +" or "+ 0".</summary>
-    private static string Plus(string a, string b) =>
-        int.TryParse(a, NumberStyles.None, CultureInfo.InvariantCulture, out int x) && int.TryParse(b, NumberStyles.None, CultureInfo.InvariantCulture, out int y)
-            ? Count(x + y)
-            : b == "0" ? a : a == "0" ? b : a + " + " + b;
-
-    private static string Parenthesized(string expression) => expression.Contains(" ") ? "(" + expression + ")" : expression;
-
-    private static string Slot(string rowOffset, string n, string columnOffset) =>
-        (rowOffset == "0" ? string.Empty : Parenthesized(rowOffset) + " * " + n + " + ") + Parenthesized(columnOffset);
-
     private static void WriteLengthCheck(IndentedWriter writer, string name, string length, string what, string thrower)
     {
         using (writer.Block("if (" + name + ".Length < " + length + ")"))
@@ -362,1428 +343,5 @@ internal static class DerivativeEmitter
         writer.Line();
         writer.Line("static void " + thrower + "(string name, long length, string what) =>");
         writer.Line("    throw new global::System.ArgumentException(\"The span must hold at least \" + length + (length == 1 ? \" element (\" : \" elements (\") + what + \").\", name);");
-    }
-
-    /// <summary>One assignment of a loop-carried local (or of one of its running derivatives) in the generated code.</summary>
-    private readonly record struct StateUpdate(string Target, ScalarType Type, Node Value, bool IsDerivative = false);
-
-    private static void WriteBody(IndentedWriter writer, EmitContext context, bool withHessian, string thrower)
-    {
-        DerivativeProgram program = context.Program;
-        int n = program.Variables.Length;
-        int finalStage = program.FinalStage;
-
-        // Every expression the method needs, with the stage at which it is used.
-        var roots = new List<(Node Node, int UseStage)> { (program.Value, finalStage) };
-        roots.AddRange(program.Gradient.Select(g => (g, finalStage)));
-        if (withHessian)
-        {
-            roots.AddRange(program.Hessian!.SelectMany(row => row).Select(h => (h, finalStage)));
-        }
-
-        // A method with outputs: each write needs its index, its value and its Jacobian row where it is written.
-        foreach (OutputWrite output in program.Outputs)
-        {
-            roots.Add((output.Index, output.Stage));
-            roots.Add((output.Value, output.Stage));
-            roots.AddRange(output.Row.Select(entry => (entry, output.Stage)));
-            roots.AddRange(TermNodes(output.VectorRow).Select(node => (node, output.Stage)));
-        }
-
-        // The user's code: the value, the outputs, the loops' bounds and conditions, the carried locals' start and update.
-        var valueRoots = new List<Node> { program.Value };
-        valueRoots.AddRange(program.Outputs.SelectMany(o => new[] { o.Index, o.Value }));
-        foreach (LoopSegment loop in program.Loops)
-        {
-            valueRoots.AddRange(loop.Condition is null ? new[] { loop.Start!, loop.End! } : new[] { loop.Condition });
-            valueRoots.AddRange(loop.States.SelectMany(s => new[] { s.Initial, s.Next }));
-        }
-
-        // Spans of inner loops that are replayed after the loop (reverse mode) instead of being stored.
-        Dictionary<string, InnerLoopReversal> replayed = InnerLoopReversal.Find(program);
-
-        // Reads of a vector variable's element that the user's code makes only under a condition (i < w.Length ? w[i] : 0,
-        // or after a continue): their contribution is 0 where the read is not made (selected by the condition), but the
-        // index may then be out of range, so the update of that entry is made only for an index in range.
-        HashSet<Node> readAlways = EvaluatedUnconditionally(valueRoots);
-        bool Replayed(StateDerivatives d, VectorTerm term) => replayed.ContainsKey(d.VectorNames[term.Vector]);
-
-        var initial = new Dictionary<LoopSegment, List<StateUpdate>>();
-        var next = new Dictionary<LoopSegment, List<StateUpdate>>();
-        foreach (LoopSegment loop in program.Loops)
-        {
-            initial[loop] = StateUpdates(program, loop, withHessian, before: true);
-            next[loop] = StateUpdates(program, loop, withHessian, before: false);
-        }
-
-        Dictionary<LoopSegment, List<(string Target, Node Factor)>> factored = FactorOutConstants(program, roots.Select(r => r.Node), initial, next);
-
-        // Running derivatives nothing reads (a carried local that does not depend on the variables, such as a time
-        // counter) are dropped: they would only be zeros, and an unread local is a compiler warning.
-        var live = new HashSet<string>(LocalsReachable(roots.Select(r => r.Node)
-            .Concat(program.Loops.SelectMany(l => l.Condition is null ? new[] { l.Start!, l.End! } : new[] { l.Condition }))), StringComparer.Ordinal);
-        List<StateUpdate> derivativeUpdates = initial.Values.Concat(next.Values).SelectMany(u => u).Where(u => u.IsDerivative).ToList();
-        for (bool grew = true; grew;)
-        {
-            grew = false;
-            foreach (StateUpdate update in derivativeUpdates.Where(u => live.Contains(u.Target)))
-            {
-                foreach (string read in LocalsReachable(new[] { update.Value }))
-                {
-                    grew |= live.Add(read);
-                }
-            }
-        }
-
-        foreach (LoopSegment loop in program.Loops)
-        {
-            initial[loop].RemoveAll(u => u.IsDerivative && !live.Contains(u.Target));
-            next[loop].RemoveAll(u => u.IsDerivative && !live.Contains(u.Target));
-            if (factored.TryGetValue(loop, out List<(string Target, Node Factor)>? liveFactors))
-            {
-                liveFactors.RemoveAll(f => !live.Contains(f.Target));
-            }
-
-            if (loop.Condition is null)
-            {
-                roots.Add((loop.Start!, loop.BeforeStage));
-                roots.Add((loop.End!, loop.BeforeStage));
-            }
-
-            roots.AddRange(initial[loop].Select(u => (u.Value, loop.BeforeStage)));
-            roots.AddRange(next[loop].Select(u => (u.Value, loop.BodyEndStage)));
-            foreach (LoopState state in loop.States)
-            {
-                if (program.States.TryGetValue(state, out StateDerivatives? d))
-                {
-                    // A replayed span's terms are written out again after the loop (see InnerLoopReversal), not here.
-                    roots.AddRange(TermNodes(d.InitialVector.Where(t => !Replayed(d, t))).Select(node => (node, loop.BeforeStage)));
-                    roots.AddRange(TermNodes(d.NextVector.Where(t => !Replayed(d, t))).Select(node => (node, loop.BodyEndStage)));
-                }
-            }
-        }
-
-        roots.AddRange(TermNodes(program.VectorGradient).Select(node => (node, finalStage)));
-
-        // Which nodes get a local: the user's named locals, the value, every node used more than once, and every node
-        // used at a later stage than its own (computed once before a loop rather than in every iteration).
-        var uses = new Dictionary<Node, int>();
-        var hoisted = new HashSet<Node>();
-        var usedAtOwnStage = new HashSet<Node>();
-        HashSet<Node> reachable = Graph.Reachable(roots.Select(r => r.Node));
-        foreach (Node node in reachable)
-        {
-            foreach (Node argument in node.Arguments)
-            {
-                uses[argument] = uses.TryGetValue(argument, out int count) ? count + 1 : 1;
-                if (argument.Stage < node.Stage)
-                {
-                    hoisted.Add(argument);
-                }
-            }
-        }
-
-        foreach ((Node root, int useStage) in roots)
-        {
-            uses[root] = uses.TryGetValue(root, out int count) ? count + 1 : 1;
-            if (root.Stage < useStage)
-            {
-                hoisted.Add(root);
-            }
-        }
-
-        // The nodes the code needs at their own stage: the roots used there, and what they read at that stage. A node
-        // of a stage that only later stages need is computed ahead of them only to be hoisted out of a loop.
-        var neededStack = new Stack<Node>(roots.Where(r => r.Node.Stage == r.UseStage).Select(r => r.Node));
-        while (neededStack.Count > 0)
-        {
-            Node node = neededStack.Pop();
-            if (usedAtOwnStage.Add(node))
-            {
-                foreach (Node argument in node.Arguments.Where(a => a.Stage == node.Stage))
-                {
-                    neededStack.Push(argument);
-                }
-            }
-        }
-
-        // A generated local read at a later stage than the one its leaf stands for, where a loop that updates it has
-        // started in between (the use is after or inside that loop), is copied where the leaf's value holds
-        // (double sBefore = s;) and the copy is read instead.
-        var updatedBy = program.Loops.ToDictionary(loop => loop, loop => new HashSet<string>(
-            initial[loop].Concat(next[loop]).Select(u => u.Target), StringComparer.Ordinal));
-        var snapshots = new HashSet<Node>();
-        void CheckSnapshot(Node leaf, int useStage)
-        {
-            if (leaf.Kind == NodeKind.Parameter && leaf.Stage > 0 && leaf.Stage < useStage
-                && program.Loops.Any(loop => leaf.Stage < loop.InsideStage && loop.InsideStage <= useStage && updatedBy[loop].Contains(leaf.Text!)))
-            {
-                snapshots.Add(leaf);
-            }
-        }
-
-        foreach (Node node in reachable)
-        {
-            foreach (Node argument in node.Arguments)
-            {
-                CheckSnapshot(argument, node.Stage);
-            }
-        }
-
-        foreach ((Node root, int useStage) in roots)
-        {
-            CheckSnapshot(root, useStage);
-        }
-
-        // A node the user's code evaluates only under a condition (one side of an if or ?:, the right of && or ||) and
-        // that could throw (a data read, an int division, Clamp) must stay inside that condition: it is written inline
-        // where it is used, never computed ahead in a local.
-        HashSet<Node> unconditional = EvaluatedUnconditionally(valueRoots);
-        var mayThrow = new Dictionary<Node, bool>();
-        // A loop-invariant node that could throw and is used only inside or after loops is not computed ahead of them: a
-        // loop that runs zero times must not throw where the user's code does not. It is written where it is used
-        // (when it reads no loop-carried local, whose value would differ there).
-        // A loop index is the same wherever the node is written inside that loop (an inner loop's body included), so
-        // reading one does not prevent this; a loop-carried local does.
-        var loopIndices = new HashSet<string>(program.Loops.Where(l => l.Index is not null).Select(l => l.Index!), StringComparer.Ordinal);
-        foreach (Node node in reachable.Where(h => !usedAtOwnStage.Contains(h) && CanThrow(h) && !ReadsStageLeaf(h, loopIndices)))
-        {
-            unconditional.Remove(node);
-        }
-
-        // A node that reads such an operation may still have a local where its own code keeps the user's guard around
-        // it (i < n ? d[i] : 0 computed where the user's code computes it): see ConditionalEvaluation.
-        var userRoots = new List<(Node, int)> { (program.Value, finalStage) };
-        foreach (LoopSegment loop in program.Loops)
-        {
-            userRoots.AddRange(loop.Condition is null ? new[] { (loop.Start!, loop.BeforeStage), (loop.End!, loop.BeforeStage) } : new[] { (loop.Condition, loop.InsideStage) });
-            userRoots.AddRange(loop.States.SelectMany(s => new[] { (s.Initial, loop.BeforeStage), (s.Next, loop.BodyEndStage) }));
-        }
-
-        var conditional = new ConditionalEvaluation(userRoots, CanThrow);
-        bool Guarded(Node node) => MayThrowUnlessGuarded(node, unconditional, mayThrow) && !conditional.SafeAhead(node);
-
-        // Calls of other [Differentiate] methods whose derivatives are needed: one call of their MGradient (MHessian)
-        // gives the value and fills a buffer the partial derivatives are read from.
-        var gradientBuffer = new Dictionary<Node, string>();
-        var hessianBuffer = new Dictionary<Node, string>();
-        foreach (Node partial in reachable.Where(r => r.Kind is NodeKind.CallPartial or NodeKind.CallSecondPartial).OrderBy(r => r.Id))
-        {
-            Node call = partial.Arguments[0];
-            gradientBuffer[call] = string.Empty;
-            if (partial.Kind == NodeKind.CallSecondPartial)
-            {
-                hessianBuffer[call] = string.Empty;
-            }
-        }
-
-        // A call whose buffers are read cannot be written inline; where the user's code calls it only under a condition
-        // that guards a throwing operation (a data read in its arguments), it is called under that condition
-        // (guard ? Call(…) : 0) and its buffers are read only by derivatives selected by the same condition.
-        Dictionary<Node, Node> callGuards = CallGuards(valueRoots, gradientBuffer.Keys.Where(Guarded).ToList(), program.Builder);
-        // The sine and the cosine of one argument, both needed (typically one in the value, the other in a derivative):
-        // one SinCos call gives both, each in its own local.
-        // A raw node of the value and a built one of a derivative can be equal but distinct: the later ones (sameAs) read
-        // the first one's local.
-        var sinCosPartner = new Dictionary<Node, Node>();
-        var sameAs = new Dictionary<Node, Node>();
-        if (context.Spec.HasSinCos)
-        {
-            var cosines = reachable.Where(node => IsSinOrCos(node, MathFunction.Cos) && !Guarded(node)).GroupBy(node => (node.Arguments[0], node.Type))
-                .ToDictionary(group => group.Key, group => group.OrderBy(node => node.Id).ToList());
-            foreach (List<Node> sines in reachable.Where(node => IsSinOrCos(node, MathFunction.Sin) && !Guarded(node)).GroupBy(node => (node.Arguments[0], node.Type))
-                .Select(group => group.OrderBy(node => node.Id).ToList()))
-            {
-                if (cosines.TryGetValue((sines[0].Arguments[0], sines[0].Type), out List<Node>? cos))
-                {
-                    sinCosPartner[sines[0]] = cos[0];
-                    sinCosPartner[cos[0]] = sines[0];
-                    foreach (Node later in sines.Skip(1))
-                    {
-                        sameAs[later] = sines[0];
-                    }
-
-                    foreach (Node later in cos.Skip(1))
-                    {
-                        sameAs[later] = cos[0];
-                    }
-                }
-            }
-        }
-
-        List<Node> temporaries = reachable
-            .Where(node => !sameAs.ContainsKey(node)).Where(node => snapshots.Contains(node) || sinCosPartner.ContainsKey(node) || (!node.IsLeaf && (!Guarded(node) || callGuards.ContainsKey(node))
-                && (node == program.Value || node.LocalName is not null || uses[node] >= 2 || hoisted.Contains(node) || gradientBuffer.ContainsKey(node))))
-            .OrderBy(node => node.Id)
-            .ToList();
-
-        // A node without a local is written where its user is (inline): a loop-carried local it reads may have been
-        // updated by a loop in between there too, so the same copy is taken (a derivative that reads a guarded value).
-        var temporarySet = new HashSet<Node>(temporaries);
-        var inline = new Stack<(Node Node, int Stage)>(roots.Where(r => !temporarySet.Contains(r.Node)).Concat(temporaries.Select(t => (t, t.Stage))));
-        var inlineSeen = new HashSet<(Node, int)>();
-        int snapshotCount = snapshots.Count;
-        while (inline.Count > 0)
-        {
-            (Node node, int stage) = inline.Pop();
-            foreach (Node argument in node.Arguments)
-            {
-                if (argument.IsLeaf)
-                {
-                    CheckSnapshot(argument, stage);
-                }
-                else if (!temporarySet.Contains(argument) && inlineSeen.Add((argument, stage)))
-                {
-                    inline.Push((argument, stage));
-                }
-            }
-        }
-
-        if (snapshots.Count > snapshotCount)
-        {
-            temporaries = temporaries.Concat(snapshots.Where(n => !temporarySet.Contains(n))).OrderBy(node => node.Id).ToList();
-        }
-
-        if (gradientBuffer.Keys.Any(call => !temporaries.Contains(call)))
-        {
-            throw new InvalidOperationException("A call whose derivatives are needed is only evaluated under a condition that guards a throwing operation.");
-        }
-
-        var reserved = context.Spec.Parameters.Select(p => p.Name)
-            .Concat(new[] { context.GradientName, context.HessianName, thrower })
-            .Concat(program.StateNames)
-            .Concat(program.Loops.Where(l => l.Index is not null).Select(l => l.Index!));
-        var names = new TemporaryNames(reserved);
-        var nameOf = new Dictionary<Node, string>();
-        if (temporaries.Contains(program.Value) && program.Value.LocalName is null)
-        {
-            nameOf[program.Value] = names.Claim("value");
-        }
-
-        foreach (Node node in temporaries.Where(t => t.LocalName is not null && !nameOf.ContainsKey(t)))
-        {
-            nameOf[node] = names.Claim(node.LocalName!);
-        }
-
-        foreach (Node node in snapshots)
-        {
-            nameOf[node] = names.Claim(Identifiers.Unescape(node.Text!) + "Before");
-        }
-
-        foreach (Node node in temporaries.Where(t => !nameOf.ContainsKey(t)))
-        {
-            nameOf[node] = names.For(node, x => nameOf.TryGetValue(x, out string? name) ? name : null);
-        }
-
-        foreach (KeyValuePair<Node, Node> pair in sameAs)
-        {
-            nameOf[pair.Key] = nameOf[pair.Value];
-        }
-
-        foreach (Node call in gradientBuffer.Keys.OrderBy(c => c.Id).ToList())
-        {
-            string stem = Identifiers.Unescape(call.Callee!.Method);
-            stem = char.ToLowerInvariant(stem[0]) + stem.Substring(1);
-            string type = ExpressionWriter.TypeKeyword(call.Type);
-            int m = call.Callee.VariablePositions.Length;
-            gradientBuffer[call] = names.Claim(stem + "Gradient");
-            writer.Line("global::System.Span<" + type + "> " + gradientBuffer[call] + " = stackalloc " + type + "[" + Count(m) + "];");
-            if (hessianBuffer.ContainsKey(call))
-            {
-                hessianBuffer[call] = names.Claim(stem + "Hessian");
-                writer.Line("global::System.Span<" + type + "> " + hessianBuffer[call] + " = stackalloc " + type + "[" + Count(m * m) + "];");
-            }
-        }
-
-        string CalleeDerivative(Node partial)
-        {
-            Node call = partial.Arguments[0];
-            return partial.Kind == NodeKind.CallPartial
-                ? gradientBuffer[call] + "[" + Count((int)partial.Value) + "]"
-                : hessianBuffer[call] + "[" + Count((int)partial.Value) + "]";
-        }
-
-        string? NameOf(Node node) => nameOf.TryGetValue(node, out string? name) ? name : null;
-        var code = new ExpressionWriter(NameOf, formula: false, calleeDerivative: CalleeDerivative);
-        var declared = new HashSet<string>(StringComparer.Ordinal);
-
-        var written = new HashSet<Node>();
-        void WriteTemporaries(int stage)
-        {
-            foreach (Node node in temporaries.Where(t => t.Stage == stage))
-            {
-                if (sinCosPartner.TryGetValue(node, out Node? partner))
-                {
-                    if (written.Add(node) && written.Add(partner))
-                    {
-                        (Node sine, Node cosine) = node.Function == MathFunction.Sin ? (node, partner) : (partner, node);
-                        string keyword = ExpressionWriter.TypeKeyword(node.Type);
-                        writer.Line("(" + keyword + " " + nameOf[sine] + ", " + keyword + " " + nameOf[cosine] + ") = global::System." + (node.Type == ScalarType.Single ? "MathF" : "Math")
-                            + ".SinCos(" + code.Write(node.Arguments[0]) + ");");
-                    }
-
-                    continue;
-                }
-
-                // A temporary is written with its own definition, not its name; a call whose derivatives are needed
-                // calls the callee's generated method, which returns the same value and fills the buffers.
-                string definition = new ExpressionWriter(x => x == node ? null : NameOf(x), formula: false, calleeDerivative: CalleeDerivative).Write(node);
-                if (gradientBuffer.TryGetValue(node, out string? buffer))
-                {
-                    bool second = hessianBuffer.TryGetValue(node, out string? hessian);
-                    string suffix = second ? Lowering.MethodParser.HessianSuffix : Lowering.MethodParser.GradientSuffix;
-                    var arguments = node.Arguments.Select(code.Write).Concat(second ? new[] { buffer, hessian! } : new[] { buffer });
-                    definition = node.Text + suffix + "(" + string.Join(", ", arguments) + ")";
-                    if (callGuards.TryGetValue(node, out Node? guard))
-                    {
-                        // The condition is written out in full (with && and || short-circuiting as in the user's code),
-                        // reading only temporaries already computed.
-                        string condition = new ExpressionWriter(x => written.Contains(x) ? NameOf(x) : null, formula: false).Write(guard);
-                        definition = condition + " ? " + definition + " : " + Literals.CSharp(0, node.Type);
-                    }
-                }
-
-                writer.Line(ExpressionWriter.TypeKeyword(node.Type) + " " + nameOf[node] + " = " + definition + ";");
-                written.Add(node);
-            }
-
-            WriteOutputs(stage);
-        }
-
-        // The outputs written at a stage, in source order, each followed by its Jacobian row:
-        // outputs[i] = value; jacobian[n·i + k] = ∂value/∂vₖ.
-        void WriteOutputs(int stage)
-        {
-            string outputs = context.Spec.OutputName ?? string.Empty;
-            foreach (OutputWrite output in program.Outputs.Where(o => o.Stage == stage))
-            {
-                string index = code.Write(output.Index);
-                writer.Line(outputs + "[" + index + "] = " + code.Write(output.Value) + ";");
-                string element = Identifiers.Unescape(outputs) + "[" + new ExpressionWriter(x => null, formula: true).Write(output.Index) + "]";
-                string width = context.GradientLength; // n: the scalars, and each vector's length
-                string row;
-                if (output.Index.Kind == NodeKind.Constant && (program.Vectors.Length == 0 || output.Index.Value == 0))
-                {
-                    row = Count((int)output.Index.Value * n); // a constant row start when n is known
-                }
-                else if (width == "1" && (output.Index.IsLeaf || nameOf.ContainsKey(output.Index)))
-                {
-                    row = index;
-                }
-                else
-                {
-                    row = names.Claim("row");
-                    writer.Line("int " + row + " = " + (width == "1" ? index : Parenthesized(width) + " * " + Parenthesized(index)) + ";");
-                }
-
-                for (int k = 0; k < n; k++)
-                {
-                    writer.Line(context.JacobianName + "[" + Plus(row, context.ScalarOffset[k]) + "] = " + code.Write(output.Row[k]) + "; // ∂" + element + "/∂"
-                        + Identifiers.Unescape(program.Variables[k]));
-                }
-
-                // The vectors' part of the row: cleared, then each contribution added (a read of w[j], or the running
-                // derivative of a carried local with respect to w).
-                for (int v = 0; v < program.Vectors.Length; v++)
-                {
-                    string offset = Plus(row, context.VectorOffset[v]);
-                    writer.Line(context.JacobianName + ".Slice(" + offset + ", " + program.Vectors[v] + ".Length).Clear(); // ∂" + element + "/∂"
-                        + Identifiers.Unescape(program.Vectors[v]) + "[…]");
-                    AddTerms(context.JacobianName, offset, output.VectorRow.Where(t => t.Vector == v), null);
-                }
-            }
-        }
-
-        void WriteLoop(LoopSegment loop)
-        {
-            // Before the loop: the carried locals and their running derivatives start from their values here, all
-            // computed from the values before any of them is assigned (the running derivatives of a local carried on
-            // from an earlier loop read its value there): the vectors' first — their spans cleared before any scalar is
-            // assigned, since a call between a scalar's initial value and the loop would make the JIT keep that scalar
-            // (an accumulator) in memory for the whole loop — then each scalar that no other reads in place, the
-            // others through a local assigned after all are computed.
-            WriteVectorClears(loop);
-            WriteVectorUpdates(loop, before: true);
-            List<StateUpdate> starting = initial[loop].Where(u => !IsSameLocal(u)).ToList(); // IsSameLocal: carried on unchanged
-            var startReads = starting.ToDictionary(u => u.Target, u => LocalsRead(u.Value, nameOf), StringComparer.Ordinal);
-            var startAssignments = new List<(string Target, string Source)>();
-            foreach (StateUpdate update in starting)
-            {
-                if (!declared.Contains(update.Target) || !starting.Any(other => other.Target != update.Target && startReads[other.Target].Contains(update.Target)))
-                {
-                    string prefix = declared.Add(update.Target) ? ExpressionWriter.TypeKeyword(update.Type) + " " : string.Empty;
-                    writer.Line(prefix + update.Target + " = " + code.Write(update.Value) + ";");
-                    continue;
-                }
-
-                if (!nameOf.TryGetValue(update.Value, out string? source) && update.Value.Kind != NodeKind.Constant)
-                {
-                    source = names.Claim(Identifiers.Unescape(update.Target) + "Start");
-                    writer.Line(ExpressionWriter.TypeKeyword(update.Type) + " " + source + " = " + code.Write(update.Value) + ";");
-                }
-
-                startAssignments.Add((update.Target, source ?? code.Write(update.Value)));
-            }
-
-            foreach ((string target, string source) in startAssignments)
-            {
-                writer.Line(target + " = " + source + ";");
-            }
-
-            // A while loop's condition is written in its header, inline: only what is computed before the loop is read
-            // from locals, so nothing of the body runs before the condition is tested, as in the user's code.
-            string header = loop.Condition is { } condition
-                ? "while (" + new ExpressionWriter(x => x.Stage < loop.InsideStage ? NameOf(x) : null, formula: false).Write(condition) + ")"
-                : "for (int " + loop.Index + " = " + code.Write(loop.Start!) + "; " + loop.Index + (loop.Inclusive ? " <= " : " < ") + code.Write(loop.End!) + "; " + loop.Index + "++)";
-            using (writer.Block(header))
-            {
-                WriteTemporaries(loop.InsideStage);
-                foreach (LoopSegment nested in loop.Children)
-                {
-                    WriteLoop(nested);
-                }
-
-                // The end of an iteration: the running derivatives with respect to vectors first (they read the old
-                // scalar values), then the scalars. An update that no other update reads is written in place
-                // (s += e); the others are computed from the old values into locals first and assigned after.
-                WriteVectorUpdates(loop, before: false);
-                List<StateUpdate> pending = next[loop].Where(u => !IsSameLocal(u)).ToList();
-                var reads = pending.ToDictionary(u => u.Target, u => LocalsRead(u.Value, nameOf), StringComparer.Ordinal);
-                var assignments = new List<(string Target, string Source)>();
-                foreach (StateUpdate update in pending)
-                {
-                    bool readByOthers = pending.Any(other => other.Target != update.Target && reads[other.Target].Contains(update.Target));
-                    if (!readByOthers)
-                    {
-                        writer.Line(nameOf.TryGetValue(update.Value, out string? computed)
-                            ? update.Target + " = " + computed + ";"     // already computed, from the old values
-                            : InPlace(update, code, program.Builder));
-                        continue;
-                    }
-
-                    string source;
-                    if (nameOf.TryGetValue(update.Value, out string? existing) || update.Value.Kind == NodeKind.Constant)
-                    {
-                        source = existing ?? code.Write(update.Value);
-                    }
-                    else
-                    {
-                        source = names.Claim(Identifiers.Unescape(update.Target) + "Next");
-                        writer.Line(ExpressionWriter.TypeKeyword(update.Type) + " " + source + " = " + code.Write(update.Value) + ";");
-                    }
-
-                    assignments.Add((update.Target, source));
-                }
-
-                foreach ((string target, string source) in assignments)
-                {
-                    writer.Line(target + " = " + source + ";");
-                }
-            }
-
-            writer.Blank();
-            if (factored.TryGetValue(loop, out List<(string Target, Node Factor)>? factors) && factors.Count > 0)
-            {
-                writer.Line("// The constant factor of every term of these sums, applied once:");
-                foreach ((string target, Node factor) in factors)
-                {
-                    writer.Line(target + " *= " + code.Write(factor) + ";");
-                }
-
-                writer.Line();
-            }
-
-            WriteTemporaries(loop.AfterStage);
-        }
-
-        // Running derivatives with respect to vectors of variables live in spans: on the stack up to a size, else on
-        // the heap (the README states the policy).
-        string element = names.Claim("k");
-        string Length(int vector) => program.Vectors[vector] + ".Length";
-
-        // The guard of an update of a vector's entry read only under a condition: the index is in range.
-        string InRange(string index, int vector) => "if ((uint)" + Parenthesized(index) + " < (uint)" + Length(vector) + ")";
-
-        // A vector's part of the gradient that is exactly one running-derivative span (factor 1) is accumulated in place:
-        // the span is that slice of the gradient, so there is no buffer to allocate and nothing to copy at the end.
-        var inGradient = new Dictionary<string, int>(StringComparer.Ordinal);
-        for (int v = 0; v < program.Vectors.Length; v++)
-        {
-            var terms = program.VectorGradient.Where(t => t.Vector == v).ToList();
-            if (terms.Count == 1 && terms[0].Index is null && terms[0].SourceSpan is { } span && terms[0].Coefficient.IsConstant(1)
-                && !inGradient.ContainsKey(span))
-            {
-                inGradient[span] = v;
-            }
-        }
-
-        foreach (LoopSegment loop in program.Loops)
-        {
-            foreach (LoopState state in loop.States)
-            {
-                if (!program.States.TryGetValue(state, out StateDerivatives? d))
-                {
-                    continue;
-                }
-
-                for (int v = 0; v < d.VectorNames.Length; v++)
-                {
-                    if (replayed.ContainsKey(d.VectorNames[v]))
-                    {
-                        continue;
-                    }
-
-                    if (declared.Add(d.VectorNames[v]))
-                    {
-                        writer.Line(inGradient.TryGetValue(d.VectorNames[v], out int slice)
-                            ? "global::System.Span<" + ExpressionWriter.TypeKeyword(context.Spec.ReturnType) + "> " + d.VectorNames[v] + " = "
-                                + context.GradientName + ".Slice(" + context.VectorOffset[slice] + ", " + Length(slice) + "); // accumulated in place"
-                            : SpanDeclaration(d.VectorNames[v], Length(v), context.Spec.ReturnType));
-                    }
-
-                    if (!UpdatesInPlace(loop, d, v) && declared.Add(d.VectorNames[v] + "Next"))
-                    {
-                        writer.Line(SpanDeclaration(d.VectorNames[v] + "Next", Length(v), context.Spec.ReturnType));
-                    }
-                }
-            }
-        }
-
-        // A span whose loop writes each element exactly once (SingleWriteLoop) is assigned, not cleared and added to.
-        var singleWrite = new Dictionary<string, int>(StringComparer.Ordinal);
-        foreach (LoopSegment loop in program.Loops)
-        {
-            foreach (LoopState state in loop.States)
-            {
-                if (program.States.TryGetValue(state, out StateDerivatives? d))
-                {
-                    for (int v = 0; v < d.VectorNames.Length; v++)
-                    {
-                        int stride = UpdatesInPlace(loop, d, v) ? SingleWriteLoop.Stride(program, loop, d, v, Length(v), replayed) : 0;
-                        if (stride > 0)
-                        {
-                            singleWrite[d.VectorNames[v]] = stride;
-                        }
-                    }
-                }
-            }
-        }
-
-        bool UpdatesInPlace(LoopSegment loop, StateDerivatives d, int v)
-        {
-            // In place when the span carries on with factor 1 and no other update at the end of the same loop reads it.
-            bool carries = d.NextVector.Any(t => t.Vector == v && t.SourceSpan == d.VectorNames[v] && t.Coefficient.IsConstant(1));
-            bool readByOthers = loop.States.Any(other => program.States.TryGetValue(other, out StateDerivatives? o) && o != d
-                && o.NextVector.Any(t => t.SourceSpan == d.VectorNames[v]));
-            return carries && !readByOthers;
-        }
-
-        void AddTerms(string target, string offset, IEnumerable<VectorTerm> terms, string? skipSource)
-        {
-            foreach (VectorTerm term in terms)
-            {
-                string at = offset.Length == 0 ? string.Empty : offset + " + ";
-                string coefficient = term.Coefficient.IsConstant(1) ? string.Empty : code.WriteFactor(term.Coefficient) + " * ";
-                if (term.Index is { } index)
-                {
-                    string update = target + "[" + at + code.Write(index) + "] += " + (term.Coefficient.IsConstant(1) ? "1.0" : code.Write(term.Coefficient)) + ";";
-                    if (term.Element is { } read && !readAlways.Contains(read))
-                    {
-                        // The user's code reads w[i] only under a condition (i < w.Length ? w[i] : 0). Where it does not,
-                        // the contribution is 0 (selected by that condition), but i may be out of range: the update is
-                        // made only for an index in range, which is every index the user's code can have read.
-                        using (writer.Block(InRange(code.Write(index), term.Vector)))
-                        {
-                            writer.Line(update);
-                        }
-                    }
-                    else
-                    {
-                        writer.Line(update);
-                    }
-                }
-                else if (term.SourceSpan is { } source && replayed.TryGetValue(source, out InnerLoopReversal? reversal))
-                {
-                    WriteReplay(target, at, term, reversal);
-                }
-                else if (term.SourceSpan != skipSource)
-                {
-                    using (writer.Block("for (int " + element + " = 0; " + element + " < " + Length(term.Vector) + "; " + element + "++)"))
-                    {
-                        writer.Line(target + "[" + at + element + "] += " + coefficient + term.SourceSpan + "[" + element + "];");
-                    }
-                }
-            }
-        }
-
-        // target += adjoint · ∂z/∂w for a span that is not stored: its contributions, written out again with the adjoint.
-        void WriteReplay(string target, string at, VectorTerm term, InnerLoopReversal reversal)
-        {
-            LoopSegment loop = reversal.Loop;
-            string adjoint;
-            if (term.Coefficient.IsLeaf || NameOf(term.Coefficient) is not null)
-            {
-                adjoint = code.Write(term.Coefficient);
-            }
-            else
-            {
-                adjoint = names.Claim(Identifiers.Unescape(reversal.State.State.Name) + "Adjoint");
-                writer.Line(ExpressionWriter.TypeKeyword(term.Coefficient.Type) + " " + adjoint + " = " + code.Write(term.Coefficient) + ";");
-            }
-
-            // Nodes of the loop's own stage were locals of its body, out of scope here: they are written out again.
-            var again = new ExpressionWriter(x => x.Stage >= loop.InsideStage ? null : NameOf(x), formula: false, calleeDerivative: CalleeDerivative);
-            bool unit = term.Coefficient.IsConstant(1);
-            string Add(VectorTerm element)
-            {
-                string update = target + "[" + at + again.Write(element.Index!) + "] += "
-                    + (element.Coefficient.IsConstant(1) ? adjoint : unit ? again.Write(element.Coefficient) : adjoint + " * " + again.WriteFactor(element.Coefficient)) + ";";
-                return element.Element is { } read && !readAlways.Contains(read)
-                    ? InRange(again.Write(element.Index!), element.Vector) + " " + update
-                    : update;
-            }
-            writer.Line("// " + target + " += " + adjoint + " · " + reversal.Span + ", " + reversal.Span + " not stored: the loop over " + loop.Index
-                + " replayed with the adjoint " + adjoint + " (reverse mode)");
-            foreach (VectorTerm element in reversal.InitialTerms)
-            {
-                writer.Line(Add(element));
-            }
-
-            if (reversal.LoopTerms.Count > 0)
-            {
-                using (writer.Block("for (int " + loop.Index + " = " + code.Write(loop.Start!) + "; " + loop.Index + (loop.Inclusive ? " <= " : " < ") + code.Write(loop.End!) + "; " + loop.Index + "++)"))
-                {
-                    foreach (VectorTerm element in reversal.LoopTerms)
-                    {
-                        writer.Line(Add(element));
-                    }
-                }
-            }
-        }
-
-        void WriteVectorClears(LoopSegment loop)
-        {
-            foreach (LoopState state in loop.States)
-            {
-                if (program.States.TryGetValue(state, out StateDerivatives? d))
-                {
-                    for (int v = 0; v < d.VectorNames.Length; v++)
-                    {
-                        if (replayed.ContainsKey(d.VectorNames[v]))
-                        {
-                            continue;
-                        }
-
-                        if (singleWrite.TryGetValue(d.VectorNames[v], out int stride))
-                        {
-                            // Assigned once each by the loop: only the elements after its last pair (or triple, …) are cleared,
-                            // by a loop of fewer than `stride` iterations rather than a call of Span.Clear.
-                            if (stride == 1)
-                            {
-                                writer.Line("// " + d.VectorNames[v] + " is not cleared: the loop assigns each element exactly once");
-                            }
-                            else
-                            {
-                                using (writer.Block("for (int " + element + " = " + stride + " * (" + code.Write(loop.End!) + "); " + element + " < " + Length(v) + "; "
-                                    + element + "++) // the loop below assigns each element before these exactly once"))
-                                {
-                                    writer.Line(d.VectorNames[v] + "[" + element + "] = " + code.Write(program.Builder.Zero(context.Spec.ReturnType)) + ";");
-                                }
-
-                                writer.Blank();
-                            }
-
-                            continue;
-                        }
-
-                        // A span that starts from its own value (a local carried on from an earlier loop, scaled in between)
-                        // is scaled in place by WriteVectorUpdates, not cleared.
-                        var terms = d.InitialVector.Where(t => t.Vector == v).ToList();
-                        if (!terms.Any(t => t.SourceSpan == d.VectorNames[v]))
-                        {
-                            writer.Line(d.VectorNames[v] + ".Clear();");
-                        }
-                    }
-                }
-            }
-        }
-
-        void WriteVectorUpdates(LoopSegment loop, bool before)
-        {
-            var copies = new List<string>();
-            foreach (LoopState state in loop.States)
-            {
-                if (!program.States.TryGetValue(state, out StateDerivatives? d))
-                {
-                    continue;
-                }
-
-                for (int v = 0; v < d.VectorNames.Length; v++)
-                {
-                    string own = d.VectorNames[v];
-                    if (replayed.ContainsKey(own))
-                    {
-                        continue; // replayed after the loop, where its adjoint is known
-                    }
-
-                    var terms = (before ? d.InitialVector : d.NextVector).Where(t => t.Vector == v).ToList();
-                    bool identity = terms.Count == 1 && terms[0].SourceSpan == own && terms[0].Coefficient.IsConstant(1);
-                    if (identity)
-                    {
-                        continue; // carried on unchanged
-                    }
-
-                    if (before)
-                    {
-                        // Cleared by WriteVectorClears, unless it starts from its own value (carried on from an earlier loop):
-                        // then it is scaled in place first (own ← c · own), and the other contributions are added to it.
-                        var self = terms.Where(t => t.SourceSpan == own).ToList();
-                        if (self.Count > 1)
-                        {
-                            throw new InvalidOperationException("A running derivative starts from its own value through several terms.");
-                        }
-
-                        if (self.Count == 1 && !self[0].Coefficient.IsConstant(1))
-                        {
-                            using (writer.Block("for (int " + element + " = 0; " + element + " < " + Length(v) + "; " + element + "++)"))
-                            {
-                                writer.Line(own + "[" + element + "] *= " + code.Write(self[0].Coefficient) + ";");
-                            }
-                        }
-
-                        AddTerms(own, string.Empty, terms, own);
-                    }
-                    else if (singleWrite.ContainsKey(own))
-                    {
-                        foreach (VectorTerm term in terms.Where(t => t.Index is not null))
-                        {
-                            writer.Line(own + "[" + code.Write(term.Index!) + "] = " + code.Write(term.Coefficient) + ";");
-                        }
-                    }
-                    else if (UpdatesInPlace(loop, d, v))
-                    {
-                        AddTerms(own, string.Empty, terms, own);
-                    }
-                    else
-                    {
-                        writer.Line(own + "Next.Clear();");
-                        AddTerms(own + "Next", string.Empty, terms, null);
-                        copies.Add(own + "Next.CopyTo(" + own + ");");
-                    }
-                }
-            }
-
-            foreach (string copy in copies)
-            {
-                writer.Line(copy);
-            }
-        }
-
-        WriteTemporaries(0);
-        foreach (LoopSegment loop in program.TopLevelLoops)
-        {
-            WriteLoop(loop);
-        }
-
-        if (context.Spec.HasOutputs)
-        {
-            writer.TrimBlank();
-            return; // The outputs and their rows are written where the method writes them.
-        }
-
-        writer.Blank();
-        for (int v = 0; v < program.Vectors.Length; v++)
-        {
-            string offset = context.VectorOffset[v] == "0" ? string.Empty : context.VectorOffset[v];
-            if (inGradient.FirstOrDefault(p => p.Value == v).Key is { } span)
-            {
-                writer.Line("// ∂" + context.BareName + "/∂" + Identifiers.Unescape(program.Vectors[v]) + "[…] is " + span + ", already in " + context.GradientName + ".");
-                continue;
-            }
-
-            writer.Line(context.GradientName + ".Slice(" + context.VectorOffset[v] + ", " + Length(v) + ").Clear(); // ∂" + context.BareName + "/∂"
-                + Identifiers.Unescape(program.Vectors[v]) + "[…]");
-            AddTerms(context.GradientName, offset, program.VectorGradient.Where(t => t.Vector == v), null);
-        }
-
-        for (int i = 0; i < n; i++)
-        {
-            writer.Line(context.GradientName + "[" + context.ScalarOffset[i] + "] = " + code.Write(program.Gradient[i]) + "; // " + context.PartialName(i));
-        }
-
-        if (withHessian)
-        {
-            writer.Line();
-            for (int i = 0; i < n; i++)
-            {
-                for (int j = 0; j <= i; j++)
-                {
-                    string target = context.HessianName + "[" + Count((i * n) + j) + "]";
-                    string mirror = i == j ? string.Empty : context.HessianName + "[" + Count((j * n) + i) + "] = ";
-                    writer.Line(mirror + target + " = " + code.Write(program.Hessian![i][j]) + "; // " + context.SecondPartialName(i, j));
-                }
-            }
-        }
-
-        writer.Line();
-        writer.Line("return " + code.Write(program.Value) + ";");
-    }
-
-    private static bool IsSinOrCos(Node node, MathFunction function) =>
-        node.Kind == NodeKind.Call && node.Function == function && node.Arguments.Length == 1 && node.Type is ScalarType.Double or ScalarType.Single;
-
-    private static IEnumerable<Node> TermNodes(IEnumerable<VectorTerm> terms) =>
-        terms.SelectMany(t => t.Index is null ? new[] { t.Coefficient } : new[] { t.Coefficient, t.Index });
-
-    private static string SpanDeclaration(string name, string length, ScalarType type)
-    {
-        string element = ExpressionWriter.TypeKeyword(type);
-        return "global::System.Span<" + element + "> " + name + " = " + length + " <= " + Count(StackLimit) + " ? stackalloc " + element + "[" + length + "] : new "
-            + element + "[" + length + "];";
-    }
-
-    /// <summary>Spans of running derivatives up to this many elements are allocated on the stack, longer ones on the heap.</summary>
-    internal const int StackLimit = 512;
-
-    /// <summary>The generated locals (loop-carried values and running derivatives) an expression reads.</summary>
-    private static IEnumerable<string> LocalsReachable(IEnumerable<Node> roots) =>
-        Graph.Reachable(roots).Where(n => n.Kind == NodeKind.Parameter && n.Stage > 0).Select(n => n.Text!);
-
-    /// <summary>The nodes the user's code evaluates whatever the conditions (not only inside one side of a branch).</summary>
-    /// <summary>
-    /// For each of <paramref name="calls"/>: the condition under which the user's code evaluates it, from the selections,
-    /// <c>&amp;&amp;</c> and <c>||</c> on the paths from <paramref name="roots"/> to it (the disjunction over paths).
-    /// </summary>
-    private static Dictionary<Node, Node> CallGuards(IEnumerable<Node> roots, List<Node> calls, ExpressionBuilder builder)
-    {
-        var guards = new Dictionary<Node, Node>();
-        if (calls.Count == 0)
-        {
-            return guards;
-        }
-
-        var targets = new HashSet<Node>(calls);
-        var leadsToTarget = new Dictionary<Node, bool>();
-        bool LeadsToTarget(Node node)
-        {
-            if (!leadsToTarget.TryGetValue(node, out bool known))
-            {
-                known = targets.Contains(node) || node.Arguments.Any(LeadsToTarget);
-                leadsToTarget[node] = known;
-            }
-
-            return known;
-        }
-
-        Node And(Node? guard, Node condition) => guard is null ? condition : builder.Raw(NodeKind.And, ScalarType.Boolean, guard, condition);
-        Node Not(Node condition) => builder.Raw(NodeKind.Not, ScalarType.Boolean, condition);
-        var seen = new HashSet<(Node, Node?)>();
-        var stack = new Stack<(Node Node, Node? Guard)>(roots.Select(r => (r, (Node?)null)));
-        while (stack.Count > 0)
-        {
-            (Node node, Node? guard) = stack.Pop();
-            if (!LeadsToTarget(node) || !seen.Add((node, guard)))
-            {
-                continue;
-            }
-
-            if (targets.Contains(node))
-            {
-                guards[node] = guards.TryGetValue(node, out Node? other)
-                    ? builder.Raw(NodeKind.Or, ScalarType.Boolean, other, guard ?? builder.Constant(1, ScalarType.Boolean))
-                    : guard ?? builder.Constant(1, ScalarType.Boolean);
-            }
-
-            switch (node.Kind)
-            {
-                case NodeKind.Select:
-                    stack.Push((node.Arguments[0], guard));
-                    stack.Push((node.Arguments[1], And(guard, node.Arguments[0])));
-                    stack.Push((node.Arguments[2], And(guard, Not(node.Arguments[0]))));
-                    break;
-                case NodeKind.And:
-                    stack.Push((node.Arguments[0], guard));
-                    stack.Push((node.Arguments[1], And(guard, node.Arguments[0])));
-                    break;
-                case NodeKind.Or:
-                    stack.Push((node.Arguments[0], guard));
-                    stack.Push((node.Arguments[1], And(guard, Not(node.Arguments[0]))));
-                    break;
-                default:
-                    foreach (Node argument in node.Arguments)
-                    {
-                        stack.Push((argument, guard));
-                    }
-
-                    break;
-            }
-        }
-
-        return guards;
-    }
-
-    private static HashSet<Node> EvaluatedUnconditionally(IEnumerable<Node> roots)
-    {
-        var always = new HashSet<Node>();
-        var stack = new Stack<Node>(roots);
-        while (stack.Count > 0)
-        {
-            Node node = stack.Pop();
-            if (!always.Add(node))
-            {
-                continue;
-            }
-
-            int evaluated = node.Kind switch
-            {
-                NodeKind.Select => 1,            // the condition; each side only when it is taken
-                NodeKind.And or NodeKind.Or => 1, // the left operand; the right one only when needed
-                _ => node.Arguments.Length,
-            };
-            for (int i = 0; i < evaluated; i++)
-            {
-                stack.Push(node.Arguments[i]);
-            }
-        }
-
-        return always;
-    }
-
-    /// <summary>An operation that can throw: a data read out of range, an int division by zero, Clamp with bounds
-    /// reversed, Sign of a NaN (ArithmeticException).</summary>
-    private static bool CanThrow(Node node) => node.Kind is NodeKind.Element or NodeKind.VariableElement
-        || (node.Kind == NodeKind.Divide && node.Type == ScalarType.Int32)
-        || (node.Kind == NodeKind.Call && node.Function is MathFunction.Clamp or MathFunction.Sign);
-
-    /// <summary>Whether the node reads a loop-carried local (a leaf that stands for a value at a stage, other than a loop index).</summary>
-    private static bool ReadsStageLeaf(Node node, HashSet<string> loopIndices) =>
-        Graph.Reachable(new[] { node }).Any(n => n.IsLeaf && n.Stage > 0 && !(n.Kind == NodeKind.Parameter && n.Type == ScalarType.Int32 && loopIndices.Contains(n.Text!)));
-
-    /// <summary>
-    /// Whether evaluating the node could throw where the user's code would not: it contains an operation that can throw
-    /// (a data read out of range, an int division by zero, Clamp with bounds reversed) that the user's code evaluates
-    /// only under a condition.
-    /// </summary>
-    private static bool MayThrowUnlessGuarded(Node node, HashSet<Node> unconditional, Dictionary<Node, bool> memo)
-    {
-        System.Runtime.CompilerServices.RuntimeHelpers.EnsureSufficientExecutionStack(); // a deep input fails as a diagnostic, never as a stack overflow
-        if (memo.TryGetValue(node, out bool known))
-        {
-            return known;
-        }
-
-        bool result = CanThrow(node) && !unconditional.Contains(node);
-        foreach (Node argument in node.Arguments)
-        {
-            result |= MayThrowUnlessGuarded(argument, unconditional, memo);
-        }
-
-        memo[node] = result;
-        return result;
-    }
-
-    /// <summary>The generated locals an update's expression reads when it is written (not through temporaries, which are
-    /// already computed by then).</summary>
-    private static HashSet<string> LocalsRead(Node value, Dictionary<Node, string> nameOf)
-    {
-        var read = new HashSet<string>(StringComparer.Ordinal);
-        var stack = new Stack<Node>();
-        stack.Push(value);
-        var seen = new HashSet<Node>();
-        while (stack.Count > 0)
-        {
-            Node node = stack.Pop();
-            if (!seen.Add(node) || (node != value && nameOf.ContainsKey(node)) || (node == value && nameOf.ContainsKey(node)))
-            {
-                continue;
-            }
-
-            if (node.Kind == NodeKind.Parameter && node.Text is not null)
-            {
-                read.Add(node.Text);
-            }
-
-            foreach (Node argument in node.Arguments)
-            {
-                stack.Push(argument);
-            }
-        }
-
-        return read;
-    }
-
-    /// <summary>An update written in place: <c>s += e</c>, <c>s -= e</c>, <c>s *= e</c> when it has that shape, else <c>s = e</c>.</summary>
-    private static string InPlace(StateUpdate update, ExpressionWriter code, ExpressionBuilder builder)
-    {
-        Node value = update.Value;
-        bool IsTarget(Node node) => node.Kind == NodeKind.Parameter && node.Text == update.Target;
-        if (value.Arguments.Length == 2 && value.Kind is NodeKind.Add or NodeKind.Subtract or NodeKind.Multiply && value.Type == update.Type)
-        {
-            // Derivative code only (the user's own value keeps the operations as written): d += (−k)·y is d −= k·y.
-            Node other = IsTarget(value.Arguments[0]) ? value.Arguments[1] : value.Arguments[0];
-            if (update.IsDerivative && value.Kind == NodeKind.Add && (IsTarget(value.Arguments[0]) || IsTarget(value.Arguments[1]))
-                && other.Kind == NodeKind.Multiply && other.Arguments[0].Kind == NodeKind.Constant && other.Arguments[0].Value < 0)
-            {
-                return update.Target + " -= " + code.Write(builder.Negate(other)) + ";";
-            }
-
-            string op = value.Kind switch { NodeKind.Add => " += ", NodeKind.Subtract => " -= ", _ => " *= " };
-            if (IsTarget(value.Arguments[0]))
-            {
-                return update.Target + op + code.Write(value.Arguments[1]) + ";";
-            }
-
-            if (value.Kind != NodeKind.Subtract && IsTarget(value.Arguments[1]))
-            {
-                return update.Target + op + code.Write(value.Arguments[0]) + ";";   // + and * commute exactly in IEEE arithmetic
-            }
-        }
-
-        return update.Target + " = " + code.Write(value) + ";";
-    }
-
-    /// <summary>
-    /// Running derivatives that are sums of terms with one constant factor, d = Σ c·y (d starts at 0 before the loop and
-    /// each iteration does d += c·y or d −= c·y, |c| &gt; 1, d read by nothing else in the loop), become d += y in the
-    /// loop and d *= c once after it: derivative code only, so the reassociation is allowed. The updates in
-    /// <paramref name="next"/> are replaced; the result lists the factors to apply after each loop.
-    /// </summary>
-    private static Dictionary<LoopSegment, List<(string Target, Node Factor)>> FactorOutConstants(DerivativeProgram program, IEnumerable<Node> roots,
-        Dictionary<LoopSegment, List<StateUpdate>> initial, Dictionary<LoopSegment, List<StateUpdate>> next)
-    {
-        var factored = new Dictionary<LoopSegment, List<(string Target, Node Factor)>>();
-
-        // How many nodes (or roots) read each generated local's leaf: a running derivative read only by its own update.
-        var allRoots = roots.Concat(initial.Values.Concat(next.Values).SelectMany(u => u).Select(u => u.Value))
-            .Concat(program.Loops.SelectMany(l => l.Condition is null ? new[] { l.Start!, l.End! } : new[] { l.Condition }))
-            .Concat(program.States.Values.SelectMany(d => TermNodes(d.InitialVector).Concat(TermNodes(d.NextVector))))
-            .Concat(TermNodes(program.VectorGradient))
-            .ToList();
-        var readers = new Dictionary<Node, int>();
-        void Read(Node leaf)
-        {
-            if (leaf.Kind == NodeKind.Parameter && leaf.Stage > 0)
-            {
-                readers[leaf] = readers.TryGetValue(leaf, out int count) ? count + 1 : 1;
-            }
-        }
-
-        foreach (Node node in Graph.Reachable(allRoots))
-        {
-            foreach (Node argument in node.Arguments)
-            {
-                Read(argument);
-            }
-        }
-
-        foreach (Node root in allRoots)
-        {
-            Read(root);
-        }
-
-        foreach (LoopSegment loop in program.Loops)
-        {
-            List<StateUpdate> updates = next[loop];
-            for (int i = 0; i < updates.Count; i++)
-            {
-                StateUpdate update = updates[i];
-                Node value = update.Value;
-                if (!update.IsDerivative || value.Kind is not (NodeKind.Add or NodeKind.Subtract) || value.Type != update.Type
-                    || !initial[loop].Any(u => u.Target == update.Target && u.Value.IsZero))
-                {
-                    continue;
-                }
-
-                Node current = value.Arguments[0], term = value.Arguments[1];
-                if (value.Kind == NodeKind.Add && !IsLeafOf(current, update.Target, loop))
-                {
-                    (current, term) = (term, current);
-                }
-
-                if (!IsLeafOf(current, update.Target, loop) || readers[current] != 1 || term.Kind != NodeKind.Multiply
-                    || term.Arguments[0].Kind != NodeKind.Constant || !(Math.Abs(term.Arguments[0].Value) > 1) || double.IsInfinity(term.Arguments[0].Value)
-                    || term.Arguments[0].Type != update.Type)
-                {
-                    continue;
-                }
-
-                updates[i] = update with { Value = program.Builder.Raw(value.Kind, value.Type, current, term.Arguments[1]) };
-                if (!factored.TryGetValue(loop, out List<(string Target, Node Factor)>? list))
-                {
-                    factored[loop] = list = new List<(string Target, Node Factor)>();
-                }
-
-                list.Add((update.Target, term.Arguments[0]));
-            }
-        }
-
-        return factored;
-    }
-
-    private static bool IsLeafOf(Node node, string local, LoopSegment loop) =>
-        node.Kind == NodeKind.Parameter && node.Text == local && node.Stage == loop.InsideStage;
-
-    /// <summary>An update that only reads the local it assigns (a local carried on unchanged).</summary>
-    private static bool IsSameLocal(StateUpdate update) =>
-        update.Value.Kind == NodeKind.Parameter && update.Value.Text == update.Target;
-
-    /// <summary>The assignments of a loop's carried locals and running derivatives, before the loop or at the end of an iteration.</summary>
-    private static List<StateUpdate> StateUpdates(DerivativeProgram program, LoopSegment loop, bool withHessian, bool before)
-    {
-        var updates = new List<StateUpdate>();
-        foreach (LoopState state in loop.States)
-        {
-            updates.Add(new StateUpdate(state.Name, state.Type, before ? state.Initial : state.Next));
-            if (!program.States.TryGetValue(state, out StateDerivatives? d))
-            {
-                continue;
-            }
-
-            Node[] gradient = before ? d.InitialGradient : d.NextGradient;
-            for (int k = 0; k < gradient.Length; k++)
-            {
-                updates.Add(new StateUpdate(d.GradientNames[k], state.Type, gradient[k], IsDerivative: true));
-            }
-
-            if (withHessian)
-            {
-                Node[][] hessian = (before ? d.InitialHessian : d.NextHessian)!;
-                for (int k = 0; k < hessian.Length; k++)
-                {
-                    for (int j = 0; j <= k; j++)
-                    {
-                        updates.Add(new StateUpdate(d.HessianNames![k][j], state.Type, hessian[k][j], IsDerivative: true));
-                    }
-                }
-            }
-        }
-
-        return updates;
-    }
-
-    private static string Count(int value) => value.ToString(CultureInfo.InvariantCulture);
-
-    private static string Xml(string text) => text.Replace("&", "&amp;").Replace("<", "&lt;").Replace(">", "&gt;").Replace("\"", "&quot;");
-
-    /// <summary>What the writers of one file share: names, and the formulas in plain notation.</summary>
-    private sealed class EmitContext
-    {
-        public EmitContext(MethodSpec spec, DerivativeProgram program)
-        {
-            Spec = spec;
-            Program = program;
-            BareName = Identifiers.Unescape(spec.Name);
-            // The span parameters must not take the name of a parameter or of a local of the body.
-            var taken = new HashSet<string>(spec.Parameters.Select(p => p.Name), StringComparer.Ordinal);
-            ProgramGraph.CollectLocalNames(spec.Body, taken);
-            var names = new TemporaryNames(taken);
-            GradientName = names.Claim("gradient");
-            HessianName = names.Claim("hessian");
-            JacobianName = names.Claim("jacobian");
-            ThrowerName = names.Claim("ThrowSpanTooShort");
-
-            // Where each variable's derivatives go in the gradient span: declaration order, a vector taking v.Length slots.
-            (ScalarOffset, VectorOffset, GradientLength) = PairHessian.SlotOffsets(spec);
-        }
-
-        /// <summary>The static local function that throws for a span that is too short (see <see cref="WriteThrower"/>).</summary>
-        public string ThrowerName { get; }
-
-        /// <summary>The index in the gradient span of each scalar variable (C# text; a run-time sum after a vector).</summary>
-        public string[] ScalarOffset { get; }
-
-        /// <summary>The index in the gradient span of each vector's first element.</summary>
-        public string[] VectorOffset { get; }
-
-        /// <summary>The number of gradient entries (C# text).</summary>
-        public string GradientLength { get; }
-
-        public MethodSpec Spec { get; }
-
-        public DerivativeProgram Program { get; }
-
-        public string BareName { get; }
-
-        public string GradientName { get; }
-
-        public string HessianName { get; }
-
-        public string JacobianName { get; }
-
-        public string PartialName(int i) => "∂" + BareName + "/∂" + Identifiers.Unescape(Program.Variables[i]);
-
-        public string SecondPartialName(int i, int j) => i == j
-            ? "∂²" + BareName + "/∂" + Identifiers.Unescape(Program.Variables[i]) + "²"
-            : "∂²" + BareName + "/∂" + Identifiers.Unescape(Program.Variables[i]) + "∂" + Identifiers.Unescape(Program.Variables[j]);
-
-        /// <summary>The method's locals and value, its partial derivatives and (optionally) its Hessian, one per line.</summary>
-        public IEnumerable<string> FormulaLines(bool includeHessian)
-        {
-            Node value = Program.Value;
-            var shown = new HashSet<Node>();
-            IEnumerable<string> Locals(IEnumerable<Node> roots, int stage, string indent)
-            {
-                foreach (Node local in Graph.Reachable(roots).Where(n => n.LocalName is not null && !n.IsLeaf && n.Stage == stage && n != value).OrderBy(n => n.Id))
-                {
-                    if (shown.Add(local))
-                    {
-                        yield return indent + Identifiers.Unescape(local.LocalName!) + " = " + Formula(local);
-                    }
-                }
-            }
-
-            IEnumerable<string> LoopLines(LoopSegment loop, string indent)
-            {
-                var roots = loop.States.Select(s => s.Initial).Concat(loop.States.Select(s => s.Next)).ToList();
-                foreach (string line in Locals(roots, loop.BeforeStage, indent))
-                {
-                    yield return line;
-                }
-
-                foreach (LoopState state in loop.States.Where(s => s.Initial.Kind != NodeKind.Parameter || s.Initial.Text != s.Name))
-                {
-                    yield return indent + Identifiers.Unescape(state.Name) + " = " + Formula(state.Initial);
-                }
-
-                bool several = loop.States.Count(s => s.Next != s.Current) > 1;
-                string head = loop.Condition is { } condition
-                    ? "while " + Formula(condition)
-                    : "for " + loop.Index + " from " + Formula(loop.Start!) + (loop.Inclusive ? " to " : " while below ") + Formula(loop.End!);
-                yield return indent + head + (several ? " (each ← uses the values from the start of the iteration):" : ":");
-                string inner = indent + "    ";
-                foreach (string line in Locals(roots, loop.InsideStage, inner).Concat(OutputLines(loop.InsideStage, inner)))
-                {
-                    yield return line;
-                }
-
-                foreach (LoopSegment nested in loop.Children)
-                {
-                    foreach (string line in LoopLines(nested, inner).Concat(Locals(roots, nested.AfterStage, inner)).Concat(OutputLines(nested.AfterStage, inner)))
-                    {
-                        yield return line;
-                    }
-                }
-
-                foreach (LoopState state in loop.States.Where(s => s.Next != s.Current && (s.Next.Kind != NodeKind.Parameter || s.Next.Text != s.Name)))
-                {
-                    yield return inner + Identifiers.Unescape(state.Name) + " ← " + Formula(state.Next);
-                    if (Program.States.TryGetValue(state, out StateDerivatives? d))
-                    {
-                        for (int k = 0; k < d.GradientNames.Length; k++)
-                        {
-                            yield return inner + d.GradientNames[k] + " ← " + Formula(d.NextGradient[k]) + "   (∂" + Identifiers.Unescape(state.Name) + "/∂" + Identifiers.Unescape(Program.Variables[k]) + ")";
-                        }
-
-                        // The running second derivatives too, so that a reviewer can check the Hessian from the header
-                        // (as long as the list stays short).
-                        int entries = d.GradientNames.Length * (d.GradientNames.Length + 1) / 2;
-                        if (includeHessian && d.HessianNames is { } names && d.NextHessian is { } next && entries <= MaxListedHessianEntries)
-                        {
-                            for (int k = 0; k < names.Length; k++)
-                            {
-                                for (int j = 0; j < names[k].Length; j++)
-                                {
-                                    string of = k == j
-                                        ? "∂²" + Identifiers.Unescape(state.Name) + "/∂" + Identifiers.Unescape(Program.Variables[k]) + "²"
-                                        : "∂²" + Identifiers.Unescape(state.Name) + "/∂" + Identifiers.Unescape(Program.Variables[k]) + "∂" + Identifiers.Unescape(Program.Variables[j]);
-                                    yield return inner + names[k][j] + " ← " + Formula(next[k][j]) + "   (" + of + ")";
-                                }
-                            }
-                        }
-                    }
-                }
-            }
-
-            // The outputs written at a stage (a method with outputs), with the locals they read and their Jacobian rows.
-            IEnumerable<string> OutputLines(int stage, string indent)
-            {
-                string outputs = Identifiers.Unescape(Spec.OutputName ?? string.Empty);
-                foreach (OutputWrite output in Program.Outputs.Where(o => o.Stage == stage))
-                {
-                    for (int s = 0; s <= stage; s++)
-                    {
-                        foreach (string line in Locals(new[] { output.Index, output.Value }, s, indent))
-                        {
-                            yield return line;
-                        }
-                    }
-
-                    string element = outputs + "[" + Formula(output.Index) + "]";
-                    yield return indent + element + " = " + Formula(output.Value);
-                    for (int k = 0; k < output.Row.Length; k++)
-                    {
-                        yield return indent + "∂" + element + "/∂" + Identifiers.Unescape(Program.Variables[k]) + " = " + Formula(output.Row[k]);
-                    }
-
-                    foreach (VectorTerm term in output.VectorRow)
-                    {
-                        string vector = Identifiers.Unescape(Program.Vectors[term.Vector]);
-                        yield return indent + (term.Index is { } at
-                            ? "∂" + element + "/∂" + vector + "[" + Formula(at) + "] += " + Formula(term.Coefficient)
-                            : "∂" + element + "/∂" + vector + " += " + Formula(term.Coefficient) + "·" + term.SourceSpan);
-                    }
-                }
-            }
-
-            foreach (LoopSegment loop in Program.TopLevelLoops)
-            {
-                foreach (string line in OutputLines(loop.BeforeStage, string.Empty).Concat(LoopLines(loop, string.Empty)))
-                {
-                    yield return line;
-                }
-            }
-
-            if (Spec.HasOutputs)
-            {
-                foreach (string line in OutputLines(Program.FinalStage, string.Empty))
-                {
-                    yield return line;
-                }
-
-                yield break;
-            }
-
-            for (int stage = 0; stage <= Program.FinalStage; stage++)
-            {
-                foreach (string line in Locals(new[] { value }, stage, string.Empty))
-                {
-                    yield return line;
-                }
-            }
-
-            yield return BareName + " = " + Formula(value);
-            yield return string.Empty;
-            for (int i = 0; i < Program.Gradient.Length; i++)
-            {
-                yield return PartialName(i) + " = " + Formula(Program.Gradient[i]);
-            }
-
-            if (!includeHessian || Program.Hessian is null)
-            {
-                yield break;
-            }
-
-            yield return string.Empty;
-            int entries = Program.Variables.Length * (Program.Variables.Length + 1) / 2;
-            if (entries > MaxListedHessianEntries)
-            {
-                yield return "Hessian: " + Count(entries) + " distinct entries (symmetric); see " + BareName + Lowering.MethodParser.HessianSuffix + ".";
-                yield break;
-            }
-
-            for (int i = 0; i < Program.Hessian.Length; i++)
-            {
-                for (int j = 0; j <= i; j++)
-                {
-                    yield return SecondPartialName(i, j) + " = " + Formula(Program.Hessian[i][j]);
-                }
-            }
-        }
-
-        private static string Formula(Node node)
-        {
-            var writer = new ExpressionWriter(x => x != node && x.LocalName is not null ? Identifiers.Unescape(x.LocalName) : null, formula: true, MaxFormulaLength);
-            return writer.TryWrite(node) ?? "(too long to show here; see the code)";
-        }
     }
 }

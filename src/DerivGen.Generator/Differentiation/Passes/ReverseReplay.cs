@@ -1,10 +1,9 @@
 using System;
 using System.Collections.Generic;
 using System.Linq;
-using DerivGen.Generator.Differentiation;
 using DerivGen.Generator.Symbolic;
 
-namespace DerivGen.Generator.Emit;
+namespace DerivGen.Generator.Differentiation;
 
 /// <summary>
 /// A running derivative with respect to a vector that the generated code never stores: reverse mode over one inner loop.
@@ -24,12 +23,12 @@ namespace DerivGen.Generator.Emit;
 /// method, and are small enough to be written out again.
 /// </para>
 /// </summary>
-internal sealed class InnerLoopReversal
+internal sealed class ReverseReplay
 {
     /// <summary>Nodes (counted as a tree, inside the loop) a replayed coefficient and index may take in total.</summary>
     internal const int MaxReplayedNodes = 64;
 
-    private InnerLoopReversal(LoopSegment loop, StateDerivatives state, string span, List<VectorTerm> initialTerms, List<VectorTerm> loopTerms)
+    private ReverseReplay(LoopSegment loop, StateDerivatives state, string span, List<VectorTerm> initialTerms, List<VectorTerm> loopTerms)
     {
         Loop = loop;
         State = state;
@@ -54,9 +53,9 @@ internal sealed class InnerLoopReversal
     public List<VectorTerm> LoopTerms { get; }
 
     /// <summary>The spans of <paramref name="program"/> that are replayed instead of stored, by name.</summary>
-    public static Dictionary<string, InnerLoopReversal> Find(DerivativeProgram program)
+    public static Dictionary<string, ReverseReplay> Find(DerivativeProgram program)
     {
-        var found = new Dictionary<string, InnerLoopReversal>(StringComparer.Ordinal);
+        var found = new Dictionary<string, ReverseReplay>(StringComparer.Ordinal);
         if (program.Vectors.Length == 0)
         {
             return found;
@@ -148,7 +147,7 @@ internal sealed class InnerLoopReversal
                         continue;
                     }
 
-                    found[span] = new InnerLoopReversal(loop, d, span, initialTerms, loopTerms);
+                    found[span] = new ReverseReplay(loop, d, span, initialTerms, loopTerms);
                 }
             }
         }

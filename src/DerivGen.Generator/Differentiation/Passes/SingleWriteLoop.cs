@@ -1,11 +1,10 @@
 using System;
 using System.Collections.Generic;
 using System.Linq;
-using DerivGen.Generator.Differentiation;
 using DerivGen.Generator.Model;
 using DerivGen.Generator.Symbolic;
 
-namespace DerivGen.Generator.Emit;
+namespace DerivGen.Generator.Differentiation;
 
 /// <summary>
 /// A running derivative with respect to a vector whose loop writes each element of the span exactly once, so that the
@@ -32,7 +31,7 @@ internal static class SingleWriteLoop
     /// <paramref name="loop"/> (see the class summary); 0 otherwise.
     /// </summary>
     public static int Stride(DerivativeProgram program, LoopSegment loop, StateDerivatives d, int v, string length,
-        IReadOnlyDictionary<string, InnerLoopReversal> replayed)
+        IReadOnlyDictionary<string, ReverseReplay> replayed)
     {
         string span = d.VectorNames[v];
         if (program.Outputs.Count > 0 || loop.Parent is not null || loop.Children.Count > 0 || loop.Index is null || loop.Condition is not null

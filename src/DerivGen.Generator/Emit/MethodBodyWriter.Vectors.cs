@@ -1,0 +1,311 @@
+using System;
+using System.Collections.Generic;
+using System.Linq;
+using DerivGen.Generator.Differentiation;
+using DerivGen.Generator.Model;
+using DerivGen.Generator.Symbolic;
+
+namespace DerivGen.Generator.Emit;
+
+/// <summary>Spans of running derivatives with respect to vectors, and the results (gradient, Hessian).</summary>
+internal sealed partial class MethodBodyWriter
+{
+    /// <summary>Spans of running derivatives up to this many elements are allocated on the stack, longer ones on the heap.</summary>
+    internal const int StackLimit = 512;
+
+    private string Length(int vector) => _program.Vectors[vector] + ".Length";
+
+    /// <summary>The guard of an update of a vector's entry read only under a condition: the index is in range.</summary>
+    private string InRange(string index, int vector) => "if ((uint)" + Text.Parenthesized(index) + " < (uint)" + Length(vector) + ")";
+
+    private static string SpanDeclaration(string name, string length, ScalarType type)
+    {
+        string element = ExpressionWriter.TypeKeyword(type);
+        return "global::System.Span<" + element + "> " + name + " = " + length + " <= " + Text.Count(StackLimit) + " ? stackalloc " + element + "[" + length + "] : new "
+            + element + "[" + length + "];";
+    }
+
+    /// <summary>The spans of the running derivatives (a slice of the gradient where the plan accumulates one there), and
+    /// the <c>…Next</c> spans of those not updated in place.</summary>
+    private void DeclareSpans()
+    {
+        foreach (LoopSegment loop in _program.Loops)
+        {
+            foreach (LoopState state in loop.States)
+            {
+                if (!_program.States.TryGetValue(state, out StateDerivatives? d))
+                {
+                    continue;
+                }
+
+                for (int v = 0; v < d.VectorNames.Length; v++)
+                {
+                    if (_plan.Replayed.ContainsKey(d.VectorNames[v]))
+                    {
+                        continue;
+                    }
+
+                    if (_declared.Add(d.VectorNames[v]))
+                    {
+                        _writer.Line(_plan.InGradient.TryGetValue(d.VectorNames[v], out int slice)
+                            ? "global::System.Span<" + ExpressionWriter.TypeKeyword(_context.Spec.ReturnType) + "> " + d.VectorNames[v] + " = "
+                                + _context.GradientName + ".Slice(" + _context.VectorOffset[slice] + ", " + Length(slice) + "); // accumulated in place"
+                            : SpanDeclaration(d.VectorNames[v], Length(v), _context.Spec.ReturnType));
+                    }
+
+                    if (!_plan.UpdatesInPlace(loop, d, v) && _declared.Add(d.VectorNames[v] + "Next"))
+                    {
+                        _writer.Line(SpanDeclaration(d.VectorNames[v] + "Next", Length(v), _context.Spec.ReturnType));
+                    }
+                }
+            }
+        }
+    }
+
+    private void AddTerms(string target, string offset, IEnumerable<VectorTerm> terms, string? skipSource)
+    {
+        foreach (VectorTerm term in terms)
+        {
+            string at = offset.Length == 0 ? string.Empty : offset + " + ";
+            string coefficient = term.Coefficient.IsConstant(1) ? string.Empty : _code.WriteFactor(term.Coefficient) + " * ";
+            if (term.Index is { } index)
+            {
+                string update = target + "[" + at + _code.Write(index) + "] += " + (term.Coefficient.IsConstant(1) ? "1.0" : _code.Write(term.Coefficient)) + ";";
+                if (term.Element is { } read && !_plan.ReadAlways.Contains(read))
+                {
+                    // The user's code reads w[i] only under a condition (i < w.Length ? w[i] : 0). Where it does not,
+                    // the contribution is 0 (selected by that condition), but i may be out of range: the update is
+                    // made only for an index in range, which is every index the user's code can have read.
+                    using (_writer.Block(InRange(_code.Write(index), term.Vector)))
+                    {
+                        _writer.Line(update);
+                    }
+                }
+                else
+                {
+                    _writer.Line(update);
+                }
+            }
+            else if (term.SourceSpan is { } source && _plan.Replayed.TryGetValue(source, out ReverseReplay? reversal))
+            {
+                WriteReplay(target, at, term, reversal);
+            }
+            else if (term.SourceSpan != skipSource)
+            {
+                using (_writer.Block("for (int " + _element + " = 0; " + _element + " < " + Length(term.Vector) + "; " + _element + "++)"))
+                {
+                    _writer.Line(target + "[" + at + _element + "] += " + coefficient + term.SourceSpan + "[" + _element + "];");
+                }
+            }
+        }
+    }
+
+    /// <summary>target += adjoint · ∂z/∂w for a span that is not stored: its contributions, written out again with the adjoint.</summary>
+    private void WriteReplay(string target, string at, VectorTerm term, ReverseReplay reversal)
+    {
+        LoopSegment loop = reversal.Loop;
+        string adjoint;
+        if (term.Coefficient.IsLeaf || NameOf(term.Coefficient) is not null)
+        {
+            adjoint = _code.Write(term.Coefficient);
+        }
+        else
+        {
+            adjoint = _names.Claim(Identifiers.Unescape(reversal.State.State.Name) + "Adjoint");
+            _writer.Line(ExpressionWriter.TypeKeyword(term.Coefficient.Type) + " " + adjoint + " = " + _code.Write(term.Coefficient) + ";");
+        }
+
+        // Nodes of the loop's own stage were locals of its body, out of scope here: they are written out again.
+        var again = new ExpressionWriter(x => x.Stage >= loop.InsideStage ? null : NameOf(x), formula: false, calleeDerivative: CalleeDerivative);
+        bool unit = term.Coefficient.IsConstant(1);
+        string Add(VectorTerm element)
+        {
+            string update = target + "[" + at + again.Write(element.Index!) + "] += "
+                + (element.Coefficient.IsConstant(1) ? adjoint : unit ? again.Write(element.Coefficient) : adjoint + " * " + again.WriteFactor(element.Coefficient)) + ";";
+            return element.Element is { } read && !_plan.ReadAlways.Contains(read)
+                ? InRange(again.Write(element.Index!), element.Vector) + " " + update
+                : update;
+        }
+        _writer.Line("// " + target + " += " + adjoint + " · " + reversal.Span + ", " + reversal.Span + " not stored: the loop over " + loop.Index
+            + " replayed with the adjoint " + adjoint + " (reverse mode)");
+        foreach (VectorTerm element in reversal.InitialTerms)
+        {
+            _writer.Line(Add(element));
+        }
+
+        if (reversal.LoopTerms.Count > 0)
+        {
+            using (_writer.Block("for (int " + loop.Index + " = " + _code.Write(loop.Start!) + "; " + loop.Index + (loop.Inclusive ? " <= " : " < ") + _code.Write(loop.End!) + "; " + loop.Index + "++)"))
+            {
+                foreach (VectorTerm element in reversal.LoopTerms)
+                {
+                    _writer.Line(Add(element));
+                }
+            }
+        }
+    }
+
+    private void WriteVectorClears(LoopSegment loop)
+    {
+        foreach (LoopState state in loop.States)
+        {
+            if (_program.States.TryGetValue(state, out StateDerivatives? d))
+            {
+                for (int v = 0; v < d.VectorNames.Length; v++)
+                {
+                    if (_plan.Replayed.ContainsKey(d.VectorNames[v]))
+                    {
+                        continue;
+                    }
+
+                    if (_plan.SingleWrite.TryGetValue(d.VectorNames[v], out int stride))
+                    {
+                        WriteTailClear(loop, d.VectorNames[v], v, stride);
+                        continue;
+                    }
+
+                    // A span that starts from its own value (a local carried on from an earlier loop, scaled in between)
+                    // is scaled in place by WriteVectorUpdates, not cleared.
+                    var terms = d.InitialVector.Where(t => t.Vector == v).ToList();
+                    if (!terms.Any(t => t.SourceSpan == d.VectorNames[v]))
+                    {
+                        _writer.Line(d.VectorNames[v] + ".Clear();");
+                    }
+                }
+            }
+        }
+    }
+
+    /// <summary>A span assigned once each by the loop: only the elements after its last pair (or triple, …) are cleared,
+    /// by a loop of fewer than <paramref name="stride"/> iterations rather than a call of Span.Clear.</summary>
+    private void WriteTailClear(LoopSegment loop, string span, int v, int stride)
+    {
+        if (stride == 1)
+        {
+            _writer.Line("// " + span + " is not cleared: the loop assigns each element exactly once");
+            return;
+        }
+
+        using (_writer.Block("for (int " + _element + " = " + stride + " * (" + _code.Write(loop.End!) + "); " + _element + " < " + Length(v) + "; "
+            + _element + "++) // the loop below assigns each element before these exactly once"))
+        {
+            _writer.Line(span + "[" + _element + "] = " + _code.Write(_program.Builder.Zero(_context.Spec.ReturnType)) + ";");
+        }
+
+        _writer.Blank();
+    }
+
+    private void WriteVectorUpdates(LoopSegment loop, bool before)
+    {
+        var copies = new List<string>();
+        foreach (LoopState state in loop.States)
+        {
+            if (!_program.States.TryGetValue(state, out StateDerivatives? d))
+            {
+                continue;
+            }
+
+            for (int v = 0; v < d.VectorNames.Length; v++)
+            {
+                string own = d.VectorNames[v];
+                if (_plan.Replayed.ContainsKey(own))
+                {
+                    continue; // replayed after the loop, where its adjoint is known
+                }
+
+                var terms = (before ? d.InitialVector : d.NextVector).Where(t => t.Vector == v).ToList();
+                bool identity = terms.Count == 1 && terms[0].SourceSpan == own && terms[0].Coefficient.IsConstant(1);
+                if (identity)
+                {
+                    continue; // carried on unchanged
+                }
+
+                if (before)
+                {
+                    WriteVectorStart(own, v, terms);
+                }
+                else if (_plan.SingleWrite.ContainsKey(own))
+                {
+                    foreach (VectorTerm term in terms.Where(t => t.Index is not null))
+                    {
+                        _writer.Line(own + "[" + _code.Write(term.Index!) + "] = " + _code.Write(term.Coefficient) + ";");
+                    }
+                }
+                else if (_plan.UpdatesInPlace(loop, d, v))
+                {
+                    AddTerms(own, string.Empty, terms, own);
+                }
+                else
+                {
+                    _writer.Line(own + "Next.Clear();");
+                    AddTerms(own + "Next", string.Empty, terms, null);
+                    copies.Add(own + "Next.CopyTo(" + own + ");");
+                }
+            }
+        }
+
+        foreach (string copy in copies)
+        {
+            _writer.Line(copy);
+        }
+    }
+
+    /// <summary>A span's start: cleared by WriteVectorClears, unless it starts from its own value (carried on from an
+    /// earlier loop): then it is scaled in place first (own ← c · own), and the other contributions are added to it.</summary>
+    private void WriteVectorStart(string own, int v, List<VectorTerm> terms)
+    {
+        var self = terms.Where(t => t.SourceSpan == own).ToList();
+        if (self.Count > 1)
+        {
+            throw new InvalidOperationException("A running derivative starts from its own value through several terms.");
+        }
+
+        if (self.Count == 1 && !self[0].Coefficient.IsConstant(1))
+        {
+            using (_writer.Block("for (int " + _element + " = 0; " + _element + " < " + Length(v) + "; " + _element + "++)"))
+            {
+                _writer.Line(own + "[" + _element + "] *= " + _code.Write(self[0].Coefficient) + ";");
+            }
+        }
+
+        AddTerms(own, string.Empty, terms, own);
+    }
+
+    private void WriteGradient()
+    {
+        for (int v = 0; v < _program.Vectors.Length; v++)
+        {
+            string offset = _context.VectorOffset[v] == "0" ? string.Empty : _context.VectorOffset[v];
+            if (_plan.InGradient.FirstOrDefault(p => p.Value == v).Key is { } span)
+            {
+                _writer.Line("// ∂" + _context.BareName + "/∂" + Identifiers.Unescape(_program.Vectors[v]) + "[…] is " + span + ", already in " + _context.GradientName + ".");
+                continue;
+            }
+
+            _writer.Line(_context.GradientName + ".Slice(" + _context.VectorOffset[v] + ", " + Length(v) + ").Clear(); // ∂" + _context.BareName + "/∂"
+                + Identifiers.Unescape(_program.Vectors[v]) + "[…]");
+            AddTerms(_context.GradientName, offset, _program.VectorGradient.Where(t => t.Vector == v), null);
+        }
+
+        for (int i = 0; i < _program.Variables.Length; i++)
+        {
+            _writer.Line(_context.GradientName + "[" + _context.ScalarOffset[i] + "] = " + _code.Write(_program.Gradient[i]) + "; // " + _context.PartialName(i));
+        }
+    }
+
+    /// <summary>The lower triangle, each entry below the diagonal mirrored above it.</summary>
+    private void WriteHessian()
+    {
+        int n = _program.Variables.Length;
+        _writer.Line();
+        for (int i = 0; i < n; i++)
+        {
+            for (int j = 0; j <= i; j++)
+            {
+                string target = _context.HessianName + "[" + Text.Count((i * n) + j) + "]";
+                string mirror = i == j ? string.Empty : _context.HessianName + "[" + Text.Count((j * n) + i) + "] = ";
+                _writer.Line(mirror + target + " = " + _code.Write(_program.Hessian![i][j]) + "; // " + _context.SecondPartialName(i, j));
+            }
+        }
+    }
+}

@@ -1,0 +1,194 @@
+using System;
+using System.Collections.Generic;
+using System.Linq;
+using DerivGen.Generator.Differentiation;
+using DerivGen.Generator.Model;
+using DerivGen.Generator.Symbolic;
+
+namespace DerivGen.Generator.Emit;
+
+/// <summary>
+/// Writes the body of one generated method from its <see cref="MethodPlan"/>: allocates every name in one scope, then
+/// prints the temporaries of each stage, the loops with their carried locals and running derivatives, and the results.
+/// It decides nothing about derivatives: which node gets a local, in which form an update is written and which spans
+/// are replayed, accumulated in place or assigned once come from the plan.
+/// </summary>
+internal sealed partial class MethodBodyWriter
+{
+    private readonly IndentedWriter _writer;
+    private readonly EmitContext _context;
+    private readonly MethodPlan _plan;
+    private readonly DerivativeProgram _program;
+    private readonly string _thrower;
+    private readonly Dictionary<Node, string> _nameOf = new();
+    private readonly Dictionary<Node, string> _gradientBuffer = new();
+    private readonly Dictionary<Node, string> _hessianBuffer = new();
+    private readonly HashSet<string> _declared = new(StringComparer.Ordinal);
+    private readonly HashSet<Node> _written = new();
+    private readonly ExpressionWriter _code;
+    private TemporaryNames _names = null!;
+    private string _element = null!;
+
+    private MethodBodyWriter(IndentedWriter writer, EmitContext context, MethodPlan plan, string thrower)
+    {
+        _writer = writer;
+        _context = context;
+        _plan = plan;
+        _program = plan.Program;
+        _thrower = thrower;
+        _code = new ExpressionWriter(NameOf, formula: false, calleeDerivative: CalleeDerivative);
+    }
+
+    public static void Write(IndentedWriter writer, EmitContext context, bool withHessian, string thrower)
+    {
+        MethodPlan plan = MethodPlan.Create(context.Program, withHessian, context.Spec.HasSinCos);
+        new MethodBodyWriter(writer, context, plan, thrower).WriteBody();
+    }
+
+    private void WriteBody()
+    {
+        AllocateNames();
+        DeclareCallBuffers();
+        // Running derivatives with respect to vectors of variables live in spans: on the stack up to a size, else on
+        // the heap (the README states the policy).
+        _element = _names.Claim("k");
+        DeclareSpans();
+        WriteTemporaries(0);
+        foreach (LoopSegment loop in _program.TopLevelLoops)
+        {
+            WriteLoop(loop);
+        }
+
+        if (_context.Spec.HasOutputs)
+        {
+            _writer.TrimBlank();
+            return; // The outputs and their rows are written where the method writes them.
+        }
+
+        _writer.Blank();
+        WriteGradient();
+        if (_plan.WithHessian)
+        {
+            WriteHessian();
+        }
+
+        _writer.Line();
+        _writer.Line("return " + _code.Write(_program.Value) + ";");
+    }
+
+    /// <summary>The one name scope of the method: parameters, spans, the thrower, the generated locals of the program and
+    /// the loop indices are reserved; then <c>value</c>, the user's local names, snapshots (<c>sBefore</c>) and the other
+    /// temporaries are named in that order, and buffers, <c>k</c>, <c>…Start</c>, <c>…Next</c>, <c>row</c> and
+    /// <c>…Adjoint</c> as they are written.</summary>
+    private void AllocateNames()
+    {
+        List<Node> temporaries = _plan.Temporaries;
+        var reserved = _context.Spec.Parameters.Select(p => p.Name)
+            .Concat(new[] { _context.GradientName, _context.HessianName, _thrower })
+            .Concat(_program.StateNames)
+            .Concat(_program.Loops.Where(l => l.Index is not null).Select(l => l.Index!));
+        _names = new TemporaryNames(reserved);
+        if (temporaries.Contains(_program.Value) && _program.Value.LocalName is null)
+        {
+            _nameOf[_program.Value] = _names.Claim("value");
+        }
+
+        foreach (Node node in temporaries.Where(t => t.LocalName is not null && !_nameOf.ContainsKey(t)))
+        {
+            _nameOf[node] = _names.Claim(node.LocalName!);
+        }
+
+        foreach (Node node in _plan.Snapshots)
+        {
+            _nameOf[node] = _names.Claim(Identifiers.Unescape(node.Text!) + "Before");
+        }
+
+        foreach (Node node in temporaries.Where(t => !_nameOf.ContainsKey(t)))
+        {
+            _nameOf[node] = _names.For(node, x => _nameOf.TryGetValue(x, out string? name) ? name : null);
+        }
+
+        foreach (KeyValuePair<Node, Node> pair in _plan.SinCos.SameAs)
+        {
+            _nameOf[pair.Key] = _nameOf[pair.Value];
+        }
+    }
+
+    /// <summary>The buffers one call of another generated method fills with its partial derivatives.</summary>
+    private void DeclareCallBuffers()
+    {
+        foreach (Node call in _plan.GradientCalls.OrderBy(c => c.Id).ToList())
+        {
+            string stem = Identifiers.Unescape(call.Callee!.Method);
+            stem = char.ToLowerInvariant(stem[0]) + stem.Substring(1);
+            string type = ExpressionWriter.TypeKeyword(call.Type);
+            int m = call.Callee.VariablePositions.Length;
+            _gradientBuffer[call] = _names.Claim(stem + "Gradient");
+            _writer.Line("global::System.Span<" + type + "> " + _gradientBuffer[call] + " = stackalloc " + type + "[" + Text.Count(m) + "];");
+            if (_plan.HessianCalls.Contains(call))
+            {
+                _hessianBuffer[call] = _names.Claim(stem + "Hessian");
+                _writer.Line("global::System.Span<" + type + "> " + _hessianBuffer[call] + " = stackalloc " + type + "[" + Text.Count(m * m) + "];");
+            }
+        }
+    }
+
+    private string CalleeDerivative(Node partial)
+    {
+        Node call = partial.Arguments[0];
+        return partial.Kind == NodeKind.CallPartial
+            ? _gradientBuffer[call] + "[" + Text.Count((int)partial.Value) + "]"
+            : _hessianBuffer[call] + "[" + Text.Count((int)partial.Value) + "]";
+    }
+
+    private string? NameOf(Node node) => _nameOf.TryGetValue(node, out string? name) ? name : null;
+
+    private void WriteTemporaries(int stage)
+    {
+        foreach (Node node in _plan.Temporaries.Where(t => t.Stage == stage))
+        {
+            if (_plan.SinCos.Partner.TryGetValue(node, out Node? partner))
+            {
+                if (_written.Add(node) && _written.Add(partner))
+                {
+                    (Node sine, Node cosine) = node.Function == MathFunction.Sin ? (node, partner) : (partner, node);
+                    string keyword = ExpressionWriter.TypeKeyword(node.Type);
+                    _writer.Line("(" + keyword + " " + _nameOf[sine] + ", " + keyword + " " + _nameOf[cosine] + ") = global::System." + (node.Type == ScalarType.Single ? "MathF" : "Math")
+                        + ".SinCos(" + _code.Write(node.Arguments[0]) + ");");
+                }
+
+                continue;
+            }
+
+            _writer.Line(ExpressionWriter.TypeKeyword(node.Type) + " " + _nameOf[node] + " = " + Definition(node) + ";");
+            _written.Add(node);
+        }
+
+        WriteOutputs(stage);
+    }
+
+    /// <summary>
+    /// A temporary is written with its own definition, not its name; a call whose derivatives are needed calls the
+    /// callee's generated method, which returns the same value and fills the buffers.
+    /// </summary>
+    private string Definition(Node node)
+    {
+        string definition = new ExpressionWriter(x => x == node ? null : NameOf(x), formula: false, calleeDerivative: CalleeDerivative).Write(node);
+        if (_gradientBuffer.TryGetValue(node, out string? buffer))
+        {
+            bool second = _hessianBuffer.TryGetValue(node, out string? hessian);
+            string suffix = second ? Lowering.MethodParser.HessianSuffix : Lowering.MethodParser.GradientSuffix;
+            var arguments = node.Arguments.Select(_code.Write).Concat(second ? new[] { buffer, hessian! } : new[] { buffer });
+            definition = node.Text + suffix + "(" + string.Join(", ", arguments) + ")";
+            if (_plan.CallConditions.TryGetValue(node, out Node? guard))
+            {
+                // The condition is written out in full (with && and || short-circuiting as in the user's code),
+                // reading only temporaries already computed.
+                string condition = new ExpressionWriter(x => _written.Contains(x) ? NameOf(x) : null, formula: false).Write(guard);
+                definition = condition + " ? " + definition + " : " + Literals.CSharp(0, node.Type);
+            }
+        }
+
+        return definition;
+    }
+}
