@@ -97,11 +97,11 @@ internal sealed class FormulaComments
 
     private IEnumerable<string> Locals(IEnumerable<Node> roots, int stage, string indent)
     {
-        foreach (Node local in Graph.Reachable(roots).Where(n => n.LocalName is not null && !n.IsLeaf && n.Stage == stage && n != _value).OrderBy(n => n.Id))
+        foreach (Node local in Graph.Reachable(roots).Where(n => Program.Names.LocalName(n) is not null && !n.IsLeaf && n.Stage == stage && n != _value).OrderBy(n => n.Id))
         {
             if (_shown.Add(local))
             {
-                yield return indent + Identifiers.Unescape(local.LocalName!) + " = " + Formula(local);
+                yield return indent + Identifiers.Unescape(Program.Names.LocalName(local)!) + " = " + Formula(local);
             }
         }
     }
@@ -199,9 +199,9 @@ internal sealed class FormulaComments
         }
     }
 
-    private static string Formula(Node node)
+    private string Formula(Node node)
     {
-        var writer = new ExpressionWriter(x => x != node && x.LocalName is not null ? Identifiers.Unescape(x.LocalName) : null, formula: true, MaxFormulaLength);
+        var writer = new ExpressionWriter(x => x != node && Program.Names.LocalName(x) is { } local ? Identifiers.Unescape(local) : null, formula: true, MaxFormulaLength);
         return writer.TryWrite(node) ?? "(too long to show here; see the code)";
     }
 }

@@ -88,14 +88,14 @@ internal sealed partial class MethodBodyWriter
             .Concat(_program.StateNames)
             .Concat(_program.Loops.Where(l => l.Index is not null).Select(l => l.Index!));
         _names = new TemporaryNames(reserved);
-        if (temporaries.Contains(_program.Value) && _program.Value.LocalName is null)
+        if (temporaries.Contains(_program.Value) && _program.Names.LocalName(_program.Value) is null)
         {
             _nameOf[_program.Value] = _names.Claim("value");
         }
 
-        foreach (Node node in temporaries.Where(t => t.LocalName is not null && !_nameOf.ContainsKey(t)))
+        foreach (Node node in temporaries.Where(t => _program.Names.LocalName(t) is not null && !_nameOf.ContainsKey(t)))
         {
-            _nameOf[node] = _names.Claim(node.LocalName!);
+            _nameOf[node] = _names.Claim(_program.Names.LocalName(node)!);
         }
 
         foreach (Node node in _plan.Snapshots)
@@ -105,7 +105,7 @@ internal sealed partial class MethodBodyWriter
 
         foreach (Node node in temporaries.Where(t => !_nameOf.ContainsKey(t)))
         {
-            _nameOf[node] = _names.For(node, x => _nameOf.TryGetValue(x, out string? name) ? name : null);
+            _nameOf[node] = _names.For(node, _program.Names, x => _nameOf.TryGetValue(x, out string? name) ? name : null);
         }
 
         foreach (KeyValuePair<Node, Node> pair in _plan.SinCos.SameAs)

@@ -182,7 +182,7 @@ internal sealed class Scheduling
         List<Node> temporaries = _reachable
             .Where(node => !plan.SinCos.SameAs.ContainsKey(node)).Where(node => plan.Snapshots.Contains(node) || plan.SinCos.Partner.ContainsKey(node)
                 || (!node.IsLeaf && (!Guarded(node) || plan.CallConditions.ContainsKey(node))
-                && (node == _program.Value || node.LocalName is not null || _uses[node] >= 2 || _hoisted.Contains(node) || calls.Contains(node))))
+                && (node == _program.Value || _program.Names.LocalName(node) is not null || _uses[node] >= 2 || _hoisted.Contains(node) || calls.Contains(node))))
             .OrderBy(node => node.Id)
             .ToList();
 
