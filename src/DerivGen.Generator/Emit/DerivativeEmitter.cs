@@ -15,9 +15,6 @@ namespace DerivGen.Generator.Emit;
 /// </summary>
 internal static class DerivativeEmitter
 {
-    public const string ToolName = "DerivGen";
-    public const string ToolVersion = "0.1.0";
-
     public static string Emit(MethodSpec spec, DerivativeProgram program, PairHessian? pairs = null)
     {
         var context = new EmitContext(spec, program);
@@ -51,7 +48,7 @@ internal static class DerivativeEmitter
         else if (pairs is not null)
         {
             writer.Line();
-            WritePairedHessian(writer, context, pairs);
+            PairedHessianWriter.Write(writer, context, pairs);
             writer.Line();
             WriteMethod(writer, new EmitContext(pairs.Spec, pairs.Program), withHessian: true);
         }
@@ -87,213 +84,28 @@ internal static class DerivativeEmitter
         MethodSpec spec = context.Spec;
         DerivativeProgram program = context.Program;
         int n = program.Variables.Length;
-        string type = ExpressionWriter.TypeKeyword(spec.ReturnType);
         bool jacobian = spec.HasOutputs;
-        string methodName = context.BareName + (jacobian ? Lowering.MethodParser.JacobianSuffix
-            : withHessian ? Lowering.MethodParser.HessianSuffix : Lowering.MethodParser.GradientSuffix);
-        string variableList = string.Join(", ", spec.Parameters.Where(p => p.IsVariable).Select(p => Identifiers.Unescape(p.Name) + (p.IsVector ? "[…]" : string.Empty)));
-
-        // Documentation.
-        writer.Line("/// <summary>");
-        if (spec.IsPairMethod)
-        {
-            writer.Line("/// <see cref=\"" + Text.Xml(spec.Cref) + "\"/> along two slots of its vector variables, for its Hessian: every element read is");
-            writer.Line("/// shifted by tRow at slot row and by tColumn at slot column, so that at tRow = tColumn = 0 the second derivative");
-            writer.Line("/// with respect to (tRow, tColumn) is the Hessian entry [row, column], and with respect to (tRow, s) the entry [row, s].");
-        }
-        else if (jacobian)
-        {
-            writer.Line("/// Writes the outputs of <see cref=\"" + Text.Xml(spec.Cref) + "\"/> into " + Text.Xml(Identifiers.Unescape(spec.OutputName!))
-                + " as it does, and their Jacobian with respect to (" + Text.Xml(variableList) + ").");
-        }
-        else
-        {
-            writer.Line("/// Computes <see cref=\"" + Text.Xml(spec.Cref) + "\"/> and its gradient" + (withHessian ? " and Hessian" : string.Empty)
-                + " with respect to (" + Text.Xml(variableList) + ").");
-        }
-
-        writer.Line("/// </summary>");
-        writer.Line("/// <remarks>");
-        writer.Line("/// <code>");
-        foreach (string line in context.FormulaLines(withHessian))
-        {
-            writer.Line("/// " + Text.Xml(line));
-        }
-
-        writer.Line("/// </code>");
-        writer.Line("/// </remarks>");
-        foreach (ParameterSpec parameter in spec.Parameters)
-        {
-            writer.Line("/// <param name=\"" + Text.Xml(Identifiers.Unescape(parameter.Name)) + "\">"
-                + (parameter.IsVariable ? "A differentiation variable."
-                    : parameter.Name == spec.OutputName ? "Receives the outputs, written as the method writes them."
-                    : "Passed to the method unchanged; held constant.") + "</param>");
-        }
-
-        if (jacobian)
-        {
-            string outputs = Text.Xml(Identifiers.Unescape(spec.OutputName!));
-            writer.Line("/// <param name=\"" + context.JacobianName + "\">Receives ∂" + outputs + "[i]/∂v for v = " + Text.Xml(variableList) + " in row i, row-major ("
-                + outputs + ".Length rows of " + Text.Xml(context.GradientLength) + "); needs at least " + outputs + ".Length × " + Text.Xml(Text.Parenthesized(context.GradientLength))
-                + " elements. Only the rows of the outputs the method writes are written.</param>");
-        }
-        else
-        {
-            writer.Line("/// <param name=\"" + context.GradientName + "\">Receives ∂f/∂v for v = " + Text.Xml(variableList) + ", in that order; needs at least "
-                + Text.Xml(context.GradientLength) + (context.GradientLength == "1" ? " element.</param>" : " elements.</param>"));
-        }
-
-        if (withHessian)
-        {
-            writer.Line("/// <param name=\"" + context.HessianName + "\">Receives the " + Text.Count(n) + "×" + Text.Count(n)
-                + " Hessian, row-major (exactly symmetric); needs at least " + Text.Count(n * n) + " elements.</param>");
-        }
-
-        if (!jacobian)
-        {
-            writer.Line("/// <returns>The value of the method at these arguments, bit-for-bit.</returns>");
-        }
-
-        writer.Line("/// <exception cref=\"global::System.ArgumentException\">A span is shorter than stated.</exception>");
-        writer.Line("[global::System.CodeDom.Compiler.GeneratedCode(\"" + ToolName + "\", \"" + ToolVersion + "\")]");
-        if (IsSmallStraightLine(program, withHessian))
-        {
-            writer.Line("[global::System.Runtime.CompilerServices.MethodImpl(global::System.Runtime.CompilerServices.MethodImplOptions.AggressiveInlining)]");
-        }
-
-        // Signature.
-        var parameters = spec.Parameters.Select(p => p.Modifiers + p.TypeName + " " + p.Name).ToList();
-        parameters.Add("global::System.Span<" + type + "> " + (jacobian ? context.JacobianName : context.GradientName));
-        if (withHessian)
-        {
-            parameters.Add("global::System.Span<" + type + "> " + context.HessianName);
-        }
-
-        string modifiers = spec.Accessibility + (spec.IsStatic ? " static " : " ");
-        using (writer.Block(modifiers + (jacobian ? "void" : type) + " " + methodName + "(" + string.Join(", ", parameters) + ")"))
+        string variableList = SignatureWriter.VariableList(spec);
+        using (SignatureWriter.DerivativeMethod(writer, context, withHessian, IsSmallStraightLine(program, withHessian)))
         {
             string thrower = context.ThrowerName;
             if (jacobian)
             {
-                WriteLengthCheck(writer, context.JacobianName, "(long)" + spec.OutputName + ".Length * " + Text.Parenthesized(context.GradientLength),
+                SignatureWriter.LengthCheck(writer, context.JacobianName, "(long)" + spec.OutputName + ".Length * " + Text.Parenthesized(context.GradientLength),
                     "one row of " + context.GradientLength + " per output, row-major: " + variableList, thrower);
             }
             else
             {
-                WriteLengthCheck(writer, context.GradientName, context.GradientLength, "one per variable: " + variableList, thrower);
+                SignatureWriter.LengthCheck(writer, context.GradientName, context.GradientLength, "one per variable: " + variableList, thrower);
             }
 
             if (withHessian)
             {
-                WriteLengthCheck(writer, context.HessianName, Text.Count(n * n), Text.Count(n) + " × " + Text.Count(n) + ", row-major", thrower);
+                SignatureWriter.LengthCheck(writer, context.HessianName, Text.Count(n * n), Text.Count(n) + " × " + Text.Count(n) + ", row-major", thrower);
             }
 
             MethodBodyWriter.Write(writer, context, withHessian, thrower);
-            WriteThrower(writer, thrower);
-        }
-    }
-
-    /// <summary>
-    /// MHessian of a method with vector variables: the gradient from MGradient, then the Hessian entry by entry from the
-    /// pair method (see <see cref="PairHessian"/>), each entry below the diagonal mirrored above it.
-    /// </summary>
-    private static void WritePairedHessian(IndentedWriter writer, EmitContext context, PairHessian pairs)
-    {
-        MethodSpec spec = context.Spec;
-        string type = ExpressionWriter.TypeKeyword(spec.ReturnType);
-        string variableList = string.Join(", ", spec.Parameters.Where(p => p.IsVariable).Select(p => Identifiers.Unescape(p.Name) + (p.IsVector ? "[…]" : string.Empty)));
-        var names = new TemporaryNames(spec.Parameters.Select(p => p.Name).Concat(new[] { context.GradientName, context.HessianName }));
-        string n = names.Claim("n"), value = names.Claim("value"), pairGradient = names.Claim("pairGradient"), pairHessian = names.Claim("pairHessian");
-        string row = names.Claim("row"), column = names.Claim("column"), i = names.Claim("i"), j = names.Claim("j");
-        int m = pairs.ScalarCount, c = m + 2;
-        string along = Text.Count(m * c + m + 1); // ∂²/∂tRow∂tColumn in the pair method's Hessian
-        var vectors = spec.Parameters.Where(p => p.IsVector).ToList();
-        string arguments = string.Join(", ", spec.Parameters.Select(p => p.Name));
-        string Pair(string r, string col) => context.BareName + PairHessian.Suffix + Lowering.MethodParser.HessianSuffix + "(" + arguments + ", " + r + ", " + col
-            + ", 0, 0, " + pairGradient + ", " + pairHessian + ");";
-
-        writer.Line("/// <summary>");
-        writer.Line("/// Computes <see cref=\"" + Text.Xml(spec.Cref) + "\"/> and its gradient and Hessian with respect to (" + Text.Xml(variableList) + ").");
-        writer.Line("/// </summary>");
-        writer.Line("/// <remarks>");
-        writer.Line("/// The gradient comes from <see cref=\"" + Text.Xml(context.BareName + Lowering.MethodParser.GradientSuffix) + "\"/>. The Hessian entries that involve a vector");
-        writer.Line("/// element come one pair of slots at a time from the pair method, which differentiates the method along the two");
-        writer.Line("/// slots: n_v(n_v + 1)/2 passes over the method for n_v vector elements.");
-        writer.Line("/// </remarks>");
-        foreach (ParameterSpec parameter in spec.Parameters)
-        {
-            writer.Line("/// <param name=\"" + Text.Xml(Identifiers.Unescape(parameter.Name)) + "\">"
-                + (parameter.IsVariable ? "A differentiation variable." : "Passed to the method unchanged; held constant.") + "</param>");
-        }
-
-        writer.Line("/// <param name=\"" + context.GradientName + "\">Receives ∂f/∂v for v = " + Text.Xml(variableList) + ", in that order; needs at least "
-            + Text.Xml(context.GradientLength) + " elements.</param>");
-        writer.Line("/// <param name=\"" + context.HessianName + "\">Receives the Hessian, row-major (exactly symmetric); needs at least ("
-            + Text.Xml(context.GradientLength) + ")² elements.</param>");
-        writer.Line("/// <returns>The value of the method at these arguments, bit-for-bit.</returns>");
-        writer.Line("/// <exception cref=\"global::System.ArgumentException\">A span is shorter than stated.</exception>");
-        writer.Line("[global::System.CodeDom.Compiler.GeneratedCode(\"" + ToolName + "\", \"" + ToolVersion + "\")]");
-        var parameters = spec.Parameters.Select(p => p.Modifiers + p.TypeName + " " + p.Name).ToList();
-        parameters.Add("global::System.Span<" + type + "> " + context.GradientName);
-        parameters.Add("global::System.Span<" + type + "> " + context.HessianName);
-        string modifiers = spec.Accessibility + (spec.IsStatic ? " static " : " ");
-        using (writer.Block(modifiers + type + " " + context.BareName + Lowering.MethodParser.HessianSuffix + "(" + string.Join(", ", parameters) + ")"))
-        {
-            string thrower = names.Claim(context.ThrowerName);
-            writer.Line("int " + n + " = " + context.GradientLength + ";");
-            WriteLengthCheck(writer, context.GradientName, n, "one per variable: " + variableList, thrower);
-            WriteLengthCheck(writer, context.HessianName, n + " * " + n, "n × n, row-major", thrower);
-            writer.Line(type + " " + value + " = " + context.BareName + Lowering.MethodParser.GradientSuffix + "(" + arguments + ", " + context.GradientName + ");");
-            writer.Line("global::System.Span<" + type + "> " + pairGradient + " = stackalloc " + type + "[" + Text.Count(c) + "];");
-            writer.Line("global::System.Span<" + type + "> " + pairHessian + " = stackalloc " + type + "[" + Text.Count(c * c) + "];");
-            if (m > 0)
-            {
-                writer.Line();
-                writer.Line("// The scalar variables among themselves (no vector slot shifted).");
-                writer.Line(Pair("-1", "-1"));
-                for (int a = 0; a < m; a++)
-                {
-                    for (int b = 0; b <= a; b++)
-                    {
-                        string entry = pairHessian + "[" + Text.Count((a * c) + b) + "]";
-                        writer.Line(a == b
-                            ? context.HessianName + "[" + Text.Slot(context.ScalarOffset[a], n, context.ScalarOffset[a]) + "] = " + entry + ";"
-                            : context.HessianName + "[" + Text.Slot(context.ScalarOffset[a], n, context.ScalarOffset[b]) + "] = " + context.HessianName + "["
-                                + Text.Slot(context.ScalarOffset[b], n, context.ScalarOffset[a]) + "] = " + entry + ";");
-                    }
-                }
-            }
-
-            for (int v = 0; v < vectors.Count; v++)
-            {
-                writer.Line();
-                using (writer.Block("for (int " + i + " = 0; " + i + " < " + vectors[v].Name + ".Length; " + i + "++)"))
-                {
-                    writer.Line("int " + row + " = " + Text.Sum(context.VectorOffset[v], i) + ";");
-                    writer.Line(Pair(row, row));
-                    writer.Line(context.HessianName + "[" + row + " * " + n + " + " + row + "] = " + pairHessian + "[" + along + "];");
-                    for (int a = 0; a < m; a++)
-                    {
-                        writer.Line(context.HessianName + "[" + row + " * " + n + " + " + Text.Parenthesized(context.ScalarOffset[a]) + "] = " + context.HessianName + "["
-                            + Text.Slot(context.ScalarOffset[a], n, row) + "] = " + pairHessian + "[" + Text.Count((m * c) + a) + "];");
-                    }
-
-                    for (int u = v; u < vectors.Count; u++)
-                    {
-                        using (writer.Block("for (int " + j + " = " + (u == v ? i + " + 1" : "0") + "; " + j + " < " + vectors[u].Name + ".Length; " + j + "++)"))
-                        {
-                            writer.Line("int " + column + " = " + Text.Sum(context.VectorOffset[u], j) + ";");
-                            writer.Line(Pair(row, column));
-                            writer.Line(context.HessianName + "[" + row + " * " + n + " + " + column + "] = " + context.HessianName + "[" + column + " * " + n + " + " + row + "] = "
-                                + pairHessian + "[" + along + "];");
-                        }
-                    }
-                }
-            }
-
-            writer.Line();
-            writer.Line("return " + value + ";");
-            WriteThrower(writer, thrower);
+            SignatureWriter.Thrower(writer, thrower);
         }
     }
 
@@ -322,26 +134,5 @@ internal static class DerivativeEmitter
         HashSet<Node> reachable = Graph.Reachable(roots);
         return !reachable.Any(node => node.Kind is NodeKind.UserCall or NodeKind.CallPartial or NodeKind.CallSecondPartial)
             && reachable.Count(node => !node.IsLeaf) <= InlineOperationLimit;
-    }
-
-    private static void WriteLengthCheck(IndentedWriter writer, string name, string length, string what, string thrower)
-    {
-        using (writer.Block("if (" + name + ".Length < " + length + ")"))
-        {
-            writer.Line(thrower + "(nameof(" + name + "), " + length + ", \"" + what.Replace("\"", "'") + "\");");
-        }
-
-        writer.Line();
-    }
-
-    /// <summary>
-    /// The length checks throw through a static local function: the exception and its message are built out of line,
-    /// so that a small generated method stays within the JIT's inlining budget.
-    /// </summary>
-    private static void WriteThrower(IndentedWriter writer, string thrower)
-    {
-        writer.Line();
-        writer.Line("static void " + thrower + "(string name, long length, string what) =>");
-        writer.Line("    throw new global::System.ArgumentException(\"The span must hold at least \" + length + (length == 1 ? \" element (\" : \" elements (\") + what + \").\", name);");
     }
 }

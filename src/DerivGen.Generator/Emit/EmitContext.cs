@@ -11,6 +11,16 @@ namespace DerivGen.Generator.Emit;
 /// <summary>What the writers of one file share: names, and the formulas in plain notation.</summary>
 internal sealed class EmitContext
 {
+    /// <summary>The suffixes of the generated methods' names (<c>MGradient</c>, <c>MHessian</c>, <c>MJacobian</c>, and the
+    /// pair method <c>MPair</c>), read here only.</summary>
+    public static string GradientSuffix => Lowering.MethodParser.GradientSuffix;
+
+    public static string HessianSuffix => Lowering.MethodParser.HessianSuffix;
+
+    public static string JacobianSuffix => Lowering.MethodParser.JacobianSuffix;
+
+    public static string PairSuffix => PairHessian.Suffix;
+
     public EmitContext(MethodSpec spec, DerivativeProgram program)
     {
         Spec = spec;
@@ -26,7 +36,10 @@ internal sealed class EmitContext
         ThrowerName = names.Claim("ThrowSpanTooShort");
 
         // Where each variable's derivatives go in the gradient span: declaration order, a vector taking v.Length slots.
-        (ScalarOffset, VectorOffset, GradientLength) = PairHessian.SlotOffsets(spec);
+        SlotLayout layout = SlotLayout.Of(spec);
+        ScalarOffset = layout.Scalar.Select(Text.Offset).ToArray();
+        VectorOffset = layout.Vector.Select(Text.Offset).ToArray();
+        GradientLength = Text.Offset(layout.Total);
     }
 
     /// <summary>The static local function that throws for a span that is too short (see <see cref="WriteThrower"/>).</summary>

@@ -1,4 +1,6 @@
+using System;
 using System.Globalization;
+using System.Linq;
 
 namespace DerivGen.Generator.Emit;
 
@@ -17,6 +19,12 @@ internal static class Text
 
     public static string Slot(string rowOffset, string n, string columnOffset) =>
         (rowOffset == "0" ? string.Empty : Parenthesized(rowOffset) + " * " + n + " + ") + Parenthesized(columnOffset);
+
+    /// <summary>A slot offset as C#: the vectors' lengths, then the constant (omitted when 0 after a length).</summary>
+    public static string Offset(Differentiation.SlotOffset offset) =>
+        string.Join(" + ", offset.VectorsBefore.Select(v => v + ".Length").Concat(offset.Constant > 0 || offset.VectorsBefore.Count == 0
+            ? new[] { Count(offset.Constant) }
+            : Array.Empty<string>()));
 
     public static string Count(int value) => value.ToString(CultureInfo.InvariantCulture);
 
