@@ -76,6 +76,17 @@ internal sealed partial class MethodPlan
     /// <summary>The condition under which such a call is made, where the user's code makes it only under one.</summary>
     public Dictionary<Node, Node> CallConditions { get; internal set; } = new();
 
+    /// <summary>Per loop: the statements assigning its carried locals before it and at the end of each iteration, with
+    /// their forms (<see cref="StateAssignments"/>).</summary>
+    public Dictionary<LoopSegment, List<Assignment>> Starts { get; } = new();
+
+    public Dictionary<LoopSegment, List<Assignment>> Ends { get; } = new();
+
+    /// <summary>Whether the node is computed into a local (its own, or the equal SinCos node's) before it is read.</summary>
+    public bool HasLocal(Node node) => _temporarySet.Contains(node) || SinCos.SameAs.ContainsKey(node);
+
+    private HashSet<Node> _temporarySet = new();
+
     /// <summary>The Differentiate stage's last step for one generated method: scheduling and passes, in order.</summary>
     public static MethodPlan Create(DerivativeProgram program, bool withHessian, bool hasSinCos)
     {
@@ -93,6 +104,8 @@ internal sealed partial class MethodPlan
         DeadDerivatives.Apply(program, plan.Roots.Select(r => r.Node), plan.Initial, plan.Next, plan.Factored);
         plan.AddLoopRoots();
         new Scheduling(plan, hasSinCos).Run();
+        plan._temporarySet = new HashSet<Node>(plan.Temporaries);
+        StateAssignments.Schedule(plan);
         plan.InGradient = InPlaceAccumulation.InGradient(program);
         plan.SingleWrite = InPlaceAccumulation.SingleWrite(program, plan.Replayed);
         return plan;

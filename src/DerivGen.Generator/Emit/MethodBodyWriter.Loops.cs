@@ -103,116 +103,53 @@ internal sealed partial class MethodBodyWriter
         WriteTemporaries(loop.AfterStage);
     }
 
-    /// <summary>The carried locals' start values: declared where first assigned; one that another start value reads is
-    /// assigned after all are computed (through a <c>…Start</c> local).</summary>
-    private void WriteStart(LoopSegment loop)
+    /// <summary>The carried locals' start values, as the plan schedules them (<see cref="StateAssignments"/>).</summary>
+    private void WriteStart(LoopSegment loop) => WriteAssignments(_plan.Starts[loop], "Start");
+
+    /// <summary>The scalar updates at the end of an iteration, as the plan schedules them.</summary>
+    private void WriteIterationEnd(LoopSegment loop) => WriteAssignments(_plan.Ends[loop], "Next");
+
+    /// <summary>Prints assignment statements; those after all (through a <c>…Start</c> / <c>…Next</c> local, or from a
+    /// value already computed) come last, in order.</summary>
+    private void WriteAssignments(List<Assignment> assignments, string suffix)
     {
-        List<StateUpdate> starting = _plan.Initial[loop].Where(u => !u.IsSameLocal).ToList(); // IsSameLocal: carried on unchanged
-        var startReads = starting.ToDictionary(u => u.Target, u => LocalsRead(u.Value, _nameOf), StringComparer.Ordinal);
-        var startAssignments = new List<(string Target, string Source)>();
-        foreach (StateUpdate update in starting)
+        var after = new List<(string Target, string Source)>();
+        foreach (Assignment assignment in assignments)
         {
-            if (!_declared.Contains(update.Target) || !starting.Any(other => other.Target != update.Target && startReads[other.Target].Contains(update.Target)))
+            StateUpdate update = assignment.Update;
+            switch (assignment.Kind)
             {
-                string prefix = _declared.Add(update.Target) ? ExpressionWriter.TypeKeyword(update.Type) + " " : string.Empty;
-                _writer.Line(prefix + update.Target + " = " + _code.Write(update.Value) + ";");
-                continue;
+                case AssignmentKind.Declare:
+                    _writer.Line(ExpressionWriter.TypeKeyword(update.Type) + " " + update.Target + " = " + _code.Write(update.Value) + ";");
+                    break;
+                case AssignmentKind.Assign:
+                    _writer.Line(update.Target + " = " + _code.Write(update.Value) + ";");
+                    break;
+                case AssignmentKind.InPlace:
+                    _writer.Line(update.Target + Operator(assignment.Form) + _code.Write(assignment.Operand!) + ";");
+                    break;
+                case AssignmentKind.ThroughLocal:
+                    string source = _names.Claim(Identifiers.Unescape(update.Target) + suffix);
+                    _writer.Line(ExpressionWriter.TypeKeyword(update.Type) + " " + source + " = " + _code.Write(update.Value) + ";");
+                    after.Add((update.Target, source));
+                    break;
+                default:
+                    after.Add((update.Target, _code.Write(update.Value)));
+                    break;
             }
-
-            if (!_nameOf.TryGetValue(update.Value, out string? source) && update.Value.Kind != NodeKind.Constant)
-            {
-                source = _names.Claim(Identifiers.Unescape(update.Target) + "Start");
-                _writer.Line(ExpressionWriter.TypeKeyword(update.Type) + " " + source + " = " + _code.Write(update.Value) + ";");
-            }
-
-            startAssignments.Add((update.Target, source ?? _code.Write(update.Value)));
         }
 
-        foreach ((string target, string source) in startAssignments)
+        foreach ((string target, string source) in after)
         {
             _writer.Line(target + " = " + source + ";");
         }
     }
 
-    /// <summary>The scalar updates at the end of an iteration. An update that no other update reads is written in place
-    /// (s += e); the others are computed from the old values into locals first and assigned after.</summary>
-    private void WriteIterationEnd(LoopSegment loop)
+    private static string Operator(AssignmentForm form) => form switch
     {
-        List<StateUpdate> pending = _plan.Next[loop].Where(u => !u.IsSameLocal).ToList();
-        var reads = pending.ToDictionary(u => u.Target, u => LocalsRead(u.Value, _nameOf), StringComparer.Ordinal);
-        var assignments = new List<(string Target, string Source)>();
-        foreach (StateUpdate update in pending)
-        {
-            bool readByOthers = pending.Any(other => other.Target != update.Target && reads[other.Target].Contains(update.Target));
-            if (!readByOthers)
-            {
-                _writer.Line(_nameOf.TryGetValue(update.Value, out string? computed)
-                    ? update.Target + " = " + computed + ";"     // already computed, from the old values
-                    : InPlace(update));
-                continue;
-            }
-
-            string source;
-            if (_nameOf.TryGetValue(update.Value, out string? existing) || update.Value.Kind == NodeKind.Constant)
-            {
-                source = existing ?? _code.Write(update.Value);
-            }
-            else
-            {
-                source = _names.Claim(Identifiers.Unescape(update.Target) + "Next");
-                _writer.Line(ExpressionWriter.TypeKeyword(update.Type) + " " + source + " = " + _code.Write(update.Value) + ";");
-            }
-
-            assignments.Add((update.Target, source));
-        }
-
-        foreach ((string target, string source) in assignments)
-        {
-            _writer.Line(target + " = " + source + ";");
-        }
-    }
-
-    /// <summary>An update written in the form the plan chose: <c>s += e</c>, <c>s -= e</c>, <c>s *= e</c> or <c>s = e</c>.</summary>
-    private string InPlace(StateUpdate update)
-    {
-        (AssignmentForm form, Node operand) = InPlaceAccumulation.Form(update, _program.Builder);
-        string op = form switch
-        {
-            AssignmentForm.Add => " += ",
-            AssignmentForm.Subtract => " -= ",
-            AssignmentForm.Multiply => " *= ",
-            _ => " = ",
-        };
-        return update.Target + op + _code.Write(operand) + ";";
-    }
-
-    /// <summary>The generated locals an update's expression reads when it is written (not through temporaries, which are
-    /// already computed by then).</summary>
-    private static HashSet<string> LocalsRead(Node value, Dictionary<Node, string> nameOf)
-    {
-        var read = new HashSet<string>(StringComparer.Ordinal);
-        var stack = new Stack<Node>();
-        stack.Push(value);
-        var seen = new HashSet<Node>();
-        while (stack.Count > 0)
-        {
-            Node node = stack.Pop();
-            if (!seen.Add(node) || (node != value && nameOf.ContainsKey(node)) || (node == value && nameOf.ContainsKey(node)))
-            {
-                continue;
-            }
-
-            if (node.Kind == NodeKind.Parameter && node.Text is not null)
-            {
-                read.Add(node.Text);
-            }
-
-            foreach (Node argument in node.Arguments)
-            {
-                stack.Push(argument);
-            }
-        }
-
-        return read;
-    }
+        AssignmentForm.Add => " += ",
+        AssignmentForm.Subtract => " -= ",
+        AssignmentForm.Multiply => " *= ",
+        _ => " = ",
+    };
 }
