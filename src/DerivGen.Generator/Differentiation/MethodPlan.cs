@@ -82,6 +82,17 @@ internal sealed partial class MethodPlan
 
     public Dictionary<LoopSegment, List<Assignment>> Ends { get; } = new();
 
+    /// <summary>The spans of running derivatives with respect to vectors, declared before any loop, in order.</summary>
+    public List<SpanDeclaration> SpanDeclarations { get; } = new();
+
+    /// <summary>Per loop: the statements on its vector spans before it (clears, then starts) and at the end of each
+    /// iteration (<see cref="SpanStatements"/>).</summary>
+    public Dictionary<LoopSegment, List<SpanStatement>> SpanClears { get; } = new();
+
+    public Dictionary<LoopSegment, List<SpanStatement>> SpanStarts { get; } = new();
+
+    public Dictionary<LoopSegment, List<SpanStatement>> SpanEnds { get; } = new();
+
     /// <summary>Whether the node is computed into a local (its own, or the equal SinCos node's) before it is read.</summary>
     public bool HasLocal(Node node) => _temporarySet.Contains(node) || SinCos.SameAs.ContainsKey(node);
 
@@ -108,6 +119,7 @@ internal sealed partial class MethodPlan
         StateAssignments.Schedule(plan);
         plan.InGradient = InPlaceAccumulation.InGradient(program);
         plan.SingleWrite = InPlaceAccumulation.SingleWrite(program, plan.Replayed);
+        SpanStatements.Schedule(plan);
         return plan;
     }
 

@@ -18,47 +18,23 @@ internal sealed partial class MethodBodyWriter
     /// <summary>The guard of an update of a vector's entry read only under a condition: the index is in range.</summary>
     private string InRange(string index, int vector) => "if ((uint)" + Text.Parenthesized(index) + " < (uint)" + Length(vector) + ")";
 
-    private static string SpanDeclaration(string name, string length, ScalarType type)
+    private static string StackOrHeapSpan(string name, string length, ScalarType type)
     {
         string element = ExpressionWriter.TypeKeyword(type);
         return "global::System.Span<" + element + "> " + name + " = " + length + " <= " + Text.Count(StackLimit) + " ? stackalloc " + element + "[" + length + "] : new "
             + element + "[" + length + "];";
     }
 
-    /// <summary>The spans of the running derivatives (a slice of the gradient where the plan accumulates one there), and
-    /// the <c>…Next</c> spans of those not updated in place.</summary>
+    /// <summary>The spans of the running derivatives, as the plan declares them: a slice of the gradient where one is
+    /// accumulated there, else on the stack up to <see cref="StackLimit"/> elements and on the heap beyond.</summary>
     private void DeclareSpans()
     {
-        foreach (LoopSegment loop in _program.Loops)
+        foreach (SpanDeclaration span in _plan.SpanDeclarations)
         {
-            foreach (LoopState state in loop.States)
-            {
-                if (!_program.States.TryGetValue(state, out StateDerivatives? d))
-                {
-                    continue;
-                }
-
-                for (int v = 0; v < d.VectorNames.Length; v++)
-                {
-                    if (_plan.Replayed.ContainsKey(d.VectorNames[v]))
-                    {
-                        continue;
-                    }
-
-                    if (_declared.Add(d.VectorNames[v]))
-                    {
-                        _writer.Line(_plan.InGradient.TryGetValue(d.VectorNames[v], out int slice)
-                            ? "global::System.Span<" + ExpressionWriter.TypeKeyword(_context.Spec.ReturnType) + "> " + d.VectorNames[v] + " = "
-                                + _context.GradientName + ".Slice(" + _context.VectorOffset[slice] + ", " + Length(slice) + "); // accumulated in place"
-                            : SpanDeclaration(d.VectorNames[v], Length(v), _context.Spec.ReturnType));
-                    }
-
-                    if (!_plan.UpdatesInPlace(loop, d, v) && _declared.Add(d.VectorNames[v] + "Next"))
-                    {
-                        _writer.Line(SpanDeclaration(d.VectorNames[v] + "Next", Length(v), _context.Spec.ReturnType));
-                    }
-                }
-            }
+            _writer.Line(span.GradientSlice is int slice
+                ? "global::System.Span<" + ExpressionWriter.TypeKeyword(_context.Spec.ReturnType) + "> " + span.Span + " = "
+                    + _context.GradientName + ".Slice(" + _context.VectorOffset[slice] + ", " + Length(slice) + "); // accumulated in place"
+                : StackOrHeapSpan(span.Span, Length(span.Vector), _context.Spec.ReturnType));
         }
     }
 
@@ -145,102 +121,66 @@ internal sealed partial class MethodBodyWriter
         }
     }
 
+    /// <summary>The spans' clears before the loop, as the plan schedules them (<see cref="SpanStatements"/>).</summary>
     private void WriteVectorClears(LoopSegment loop)
     {
-        foreach (LoopState state in loop.States)
+        foreach (SpanStatement statement in _plan.SpanClears[loop])
         {
-            if (_program.States.TryGetValue(state, out StateDerivatives? d))
+            switch (statement.Kind)
             {
-                for (int v = 0; v < d.VectorNames.Length; v++)
-                {
-                    if (_plan.Replayed.ContainsKey(d.VectorNames[v]))
+                case SpanStatementKind.AssignedOnceEach:
+                    _writer.Line("// " + statement.Span + " is not cleared: the loop assigns each element exactly once");
+                    break;
+                case SpanStatementKind.ClearTail:
+                    // Only the elements after the loop's last pair (or triple, …), by a loop of fewer than `stride`
+                    // iterations rather than a call of Span.Clear.
+                    using (_writer.Block("for (int " + _element + " = " + statement.Stride + " * (" + _code.Write(loop.End!) + "); " + _element + " < " + Length(statement.Vector) + "; "
+                        + _element + "++) // the loop below assigns each element before these exactly once"))
                     {
-                        continue;
+                        _writer.Line(statement.Span + "[" + _element + "] = " + _code.Write(_program.Builder.Zero(_context.Spec.ReturnType)) + ";");
                     }
 
-                    if (_plan.SingleWrite.TryGetValue(d.VectorNames[v], out int stride))
-                    {
-                        WriteTailClear(loop, d.VectorNames[v], v, stride);
-                        continue;
-                    }
-
-                    // A span that starts from its own value (a local carried on from an earlier loop, scaled in between)
-                    // is scaled in place by WriteVectorUpdates, not cleared.
-                    var terms = d.InitialVector.Where(t => t.Vector == v).ToList();
-                    if (!terms.Any(t => t.SourceSpan == d.VectorNames[v]))
-                    {
-                        _writer.Line(d.VectorNames[v] + ".Clear();");
-                    }
-                }
+                    _writer.Blank();
+                    break;
+                default:
+                    _writer.Line(statement.Span + ".Clear();");
+                    break;
             }
         }
     }
 
-    /// <summary>A span assigned once each by the loop: only the elements after its last pair (or triple, …) are cleared,
-    /// by a loop of fewer than <paramref name="stride"/> iterations rather than a call of Span.Clear.</summary>
-    private void WriteTailClear(LoopSegment loop, string span, int v, int stride)
-    {
-        if (stride == 1)
-        {
-            _writer.Line("// " + span + " is not cleared: the loop assigns each element exactly once");
-            return;
-        }
-
-        using (_writer.Block("for (int " + _element + " = " + stride + " * (" + _code.Write(loop.End!) + "); " + _element + " < " + Length(v) + "; "
-            + _element + "++) // the loop below assigns each element before these exactly once"))
-        {
-            _writer.Line(span + "[" + _element + "] = " + _code.Write(_program.Builder.Zero(_context.Spec.ReturnType)) + ";");
-        }
-
-        _writer.Blank();
-    }
-
+    /// <summary>The spans' starts (before the loop) or updates (at the end of an iteration), as the plan schedules them;
+    /// the copies of spans computed through a Next span come after all.</summary>
     private void WriteVectorUpdates(LoopSegment loop, bool before)
     {
         var copies = new List<string>();
-        foreach (LoopState state in loop.States)
+        foreach (SpanStatement statement in before ? _plan.SpanStarts[loop] : _plan.SpanEnds[loop])
         {
-            if (!_program.States.TryGetValue(state, out StateDerivatives? d))
+            string own = statement.Span;
+            switch (statement.Kind)
             {
-                continue;
-            }
+                case SpanStatementKind.Scale:
+                    using (_writer.Block("for (int " + _element + " = 0; " + _element + " < " + Length(statement.Vector) + "; " + _element + "++)"))
+                    {
+                        _writer.Line(own + "[" + _element + "] *= " + _code.Write(statement.Factor!) + ";");
+                    }
 
-            for (int v = 0; v < d.VectorNames.Length; v++)
-            {
-                string own = d.VectorNames[v];
-                if (_plan.Replayed.ContainsKey(own))
-                {
-                    continue; // replayed after the loop, where its adjoint is known
-                }
-
-                var terms = (before ? d.InitialVector : d.NextVector).Where(t => t.Vector == v).ToList();
-                bool identity = terms.Count == 1 && terms[0].SourceSpan == own && terms[0].Coefficient.IsConstant(1);
-                if (identity)
-                {
-                    continue; // carried on unchanged
-                }
-
-                if (before)
-                {
-                    WriteVectorStart(own, v, terms);
-                }
-                else if (_plan.SingleWrite.ContainsKey(own))
-                {
-                    foreach (VectorTerm term in terms.Where(t => t.Index is not null))
+                    break;
+                case SpanStatementKind.AssignElements:
+                    foreach (VectorTerm term in statement.Terms)
                     {
                         _writer.Line(own + "[" + _code.Write(term.Index!) + "] = " + _code.Write(term.Coefficient) + ";");
                     }
-                }
-                else if (_plan.UpdatesInPlace(loop, d, v))
-                {
-                    AddTerms(own, string.Empty, terms, own);
-                }
-                else
-                {
+
+                    break;
+                case SpanStatementKind.ThroughNext:
                     _writer.Line(own + "Next.Clear();");
-                    AddTerms(own + "Next", string.Empty, terms, null);
+                    AddTerms(own + "Next", string.Empty, statement.Terms, null);
                     copies.Add(own + "Next.CopyTo(" + own + ");");
-                }
+                    break;
+                default:
+                    AddTerms(own, string.Empty, statement.Terms, own);
+                    break;
             }
         }
 
@@ -248,27 +188,6 @@ internal sealed partial class MethodBodyWriter
         {
             _writer.Line(copy);
         }
-    }
-
-    /// <summary>A span's start: cleared by WriteVectorClears, unless it starts from its own value (carried on from an
-    /// earlier loop): then it is scaled in place first (own ← c · own), and the other contributions are added to it.</summary>
-    private void WriteVectorStart(string own, int v, List<VectorTerm> terms)
-    {
-        var self = terms.Where(t => t.SourceSpan == own).ToList();
-        if (self.Count > 1)
-        {
-            throw new InvalidOperationException("A running derivative starts from its own value through several terms.");
-        }
-
-        if (self.Count == 1 && !self[0].Coefficient.IsConstant(1))
-        {
-            using (_writer.Block("for (int " + _element + " = 0; " + _element + " < " + Length(v) + "; " + _element + "++)"))
-            {
-                _writer.Line(own + "[" + _element + "] *= " + _code.Write(self[0].Coefficient) + ";");
-            }
-        }
-
-        AddTerms(own, string.Empty, terms, own);
     }
 
     private void WriteGradient()

@@ -23,7 +23,6 @@ internal sealed partial class MethodBodyWriter
     private readonly Dictionary<Node, string> _nameOf = new();
     private readonly Dictionary<Node, string> _gradientBuffer = new();
     private readonly Dictionary<Node, string> _hessianBuffer = new();
-    private readonly HashSet<string> _declared = new(StringComparer.Ordinal);
     private readonly HashSet<Node> _written = new();
     private readonly ExpressionWriter _code;
     private TemporaryNames _names = null!;
