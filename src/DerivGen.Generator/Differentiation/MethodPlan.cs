@@ -82,6 +82,9 @@ internal sealed partial class MethodPlan
 
     public Dictionary<LoopSegment, List<Assignment>> Ends { get; } = new();
 
+    /// <summary>Per stage: the statements computing its temporaries (<see cref="LocalStatements"/>).</summary>
+    public Dictionary<int, List<LocalStatement>> Locals { get; private set; } = new();
+
     /// <summary>The spans of running derivatives with respect to vectors, declared before any loop, in order.</summary>
     public List<SpanDeclaration> SpanDeclarations { get; } = new();
 
@@ -117,6 +120,7 @@ internal sealed partial class MethodPlan
         new Scheduling(plan, hasSinCos).Run();
         plan._temporarySet = new HashSet<Node>(plan.Temporaries);
         StateAssignments.Schedule(plan);
+        plan.Locals = LocalStatements.Schedule(plan);
         plan.InGradient = InPlaceAccumulation.InGradient(program);
         plan.SingleWrite = InPlaceAccumulation.SingleWrite(program, plan.Replayed);
         SpanStatements.Schedule(plan);

@@ -142,50 +142,53 @@ internal sealed partial class MethodBodyWriter
 
     private string? NameOf(Node node) => _nameOf.TryGetValue(node, out string? name) ? name : null;
 
+    /// <summary>The temporaries of a stage, as the plan computes them (<see cref="LocalStatements"/>), then the outputs
+    /// written there.</summary>
     private void WriteTemporaries(int stage)
     {
-        foreach (Node node in _plan.Temporaries.Where(t => t.Stage == stage))
+        foreach (LocalStatement statement in _plan.Locals.TryGetValue(stage, out List<LocalStatement>? statements) ? statements : new List<LocalStatement>())
         {
-            if (_plan.SinCos.Partner.TryGetValue(node, out Node? partner))
+            Node node = statement.Node;
+            string keyword = ExpressionWriter.TypeKeyword(node.Type);
+            switch (statement.Kind)
             {
-                if (_written.Add(node) && _written.Add(partner))
-                {
-                    (Node sine, Node cosine) = node.Function == MathFunction.Sin ? (node, partner) : (partner, node);
-                    string keyword = ExpressionWriter.TypeKeyword(node.Type);
-                    _writer.Line("(" + keyword + " " + _nameOf[sine] + ", " + keyword + " " + _nameOf[cosine] + ") = global::System." + (node.Type == ScalarType.Single ? "MathF" : "Math")
+                case LocalKind.SinCos:
+                    Node cosine = statement.Cosine!;
+                    _written.Add(node);
+                    _written.Add(cosine);
+                    _writer.Line("(" + keyword + " " + _nameOf[node] + ", " + keyword + " " + _nameOf[cosine] + ") = global::System." + (node.Type == ScalarType.Single ? "MathF" : "Math")
                         + ".SinCos(" + _code.Write(node.Arguments[0]) + ");");
-                }
-
-                continue;
+                    break;
+                case LocalKind.CallWithBuffers:
+                    _writer.Line(keyword + " " + _nameOf[node] + " = " + CallWithBuffers(statement) + ";");
+                    _written.Add(node);
+                    break;
+                default:
+                    // A temporary is written with its own definition, not its name.
+                    _writer.Line(keyword + " " + _nameOf[node] + " = "
+                        + new ExpressionWriter(x => x == node ? null : NameOf(x), formula: false, calleeDerivative: CalleeDerivative).Write(node) + ";");
+                    _written.Add(node);
+                    break;
             }
-
-            _writer.Line(ExpressionWriter.TypeKeyword(node.Type) + " " + _nameOf[node] + " = " + Definition(node) + ";");
-            _written.Add(node);
         }
 
         WriteOutputs(stage);
     }
 
-    /// <summary>
-    /// A temporary is written with its own definition, not its name; a call whose derivatives are needed calls the
-    /// callee's generated method, which returns the same value and fills the buffers.
-    /// </summary>
-    private string Definition(Node node)
+    /// <summary>A call whose derivatives are needed calls the callee's generated method, which returns the same value
+    /// and fills the buffers; under the user's condition where the user's code calls it only under one.</summary>
+    private string CallWithBuffers(LocalStatement statement)
     {
-        string definition = new ExpressionWriter(x => x == node ? null : NameOf(x), formula: false, calleeDerivative: CalleeDerivative).Write(node);
-        if (_gradientBuffer.TryGetValue(node, out string? buffer))
+        Node node = statement.Node;
+        string buffer = _gradientBuffer[node];
+        var arguments = node.Arguments.Select(_code.Write).Concat(statement.WithHessian ? new[] { buffer, _hessianBuffer[node] } : new[] { buffer });
+        string definition = node.Text + (statement.WithHessian ? EmitContext.HessianSuffix : EmitContext.GradientSuffix) + "(" + string.Join(", ", arguments) + ")";
+        if (statement.Condition is { } guard)
         {
-            bool second = _hessianBuffer.TryGetValue(node, out string? hessian);
-            string suffix = second ? Lowering.MethodParser.HessianSuffix : Lowering.MethodParser.GradientSuffix;
-            var arguments = node.Arguments.Select(_code.Write).Concat(second ? new[] { buffer, hessian! } : new[] { buffer });
-            definition = node.Text + suffix + "(" + string.Join(", ", arguments) + ")";
-            if (_plan.CallConditions.TryGetValue(node, out Node? guard))
-            {
-                // The condition is written out in full (with && and || short-circuiting as in the user's code),
-                // reading only temporaries already computed.
-                string condition = new ExpressionWriter(x => _written.Contains(x) ? NameOf(x) : null, formula: false).Write(guard);
-                definition = condition + " ? " + definition + " : " + Literals.CSharp(0, node.Type);
-            }
+            // The condition is written out in full (with && and || short-circuiting as in the user's code), reading only
+            // temporaries already computed.
+            string condition = new ExpressionWriter(x => _written.Contains(x) ? NameOf(x) : null, formula: false).Write(guard);
+            definition = condition + " ? " + definition + " : " + Literals.CSharp(0, node.Type);
         }
 
         return definition;
