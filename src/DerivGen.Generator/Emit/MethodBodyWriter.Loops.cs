@@ -29,13 +29,13 @@ internal sealed partial class MethodBodyWriter
             {
                 row = Text.Count((int)output.Index.Value * n); // a constant row start when n is known
             }
-            else if (width == "1" && (output.Index.IsLeaf || _nameOf.ContainsKey(output.Index)))
+            else if (width == "1" && (output.Index.IsLeaf || _scope.Of(output.Index) is not null))
             {
                 row = index;
             }
             else
             {
-                row = _names.Claim("row");
+                row = _scope.Row();
                 _writer.Line("int " + row + " = " + (width == "1" ? index : Text.Parenthesized(width) + " * " + Text.Parenthesized(index)) + ";");
             }
 
@@ -129,7 +129,7 @@ internal sealed partial class MethodBodyWriter
                     _writer.Line(update.Target + Operator(assignment.Form) + _code.Write(assignment.Operand!) + ";");
                     break;
                 case AssignmentKind.ThroughLocal:
-                    string source = _names.Claim(Identifiers.Unescape(update.Target) + suffix);
+                    string source = _scope.Through(update.Target, suffix);
                     _writer.Line(ExpressionWriter.TypeKeyword(update.Type) + " " + source + " = " + _code.Write(update.Value) + ";");
                     after.Add((update.Target, source));
                     break;

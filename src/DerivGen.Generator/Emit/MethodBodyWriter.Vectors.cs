@@ -87,7 +87,7 @@ internal sealed partial class MethodBodyWriter
         }
         else
         {
-            adjoint = _names.Claim(Identifiers.Unescape(reversal.State.State.Name) + "Adjoint");
+            adjoint = _scope.Adjoint(reversal.State.State.Name);
             _writer.Line(ExpressionWriter.TypeKeyword(term.Coefficient.Type) + " " + adjoint + " = " + _code.Write(term.Coefficient) + ";");
         }
 

@@ -20,12 +20,11 @@ internal sealed partial class MethodBodyWriter
     private readonly MethodPlan _plan;
     private readonly DerivativeProgram _program;
     private readonly string _thrower;
-    private readonly Dictionary<Node, string> _nameOf = new();
     private readonly Dictionary<Node, string> _gradientBuffer = new();
     private readonly Dictionary<Node, string> _hessianBuffer = new();
     private readonly HashSet<Node> _written = new();
     private readonly ExpressionWriter _code;
-    private TemporaryNames _names = null!;
+    private NameScope _scope = null!;
     private string _element = null!;
 
     private MethodBodyWriter(IndentedWriter writer, EmitContext context, MethodPlan plan, string thrower)
@@ -46,11 +45,11 @@ internal sealed partial class MethodBodyWriter
 
     private void WriteBody()
     {
-        AllocateNames();
+        _scope = new NameScope(_context, _plan, _thrower);
         DeclareCallBuffers();
         // Running derivatives with respect to vectors of variables live in spans: on the stack up to a size, else on
         // the heap (the README states the policy).
-        _element = _names.Claim("k");
+        _element = _scope.SpanIndex();
         DeclareSpans();
         WriteTemporaries(0);
         foreach (LoopSegment loop in _program.TopLevelLoops)
@@ -75,58 +74,18 @@ internal sealed partial class MethodBodyWriter
         _writer.Line("return " + _code.Write(_program.Value) + ";");
     }
 
-    /// <summary>The one name scope of the method: parameters, spans, the thrower, the generated locals of the program and
-    /// the loop indices are reserved; then <c>value</c>, the user's local names, snapshots (<c>sBefore</c>) and the other
-    /// temporaries are named in that order, and buffers, <c>k</c>, <c>…Start</c>, <c>…Next</c>, <c>row</c> and
-    /// <c>…Adjoint</c> as they are written.</summary>
-    private void AllocateNames()
-    {
-        List<Node> temporaries = _plan.Temporaries;
-        var reserved = _context.Spec.Parameters.Select(p => p.Name)
-            .Concat(new[] { _context.GradientName, _context.HessianName, _thrower })
-            .Concat(_program.StateNames)
-            .Concat(_program.Loops.Where(l => l.Index is not null).Select(l => l.Index!));
-        _names = new TemporaryNames(reserved);
-        if (temporaries.Contains(_program.Value) && _program.Names.LocalName(_program.Value) is null)
-        {
-            _nameOf[_program.Value] = _names.Claim("value");
-        }
-
-        foreach (Node node in temporaries.Where(t => _program.Names.LocalName(t) is not null && !_nameOf.ContainsKey(t)))
-        {
-            _nameOf[node] = _names.Claim(_program.Names.LocalName(node)!);
-        }
-
-        foreach (Node node in _plan.Snapshots)
-        {
-            _nameOf[node] = _names.Claim(Identifiers.Unescape(node.Text!) + "Before");
-        }
-
-        foreach (Node node in temporaries.Where(t => !_nameOf.ContainsKey(t)))
-        {
-            _nameOf[node] = _names.For(node, _program.Names, x => _nameOf.TryGetValue(x, out string? name) ? name : null);
-        }
-
-        foreach (KeyValuePair<Node, Node> pair in _plan.SinCos.SameAs)
-        {
-            _nameOf[pair.Key] = _nameOf[pair.Value];
-        }
-    }
-
     /// <summary>The buffers one call of another generated method fills with its partial derivatives.</summary>
     private void DeclareCallBuffers()
     {
         foreach (Node call in _plan.GradientCalls.OrderBy(c => c.Id).ToList())
         {
-            string stem = Identifiers.Unescape(call.Callee!.Method);
-            stem = char.ToLowerInvariant(stem[0]) + stem.Substring(1);
             string type = ExpressionWriter.TypeKeyword(call.Type);
-            int m = call.Callee.VariablePositions.Length;
-            _gradientBuffer[call] = _names.Claim(stem + "Gradient");
+            int m = call.Callee!.VariablePositions.Length;
+            _gradientBuffer[call] = _scope.CallBuffer(call, "Gradient");
             _writer.Line("global::System.Span<" + type + "> " + _gradientBuffer[call] + " = stackalloc " + type + "[" + Text.Count(m) + "];");
             if (_plan.HessianCalls.Contains(call))
             {
-                _hessianBuffer[call] = _names.Claim(stem + "Hessian");
+                _hessianBuffer[call] = _scope.CallBuffer(call, "Hessian");
                 _writer.Line("global::System.Span<" + type + "> " + _hessianBuffer[call] + " = stackalloc " + type + "[" + Text.Count(m * m) + "];");
             }
         }
@@ -140,7 +99,7 @@ internal sealed partial class MethodBodyWriter
             : _hessianBuffer[call] + "[" + Text.Count((int)partial.Value) + "]";
     }
 
-    private string? NameOf(Node node) => _nameOf.TryGetValue(node, out string? name) ? name : null;
+    private string? NameOf(Node node) => _scope.Of(node);
 
     /// <summary>The temporaries of a stage, as the plan computes them (<see cref="LocalStatements"/>), then the outputs
     /// written there.</summary>
@@ -156,16 +115,16 @@ internal sealed partial class MethodBodyWriter
                     Node cosine = statement.Cosine!;
                     _written.Add(node);
                     _written.Add(cosine);
-                    _writer.Line("(" + keyword + " " + _nameOf[node] + ", " + keyword + " " + _nameOf[cosine] + ") = global::System." + (node.Type == ScalarType.Single ? "MathF" : "Math")
+                    _writer.Line("(" + keyword + " " + _scope[node] + ", " + keyword + " " + _scope[cosine] + ") = global::System." + (node.Type == ScalarType.Single ? "MathF" : "Math")
                         + ".SinCos(" + _code.Write(node.Arguments[0]) + ");");
                     break;
                 case LocalKind.CallWithBuffers:
-                    _writer.Line(keyword + " " + _nameOf[node] + " = " + CallWithBuffers(statement) + ";");
+                    _writer.Line(keyword + " " + _scope[node] + " = " + CallWithBuffers(statement) + ";");
                     _written.Add(node);
                     break;
                 default:
                     // A temporary is written with its own definition, not its name.
-                    _writer.Line(keyword + " " + _nameOf[node] + " = "
+                    _writer.Line(keyword + " " + _scope[node] + " = "
                         + new ExpressionWriter(x => x == node ? null : NameOf(x), formula: false, calleeDerivative: CalleeDerivative).Write(node) + ";");
                     _written.Add(node);
                     break;
