@@ -62,6 +62,21 @@ public sealed class SchedulingTests
 
                 return s;
             }
+
+            // p's update reads s: s is assigned after p's new value is computed from the old s; p alone is updated in place.
+            [Differentiate(nameof(x), Hessian = false)]
+            public static double Coupled(double x, double[] t)
+            {
+                double s = 1;
+                double p = 1;
+                for (int i = 0; i < t.Length; i++)
+                {
+                    p *= s;
+                    s += x * t[i];
+                }
+
+                return p;
+            }
         """;
 
     private delegate double G(double x, double[] t, Span<double> gradient);
@@ -133,4 +148,56 @@ public sealed class SchedulingTests
         double expected = (total * product) + (x * total * product * t.Sum(tj => total * tj / (1 + (x * total * tj))));
         Check.Close(expected, g[0], 1e-14, 1e-15, "∂TwoLoops/∂x");
     }
+
+    [Fact]
+    public void AnUpdateNoOtherReadsIsWrittenInPlace()
+    {
+        // s += exp(x)·t[i] and ∂s/∂x += exp(x)·t[i]: neither update reads the other's local.
+        MethodPlan plan = Plan("Invariant");
+        LoopSegment loop = plan.Program.Loops[0];
+        Assert.Equal(new[] { ("s", AssignmentKind.InPlace, AssignmentForm.Add), ("dS_dX", AssignmentKind.InPlace, AssignmentForm.Add) },
+            plan.Ends[loop].Select(a => (a.Update.Target, a.Kind, a.Form)));
+        Assert.All(plan.Starts[loop], a => Assert.Equal(AssignmentKind.Declare, a.Kind)); // the first assignment of each declares it
+    }
+
+    [Fact]
+    public void AnUpdateReadByAnotherGoesThroughALocalAssignedAfterAll()
+    {
+        // p ← p·s, s ← s + x·t[i], ∂p/∂x ← ∂p/∂x·s + p·∂s/∂x, ∂s/∂x ← ∂s/∂x + t[i]: p, s and ∂s/∂x are read by another
+        // update, so they are computed into locals (pNext, …) from the old values and assigned after all; ∂p/∂x, read by
+        // none, is assigned in turn.
+        MethodPlan plan = Plan("Coupled");
+        LoopSegment loop = plan.Program.Loops[0];
+        var kinds = plan.Ends[loop].ToDictionary(a => a.Update.Target, a => a.Kind);
+        Assert.Equal(AssignmentKind.ThroughLocal, kinds["p"]);
+        Assert.Equal(AssignmentKind.ThroughLocal, kinds["s"]);
+        Assert.Equal(AssignmentKind.ThroughLocal, kinds["dS_dX"]);
+        Assert.Equal(AssignmentKind.InPlace, kinds["dP_dX"]);
+    }
+
+    /// <summary>
+    /// Coupled: before iteration i, s = 1 + x·Σ_{k&lt;i} t_k, and p = Π_i s_i over those values, so
+    /// ∂p/∂x = p · Σ_i (Σ_{k&lt;i} t_k) / s_i (logarithmic derivative, plain calculus).
+    /// </summary>
+    [Fact]
+    public void TheCoupledGradientMatchesTheClosedForm()
+    {
+        using CompiledAssembly assembly = GeneratorHarness.CompileAndLoad(PassHarness.Source(Members));
+        double[] t = { 0.3, -0.2, 0.45, 0.1 }; // invented data
+        double x = 0.8;
+        var g = new double[1];
+        double value = assembly.Method<G>(PassHarness.Type, "CoupledGradient")(x, t, g);
+        double p = 1, sum = 0, logDerivative = 0;
+        for (int i = 0; i < t.Length; i++)
+        {
+            double si = 1 + (x * sum);
+            p *= si;
+            logDerivative += sum / si;
+            sum += t[i];
+        }
+
+        Check.Close(p, value, 1e-15, 1e-15, "Coupled");
+        Check.Close(p * logDerivative, g[0], 1e-14, 1e-15, "∂Coupled/∂x");
+    }
+
 }

@@ -6,7 +6,8 @@ using DerivGen.Generator.Symbolic;
 namespace DerivGen.Generator.Differentiation;
 
 /// <summary>
-/// A running derivative with respect to a vector that the generated code never stores: reverse mode over one inner loop.
+/// Pass: a running derivative with respect to a vector that the generated code never stores — reverse mode over one inner
+/// loop (<see cref="Find"/> decides; the writer replays the loop where the span would be read).
 /// <para>
 /// Forward mode keeps ∂z/∂w of a local z carried through an inner loop in a span: cleared before the loop, filled by the
 /// loop's reads of w, then added, times the adjoint ∂s/∂z, into the enclosing loop's span ∂s/∂w — three passes over w.

@@ -7,9 +7,9 @@ using DerivGen.Generator.Symbolic;
 namespace DerivGen.Generator.Differentiation;
 
 /// <summary>
-/// A running derivative with respect to a vector whose loop writes each element of the span exactly once, so that the
-/// elements are assigned (<c>d[a·i + b] = coef</c>) instead of cleared and added to — what a hand-written gradient does
-/// (e.g. the extended Rosenbrock function's <c>g[2i] = …; g[2i + 1] = …</c>).
+/// Part of <see cref="InPlaceAccumulation"/>: a running derivative with respect to a vector whose loop writes each element
+/// of the span exactly once, so that the elements are assigned (<c>d[a·i + b] = coef</c>) instead of cleared and added to —
+/// what a hand-written gradient does (e.g. the extended Rosenbrock function's <c>g[2i] = …; g[2i + 1] = …</c>).
 /// <para>
 /// Proved at generation time, conservatively; anything else keeps the clear and the additions (always correct): a
 /// top-level <c>for</c> loop from 0 below <c>w.Length / a</c> (below <c>w.Length</c> for a = 1), with w the vector,
