@@ -82,6 +82,9 @@ internal sealed class DerivativeProgram
 
     public ExpressionBuilder Builder { get; }
 
+    /// <summary>The user's local names and the name hints of the nodes (a side table: nodes are immutable).</summary>
+    public NodeNames Names => Builder.Names;
+
     public Node Value { get; }
 
     /// <summary>The method's loops, outer before nested, in order.</summary>
@@ -252,58 +255,67 @@ internal sealed class DerivativeProgram
         }
 
         // Second order: one tangent sweep per variable over every first-order expression (forward over reverse).
-        Node[][]? hessian = null;
-        if (spec.EmitHessian)
-        {
-            hessian = Enumerable.Range(0, n).Select(i => new Node[i + 1]).ToArray();
-            foreach (StateDerivatives d in states.Values)
-            {
-                d.InitialHessian = Enumerable.Range(0, n).Select(k => new Node[k + 1]).ToArray();
-                d.NextHessian = Enumerable.Range(0, n).Select(k => new Node[k + 1]).ToArray();
-            }
-
-            var roots = gradient.Concat(states.Values.SelectMany(d => d.InitialGradient.Concat(d.NextGradient))).ToList();
-            for (int j = 0; j < n; j++)
-            {
-                cancellationToken.ThrowIfCancellationRequested();
-                int column = j;
-                Node? LeafTangent(Node leaf)
-                {
-                    if (leafGradient.TryGetValue(leaf, out Node[]? first))
-                    {
-                        return first[column];                                   // D_j(s) = ∂s/∂v_j
-                    }
-
-                    if (gradientLeafOf.TryGetValue(leaf, out var of))
-                    {
-                        Node[][] second = leafHessian[of.Leaf];                // D_j(∂s/∂v_k) = ∂²s/∂v_k∂v_j
-                        return of.K >= column ? second[of.K][column] : second[column][of.K];
-                    }
-
-                    return null;
-                }
-
-                Dictionary<Node, Node> tangents = TangentSweep.Derivatives(builder, roots, j, LeafTangent);
-                for (int i = j; i < n; i++)
-                {
-                    hessian[i][j] = builder.Convert(tangents[gradient[i]], spec.ReturnType);   // ∂(∂f/∂vᵢ)/∂vⱼ, j ≤ i
-                }
-
-                foreach (StateDerivatives d in states.Values)
-                {
-                    for (int k = j; k < n; k++)
-                    {
-                        d.InitialHessian![k][j] = builder.Convert(tangents[d.InitialGradient[k]], d.State.Type);
-                        d.NextHessian![k][j] = builder.Convert(tangents[d.NextGradient[k]], d.State.Type);
-                    }
-                }
-            }
-        }
+        Node[][]? hessian = spec.EmitHessian ? SecondOrder(builder, spec.ReturnType, n, gradient, states, leafGradient, leafHessian, gradientLeafOf, cancellationToken) : null;
 
         // Mixed float/double code can give a derivative of the wider type; the spans hold the method's own type.
         return new DerivativeProgram(builder, graph, Typed(gradient, spec.ReturnType), hessian, variables, states, vectors, vectorGradient);
 
         Node[] Typed(Node[] nodes, ScalarType type) => nodes.Select(g => builder.Convert(g, type)).ToArray();
+    }
+
+    /// <summary>
+    /// The lower triangle of the Hessian and the running second derivatives: one tangent sweep per variable over every
+    /// first-order expression (forward over reverse), through the carried locals' known first and second derivatives.
+    /// </summary>
+    private static Node[][] SecondOrder(ExpressionBuilder builder, ScalarType returnType, int n, Node[] gradient, Dictionary<LoopState, StateDerivatives> states,
+        Dictionary<Node, Node[]> leafGradient, Dictionary<Node, Node[][]> leafHessian, Dictionary<Node, (Node Leaf, int K)> gradientLeafOf,
+        System.Threading.CancellationToken cancellationToken)
+    {
+        var hessian = Enumerable.Range(0, n).Select(i => new Node[i + 1]).ToArray();
+        foreach (StateDerivatives d in states.Values)
+        {
+            d.InitialHessian = Enumerable.Range(0, n).Select(k => new Node[k + 1]).ToArray();
+            d.NextHessian = Enumerable.Range(0, n).Select(k => new Node[k + 1]).ToArray();
+        }
+
+        var roots = gradient.Concat(states.Values.SelectMany(d => d.InitialGradient.Concat(d.NextGradient))).ToList();
+        for (int j = 0; j < n; j++)
+        {
+            cancellationToken.ThrowIfCancellationRequested();
+            int column = j;
+            Node? LeafTangent(Node leaf)
+            {
+                if (leafGradient.TryGetValue(leaf, out Node[]? first))
+                {
+                    return first[column];                                   // D_j(s) = ∂s/∂v_j
+                }
+
+                if (gradientLeafOf.TryGetValue(leaf, out var of))
+                {
+                    Node[][] second = leafHessian[of.Leaf];                // D_j(∂s/∂v_k) = ∂²s/∂v_k∂v_j
+                    return of.K >= column ? second[of.K][column] : second[column][of.K];
+                }
+
+                return null;
+            }
+
+            Dictionary<Node, Node> tangents = TangentSweep.Derivatives(builder, roots, j, LeafTangent);
+            for (int i = j; i < n; i++)
+            {
+                hessian[i][j] = builder.Convert(tangents[gradient[i]], returnType);   // ∂(∂f/∂vᵢ)/∂vⱼ, j ≤ i
+            }
+
+            foreach (StateDerivatives d in states.Values)
+            {
+                for (int k = j; k < n; k++)
+                {
+                    d.InitialHessian![k][j] = builder.Convert(tangents[d.InitialGradient[k]], d.State.Type);
+                    d.NextHessian![k][j] = builder.Convert(tangents[d.NextGradient[k]], d.State.Type);
+                }
+            }
+        }
+
+        return hessian;
     }
 
     private static string Capital(string name)

@@ -279,10 +279,10 @@ internal sealed class ProgramGraph
                 case IrAssign assign:
                     Node value = Build(assign.Value, locals);
                     bool isStateUpdate = _currentStates?.Contains(assign.Local) == true;
-                    if (!value.IsLeaf && value.LocalName is null && !isStateUpdate)
+                    if (!value.IsLeaf && _builder.Names.LocalName(value) is null && !isStateUpdate)
                     {
                         // A reassigned local gets a versioned name (s, s2, s3, …), the same in code and formulas.
-                        value.LocalName = _named.Add(assign.Local) && _givenNames.Add(assign.Local) ? assign.Local : Identifiers.Unique(assign.Local, _displayNames);
+                        _builder.Names.SetLocalName(value, _named.Add(assign.Local) && _givenNames.Add(assign.Local) ? assign.Local : Identifiers.Unique(assign.Local, _displayNames));
                     }
                     else
                     {
@@ -430,9 +430,9 @@ internal sealed class ProgramGraph
             Node initial = locals[name];
             bool active = (initial.Type is ScalarType.Double or ScalarType.Single) && _passive?.Contains(StateKey(ordinal, name)) != true;
             var state = new LoopState(name, initial.Type, initial, _builder.StageLeaf(name, initial.Type, inside, active));
-            if (initial.LocalName == name)
+            if (_builder.Names.LocalName(initial) == name)
             {
-                initial.LocalName = null; // The name now belongs to the loop-carried local itself.
+                _builder.Names.SetLocalName(initial, null); // The name now belongs to the loop-carried local itself.
             }
 
             segment.States.Add(state);
@@ -459,9 +459,9 @@ internal sealed class ProgramGraph
         {
             state.Final = _builder.StageLeaf(state.Name, state.Type, segment.AfterStage, state.IsActive);
             state.Next = body[state.Name];
-            if (state.Next != state.Current && !state.Next.IsLeaf && state.Next.NameHint is null && state.Next.LocalName is null)
+            if (state.Next != state.Current && !state.Next.IsLeaf && _builder.Names.Hint(state.Next) is null && _builder.Names.LocalName(state.Next) is null)
             {
-                state.Next.NameHint = state.Name + "Next";
+                _builder.Names.SetHint(state.Next, state.Name + "Next");
             }
 
             locals[state.Name] = state.Final;
@@ -533,7 +533,7 @@ internal sealed class ProgramGraph
             case IrElement element:
                 return b.Element(element.Data, element.Type, element.Indices.Select(i => Build(i, locals)).ToArray());
             case IrCompare compare:
-                return b.RawCompare(ComparisonOf(compare.Operator), Build(compare.Left, locals), Build(compare.Right, locals));
+                return b.RawCompare(compare.Operator, Build(compare.Left, locals), Build(compare.Right, locals));
             case IrLogical { Operator: LogicalOperator.Not } not:
                 return Logic(NodeKind.Not, Build(not.Left, locals), null);
             case IrLogical logical:
@@ -582,23 +582,13 @@ internal sealed class ProgramGraph
         }
 
         Node kept = _builder.Raw(NodeKind.Convert, value.Type, value);
-        if (kept.LocalName is null)
+        if (_builder.Names.LocalName(kept) is null)
         {
-            kept.LocalName = _givenNames.Add(local.Name) ? local.Name : Identifiers.Unique(local.Name, _displayNames);
+            _builder.Names.SetLocalName(kept, _givenNames.Add(local.Name) ? local.Name : Identifiers.Unique(local.Name, _displayNames));
         }
 
         return kept;
     }
-
-    private static Comparison ComparisonOf(ComparisonOperator op) => op switch
-    {
-        ComparisonOperator.Less => Comparison.Less,
-        ComparisonOperator.LessOrEqual => Comparison.LessOrEqual,
-        ComparisonOperator.Greater => Comparison.Greater,
-        ComparisonOperator.GreaterOrEqual => Comparison.GreaterOrEqual,
-        ComparisonOperator.Equal => Comparison.Equal,
-        _ => Comparison.NotEqual,
-    };
 
     private static void CollectAssigned(EquatableArray<IrStatement> statements, HashSet<string> names)
     {

@@ -83,9 +83,9 @@ internal static class ReverseSweep
             Node? guard = guards.TryGetValue(node, out Node? known) ? known : null;
             Node Selected(Node contribution) => Guards.Covers(contribution, guard) ? contribution : b.Select(guard!, contribution, b.Zero(contribution.Type));
 
-            if (node.LocalName is not null && !adjoint.IsLeaf && adjoint.NameHint is null)
+            if (b.Names.LocalName(node) is { } localName && !adjoint.IsLeaf && b.Names.Hint(adjoint) is null)
             {
-                adjoint.NameHint = node.LocalName + "Adjoint";
+                b.Names.SetHint(adjoint, localName + "Adjoint");
             }
 
             if (node.VariableIndex >= 0)

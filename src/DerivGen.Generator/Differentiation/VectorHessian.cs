@@ -23,12 +23,12 @@ internal sealed record PairHessian(MethodSpec Spec, DerivativeProgram Program, s
         string row = Identifiers.Unique("row", taken), column = Identifiers.Unique("column", taken);
         string tRow = Identifiers.Unique("tRow", taken), tColumn = Identifiers.Unique("tColumn", taken);
 
-        (string[] _, string[] vectorOffsets, string _) = SlotOffsets(spec);
+        SlotOffset[] vectorOffsets = SlotLayout.Of(spec).Vector;
         var vectors = spec.Parameters.Where(p => p.IsVector).ToList();
         var shifts = new Dictionary<string, IrExpression>(StringComparer.Ordinal);
         for (int v = 0; v < vectors.Count; v++)
         {
-            shifts[vectors[v].Name] = vectorOffsets[v] == "0" ? new IrConstant(0, ScalarType.Int32) : new IrExternal("(" + vectorOffsets[v] + ")", ScalarType.Int32);
+            shifts[vectors[v].Name] = vectorOffsets[v].IsZero ? new IrConstant(0, ScalarType.Int32) : new IrExternal(OffsetText(vectorOffsets[v]), ScalarType.Int32);
         }
 
         ScalarType type = spec.ReturnType;
@@ -55,34 +55,13 @@ internal sealed record PairHessian(MethodSpec Spec, DerivativeProgram Program, s
     }
 
     /// <summary>
-    /// Where each variable's derivatives go in the gradient span, as C# expressions: declaration order, a scalar taking
-    /// one slot and a vector v.Length slots; and the total.
+    /// The C# text of a slot offset, for the pair method's IR: an opaque int leaf there. (A typed IR sum of the vectors'
+    /// lengths would be shared and hoisted into a local by the scheduling step, changing the generated text.)
     /// </summary>
-    public static (string[] Scalar, string[] Vector, string Total) SlotOffsets(MethodSpec spec)
-    {
-        int constant = 0;
-        var lengths = new List<string>();
-        string Offset() => string.Join(" + ", lengths.Concat(constant > 0 || lengths.Count == 0
-            ? new[] { constant.ToString(System.Globalization.CultureInfo.InvariantCulture) }
-            : Array.Empty<string>()));
-        var scalarOffsets = new List<string>();
-        var vectorOffsets = new List<string>();
-        foreach (ParameterSpec parameter in spec.Parameters.Where(p => p.IsVariable))
-        {
-            if (parameter.IsVector)
-            {
-                vectorOffsets.Add(Offset());
-                lengths.Add(parameter.Name + ".Length");
-            }
-            else
-            {
-                scalarOffsets.Add(Offset());
-                constant++;
-            }
-        }
-
-        return (scalarOffsets.ToArray(), vectorOffsets.ToArray(), Offset());
-    }
+    private static string OffsetText(SlotOffset offset) =>
+        "(" + string.Join(" + ", offset.VectorsBefore.Select(v => v + ".Length").Concat(offset.Constant > 0 || offset.VectorsBefore.Count == 0
+            ? new[] { offset.Constant.ToString(System.Globalization.CultureInfo.InvariantCulture) }
+            : Array.Empty<string>())) + ")";
 
     /// <summary>Rewrites every read of a vector variable's element into the shifted read; everything else is kept.</summary>
     private sealed class Rewriter

@@ -161,11 +161,11 @@ internal sealed class ExpressionWriter
             {
                 string comparison = node.Comparison switch
                 {
-                    Comparison.Less => " < ",
-                    Comparison.LessOrEqual => _formula ? " ≤ " : " <= ",
-                    Comparison.Greater => " > ",
-                    Comparison.GreaterOrEqual => _formula ? " ≥ " : " >= ",
-                    Comparison.Equal => " == ",
+                    ComparisonOperator.Less => " < ",
+                    ComparisonOperator.LessOrEqual => _formula ? " ≤ " : " <= ",
+                    ComparisonOperator.Greater => " > ",
+                    ComparisonOperator.GreaterOrEqual => _formula ? " ≥ " : " >= ",
+                    ComparisonOperator.Equal => " == ",
                     _ => _formula ? " ≠ " : " != ",
                 };
                 int precedence = Precedence(node);
@@ -257,7 +257,7 @@ internal sealed class ExpressionWriter
             NodeKind.Convert => _formula ? Primary : Unary,
             NodeKind.Add or NodeKind.Subtract => Additive,
             NodeKind.Multiply or NodeKind.Divide => Multiplicative,
-            NodeKind.Compare => node.Comparison is Comparison.Equal or Comparison.NotEqual ? Equality : Relational,
+            NodeKind.Compare => node.Comparison is ComparisonOperator.Equal or ComparisonOperator.NotEqual ? Equality : Relational,
             NodeKind.And => ConditionalAnd,
             NodeKind.Or => ConditionalOr,
             NodeKind.Not => Unary,

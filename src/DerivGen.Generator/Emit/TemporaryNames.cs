@@ -32,16 +32,16 @@ internal sealed class TemporaryNames
     }
 
     /// <summary>A fresh name for a node's temporary, descriptive where the node's shape allows.</summary>
-    public string For(Node node, Func<Node, string?> nameOf)
+    public string For(Node node, NodeNames given, Func<Node, string?> nameOf)
     {
-        if (node.LocalName is not null)
+        if (given.LocalName(node) is { } local)
         {
-            return Claim(node.LocalName);
+            return Claim(local);
         }
 
-        if (node.NameHint is not null)
+        if (given.Hint(node) is { } hint)
         {
-            return Claim(node.NameHint);
+            return Claim(hint);
         }
 
         string? operand = node.Arguments.Length > 0 ? SimpleName(node.Arguments[0], nameOf) : null;

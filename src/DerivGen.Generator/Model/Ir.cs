@@ -21,6 +21,7 @@ internal enum BinaryOperator
     Divide,
 }
 
+/// <summary>A comparison, in the IR and in the expression DAG alike.</summary>
 internal enum ComparisonOperator
 {
     Less,

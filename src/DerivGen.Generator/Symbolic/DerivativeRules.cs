@@ -134,12 +134,12 @@ internal static class DerivativeRules
 
         // Not differentiable everywhere; the conventions are documented in the README and warned about (DG0007).
         [MathFunction.Abs] = (b, f, x, i) =>                                                              // sign(x), and 0 at 0
-            b.Select(b.Compare(Comparison.Greater, x[0], C(b, f, 0)), C(b, f, 1),
-                b.Select(b.Compare(Comparison.Less, x[0], C(b, f, 0)), C(b, f, -1), C(b, f, 0))),
+            b.Select(b.Compare(ComparisonOperator.Greater, x[0], C(b, f, 0)), C(b, f, 1),
+                b.Select(b.Compare(ComparisonOperator.Less, x[0], C(b, f, 0)), C(b, f, -1), C(b, f, 0))),
         [MathFunction.Max] = (b, f, x, i) =>                                                              // a tie takes the first argument
-            Choose(b, f, b.Compare(Comparison.GreaterOrEqual, x[0], x[1]), i == 0),
+            Choose(b, f, b.Compare(ComparisonOperator.GreaterOrEqual, x[0], x[1]), i == 0),
         [MathFunction.Min] = (b, f, x, i) =>
-            Choose(b, f, b.Compare(Comparison.LessOrEqual, x[0], x[1]), i == 0),
+            Choose(b, f, b.Compare(ComparisonOperator.LessOrEqual, x[0], x[1]), i == 0),
         [MathFunction.Clamp] = ClampPartial,
         [MathFunction.Sign] = (b, f, x, i) => C(b, f, 0),                                                 // piecewise constant
         [MathFunction.Floor] = (b, f, x, i) => C(b, f, 0),
@@ -179,8 +179,8 @@ internal static class DerivativeRules
     /// <summary>Math.Clamp(v, lo, hi) is lo when v &lt; lo, hi when v &gt; hi, else v: the derivative of the one returned.</summary>
     private static Node ClampPartial(ExpressionBuilder b, Node f, Node[] x, int i)
     {
-        Node below = b.Compare(Comparison.Less, x[0], x[1]);
-        Node above = b.Compare(Comparison.Greater, x[0], x[2]);
+        Node below = b.Compare(ComparisonOperator.Less, x[0], x[1]);
+        Node above = b.Compare(ComparisonOperator.Greater, x[0], x[2]);
         Node one = C(b, f, 1), zero = C(b, f, 0);
         return i switch
         {

@@ -27,6 +27,9 @@ internal sealed class ExpressionBuilder
 
     public ExpressionBuilder(CancellationToken cancellationToken) => _cancellationToken = cancellationToken;
 
+    /// <summary>The names given to the nodes this builder made (the nodes themselves are immutable).</summary>
+    public NodeNames Names { get; } = new();
+
     // ---- Leaves -------------------------------------------------------------------------------------------------
 
     public Node Constant(double value, ScalarType type)
@@ -61,9 +64,8 @@ internal sealed class ExpressionBuilder
     /// <summary>A call of another [Differentiate] method, as written.</summary>
     public Node UserCall(CalleeInfo callee, ScalarType type, Node[] arguments)
     {
-        Node node = Intern(NodeKind.UserCall, type, arguments, 0, callee.Receiver + "." + callee.Method, default, default, default, -1);
-        node.Callee ??= callee;
-        return node;
+        // An equal call seen before keeps the callee it was made with.
+        return Intern(NodeKind.UserCall, type, arguments, 0, callee.Receiver + "." + callee.Method, default, default, default, -1, callee: callee);
     }
 
     /// <summary>The callee's partial derivative with respect to its variable number <paramref name="k"/>.</summary>
@@ -80,7 +82,7 @@ internal sealed class ExpressionBuilder
         Intern(NodeKind.VariableElement, type, new[] { index }, vector, name, default, default, default, -1, 0, isActiveLeaf: true);
 
     /// <summary>A comparison as written.</summary>
-    public Node RawCompare(Comparison comparison, Node a, Node b) =>
+    public Node RawCompare(ComparisonOperator comparison, Node a, Node b) =>
         Intern(NodeKind.Compare, ScalarType.Boolean, new[] { a, b }, 0, null, default, default, comparison, -1);
 
     public Node External(string text, ScalarType type) =>
@@ -425,7 +427,7 @@ internal sealed class ExpressionBuilder
         return Intern(NodeKind.Call, type, arguments, 0, null, function, MathHost.Default, default, -1);
     }
 
-    public Node Compare(Comparison comparison, Node a, Node b)
+    public Node Compare(ComparisonOperator comparison, Node a, Node b)
     {
         Unify(ref a, ref b);
         return Intern(NodeKind.Compare, ScalarType.Boolean, new[] { a, b }, 0, null, default, default, comparison, -1);
@@ -566,7 +568,8 @@ internal sealed class ExpressionBuilder
     };
 
     private Node Intern(NodeKind kind, ScalarType type, Node[] arguments, double value, string? text,
-        MathFunction function, MathHost host, Comparison comparison, int variableIndex, int stage = 0, bool isActiveLeaf = false)
+        MathFunction function, MathHost host, ComparisonOperator comparison, int variableIndex, int stage = 0, bool isActiveLeaf = false,
+        CalleeInfo? callee = null)
     {
         var key = new NodeKey(kind, type, BitConverter.DoubleToInt64Bits(value), text,
             ((int)function << 8) | ((int)host << 4) | (int)comparison, variableIndex, stage, isActiveLeaf,
@@ -579,7 +582,7 @@ internal sealed class ExpressionBuilder
         }
 
         _cancellationToken.ThrowIfCancellationRequested();
-        var node = new Node(_nodes.Count, kind, type, arguments, value, text, function, host, comparison, variableIndex, stage, isActiveLeaf);
+        var node = new Node(_nodes.Count, kind, type, arguments, value, text, function, host, comparison, variableIndex, stage, isActiveLeaf, callee);
         _nodes.Add(key, node);
         return node;
     }

@@ -60,16 +60,6 @@ internal sealed class CalleeInfo
     public bool HasHessian { get; }
 }
 
-internal enum Comparison
-{
-    Less,
-    LessOrEqual,
-    Greater,
-    GreaterOrEqual,
-    Equal,
-    NotEqual,
-}
-
 /// <summary>
 /// A node of the hash-consed expression DAG. Nodes are immutable and unique: the builder returns the existing node for
 /// an expression it has seen, so equal subexpressions are one object (common subexpression elimination by
@@ -79,7 +69,7 @@ internal enum Comparison
 internal sealed class Node
 {
     internal Node(int id, NodeKind kind, ScalarType type, Node[] arguments, double value, string? text,
-        MathFunction function, MathHost host, Comparison comparison, int variableIndex, int stage, bool isActiveLeaf)
+        MathFunction function, MathHost host, ComparisonOperator comparison, int variableIndex, int stage, bool isActiveLeaf, CalleeInfo? callee = null)
     {
         Stage = stage;
         Id = id;
@@ -92,6 +82,7 @@ internal sealed class Node
         Host = host;
         Comparison = comparison;
         VariableIndex = variableIndex;
+        Callee = callee;
         foreach (Node argument in arguments)
         {
             DependsOnVariables |= argument.DependsOnVariables;
@@ -123,7 +114,7 @@ internal sealed class Node
 
     public MathHost Host { get; }
 
-    public Comparison Comparison { get; }
+    public ComparisonOperator Comparison { get; }
 
     /// <summary>
     /// Where in the method the node can first be computed: 0 before any loop; for the m-th loop (from 1), 2m − 1 inside
@@ -137,13 +128,7 @@ internal sealed class Node
     public bool DependsOnVariables { get; }
 
     /// <summary>For a <see cref="NodeKind.UserCall"/>, the method called.</summary>
-    public CalleeInfo? Callee { get; set; }
-
-    /// <summary>The user's local name for the value this node computes, if the user gave it one.</summary>
-    public string? LocalName { get; set; }
-
-    /// <summary>A readable name suggested for a temporary holding this node (not a user name).</summary>
-    public string? NameHint { get; set; }
+    public CalleeInfo? Callee { get; }
 
     public bool IsLeaf => Kind is NodeKind.Constant or NodeKind.Parameter or NodeKind.External;
 

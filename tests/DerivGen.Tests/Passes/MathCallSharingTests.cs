@@ -1,9 +1,13 @@
 using System;
+using System.Collections.Generic;
 using System.Linq;
+using DerivGen.Generator.Differentiation;
+using DerivGen.Generator.Model;
+using DerivGen.Generator.Symbolic;
 using DerivGen.Tests.Infrastructure;
 using Xunit;
 
-namespace DerivGen.Tests.Numerics;
+namespace DerivGen.Tests.Passes;
 
 public sealed class SinCosFixture : CompiledFixture
 {
@@ -44,11 +48,11 @@ public sealed class SinCosFixture : CompiledFixture
 /// One Math.SinCos call where a method needs both the sine and the cosine of one argument. The value stays bit for bit
 /// the user's only if SinCos returns exactly Math.Sin and Math.Cos, which these tests check on the platform they run on.
 /// </summary>
-public sealed class SinCosTests : IClassFixture<SinCosFixture>
+public sealed class MathCallSharingTests : IClassFixture<SinCosFixture>
 {
     private readonly SinCosFixture _fixture;
 
-    public SinCosTests(SinCosFixture fixture) => _fixture = fixture;
+    public MathCallSharingTests(SinCosFixture fixture) => _fixture = fixture;
 
     [Fact]
     public void SinCosIsBitForBitSinAndCos()
@@ -121,6 +125,52 @@ public sealed class SinCosTests : IClassFixture<SinCosFixture>
     }
 
     private delegate double F(double q1, double q2);
+
+
+    // The pass's decision on small invented methods (x, y variables; c and d data).
+    private const string Members = """
+            [Differentiate(Hessian = false)]
+            public static double Both(double x, double y) => Math.Sin(x) * y;
+
+            [Differentiate(nameof(x), Hessian = false)]
+            public static double SineOnly(double x, double c) => x * Math.Sin(c);
+
+            [Differentiate(Hessian = false)]
+            public static double Different(double x, double y) => Math.Sin(x) * Math.Cos(y);
+
+            [Differentiate(nameof(x), Hessian = false)]
+            public static double Guarded(double x, double[] d) => x > 0 ? Math.Sin(d[0] * x) : 0;
+        """;
+
+    private static List<(MathFunction Function, Node Argument)> Pairs(string method, bool hasSinCos = true) =>
+        PassHarness.Plan(Members, method, hasSinCos: hasSinCos).SinCos.Partner.Keys.Select(n => (n.Function, n.Arguments[0])).OrderBy(p => p.Function).ToList();
+
+    [Fact]
+    public void TheSineOfTheValueAndTheCosineOfTheDerivativeArePaired()
+    {
+        var pairs = Pairs("Both");
+        Assert.Equal(new[] { MathFunction.Sin, MathFunction.Cos }.OrderBy(f => f), pairs.Select(p => p.Function));
+        Assert.Same(pairs[0].Argument, pairs[1].Argument);
+        Assert.Equal(NodeKind.Parameter, pairs[0].Argument.Kind);
+        Assert.Equal("x", pairs[0].Argument.Text);
+    }
+
+    [Fact]
+    public void WithoutSinCosInTheCompilationNothingIsPaired() => Assert.Empty(Pairs("Both", hasSinCos: false));
+
+    [Theory]
+    [InlineData("SineOnly")]   // the cosine of c is never needed
+    [InlineData("Guarded")]    // sin(d[0]·x) is evaluated only where x > 0: written inline under that condition, not in a local
+    public void ASineWithoutItsCosineIsNotPaired(string method) => Assert.Empty(Pairs(method));
+
+    [Fact]
+    public void OnlyTheSameArgumentIsPaired()
+    {
+        // sin x and cos y are both needed with their partners (cos x in ∂/∂x, sin y in ∂/∂y): two pairs, one per argument.
+        var pairs = Pairs("Different");
+        Assert.Equal(4, pairs.Count);
+        Assert.Equal(2, pairs.Select(p => p.Argument).Distinct().Count());
+    }
 
     private delegate double G(double q1, double q2, Span<double> gradient);
 

@@ -2,7 +2,7 @@ using System.Collections.Generic;
 using System.Linq;
 using DerivGen.Generator.Symbolic;
 
-namespace DerivGen.Generator.Emit;
+namespace DerivGen.Generator.Differentiation;
 
 /// <summary>
 /// Which operations that can throw (a data read, an int division, Clamp, Sign) the user's code evaluates, at which

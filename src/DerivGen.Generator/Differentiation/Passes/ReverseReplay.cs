@@ -1,13 +1,13 @@
 using System;
 using System.Collections.Generic;
 using System.Linq;
-using DerivGen.Generator.Differentiation;
 using DerivGen.Generator.Symbolic;
 
-namespace DerivGen.Generator.Emit;
+namespace DerivGen.Generator.Differentiation;
 
 /// <summary>
-/// A running derivative with respect to a vector that the generated code never stores: reverse mode over one inner loop.
+/// Pass: a running derivative with respect to a vector that the generated code never stores — reverse mode over one inner
+/// loop (<see cref="Find"/> decides; the writer replays the loop where the span would be read).
 /// <para>
 /// Forward mode keeps ∂z/∂w of a local z carried through an inner loop in a span: cleared before the loop, filled by the
 /// loop's reads of w, then added, times the adjoint ∂s/∂z, into the enclosing loop's span ∂s/∂w — three passes over w.
@@ -24,12 +24,12 @@ namespace DerivGen.Generator.Emit;
 /// method, and are small enough to be written out again.
 /// </para>
 /// </summary>
-internal sealed class InnerLoopReversal
+internal sealed class ReverseReplay
 {
     /// <summary>Nodes (counted as a tree, inside the loop) a replayed coefficient and index may take in total.</summary>
     internal const int MaxReplayedNodes = 64;
 
-    private InnerLoopReversal(LoopSegment loop, StateDerivatives state, string span, List<VectorTerm> initialTerms, List<VectorTerm> loopTerms)
+    private ReverseReplay(LoopSegment loop, StateDerivatives state, string span, List<VectorTerm> initialTerms, List<VectorTerm> loopTerms)
     {
         Loop = loop;
         State = state;
@@ -54,9 +54,9 @@ internal sealed class InnerLoopReversal
     public List<VectorTerm> LoopTerms { get; }
 
     /// <summary>The spans of <paramref name="program"/> that are replayed instead of stored, by name.</summary>
-    public static Dictionary<string, InnerLoopReversal> Find(DerivativeProgram program)
+    public static Dictionary<string, ReverseReplay> Find(DerivativeProgram program)
     {
-        var found = new Dictionary<string, InnerLoopReversal>(StringComparer.Ordinal);
+        var found = new Dictionary<string, ReverseReplay>(StringComparer.Ordinal);
         if (program.Vectors.Length == 0)
         {
             return found;
@@ -148,7 +148,7 @@ internal sealed class InnerLoopReversal
                         continue;
                     }
 
-                    found[span] = new InnerLoopReversal(loop, d, span, initialTerms, loopTerms);
+                    found[span] = new ReverseReplay(loop, d, span, initialTerms, loopTerms);
                 }
             }
         }

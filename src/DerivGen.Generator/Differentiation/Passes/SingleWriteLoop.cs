@@ -1,16 +1,15 @@
 using System;
 using System.Collections.Generic;
 using System.Linq;
-using DerivGen.Generator.Differentiation;
 using DerivGen.Generator.Model;
 using DerivGen.Generator.Symbolic;
 
-namespace DerivGen.Generator.Emit;
+namespace DerivGen.Generator.Differentiation;
 
 /// <summary>
-/// A running derivative with respect to a vector whose loop writes each element of the span exactly once, so that the
-/// elements are assigned (<c>d[a·i + b] = coef</c>) instead of cleared and added to — what a hand-written gradient does
-/// (e.g. the extended Rosenbrock function's <c>g[2i] = …; g[2i + 1] = …</c>).
+/// Part of <see cref="InPlaceAccumulation"/>: a running derivative with respect to a vector whose loop writes each element
+/// of the span exactly once, so that the elements are assigned (<c>d[a·i + b] = coef</c>) instead of cleared and added to —
+/// what a hand-written gradient does (e.g. the extended Rosenbrock function's <c>g[2i] = …; g[2i + 1] = …</c>).
 /// <para>
 /// Proved at generation time, conservatively; anything else keeps the clear and the additions (always correct): a
 /// top-level <c>for</c> loop from 0 below <c>w.Length / a</c> (below <c>w.Length</c> for a = 1), with w the vector,
@@ -32,7 +31,7 @@ internal static class SingleWriteLoop
     /// <paramref name="loop"/> (see the class summary); 0 otherwise.
     /// </summary>
     public static int Stride(DerivativeProgram program, LoopSegment loop, StateDerivatives d, int v, string length,
-        IReadOnlyDictionary<string, InnerLoopReversal> replayed)
+        IReadOnlyDictionary<string, ReverseReplay> replayed)
     {
         string span = d.VectorNames[v];
         if (program.Outputs.Count > 0 || loop.Parent is not null || loop.Children.Count > 0 || loop.Index is null || loop.Condition is not null

@@ -1,9 +1,10 @@
 using System;
 using System.Linq;
+using DerivGen.Generator.Differentiation;
 using DerivGen.Tests.Infrastructure;
 using Xunit;
 
-namespace DerivGen.Tests.Numerics;
+namespace DerivGen.Tests.Passes;
 
 public sealed class InnerLoopReplayFixture : CompiledFixture
 {
@@ -201,10 +202,10 @@ public sealed class InnerLoopReplayFixture : CompiledFixture
 }
 
 /// <summary>
-/// Reverse mode over an inner loop (the generator's <c>InnerLoopReversal</c>): the shapes it takes and the shapes it must
+/// Reverse mode over an inner loop (the pass <c>Differentiation/Passes/ReverseReplay</c>): the shapes it takes and the shapes it must
 /// refuse, each against a closed form or MathNet.Numerics central differences, and whether the replay was used.
 /// </summary>
-public sealed class InnerLoopReplayTests : IClassFixture<InnerLoopReplayFixture>
+public sealed class ReverseReplayTests : IClassFixture<InnerLoopReplayFixture>
 {
     private const string ReplayMarker = "(reverse mode)";
 
@@ -213,7 +214,7 @@ public sealed class InnerLoopReplayTests : IClassFixture<InnerLoopReplayFixture>
     private static readonly double[] Y = { 0.4, 1.9, -0.3, 0.6, -0.9 };
     private readonly InnerLoopReplayFixture _fixture;
 
-    public InnerLoopReplayTests(InnerLoopReplayFixture fixture) => _fixture = fixture;
+    public ReverseReplayTests(InnerLoopReplayFixture fixture) => _fixture = fixture;
 
     [Theory]
     [InlineData("Huber", "dR_dW", 1)]
@@ -232,6 +233,28 @@ public sealed class InnerLoopReplayTests : IClassFixture<InnerLoopReplayFixture>
         int count = source.Split('\n').Count(line => line.Contains(ReplayMarker, StringComparison.Ordinal) && line.Contains(span + " not stored", StringComparison.Ordinal));
         Assert.Equal(replays, count);
         Assert.Equal(replays == 0, source.Contains(" " + span + " = ", StringComparison.Ordinal)); // the span is declared only when it is stored
+    }
+
+    /// <summary>The pass's decision itself: the spans it replays (by name), for each shape of the fixture.</summary>
+    [Theory]
+    [InlineData("Huber", "dR_dW")]
+    [InlineData("TwoReaders", "dZ_dW")]
+    [InlineData("Skipping", "dZ_dW")]
+    [InlineData("TwoVectors", "dZ_dU,dZ_dV")]
+    [InlineData("Discounted", "")]
+    [InlineData("Product", "")]
+    [InlineData("NotLast", "dQ_dW")]
+    [InlineData("Carried", "")]
+    public void ThePassReplaysExactlyTheseSpans(string method, string spans)
+    {
+        MethodPlan plan = PassHarness.PlanInSource(InnerLoopReplayFixture.Source, method);
+        Assert.Equal(spans, string.Join(",", plan.Replayed.Keys.OrderBy(k => k, StringComparer.Ordinal)));
+        foreach (ReverseReplay replay in plan.Replayed.Values)
+        {
+            // The inner loop replayed is the last loop of its parent's body (nothing runs between it and the replay).
+            Assert.NotNull(replay.Loop.Parent);
+            Assert.Same(replay.Loop, replay.Loop.Parent!.Children[^1]);
+        }
     }
 
     [Fact]

@@ -1,9 +1,12 @@
 using System;
 using System.Linq;
+using DerivGen.Generator.Differentiation;
+using DerivGen.Generator.Model;
+using DerivGen.Generator.Symbolic;
 using DerivGen.Tests.Infrastructure;
 using Xunit;
 
-namespace DerivGen.Tests.Numerics;
+namespace DerivGen.Tests.Passes;
 
 public sealed class SingleWriteFixture : CompiledFixture
 {
@@ -110,11 +113,11 @@ public sealed class SingleWriteFixture : CompiledFixture
 /// checked against derivatives by hand with the output filled with NaN first, so an element neither assigned nor
 /// cleared shows.
 /// </summary>
-public sealed class SingleWriteTests : IClassFixture<SingleWriteFixture>
+public sealed class InPlaceAccumulationTests : IClassFixture<SingleWriteFixture>
 {
     private readonly SingleWriteFixture _fixture;
 
-    public SingleWriteTests(SingleWriteFixture fixture) => _fixture = fixture;
+    public InPlaceAccumulationTests(SingleWriteFixture fixture) => _fixture = fixture;
 
     private delegate double VF(double[] x);
 
@@ -239,4 +242,130 @@ public sealed class SingleWriteTests : IClassFixture<SingleWriteFixture>
 
         Check.Close(expected, gradient, 1e-15, 1e-15, "∂f/∂x");
     }
+
+    // ---- The form of a scalar update (InPlaceAccumulation.Form), on updates built by hand ----------------------------
+
+    private static readonly ExpressionBuilder B = new(default);
+    private static readonly Node S = B.StageLeaf("s", ScalarType.Double, 1, isActive: true);
+    private static readonly Node E = B.Parameter("e", ScalarType.Double, 0);
+
+    private static (AssignmentForm Form, Node Operand) Form(Node value, bool derivative = false, ScalarType type = ScalarType.Double) =>
+        InPlaceAccumulation.Form(new StateUpdate("s", type, value, derivative), B);
+
+    [Fact]
+    public void SumsDifferencesAndProductsWithTheTargetAreWrittenInPlace()
+    {
+        Assert.Equal((AssignmentForm.Add, E), Form(B.Raw(NodeKind.Add, ScalarType.Double, S, E)));
+        Assert.Equal((AssignmentForm.Add, E), Form(B.Raw(NodeKind.Add, ScalarType.Double, E, S)));       // + commutes exactly
+        Assert.Equal((AssignmentForm.Subtract, E), Form(B.Raw(NodeKind.Subtract, ScalarType.Double, S, E)));
+        Assert.Equal((AssignmentForm.Multiply, E), Form(B.Raw(NodeKind.Multiply, ScalarType.Double, E, S))); // * commutes exactly
+    }
+
+    [Fact]
+    public void OtherShapesAreAssigned()
+    {
+        Node reversed = B.Raw(NodeKind.Subtract, ScalarType.Double, E, S);   // e − s is not s −= e
+        Assert.Equal((AssignmentForm.Assign, reversed), Form(reversed));
+        Node quotient = B.Raw(NodeKind.Divide, ScalarType.Double, S, E);
+        Assert.Equal((AssignmentForm.Assign, quotient), Form(quotient));
+        Node other = B.Raw(NodeKind.Add, ScalarType.Double, E, E);           // does not read s
+        Assert.Equal((AssignmentForm.Assign, other), Form(other));
+        Node wide = B.Raw(NodeKind.Add, ScalarType.Double, S, E);            // a float target of a double value: assigned (converted)
+        Assert.Equal((AssignmentForm.Assign, wide), Form(wide, type: ScalarType.Single));
+    }
+
+    [Fact]
+    public void ANegativeConstantFactorBecomesASubtractionInDerivativeCodeOnly()
+    {
+        Node term = B.Raw(NodeKind.Multiply, ScalarType.Double, B.Constant(-3, ScalarType.Double), E);
+        Node update = B.Raw(NodeKind.Add, ScalarType.Double, S, term);
+        (AssignmentForm form, Node operand) = Form(update, derivative: true);
+        Assert.Equal(AssignmentForm.Subtract, form);
+        Assert.Equal(NodeKind.Multiply, operand.Kind);
+        Assert.True(operand.Arguments[0].IsConstant(3), "d += (−3)·e is d −= 3·e");
+        Assert.Same(E, operand.Arguments[1]);
+
+        // The user's own value keeps the operation as written.
+        Assert.Equal((AssignmentForm.Add, term), Form(update, derivative: false));
+    }
+
+    // ---- Spans: in place, in the gradient (decisions on small invented methods) ----------------------------------------
+
+    private const string SpanMembers = """
+            [Differentiate(nameof(w), Hessian = false)]
+            public static double Squares(double[] w)
+            {
+                double s = 0;
+                for (int i = 0; i < w.Length; i++)
+                {
+                    s += w[i] * w[i];
+                }
+
+                return s;
+            }
+
+            [Differentiate(nameof(w), Hessian = false)]
+            public static double Doubled(double[] w)
+            {
+                double s = 0;
+                for (int i = 0; i < w.Length; i++)
+                {
+                    s += w[i] * w[i];
+                }
+
+                return 2 * s;
+            }
+
+            // b's update reads a's span: a's is computed into a copy, not in place.
+            [Differentiate(nameof(w), Hessian = false)]
+            public static double Coupled(double[] w)
+            {
+                double a = 0;
+                double b = 0;
+                for (int i = 0; i < w.Length; i++)
+                {
+                    double old = a;
+                    a += w[i];
+                    b += old * w[i];
+                }
+
+                return b;
+            }
+        """;
+
+    [Fact]
+    public void ASpanThatIsTheWholeGradientIsAccumulatedInTheGradient()
+    {
+        Assert.Equal(new[] { ("dS_dW", 0) }, PassHarness.Plan(SpanMembers, "Squares").InGradient.Select(p => (p.Key, p.Value)));
+        Assert.Empty(PassHarness.Plan(SpanMembers, "Doubled").InGradient);   // 2·span: not the span itself
+    }
+
+    [Fact]
+    public void ASpanReadByAnotherUpdateOfItsLoopIsNotUpdatedInPlace()
+    {
+        MethodPlan plan = PassHarness.Plan(SpanMembers, "Coupled");
+        LoopSegment loop = plan.Program.Loops[0];
+        StateDerivatives a = plan.Program.States.Values.Single(d => d.State.Name == "a");
+        StateDerivatives b = plan.Program.States.Values.Single(d => d.State.Name == "b");
+        Assert.False(plan.UpdatesInPlace(loop, a, 0));
+        Assert.True(plan.UpdatesInPlace(loop, b, 0));
+        Assert.Empty(plan.SingleWrite);
+
+        MethodPlan squares = PassHarness.Plan(SpanMembers, "Squares");
+        Assert.Equal(1, squares.SingleWrite["dS_dW"]);   // each w[i] in iteration i only: assigned, stride 1
+    }
+
+    /// <summary>∂/∂wⱼ Σᵢ (Σ_{k&lt;i} w_k)·wᵢ = Σ_{k&lt;j} w_k + Σ_{i&gt;j} wᵢ (plain calculus).</summary>
+    [Fact]
+    public void TheCoupledGradientMatchesTheClosedForm()
+    {
+        using CompiledAssembly assembly = GeneratorHarness.CompileAndLoad(PassHarness.Source(SpanMembers));
+        var g = assembly.Method<VG>(PassHarness.Type, "CoupledGradient");
+        double[] w = Point(6);
+        var gradient = new double[6];
+        g(w, gradient);
+        double[] expected = w.Select((_, j) => w.Take(j).Sum() + w.Skip(j + 1).Sum()).ToArray();
+        Check.Close(expected, gradient, 1e-15, 1e-15, "∂Coupled/∂w");
+    }
+
 }

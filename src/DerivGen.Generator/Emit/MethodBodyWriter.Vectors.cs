@@ -1,0 +1,230 @@
+using System;
+using System.Collections.Generic;
+using System.Linq;
+using DerivGen.Generator.Differentiation;
+using DerivGen.Generator.Model;
+using DerivGen.Generator.Symbolic;
+
+namespace DerivGen.Generator.Emit;
+
+/// <summary>Spans of running derivatives with respect to vectors, and the results (gradient, Hessian).</summary>
+internal sealed partial class MethodBodyWriter
+{
+    /// <summary>Spans of running derivatives up to this many elements are allocated on the stack, longer ones on the heap.</summary>
+    internal const int StackLimit = 512;
+
+    private string Length(int vector) => _program.Vectors[vector] + ".Length";
+
+    /// <summary>The guard of an update of a vector's entry read only under a condition: the index is in range.</summary>
+    private string InRange(string index, int vector) => "if ((uint)" + Text.Parenthesized(index) + " < (uint)" + Length(vector) + ")";
+
+    private static string StackOrHeapSpan(string name, string length, ScalarType type)
+    {
+        string element = ExpressionWriter.TypeKeyword(type);
+        return "global::System.Span<" + element + "> " + name + " = " + length + " <= " + Text.Count(StackLimit) + " ? stackalloc " + element + "[" + length + "] : new "
+            + element + "[" + length + "];";
+    }
+
+    /// <summary>The spans of the running derivatives, as the plan declares them: a slice of the gradient where one is
+    /// accumulated there, else on the stack up to <see cref="StackLimit"/> elements and on the heap beyond.</summary>
+    private void DeclareSpans()
+    {
+        foreach (SpanDeclaration span in _plan.SpanDeclarations)
+        {
+            _writer.Line(span.GradientSlice is int slice
+                ? "global::System.Span<" + ExpressionWriter.TypeKeyword(_context.Spec.ReturnType) + "> " + span.Span + " = "
+                    + _context.GradientName + ".Slice(" + _context.VectorOffset[slice] + ", " + Length(slice) + "); // accumulated in place"
+                : StackOrHeapSpan(span.Span, Length(span.Vector), _context.Spec.ReturnType));
+        }
+    }
+
+    private void AddTerms(string target, string offset, IEnumerable<VectorTerm> terms, string? skipSource)
+    {
+        foreach (VectorTerm term in terms)
+        {
+            string at = offset.Length == 0 ? string.Empty : offset + " + ";
+            string coefficient = term.Coefficient.IsConstant(1) ? string.Empty : _code.WriteFactor(term.Coefficient) + " * ";
+            if (term.Index is { } index)
+            {
+                string update = target + "[" + at + _code.Write(index) + "] += " + (term.Coefficient.IsConstant(1) ? "1.0" : _code.Write(term.Coefficient)) + ";";
+                if (term.Element is { } read && !_plan.ReadAlways.Contains(read))
+                {
+                    // The user's code reads w[i] only under a condition (i < w.Length ? w[i] : 0). Where it does not,
+                    // the contribution is 0 (selected by that condition), but i may be out of range: the update is
+                    // made only for an index in range, which is every index the user's code can have read.
+                    using (_writer.Block(InRange(_code.Write(index), term.Vector)))
+                    {
+                        _writer.Line(update);
+                    }
+                }
+                else
+                {
+                    _writer.Line(update);
+                }
+            }
+            else if (term.SourceSpan is { } source && _plan.Replayed.TryGetValue(source, out ReverseReplay? reversal))
+            {
+                WriteReplay(target, at, term, reversal);
+            }
+            else if (term.SourceSpan != skipSource)
+            {
+                using (_writer.Block("for (int " + _element + " = 0; " + _element + " < " + Length(term.Vector) + "; " + _element + "++)"))
+                {
+                    _writer.Line(target + "[" + at + _element + "] += " + coefficient + term.SourceSpan + "[" + _element + "];");
+                }
+            }
+        }
+    }
+
+    /// <summary>target += adjoint · ∂z/∂w for a span that is not stored: its contributions, written out again with the adjoint.</summary>
+    private void WriteReplay(string target, string at, VectorTerm term, ReverseReplay reversal)
+    {
+        LoopSegment loop = reversal.Loop;
+        string adjoint;
+        if (term.Coefficient.IsLeaf || NameOf(term.Coefficient) is not null)
+        {
+            adjoint = _code.Write(term.Coefficient);
+        }
+        else
+        {
+            adjoint = _scope.Adjoint(reversal.State.State.Name);
+            _writer.Line(ExpressionWriter.TypeKeyword(term.Coefficient.Type) + " " + adjoint + " = " + _code.Write(term.Coefficient) + ";");
+        }
+
+        // Nodes of the loop's own stage were locals of its body, out of scope here: they are written out again.
+        var again = new ExpressionWriter(x => x.Stage >= loop.InsideStage ? null : NameOf(x), formula: false, calleeDerivative: CalleeDerivative);
+        bool unit = term.Coefficient.IsConstant(1);
+        string Add(VectorTerm element)
+        {
+            string update = target + "[" + at + again.Write(element.Index!) + "] += "
+                + (element.Coefficient.IsConstant(1) ? adjoint : unit ? again.Write(element.Coefficient) : adjoint + " * " + again.WriteFactor(element.Coefficient)) + ";";
+            return element.Element is { } read && !_plan.ReadAlways.Contains(read)
+                ? InRange(again.Write(element.Index!), element.Vector) + " " + update
+                : update;
+        }
+        _writer.Line("// " + target + " += " + adjoint + " · " + reversal.Span + ", " + reversal.Span + " not stored: the loop over " + loop.Index
+            + " replayed with the adjoint " + adjoint + " (reverse mode)");
+        foreach (VectorTerm element in reversal.InitialTerms)
+        {
+            _writer.Line(Add(element));
+        }
+
+        if (reversal.LoopTerms.Count > 0)
+        {
+            using (_writer.Block("for (int " + loop.Index + " = " + _code.Write(loop.Start!) + "; " + loop.Index + (loop.Inclusive ? " <= " : " < ") + _code.Write(loop.End!) + "; " + loop.Index + "++)"))
+            {
+                foreach (VectorTerm element in reversal.LoopTerms)
+                {
+                    _writer.Line(Add(element));
+                }
+            }
+        }
+    }
+
+    /// <summary>The spans' clears before the loop, as the plan schedules them (<see cref="SpanStatements"/>).</summary>
+    private void WriteVectorClears(LoopSegment loop)
+    {
+        foreach (SpanStatement statement in _plan.SpanClears[loop])
+        {
+            switch (statement.Kind)
+            {
+                case SpanStatementKind.AssignedOnceEach:
+                    _writer.Line("// " + statement.Span + " is not cleared: the loop assigns each element exactly once");
+                    break;
+                case SpanStatementKind.ClearTail:
+                    // Only the elements after the loop's last pair (or triple, …), by a loop of fewer than `stride`
+                    // iterations rather than a call of Span.Clear.
+                    using (_writer.Block("for (int " + _element + " = " + statement.Stride + " * (" + _code.Write(loop.End!) + "); " + _element + " < " + Length(statement.Vector) + "; "
+                        + _element + "++) // the loop below assigns each element before these exactly once"))
+                    {
+                        _writer.Line(statement.Span + "[" + _element + "] = " + _code.Write(_program.Builder.Zero(_context.Spec.ReturnType)) + ";");
+                    }
+
+                    _writer.Blank();
+                    break;
+                default:
+                    _writer.Line(statement.Span + ".Clear();");
+                    break;
+            }
+        }
+    }
+
+    /// <summary>The spans' starts (before the loop) or updates (at the end of an iteration), as the plan schedules them;
+    /// the copies of spans computed through a Next span come after all.</summary>
+    private void WriteVectorUpdates(LoopSegment loop, bool before)
+    {
+        var copies = new List<string>();
+        foreach (SpanStatement statement in before ? _plan.SpanStarts[loop] : _plan.SpanEnds[loop])
+        {
+            string own = statement.Span;
+            switch (statement.Kind)
+            {
+                case SpanStatementKind.Scale:
+                    using (_writer.Block("for (int " + _element + " = 0; " + _element + " < " + Length(statement.Vector) + "; " + _element + "++)"))
+                    {
+                        _writer.Line(own + "[" + _element + "] *= " + _code.Write(statement.Factor!) + ";");
+                    }
+
+                    break;
+                case SpanStatementKind.AssignElements:
+                    foreach (VectorTerm term in statement.Terms)
+                    {
+                        _writer.Line(own + "[" + _code.Write(term.Index!) + "] = " + _code.Write(term.Coefficient) + ";");
+                    }
+
+                    break;
+                case SpanStatementKind.ThroughNext:
+                    _writer.Line(own + "Next.Clear();");
+                    AddTerms(own + "Next", string.Empty, statement.Terms, null);
+                    copies.Add(own + "Next.CopyTo(" + own + ");");
+                    break;
+                default:
+                    AddTerms(own, string.Empty, statement.Terms, own);
+                    break;
+            }
+        }
+
+        foreach (string copy in copies)
+        {
+            _writer.Line(copy);
+        }
+    }
+
+    private void WriteGradient()
+    {
+        for (int v = 0; v < _program.Vectors.Length; v++)
+        {
+            string offset = _context.VectorOffset[v] == "0" ? string.Empty : _context.VectorOffset[v];
+            if (_plan.InGradient.FirstOrDefault(p => p.Value == v).Key is { } span)
+            {
+                _writer.Line("// ∂" + _context.BareName + "/∂" + Identifiers.Unescape(_program.Vectors[v]) + "[…] is " + span + ", already in " + _context.GradientName + ".");
+                continue;
+            }
+
+            _writer.Line(_context.GradientName + ".Slice(" + _context.VectorOffset[v] + ", " + Length(v) + ").Clear(); // ∂" + _context.BareName + "/∂"
+                + Identifiers.Unescape(_program.Vectors[v]) + "[…]");
+            AddTerms(_context.GradientName, offset, _program.VectorGradient.Where(t => t.Vector == v), null);
+        }
+
+        for (int i = 0; i < _program.Variables.Length; i++)
+        {
+            _writer.Line(_context.GradientName + "[" + _context.ScalarOffset[i] + "] = " + _code.Write(_program.Gradient[i]) + "; // " + _context.PartialName(i));
+        }
+    }
+
+    /// <summary>The lower triangle, each entry below the diagonal mirrored above it.</summary>
+    private void WriteHessian()
+    {
+        int n = _program.Variables.Length;
+        _writer.Line();
+        for (int i = 0; i < n; i++)
+        {
+            for (int j = 0; j <= i; j++)
+            {
+                string target = _context.HessianName + "[" + Text.Count((i * n) + j) + "]";
+                string mirror = i == j ? string.Empty : _context.HessianName + "[" + Text.Count((j * n) + i) + "] = ";
+                _writer.Line(mirror + target + " = " + _code.Write(_program.Hessian![i][j]) + "; // " + _context.SecondPartialName(i, j));
+            }
+        }
+    }
+}

@@ -1,0 +1,83 @@
+using System.Collections.Generic;
+using System.Linq;
+using DerivGen.Generator.Differentiation;
+using DerivGen.Generator.Model;
+using DerivGen.Generator.Symbolic;
+
+namespace DerivGen.Generator.Emit;
+
+/// <summary>
+/// The one name scope of a generated method's body: every identifier the body declares is allocated here, from the
+/// plan's symbolic entities (nodes, carried locals, calls), never clashing with the parameters, the spans, the
+/// program's generated locals or the loop indices.
+/// <para>
+/// The order is fixed, because it decides the names (<c>value</c> before <c>value2</c>): when the scope is made,
+/// <c>value</c>, the user's local names, snapshots (<c>sBefore</c>), the other temporaries (<see cref="TemporaryNames"/>)
+/// and the aliases of equal SinCos nodes; then, as the writer reaches them, the call buffers (<c>…Gradient</c>,
+/// <c>…Hessian</c>), the span index <c>k</c>, and <c>…Start</c>, <c>…Next</c>, <c>row</c> and <c>…Adjoint</c>.
+/// </para>
+/// </summary>
+internal sealed class NameScope
+{
+    private readonly TemporaryNames _names;
+    private readonly Dictionary<Node, string> _nameOf = new();
+
+    public NameScope(EmitContext context, MethodPlan plan, string thrower)
+    {
+        DerivativeProgram program = plan.Program;
+        List<Node> temporaries = plan.Temporaries;
+        var reserved = context.Spec.Parameters.Select(p => p.Name)
+            .Concat(new[] { context.GradientName, context.HessianName, context.JacobianName, thrower })
+            .Concat(program.StateNames)
+            .Concat(program.Loops.Where(l => l.Index is not null).Select(l => l.Index!));
+        _names = new TemporaryNames(reserved);
+        if (temporaries.Contains(program.Value) && program.Names.LocalName(program.Value) is null)
+        {
+            _nameOf[program.Value] = _names.Claim(GeneratedNames.ValueLocal);
+        }
+
+        foreach (Node node in temporaries.Where(t => program.Names.LocalName(t) is not null && !_nameOf.ContainsKey(t)))
+        {
+            _nameOf[node] = _names.Claim(program.Names.LocalName(node)!);
+        }
+
+        foreach (Node node in plan.Snapshots)
+        {
+            _nameOf[node] = _names.Claim(Identifiers.Unescape(node.Text!) + "Before");
+        }
+
+        foreach (Node node in temporaries.Where(t => !_nameOf.ContainsKey(t)))
+        {
+            _nameOf[node] = _names.For(node, program.Names, Of);
+        }
+
+        foreach (KeyValuePair<Node, Node> pair in plan.SinCos.SameAs)
+        {
+            _nameOf[pair.Key] = _nameOf[pair.Value];
+        }
+    }
+
+    /// <summary>The local holding the node, or null when it is written inline.</summary>
+    public string? Of(Node node) => _nameOf.TryGetValue(node, out string? name) ? name : null;
+
+    public string this[Node node] => _nameOf[node];
+
+    /// <summary>The buffer a call of another generated method fills (<paramref name="suffix"/>: Gradient or Hessian).</summary>
+    public string CallBuffer(Node call, string suffix)
+    {
+        string stem = Identifiers.Unescape(call.Callee!.Method);
+        return _names.Claim(char.ToLowerInvariant(stem[0]) + stem.Substring(1) + suffix);
+    }
+
+    /// <summary>The index of the loops over a span's elements.</summary>
+    public string SpanIndex() => _names.Claim("k");
+
+    /// <summary>The local a carried local's new value goes through (<paramref name="suffix"/>: Start or Next).</summary>
+    public string Through(string target, string suffix) => _names.Claim(Identifiers.Unescape(target) + suffix);
+
+    /// <summary>The start of an output's Jacobian row.</summary>
+    public string Row() => _names.Claim("row");
+
+    /// <summary>The adjoint of a carried local whose span is replayed.</summary>
+    public string Adjoint(string state) => _names.Claim(Identifiers.Unescape(state) + "Adjoint");
+}
