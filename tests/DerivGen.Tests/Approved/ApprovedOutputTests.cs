@@ -185,7 +185,7 @@ public sealed class ApprovedOutputTests
 
     /// <summary>
     /// A Hessian with respect to a vector variable next to scalar ones: the pair method (<c>VectorHessian</c>,
-    /// <c>WritePairedHessian</c>), whose text no other approved file shows. The approved file is the generator's output
+    /// <c>Emit/PairedHessianWriter</c>), whose text no other approved file shows. The approved file is the generator's output
     /// as of this commit, reviewed and kept as a regression baseline while the emitter is refactored, not an expected
     /// value derived independently. Its numbers are checked by compile-and-run tests of the same source against closed
     /// forms: <c>Numerics/Vectors/VectorHessianTests.LogisticRegressionHessianIsTheFisherInformationPlusTheRidge</c>.
@@ -227,7 +227,7 @@ public sealed class ApprovedOutputTests
         """).Source("Samples.Classification.Logistic.Loss.g.cs"));
 
     /// <summary>
-    /// Reverse mode over an inner loop (<c>InnerLoopReversal</c>): the running derivative of z with respect to w is not
+    /// Reverse mode over an inner loop (<c>Passes/ReverseReplay</c>): the running derivative of z with respect to w is not
     /// stored; the inner loop is replayed with z's adjoint. A regression baseline of the generator's current output (see
     /// <see cref="VectorHessian"/>); the numbers are checked by
     /// <c>Numerics/Vectors/VectorVariableTests.LogisticRegressionGradientIsTheScore</c> (the same source, against the
