@@ -79,8 +79,8 @@ internal static partial class CorpusCases
             "'only static properties of double, float or int type are read as constants' for output.Length cannot apply: Length is the span's own instance property",
             NoEdit),
         ["RingDownStaticLocalFunction"] = (new[] { "local function", "double.IsFinite", "Envelope" },
-            Unmarkable("double.IsFinite") + "; the same message asks to mark the local function Envelope, which is refused in turn (see LogisticGrowthLocalFunction)",
-            NoEdit),
+            Unmarkable("double.IsFinite") + "; and the message asks to mark the local function Envelope, which is refused in turn (checked on the edited source)",
+            new[] { ("static double Envelope(", "[Differentiate] static double Envelope(") }),
         ["EdgeFitWindowEnumSwitch"] = (new[] { "window", "Window" }, null, NoEdit),
         ["CircleFitVector2"] = (new[] { "System.Numerics.Vector2", "foreach (Vector2 p in Points)" },
             "the message asks for 'a one-dimensional array or span of data (not a variable), with the element's own type' — Points is exactly that; the obstacle (Vector2 elements) is not named",
@@ -107,6 +107,14 @@ internal static partial class CorpusCases
                 ("public static T Loss<T>(T pKa, T hill) where T : IFloatingPointIeee754<T>", "public static T Loss(T pKa, T hill)"),
             }),
         ["ConversionFilterPredicates"] = (new[] { "double.IsFinite", "is not (> 0 and < 1)" }, Unmarkable("double.IsFinite"), NoEdit),
+        ["HuberLocationCaseRelational"] = (new[] { "case < -Delta:", "Side" }, null, NoEdit),
+        ["PathEndClearanceMin"] = (new[] { "'^1'", "System.Linq.Enumerable.Min" },
+            Unmarkable("Enumerable.Min") + "; and the message for PathX[^1] names only '^1', not the element access",
+            NoEdit),
+        ["LogisticRangeSumSelectPenalty"] = (new[] { "System.Linq.Enumerable.Sum" }, Unmarkable("Enumerable.Sum"), NoEdit),
+        ["SpectralUnmixingArrayHelper"] = (new[] { "Unmixing.Dot" },
+            "the message says to mark Dot [Differentiate]; marked, with the concentrations' parameter named as a vector variable, it is still refused (checked on the edited source)",
+            new[] { ("private static double Dot(", "[Differentiate(nameof(b))] private static double Dot(") }),
     };
 
     private static (string, string)[] NoEdit => Array.Empty<(string, string)>();

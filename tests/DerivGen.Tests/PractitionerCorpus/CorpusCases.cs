@@ -19,7 +19,7 @@ internal static partial class CorpusCases
     /// initialises the parts, are set).</summary>
     public static IReadOnlyList<CorpusCase> All => s_all ??=
         CurveFitting().Concat(Robotics()).Concat(Dynamics()).Concat(MachineLearning()).Concat(Control())
-            .Concat(Statistics()).Concat(Finance()).Concat(Signal()).Concat(Geometry()).Concat(Chemistry())
+            .Concat(Statistics()).Concat(Finance()).Concat(Signal()).Concat(Geometry()).Concat(Chemistry()).Concat(Additional())
             .Select(Annotate).ToList();
 
     /// <summary>A closed form written by hand: C# that fills g from x (the variables), with its source.</summary>

@@ -328,5 +328,29 @@ internal static class CorpusStatus
             "DG0001: The call to 'double.IsFinite' cannot be differentiated: only the functions of System.Math, System.MathF, double and float listed in the README, and other [Differentiate] methods, can be called; mark the method [Differentiate] to differentiate through it",
             "DG0001: The expression 'y is not (> 0 and < 1)' cannot be differentiated: a differentiable body uses locals, + - * /, and the math functions listed in the README",
         }),
+        ["HuberLocationCaseRelational"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
+        {
+            "DG0001: The local 'side' of type 'Corpus.HuberLocationCaseRelational.Side' cannot be differentiated: locals must be double, float, int or bool",
+            "DG0001: The case label 'case < -Delta:' cannot be differentiated: use constant case labels (case 1:, case 2:) or if/else",
+            "DG0001: The operator 'side == Side.Inside' cannot be differentiated: only + - * / on double, float and int, comparisons, && and || are supported",
+            "DG0007: 'Math.Abs' is not differentiable everywhere: its derivative at 0 is taken as 0",
+        }),
+        ["PathEndClearanceMin"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
+        {
+            "DG0001: The expression '^1' cannot be differentiated: a differentiable body uses locals, + - * /, and the math functions listed in the README",
+            "DG0001: The expression '^1' cannot be differentiated: a differentiable body uses locals, + - * /, and the math functions listed in the README",
+            "DG0001: The expression '^1' cannot be differentiated: a differentiable body uses locals, + - * /, and the math functions listed in the README",
+            "DG0001: The expression '^1' cannot be differentiated: a differentiable body uses locals, + - * /, and the math functions listed in the README",
+            "DG0001: The call to 'System.Linq.Enumerable.Min' cannot be differentiated: only the functions of System.Math, System.MathF, double and float listed in the README, and other [Differentiate] methods, can be called; mark the method [Differentiate] to differentiate through it",
+        }),
+        ["LogisticRangeSumSelectPenalty"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
+        {
+            "DG0001: The call to 'System.Linq.Enumerable.Sum' cannot be differentiated: only the functions of System.Math, System.MathF, double and float listed in the README, and other [Differentiate] methods, can be called; mark the method [Differentiate] to differentiate through it",
+            "DG0001: The call to 'System.Linq.Enumerable.Sum' cannot be differentiated: only the functions of System.Math, System.MathF, double and float listed in the README, and other [Differentiate] methods, can be called; mark the method [Differentiate] to differentiate through it",
+        }),
+        ["SpectralUnmixingArrayHelper"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
+        {
+            "DG0001: The call to 'Unmixing.Dot' cannot be differentiated: a helper called from a differentiated method must be a static method with a body in this compilation, not generic, return double or float and take double, float, int or bool parameters; or mark it [Differentiate]",
+        }),
     };
 }
