@@ -78,7 +78,9 @@ public sealed class PractitionerCorpusTests : IClassFixture<CorpusFixture>
         double value = run.Value!(x);
         Assert.True(double.IsFinite(value), $"{name}: the user's method is not finite at the case's point ({Check.R(value)}).");
         double[] richardson = Richardson.Gradient(run.Value!, x, c.Precision);
-        double scale = Math.Max(1, Math.Max(Math.Abs(value), richardson.Max(Math.Abs)));
+        // Tolerances are relative to the size of the value and gradient at the point (not floored at 1, so that a
+        // small loss is checked as closely as a large one).
+        double scale = Math.Max(1e-300, Math.Max(Math.Abs(value), richardson.Max(Math.Abs)));
         double[] reference = richardson;
         if (run.HandReference is { } hand)
         {
@@ -87,6 +89,7 @@ public sealed class PractitionerCorpusTests : IClassFixture<CorpusFixture>
             Check.Close(closed, richardson, Richardson.Tolerance(c.Precision), Richardson.Tolerance(c.Precision) * scale,
                 $"{name}: the hand reference ({c.Reference.Citation}) vs Richardson-extrapolated differences of the user's method");
             reference = closed;
+            _output.WriteLine($"{name}: hand reference vs Richardson, largest difference / scale = {Check.R(closed.Zip(richardson, (a, b) => Math.Abs(a - b)).Max() / scale)} (allowed {Check.R(Richardson.Tolerance(c.Precision))})");
         }
 
         _output.WriteLine($"{name}: value {Check.R(value)}, reference gradient ({c.Reference.Citation}) [{string.Join(", ", reference.Select(Check.R))}]");
