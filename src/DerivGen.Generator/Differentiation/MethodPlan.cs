@@ -16,7 +16,9 @@ namespace DerivGen.Generator.Differentiation;
 /// or written once per element (<see cref="InPlaceAccumulation"/>);</item>
 /// <item>the scheduling (<see cref="Scheduling"/>): which nodes get a local, which loop-carried values are copied before a
 /// loop updates them (snapshots), which calls fill derivative buffers and under which condition they are made, and the
-/// SinCos pairs (<see cref="MathCallSharing"/>).</item>
+/// SinCos pairs (<see cref="MathCallSharing"/>);</item>
+/// <item>the statements writing the results: outputs with their Jacobian rows, or gradient, Hessian and return
+/// (<see cref="ResultStatements"/>).</item>
 /// </list>
 /// </summary>
 internal sealed partial class MethodPlan
@@ -96,13 +98,19 @@ internal sealed partial class MethodPlan
 
     public Dictionary<LoopSegment, List<SpanStatement>> SpanEnds { get; } = new();
 
+    /// <summary>Per stage: the outputs written there, each with its Jacobian row (<see cref="ResultStatements"/>).</summary>
+    public Dictionary<int, List<OutputStatement>> Outputs { get; private set; } = new();
+
+    /// <summary>The gradient, the Hessian's lower triangle and the return, after the last loop (none for a method with outputs).</summary>
+    public List<ResultStatement> Results { get; private set; } = new();
+
     /// <summary>Whether the node is computed into a local (its own, or the equal SinCos node's) before it is read.</summary>
     public bool HasLocal(Node node) => _temporarySet.Contains(node) || SinCos.SameAs.ContainsKey(node);
 
     private HashSet<Node> _temporarySet = new();
 
     /// <summary>The Differentiate stage's last step for one generated method: scheduling and passes, in order.</summary>
-    public static MethodPlan Create(DerivativeProgram program, bool withHessian, bool hasSinCos)
+    public static MethodPlan Create(DerivativeProgram program, bool withHessian, bool hasSinCos, bool hasOutputs)
     {
         var plan = new MethodPlan(program, withHessian);
         plan.AddResultRoots();
@@ -124,6 +132,8 @@ internal sealed partial class MethodPlan
         plan.InGradient = InPlaceAccumulation.InGradient(program);
         plan.SingleWrite = InPlaceAccumulation.SingleWrite(program, plan.Replayed);
         SpanStatements.Schedule(plan);
+        plan.Outputs = ResultStatements.Outputs(plan);
+        plan.Results = ResultStatements.Results(plan, hasOutputs);
         return plan;
     }
 

@@ -190,40 +190,45 @@ internal sealed partial class MethodBodyWriter
         }
     }
 
-    private void WriteGradient()
-    {
-        for (int v = 0; v < _program.Vectors.Length; v++)
-        {
-            string offset = _context.VectorOffset[v] == "0" ? string.Empty : _context.VectorOffset[v];
-            if (_plan.InGradient.FirstOrDefault(p => p.Value == v).Key is { } span)
-            {
-                _writer.Line("// ∂" + _context.BareName + "/∂" + Identifiers.Unescape(_program.Vectors[v]) + "[…] is " + span + ", already in " + _context.GradientName + ".");
-                continue;
-            }
-
-            _writer.Line(_context.GradientName + ".Slice(" + _context.VectorOffset[v] + ", " + Length(v) + ").Clear(); // ∂" + _context.BareName + "/∂"
-                + Identifiers.Unescape(_program.Vectors[v]) + "[…]");
-            AddTerms(_context.GradientName, offset, _program.VectorGradient.Where(t => t.Vector == v), null);
-        }
-
-        for (int i = 0; i < _program.Variables.Length; i++)
-        {
-            _writer.Line(_context.GradientName + "[" + _context.ScalarOffset[i] + "] = " + _code.Write(_program.Gradient[i]) + "; // " + _context.PartialName(i));
-        }
-    }
-
-    /// <summary>The lower triangle, each entry below the diagonal mirrored above it.</summary>
-    private void WriteHessian()
+    /// <summary>The results as the plan lists them (<see cref="ResultStatements"/>): the gradient, then after a blank line
+    /// the Hessian's lower triangle, each entry below the diagonal mirrored above it, then after a blank line the return.</summary>
+    private void WriteResults()
     {
         int n = _program.Variables.Length;
-        _writer.Line();
-        for (int i = 0; i < n; i++)
+        bool hessianStarted = false;
+        foreach (ResultStatement statement in _plan.Results)
         {
-            for (int j = 0; j <= i; j++)
+            if (_plan.WithHessian && !hessianStarted && statement.Kind is ResultKind.HessianEntry or ResultKind.Return)
             {
-                string target = _context.HessianName + "[" + Text.Count((i * n) + j) + "]";
-                string mirror = i == j ? string.Empty : _context.HessianName + "[" + Text.Count((j * n) + i) + "] = ";
-                _writer.Line(mirror + target + " = " + _code.Write(_program.Hessian![i][j]) + "; // " + _context.SecondPartialName(i, j));
+                _writer.Line();
+                hessianStarted = true;
+            }
+
+            int v = statement.Row;
+            switch (statement.Kind)
+            {
+                case ResultKind.VectorGradientInPlace:
+                    _writer.Line("// ∂" + _context.BareName + "/∂" + Identifiers.Unescape(_program.Vectors[v]) + "[…] is " + statement.Span + ", already in " + _context.GradientName + ".");
+                    break;
+                case ResultKind.VectorGradient:
+                    string offset = _context.VectorOffset[v] == "0" ? string.Empty : _context.VectorOffset[v];
+                    _writer.Line(_context.GradientName + ".Slice(" + _context.VectorOffset[v] + ", " + Length(v) + ").Clear(); // ∂" + _context.BareName + "/∂"
+                        + Identifiers.Unescape(_program.Vectors[v]) + "[…]");
+                    AddTerms(_context.GradientName, offset, statement.Terms!, null);
+                    break;
+                case ResultKind.GradientEntry:
+                    _writer.Line(_context.GradientName + "[" + _context.ScalarOffset[statement.Row] + "] = " + _code.Write(statement.Value!) + "; // " + _context.PartialName(statement.Row));
+                    break;
+                case ResultKind.HessianEntry:
+                    int i = statement.Row, j = statement.Column;
+                    string target = _context.HessianName + "[" + Text.Count((i * n) + j) + "]";
+                    string mirror = statement.Mirrored ? _context.HessianName + "[" + Text.Count((j * n) + i) + "] = " : string.Empty;
+                    _writer.Line(mirror + target + " = " + _code.Write(statement.Value!) + "; // " + _context.SecondPartialName(i, j));
+                    break;
+                default:
+                    _writer.Line();
+                    _writer.Line("return " + _code.Write(statement.Value!) + ";");
+                    break;
             }
         }
     }

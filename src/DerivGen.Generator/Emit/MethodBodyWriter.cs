@@ -39,7 +39,7 @@ internal sealed partial class MethodBodyWriter
 
     public static void Write(IndentedWriter writer, EmitContext context, bool withHessian, string thrower)
     {
-        MethodPlan plan = MethodPlan.Create(context.Program, withHessian, context.Spec.HasSinCos);
+        MethodPlan plan = MethodPlan.Create(context.Program, withHessian, context.Spec.HasSinCos, context.Spec.HasOutputs);
         new MethodBodyWriter(writer, context, plan, thrower).WriteBody();
     }
 
@@ -57,21 +57,14 @@ internal sealed partial class MethodBodyWriter
             WriteLoop(loop);
         }
 
-        if (_context.Spec.HasOutputs)
+        if (_plan.Results.Count == 0)
         {
             _writer.TrimBlank();
             return; // The outputs and their rows are written where the method writes them.
         }
 
         _writer.Blank();
-        WriteGradient();
-        if (_plan.WithHessian)
-        {
-            WriteHessian();
-        }
-
-        _writer.Line();
-        _writer.Line("return " + _code.Write(_program.Value) + ";");
+        WriteResults();
     }
 
     /// <summary>The buffers one call of another generated method fills with its partial derivatives.</summary>

@@ -51,7 +51,7 @@ internal static class PassHarness
     private static MethodPlan PlanOf(MethodSpec spec, bool withHessian, bool? hasSinCos)
     {
         DerivativeProgram program = DerivativeProgram.Create(withHessian ? spec : spec with { EmitHessian = false }, default);
-        return MethodPlan.Create(program, withHessian, hasSinCos ?? spec.HasSinCos);
+        return MethodPlan.Create(program, withHessian, hasSinCos ?? spec.HasSinCos, spec.HasOutputs);
     }
 
     /// <summary>The targets of a loop's end-of-iteration assignments.</summary>
