@@ -22,7 +22,7 @@ internal sealed partial class MethodBodyWriter
             OutputWrite output = statement.Output;
             string index = _code.Write(output.Index);
             _writer.Line(outputs + "[" + index + "] = " + _code.Write(output.Value) + ";");
-            string element = Identifiers.Unescape(outputs) + "[" + new ExpressionWriter(x => null, formula: true).Write(output.Index) + "]";
+            string element = Identifiers.Unescape(outputs) + "[" + new ExpressionWriter(_context.LeafName, formula: true).Write(output.Index) + "]";
             string width = _context.GradientLength; // n: the scalars, and each vector's length
             string row;
             switch (statement.RowStart)
@@ -72,7 +72,7 @@ internal sealed partial class MethodBodyWriter
         // A while loop's condition is written in its header, inline: only what is computed before the loop is read
         // from locals, so nothing of the body runs before the condition is tested, as in the user's code.
         string header = loop.Condition is { } condition
-            ? "while (" + new ExpressionWriter(x => x.Stage < loop.InsideStage ? NameOf(x) : null, formula: false).Write(condition) + ")"
+            ? "while (" + new ExpressionWriter(x => x.Stage < loop.InsideStage ? NameOf(x) : _context.LeafName(x), formula: false).Write(condition) + ")"
             : "for (int " + loop.Index + " = " + _code.Write(loop.Start!) + "; " + loop.Index + (loop.Inclusive ? " <= " : " < ") + _code.Write(loop.End!) + "; " + loop.Index + "++)";
         using (_writer.Block(header))
         {
@@ -94,7 +94,7 @@ internal sealed partial class MethodBodyWriter
             _writer.Line("// The constant factor of every term of these sums, applied once:");
             foreach ((string target, Node factor) in factors)
             {
-                _writer.Line(target + " *= " + _code.Write(factor) + ";");
+                _writer.Line(_context.Name(target) + " *= " + _code.Write(factor) + ";");
             }
 
             _writer.Line();
@@ -117,24 +117,25 @@ internal sealed partial class MethodBodyWriter
         foreach (Assignment assignment in assignments)
         {
             StateUpdate update = assignment.Update;
+            string target = _context.Name(update.Target);
             switch (assignment.Kind)
             {
                 case AssignmentKind.Declare:
-                    _writer.Line(ExpressionWriter.TypeKeyword(update.Type) + " " + update.Target + " = " + _code.Write(update.Value) + ";");
+                    _writer.Line(ExpressionWriter.TypeKeyword(update.Type) + " " + target + " = " + _code.Write(update.Value) + ";");
                     break;
                 case AssignmentKind.Assign:
-                    _writer.Line(update.Target + " = " + _code.Write(update.Value) + ";");
+                    _writer.Line(target + " = " + _code.Write(update.Value) + ";");
                     break;
                 case AssignmentKind.InPlace:
-                    _writer.Line(update.Target + Operator(assignment.Form) + _code.Write(assignment.Operand!) + ";");
+                    _writer.Line(target + Operator(assignment.Form) + _code.Write(assignment.Operand!) + ";");
                     break;
                 case AssignmentKind.ThroughLocal:
                     string source = _scope.Through(update.Target, suffix);
                     _writer.Line(ExpressionWriter.TypeKeyword(update.Type) + " " + source + " = " + _code.Write(update.Value) + ";");
-                    after.Add((update.Target, source));
+                    after.Add((target, source));
                     break;
                 default:
-                    after.Add((update.Target, _code.Write(update.Value)));
+                    after.Add((target, _code.Write(update.Value)));
                     break;
             }
         }

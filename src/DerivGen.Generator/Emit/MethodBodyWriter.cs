@@ -118,7 +118,7 @@ internal sealed partial class MethodBodyWriter
                 default:
                     // A temporary is written with its own definition, not its name.
                     _writer.Line(keyword + " " + _scope[node] + " = "
-                        + new ExpressionWriter(x => x == node ? null : NameOf(x), formula: false, calleeDerivative: CalleeDerivative).Write(node) + ";");
+                        + new ExpressionWriter(x => x == node ? _context.LeafName(x) : NameOf(x), formula: false, calleeDerivative: CalleeDerivative).Write(node) + ";");
                     _written.Add(node);
                     break;
             }
@@ -139,7 +139,7 @@ internal sealed partial class MethodBodyWriter
         {
             // The condition is written out in full (with && and || short-circuiting as in the user's code), reading only
             // temporaries already computed.
-            string condition = new ExpressionWriter(x => _written.Contains(x) ? NameOf(x) : null, formula: false).Write(guard);
+            string condition = new ExpressionWriter(x => _written.Contains(x) ? NameOf(x) : _context.LeafName(x), formula: false).Write(guard);
             definition = condition + " ? " + definition + " : " + Literals.CSharp(0, node.Type);
         }
 
