@@ -76,12 +76,16 @@ internal sealed class DerivativeProgram
         Variables = variables;
         States = states;
         Outputs = graph.Outputs;
+        SlotOffsets = graph.SlotOffsets;
     }
 
     /// <summary>The writes of a method with outputs, each with its Jacobian row; empty otherwise.</summary>
     public IReadOnlyList<OutputWrite> Outputs { get; }
 
     public ExpressionBuilder Builder { get; }
+
+    /// <summary>The int leaves standing for slot offsets, with their offsets (<see cref="ProgramGraph.SlotOffsets"/>).</summary>
+    public IReadOnlyDictionary<Node, SlotOffset> SlotOffsets { get; }
 
     /// <summary>The user's local names and the name hints of the nodes (a side table: nodes are immutable).</summary>
     public NodeNames Names => Builder.Names;
