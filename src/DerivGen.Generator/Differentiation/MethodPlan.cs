@@ -43,7 +43,7 @@ internal sealed partial class MethodPlan
     /// under a condition, so the update of its gradient entry is made only for an index in range).</summary>
     public HashSet<Node> ReadAlways { get; private set; } = new();
 
-    /// <summary>Spans of inner loops replayed after the loop (reverse mode) instead of being stored, by name.</summary>
+    /// <summary>Spans of inner loops replayed after the loop (reverse mode) instead of being stored, by span id (<see cref="DerivativeLocals"/>).</summary>
     public Dictionary<string, ReverseReplay> Replayed { get; private set; } = new(StringComparer.Ordinal);
 
     /// <summary>Per loop: the assignments before it, and at the end of each iteration.</summary>
@@ -51,13 +51,13 @@ internal sealed partial class MethodPlan
 
     public Dictionary<LoopSegment, List<StateUpdate>> Next { get; } = new();
 
-    /// <summary>Per loop: the constant factors applied after it (<see cref="ConstantFactoring"/>).</summary>
+    /// <summary>Per loop: the constant factors applied after it to running derivatives (by id; <see cref="ConstantFactoring"/>).</summary>
     public Dictionary<LoopSegment, List<(string Target, Node Factor)>> Factored { get; private set; } = new();
 
-    /// <summary>The spans accumulated in a slice of the gradient, with the vector of the slice.</summary>
+    /// <summary>The spans (by id) accumulated in a slice of the gradient, with the vector of the slice.</summary>
     public Dictionary<string, int> InGradient { get; private set; } = new(StringComparer.Ordinal);
 
-    /// <summary>The spans assigned once per element by their loop, with the stride.</summary>
+    /// <summary>The spans (by id) assigned once per element by their loop, with the stride.</summary>
     public Dictionary<string, int> SingleWrite { get; private set; } = new(StringComparer.Ordinal);
 
     /// <summary>The SinCos pairs and the nodes that share a paired local.</summary>
