@@ -24,7 +24,7 @@ internal sealed class StateDerivatives
 
     public LoopState State { get; }
 
-    /// <summary>Names of the locals holding ∂s/∂vₖ.</summary>
+    /// <summary>Ids of the locals holding ∂s/∂vₖ (<see cref="DerivativeLocals"/>).</summary>
     public string[] GradientNames { get; }
 
     /// <summary>Leaves reading those locals inside the loop, and after it.</summary>
@@ -32,7 +32,7 @@ internal sealed class StateDerivatives
 
     public Node[] FinalGradient { get; }
 
-    /// <summary>Names of the span locals holding ∂s/∂w for each vector of variables w (empty without vectors).</summary>
+    /// <summary>Ids of the span locals holding ∂s/∂w for each vector of variables w (empty without vectors).</summary>
     public string[] VectorNames { get; set; } = Array.Empty<string>();
 
     /// <summary>The contributions to ∂s/∂w before the loop and at the end of an iteration.</summary>
@@ -61,8 +61,9 @@ internal sealed class StateDerivatives
 internal sealed class DerivativeProgram
 {
     private DerivativeProgram(ExpressionBuilder builder, ProgramGraph graph, Node[] gradient, Node[][]? hessian, string[] variables,
-        IReadOnlyDictionary<LoopState, StateDerivatives> states, string[] vectors, List<VectorTerm> vectorGradient)
+        IReadOnlyDictionary<LoopState, StateDerivatives> states, string[] vectors, List<VectorTerm> vectorGradient, DerivativeLocals locals)
     {
+        Locals = locals;
         Vectors = vectors;
         VectorGradient = vectorGradient;
         Builder = builder;
@@ -75,12 +76,16 @@ internal sealed class DerivativeProgram
         Variables = variables;
         States = states;
         Outputs = graph.Outputs;
+        SlotOffsets = graph.SlotOffsets;
     }
 
     /// <summary>The writes of a method with outputs, each with its Jacobian row; empty otherwise.</summary>
     public IReadOnlyList<OutputWrite> Outputs { get; }
 
     public ExpressionBuilder Builder { get; }
+
+    /// <summary>The int leaves standing for slot offsets, with their offsets (<see cref="ProgramGraph.SlotOffsets"/>).</summary>
+    public IReadOnlyDictionary<Node, SlotOffset> SlotOffsets { get; }
 
     /// <summary>The user's local names and the name hints of the nodes (a side table: nodes are immutable).</summary>
     public NodeNames Names => Builder.Names;
@@ -114,10 +119,11 @@ internal sealed class DerivativeProgram
     /// <summary>The contributions to the gradient with respect to the vectors.</summary>
     public List<VectorTerm> VectorGradient { get; }
 
-    /// <summary>Names of the locals that hold loop-carried values and their running derivatives.</summary>
-    public IEnumerable<string> StateNames =>
-        Loops.SelectMany(l => l.States).Select(s => s.Name)
-            .Concat(States.Values.SelectMany(d => d.GradientNames.Concat(d.VectorNames).Concat(d.HessianNames?.SelectMany(r => r) ?? Enumerable.Empty<string>())));
+    /// <summary>The running derivatives' ids and name hints.</summary>
+    public DerivativeLocals Locals { get; }
+
+    /// <summary>Names of the locals that hold loop-carried values (their running derivatives are named by Emit).</summary>
+    public IEnumerable<string> StateNames => Loops.SelectMany(l => l.States).Select(s => s.Name);
 
     /// <summary>The Differentiate stage: IR → value DAG → gradient by reverse sweeps → Hessian by tangent sweeps.</summary>
     public static DerivativeProgram Create(MethodSpec spec, System.Threading.CancellationToken cancellationToken)
@@ -155,14 +161,8 @@ internal sealed class DerivativeProgram
             }
         }
 
-        // Names for the running derivatives, clear of every parameter and local of the method.
-        var taken = new HashSet<string>(spec.Parameters.Select(p => Identifiers.Unescape(p.Name)).Concat(GeneratedNames.Reserved), StringComparer.Ordinal);
-        foreach (LoopState state in graph.Loops.SelectMany(l => l.States))
-        {
-            taken.Add(state.Name);
-        }
-
-        ProgramGraph.CollectLocalNames(spec.Body, taken);
+        // The running derivatives by symbolic id, with their name hints (Emit's NameScope allocates the names).
+        var locals = new DerivativeLocals();
         var states = new Dictionary<LoopState, StateDerivatives>();
         var leafGradient = new Dictionary<Node, Node[]>();
         var leafHessian = new Dictionary<Node, Node[][]>();
@@ -178,7 +178,7 @@ internal sealed class DerivativeProgram
                 // A local carried through several loops keeps the same running-derivative locals in all of them.
                 if (!gradientNamesOf.TryGetValue(state.Name, out string[]? names))
                 {
-                    names = variables.Select(v => Identifiers.Unique("d" + Capital(state.Name) + "_d" + Capital(v), taken)).ToArray();
+                    names = variables.Select(v => locals.New("d" + Capital(state.Name) + "_d" + Capital(v))).ToArray();
                     gradientNamesOf[state.Name] = names;
                 }
 
@@ -190,7 +190,7 @@ internal sealed class DerivativeProgram
                     if (!hessianNamesOf.TryGetValue(state.Name, out string[][]? hessianNames))
                     {
                         hessianNames = Enumerable.Range(0, n).Select(k => Enumerable.Range(0, k + 1).Select(j =>
-                            Identifiers.Unique("d2" + Capital(state.Name) + "_d" + Capital(variables[k]) + (j == k ? "2" : "d" + Capital(variables[j])), taken)).ToArray()).ToArray();
+                            locals.New("d2" + Capital(state.Name) + "_d" + Capital(variables[k]) + (j == k ? "2" : "d" + Capital(variables[j])))).ToArray()).ToArray();
                         hessianNamesOf[state.Name] = hessianNames;
                     }
 
@@ -210,7 +210,7 @@ internal sealed class DerivativeProgram
                 {
                     if (!vectorNamesOf.TryGetValue(state.Name, out string[]? spans))
                     {
-                        spans = vectors.Select(w => Identifiers.Unique("d" + Capital(state.Name) + "_d" + Capital(w), taken)).ToArray();
+                        spans = vectors.Select(w => locals.New("d" + Capital(state.Name) + "_d" + Capital(w))).ToArray();
                         vectorNamesOf[state.Name] = spans;
                     }
 
@@ -258,7 +258,7 @@ internal sealed class DerivativeProgram
         Node[][]? hessian = spec.EmitHessian ? SecondOrder(builder, spec.ReturnType, n, gradient, states, leafGradient, leafHessian, gradientLeafOf, cancellationToken) : null;
 
         // Mixed float/double code can give a derivative of the wider type; the spans hold the method's own type.
-        return new DerivativeProgram(builder, graph, Typed(gradient, spec.ReturnType), hessian, variables, states, vectors, vectorGradient);
+        return new DerivativeProgram(builder, graph, Typed(gradient, spec.ReturnType), hessian, variables, states, vectors, vectorGradient, locals);
 
         Node[] Typed(Node[] nodes, ScalarType type) => nodes.Select(g => builder.Convert(g, type)).ToArray();
     }

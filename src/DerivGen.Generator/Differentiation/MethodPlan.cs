@@ -16,7 +16,9 @@ namespace DerivGen.Generator.Differentiation;
 /// or written once per element (<see cref="InPlaceAccumulation"/>);</item>
 /// <item>the scheduling (<see cref="Scheduling"/>): which nodes get a local, which loop-carried values are copied before a
 /// loop updates them (snapshots), which calls fill derivative buffers and under which condition they are made, and the
-/// SinCos pairs (<see cref="MathCallSharing"/>).</item>
+/// SinCos pairs (<see cref="MathCallSharing"/>);</item>
+/// <item>the statements writing the results: outputs with their Jacobian rows, or gradient, Hessian and return
+/// (<see cref="ResultStatements"/>).</item>
 /// </list>
 /// </summary>
 internal sealed partial class MethodPlan
@@ -41,7 +43,7 @@ internal sealed partial class MethodPlan
     /// under a condition, so the update of its gradient entry is made only for an index in range).</summary>
     public HashSet<Node> ReadAlways { get; private set; } = new();
 
-    /// <summary>Spans of inner loops replayed after the loop (reverse mode) instead of being stored, by name.</summary>
+    /// <summary>Spans of inner loops replayed after the loop (reverse mode) instead of being stored, by span id (<see cref="DerivativeLocals"/>).</summary>
     public Dictionary<string, ReverseReplay> Replayed { get; private set; } = new(StringComparer.Ordinal);
 
     /// <summary>Per loop: the assignments before it, and at the end of each iteration.</summary>
@@ -49,13 +51,13 @@ internal sealed partial class MethodPlan
 
     public Dictionary<LoopSegment, List<StateUpdate>> Next { get; } = new();
 
-    /// <summary>Per loop: the constant factors applied after it (<see cref="ConstantFactoring"/>).</summary>
+    /// <summary>Per loop: the constant factors applied after it to running derivatives (by id; <see cref="ConstantFactoring"/>).</summary>
     public Dictionary<LoopSegment, List<(string Target, Node Factor)>> Factored { get; private set; } = new();
 
-    /// <summary>The spans accumulated in a slice of the gradient, with the vector of the slice.</summary>
+    /// <summary>The spans (by id) accumulated in a slice of the gradient, with the vector of the slice.</summary>
     public Dictionary<string, int> InGradient { get; private set; } = new(StringComparer.Ordinal);
 
-    /// <summary>The spans assigned once per element by their loop, with the stride.</summary>
+    /// <summary>The spans (by id) assigned once per element by their loop, with the stride.</summary>
     public Dictionary<string, int> SingleWrite { get; private set; } = new(StringComparer.Ordinal);
 
     /// <summary>The SinCos pairs and the nodes that share a paired local.</summary>
@@ -96,13 +98,19 @@ internal sealed partial class MethodPlan
 
     public Dictionary<LoopSegment, List<SpanStatement>> SpanEnds { get; } = new();
 
+    /// <summary>Per stage: the outputs written there, each with its Jacobian row (<see cref="ResultStatements"/>).</summary>
+    public Dictionary<int, List<OutputStatement>> Outputs { get; private set; } = new();
+
+    /// <summary>The gradient, the Hessian's lower triangle and the return, after the last loop (none for a method with outputs).</summary>
+    public List<ResultStatement> Results { get; private set; } = new();
+
     /// <summary>Whether the node is computed into a local (its own, or the equal SinCos node's) before it is read.</summary>
     public bool HasLocal(Node node) => _temporarySet.Contains(node) || SinCos.SameAs.ContainsKey(node);
 
     private HashSet<Node> _temporarySet = new();
 
     /// <summary>The Differentiate stage's last step for one generated method: scheduling and passes, in order.</summary>
-    public static MethodPlan Create(DerivativeProgram program, bool withHessian, bool hasSinCos)
+    public static MethodPlan Create(DerivativeProgram program, bool withHessian, bool hasSinCos, bool hasOutputs)
     {
         var plan = new MethodPlan(program, withHessian);
         plan.AddResultRoots();
@@ -124,6 +132,8 @@ internal sealed partial class MethodPlan
         plan.InGradient = InPlaceAccumulation.InGradient(program);
         plan.SingleWrite = InPlaceAccumulation.SingleWrite(program, plan.Replayed);
         SpanStatements.Schedule(plan);
+        plan.Outputs = ResultStatements.Outputs(plan);
+        plan.Results = ResultStatements.Results(plan, hasOutputs);
         return plan;
     }
 

@@ -134,6 +134,7 @@ internal sealed class ProgramGraph
     private readonly List<LoopSegment> _loops = new();
     private readonly List<LoopSegment> _topLevel = new();
     private readonly List<OutputWrite> _outputs = new();
+    private readonly Dictionary<Node, SlotOffset> _slotOffsets = new();
     private int _branchDepth;
     private HashSet<string>? _currentStates;
     private LoopSegment? _currentLoop;
@@ -163,6 +164,10 @@ internal sealed class ProgramGraph
 
     /// <summary>The writes of a method with outputs, in source order (empty for a method that returns its value).</summary>
     public IReadOnlyList<OutputWrite> Outputs => _outputs;
+
+    /// <summary>The int leaves standing for slot offsets (the pair method's shifts, <see cref="IrSlotOffset"/>), with
+    /// their offsets: Emit prints them.</summary>
+    public IReadOnlyDictionary<Node, SlotOffset> SlotOffsets => _slotOffsets;
 
     /// <summary>
     /// Builds the graph. <paramref name="passive"/> names loop-carried locals (by <see cref="StateKey"/>) known not to
@@ -482,6 +487,14 @@ internal sealed class ProgramGraph
                 return locals[local.Name];
             case IrExternal external:
                 return b.External(external.Text, external.Type);
+            case IrSlotOffset slot:
+            {
+                var offset = new SlotOffset(slot.Constant, slot.VectorsBefore.ToArray());
+                Node leaf = b.External(offset.LeafKey, ScalarType.Int32);
+                _slotOffsets[leaf] = offset;
+                return leaf;
+            }
+
             case IrNegate negate:
             {
                 Node operand = Build(negate.Operand, locals);

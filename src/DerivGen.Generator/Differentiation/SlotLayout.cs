@@ -1,4 +1,6 @@
+using System;
 using System.Collections.Generic;
+using System.Globalization;
 using System.Linq;
 using DerivGen.Generator.Model;
 
@@ -10,7 +12,16 @@ namespace DerivGen.Generator.Differentiation;
 /// </summary>
 internal sealed record SlotOffset(int Constant, IReadOnlyList<string> VectorsBefore)
 {
+    private const string LeafMark = "#slot";
+
     public bool IsZero => Constant == 0 && VectorsBefore.Count == 0;
+
+    /// <summary>The text of the int leaf standing for this offset in a DAG (<see cref="ProgramGraph.SlotOffsets"/>): one
+    /// leaf per distinct offset, never shared with a larger expression or given a local, and not C#, so Emit must print
+    /// it from the offset.</summary>
+    public string LeafKey => LeafMark + " " + Constant.ToString(CultureInfo.InvariantCulture) + " " + string.Join(" ", VectorsBefore);
+
+    public static bool IsLeafKey(string? text) => text is not null && text.StartsWith(LeafMark, StringComparison.Ordinal);
 }
 
 /// <summary>

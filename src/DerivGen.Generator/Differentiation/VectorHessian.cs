@@ -28,7 +28,7 @@ internal sealed record PairHessian(MethodSpec Spec, DerivativeProgram Program, s
         var shifts = new Dictionary<string, IrExpression>(StringComparer.Ordinal);
         for (int v = 0; v < vectors.Count; v++)
         {
-            shifts[vectors[v].Name] = vectorOffsets[v].IsZero ? new IrConstant(0, ScalarType.Int32) : new IrExternal(OffsetText(vectorOffsets[v]), ScalarType.Int32);
+            shifts[vectors[v].Name] = vectorOffsets[v].IsZero ? new IrConstant(0, ScalarType.Int32) : new IrSlotOffset(vectorOffsets[v].Constant, vectorOffsets[v].VectorsBefore.ToEquatableArray());
         }
 
         ScalarType type = spec.ReturnType;
@@ -53,15 +53,6 @@ internal sealed record PairHessian(MethodSpec Spec, DerivativeProgram Program, s
         return new PairHessian(pairSpec, DerivativeProgram.Create(pairSpec, cancellationToken), row, column,
             spec.Parameters.Count(p => p.IsVariable && !p.IsVector));
     }
-
-    /// <summary>
-    /// The C# text of a slot offset, for the pair method's IR: an opaque int leaf there. (A typed IR sum of the vectors'
-    /// lengths would be shared and hoisted into a local by the scheduling step, changing the generated text.)
-    /// </summary>
-    private static string OffsetText(SlotOffset offset) =>
-        "(" + string.Join(" + ", offset.VectorsBefore.Select(v => v + ".Length").Concat(offset.Constant > 0 || offset.VectorsBefore.Count == 0
-            ? new[] { offset.Constant.ToString(System.Globalization.CultureInfo.InvariantCulture) }
-            : Array.Empty<string>())) + ")";
 
     /// <summary>Rewrites every read of a vector variable's element into the shifted read; everything else is kept.</summary>
     private sealed class Rewriter

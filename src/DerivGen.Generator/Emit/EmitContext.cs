@@ -30,7 +30,22 @@ internal sealed class EmitContext
         ScalarOffset = layout.Scalar.Select(Text.Offset).ToArray();
         VectorOffset = layout.Vector.Select(Text.Offset).ToArray();
         GradientLength = Text.Offset(layout.Total);
+        DerivativeNames = NameScope.DerivativeNames(spec, program);
     }
+
+    /// <summary>The names of the program's running derivatives by id (<see cref="DerivativeLocals"/>), shared by the
+    /// formula comments and every body written from the program.</summary>
+    public IReadOnlyDictionary<string, string> DerivativeNames { get; }
+
+    /// <summary>The name of a key of the program: a running derivative's id is named, a carried local's name is itself.</summary>
+    public string Name(string key) => DerivativeLocals.IsId(key) ? DerivativeNames[key] : key;
+
+    /// <summary>The name of a leaf reading a running derivative, or the text of a slot offset's leaf (parenthesized, as
+    /// it is read in a sum); null for any other node.</summary>
+    public string? LeafName(Node node) =>
+        node.Kind == NodeKind.Parameter && node.Stage > 0 && DerivativeLocals.IsId(node.Text) ? DerivativeNames[node.Text!]
+        : node.Kind == NodeKind.External && Program.SlotOffsets.TryGetValue(node, out SlotOffset? offset) ? "(" + Text.Offset(offset) + ")"
+        : null;
 
     /// <summary>The static local function that throws for a span that is too short (see <see cref="WriteThrower"/>).</summary>
     public string ThrowerName { get; }

@@ -266,8 +266,10 @@ internal sealed class ExpressionWriter
         };
     }
 
-    /// <summary>Constants and method parameters are always written as themselves; any other node may have a local.</summary>
-    private static bool IsNameable(Node node) => !node.IsLeaf || (node.Kind == NodeKind.Parameter && node.Stage > 0);
+    /// <summary>Constants and method parameters are always written as themselves; any other node may have a local, and a
+    /// slot offset's leaf is written from its offset (both come from the name function).</summary>
+    private static bool IsNameable(Node node) =>
+        !node.IsLeaf || (node.Kind == NodeKind.Parameter && node.Stage > 0) || (node.Kind == NodeKind.External && Differentiation.SlotOffset.IsLeafKey(node.Text));
 
     internal static string TypeKeyword(ScalarType type) => type switch
     {

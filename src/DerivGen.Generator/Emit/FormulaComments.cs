@@ -145,7 +145,7 @@ internal sealed class FormulaComments
             {
                 for (int k = 0; k < d.GradientNames.Length; k++)
                 {
-                    yield return inner + d.GradientNames[k] + " ← " + Formula(d.NextGradient[k]) + "   (∂" + Identifiers.Unescape(state.Name) + "/∂" + Identifiers.Unescape(Program.Variables[k]) + ")";
+                    yield return inner + _context.Name(d.GradientNames[k]) + " ← " + Formula(d.NextGradient[k]) + "   (∂" + Identifiers.Unescape(state.Name) + "/∂" + Identifiers.Unescape(Program.Variables[k]) + ")";
                 }
 
                 // The running second derivatives too, so that a reviewer can check the Hessian from the header
@@ -160,7 +160,7 @@ internal sealed class FormulaComments
                             string of = k == j
                                 ? "∂²" + Identifiers.Unescape(state.Name) + "/∂" + Identifiers.Unescape(Program.Variables[k]) + "²"
                                 : "∂²" + Identifiers.Unescape(state.Name) + "/∂" + Identifiers.Unescape(Program.Variables[k]) + "∂" + Identifiers.Unescape(Program.Variables[j]);
-                            yield return inner + names[k][j] + " ← " + Formula(next[k][j]) + "   (" + of + ")";
+                            yield return inner + _context.Name(names[k][j]) + " ← " + Formula(next[k][j]) + "   (" + of + ")";
                         }
                     }
                 }
@@ -194,14 +194,14 @@ internal sealed class FormulaComments
                 string vector = Identifiers.Unescape(Program.Vectors[term.Vector]);
                 yield return indent + (term.Index is { } at
                     ? "∂" + element + "/∂" + vector + "[" + Formula(at) + "] += " + Formula(term.Coefficient)
-                    : "∂" + element + "/∂" + vector + " += " + Formula(term.Coefficient) + "·" + term.SourceSpan);
+                    : "∂" + element + "/∂" + vector + " += " + Formula(term.Coefficient) + "·" + _context.Name(term.SourceSpan!));
             }
         }
     }
 
     private string Formula(Node node)
     {
-        var writer = new ExpressionWriter(x => x != node && Program.Names.LocalName(x) is { } local ? Identifiers.Unescape(local) : null, formula: true, MaxFormulaLength);
+        var writer = new ExpressionWriter(x => _context.LeafName(x) ?? (x != node && Program.Names.LocalName(x) is { } local ? Identifiers.Unescape(local) : null), formula: true, MaxFormulaLength);
         return writer.TryWrite(node) ?? "(too long to show here; see the code)";
     }
 }

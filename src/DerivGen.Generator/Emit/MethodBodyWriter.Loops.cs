@@ -11,48 +11,48 @@ namespace DerivGen.Generator.Emit;
 internal sealed partial class MethodBodyWriter
 {
     /// <summary>
-    /// The outputs written at a stage, in source order, each followed by its Jacobian row:
-    /// outputs[i] = value; jacobian[n·i + k] = ∂value/∂vₖ.
+    /// The outputs written at a stage, as the plan lists them (<see cref="ResultStatements"/>), each followed by its
+    /// Jacobian row: outputs[i] = value; jacobian[n·i + k] = ∂value/∂vₖ.
     /// </summary>
     private void WriteOutputs(int stage)
     {
-        int n = _program.Variables.Length;
         string outputs = _context.Spec.OutputName ?? string.Empty;
-        foreach (OutputWrite output in _program.Outputs.Where(o => o.Stage == stage))
+        foreach (OutputStatement statement in _plan.Outputs.TryGetValue(stage, out List<OutputStatement>? statements) ? statements : new List<OutputStatement>())
         {
+            OutputWrite output = statement.Output;
             string index = _code.Write(output.Index);
             _writer.Line(outputs + "[" + index + "] = " + _code.Write(output.Value) + ";");
-            string element = Identifiers.Unescape(outputs) + "[" + new ExpressionWriter(x => null, formula: true).Write(output.Index) + "]";
+            string element = Identifiers.Unescape(outputs) + "[" + new ExpressionWriter(_context.LeafName, formula: true).Write(output.Index) + "]";
             string width = _context.GradientLength; // n: the scalars, and each vector's length
             string row;
-            if (output.Index.Kind == NodeKind.Constant && (_program.Vectors.Length == 0 || output.Index.Value == 0))
+            switch (statement.RowStart)
             {
-                row = Text.Count((int)output.Index.Value * n); // a constant row start when n is known
-            }
-            else if (width == "1" && (output.Index.IsLeaf || _scope.Of(output.Index) is not null))
-            {
-                row = index;
-            }
-            else
-            {
-                row = _scope.Row();
-                _writer.Line("int " + row + " = " + (width == "1" ? index : Text.Parenthesized(width) + " * " + Text.Parenthesized(index)) + ";");
+                case RowStartKind.Constant:
+                    row = Text.Count(statement.ConstantRow);
+                    break;
+                case RowStartKind.Index:
+                    row = index;
+                    break;
+                default:
+                    row = _scope.Row();
+                    _writer.Line("int " + row + " = " + (width == "1" ? index : Text.Parenthesized(width) + " * " + Text.Parenthesized(index)) + ";");
+                    break;
             }
 
-            for (int k = 0; k < n; k++)
+            for (int k = 0; k < statement.Entries.Count; k++)
             {
-                _writer.Line(_context.JacobianName + "[" + Text.Plus(row, _context.ScalarOffset[k]) + "] = " + _code.Write(output.Row[k]) + "; // ∂" + element + "/∂"
+                _writer.Line(_context.JacobianName + "[" + Text.Plus(row, _context.ScalarOffset[k]) + "] = " + _code.Write(statement.Entries[k]) + "; // ∂" + element + "/∂"
                     + Identifiers.Unescape(_program.Variables[k]));
             }
 
             // The vectors' part of the row: cleared, then each contribution added (a read of w[j], or the running
             // derivative of a carried local with respect to w).
-            for (int v = 0; v < _program.Vectors.Length; v++)
+            for (int v = 0; v < statement.VectorRow.Count; v++)
             {
                 string offset = Text.Plus(row, _context.VectorOffset[v]);
                 _writer.Line(_context.JacobianName + ".Slice(" + offset + ", " + _program.Vectors[v] + ".Length).Clear(); // ∂" + element + "/∂"
                     + Identifiers.Unescape(_program.Vectors[v]) + "[…]");
-                AddTerms(_context.JacobianName, offset, output.VectorRow.Where(t => t.Vector == v), null);
+                AddTerms(_context.JacobianName, offset, statement.VectorRow[v], null);
             }
         }
     }
@@ -72,7 +72,7 @@ internal sealed partial class MethodBodyWriter
         // A while loop's condition is written in its header, inline: only what is computed before the loop is read
         // from locals, so nothing of the body runs before the condition is tested, as in the user's code.
         string header = loop.Condition is { } condition
-            ? "while (" + new ExpressionWriter(x => x.Stage < loop.InsideStage ? NameOf(x) : null, formula: false).Write(condition) + ")"
+            ? "while (" + new ExpressionWriter(x => x.Stage < loop.InsideStage ? NameOf(x) : _context.LeafName(x), formula: false).Write(condition) + ")"
             : "for (int " + loop.Index + " = " + _code.Write(loop.Start!) + "; " + loop.Index + (loop.Inclusive ? " <= " : " < ") + _code.Write(loop.End!) + "; " + loop.Index + "++)";
         using (_writer.Block(header))
         {
@@ -94,7 +94,7 @@ internal sealed partial class MethodBodyWriter
             _writer.Line("// The constant factor of every term of these sums, applied once:");
             foreach ((string target, Node factor) in factors)
             {
-                _writer.Line(target + " *= " + _code.Write(factor) + ";");
+                _writer.Line(_context.Name(target) + " *= " + _code.Write(factor) + ";");
             }
 
             _writer.Line();
@@ -117,24 +117,25 @@ internal sealed partial class MethodBodyWriter
         foreach (Assignment assignment in assignments)
         {
             StateUpdate update = assignment.Update;
+            string target = _context.Name(update.Target);
             switch (assignment.Kind)
             {
                 case AssignmentKind.Declare:
-                    _writer.Line(ExpressionWriter.TypeKeyword(update.Type) + " " + update.Target + " = " + _code.Write(update.Value) + ";");
+                    _writer.Line(ExpressionWriter.TypeKeyword(update.Type) + " " + target + " = " + _code.Write(update.Value) + ";");
                     break;
                 case AssignmentKind.Assign:
-                    _writer.Line(update.Target + " = " + _code.Write(update.Value) + ";");
+                    _writer.Line(target + " = " + _code.Write(update.Value) + ";");
                     break;
                 case AssignmentKind.InPlace:
-                    _writer.Line(update.Target + Operator(assignment.Form) + _code.Write(assignment.Operand!) + ";");
+                    _writer.Line(target + Operator(assignment.Form) + _code.Write(assignment.Operand!) + ";");
                     break;
                 case AssignmentKind.ThroughLocal:
                     string source = _scope.Through(update.Target, suffix);
                     _writer.Line(ExpressionWriter.TypeKeyword(update.Type) + " " + source + " = " + _code.Write(update.Value) + ";");
-                    after.Add((update.Target, source));
+                    after.Add((target, source));
                     break;
                 default:
-                    after.Add((update.Target, _code.Write(update.Value)));
+                    after.Add((target, _code.Write(update.Value)));
                     break;
             }
         }

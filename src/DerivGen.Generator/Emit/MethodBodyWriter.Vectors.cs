@@ -31,10 +31,11 @@ internal sealed partial class MethodBodyWriter
     {
         foreach (SpanDeclaration span in _plan.SpanDeclarations)
         {
+            string name = span.IsNext ? _scope.NextSpan(span.Span) : _context.Name(span.Span);
             _writer.Line(span.GradientSlice is int slice
-                ? "global::System.Span<" + ExpressionWriter.TypeKeyword(_context.Spec.ReturnType) + "> " + span.Span + " = "
+                ? "global::System.Span<" + ExpressionWriter.TypeKeyword(_context.Spec.ReturnType) + "> " + name + " = "
                     + _context.GradientName + ".Slice(" + _context.VectorOffset[slice] + ", " + Length(slice) + "); // accumulated in place"
-                : StackOrHeapSpan(span.Span, Length(span.Vector), _context.Spec.ReturnType));
+                : StackOrHeapSpan(name, Length(span.Vector), _context.Spec.ReturnType));
         }
     }
 
@@ -70,7 +71,7 @@ internal sealed partial class MethodBodyWriter
             {
                 using (_writer.Block("for (int " + _element + " = 0; " + _element + " < " + Length(term.Vector) + "; " + _element + "++)"))
                 {
-                    _writer.Line(target + "[" + at + _element + "] += " + coefficient + term.SourceSpan + "[" + _element + "];");
+                    _writer.Line(target + "[" + at + _element + "] += " + coefficient + _context.Name(term.SourceSpan!) + "[" + _element + "];");
                 }
             }
         }
@@ -92,7 +93,7 @@ internal sealed partial class MethodBodyWriter
         }
 
         // Nodes of the loop's own stage were locals of its body, out of scope here: they are written out again.
-        var again = new ExpressionWriter(x => x.Stage >= loop.InsideStage ? null : NameOf(x), formula: false, calleeDerivative: CalleeDerivative);
+        var again = new ExpressionWriter(x => x.Stage >= loop.InsideStage ? _context.LeafName(x) : NameOf(x), formula: false, calleeDerivative: CalleeDerivative);
         bool unit = term.Coefficient.IsConstant(1);
         string Add(VectorTerm element)
         {
@@ -102,7 +103,8 @@ internal sealed partial class MethodBodyWriter
                 ? InRange(again.Write(element.Index!), element.Vector) + " " + update
                 : update;
         }
-        _writer.Line("// " + target + " += " + adjoint + " · " + reversal.Span + ", " + reversal.Span + " not stored: the loop over " + loop.Index
+        string span = _context.Name(reversal.Span);
+        _writer.Line("// " + target + " += " + adjoint + " · " + span + ", " + span + " not stored: the loop over " + loop.Index
             + " replayed with the adjoint " + adjoint + " (reverse mode)");
         foreach (VectorTerm element in reversal.InitialTerms)
         {
@@ -129,7 +131,7 @@ internal sealed partial class MethodBodyWriter
             switch (statement.Kind)
             {
                 case SpanStatementKind.AssignedOnceEach:
-                    _writer.Line("// " + statement.Span + " is not cleared: the loop assigns each element exactly once");
+                    _writer.Line("// " + _context.Name(statement.Span) + " is not cleared: the loop assigns each element exactly once");
                     break;
                 case SpanStatementKind.ClearTail:
                     // Only the elements after the loop's last pair (or triple, …), by a loop of fewer than `stride`
@@ -137,13 +139,13 @@ internal sealed partial class MethodBodyWriter
                     using (_writer.Block("for (int " + _element + " = " + statement.Stride + " * (" + _code.Write(loop.End!) + "); " + _element + " < " + Length(statement.Vector) + "; "
                         + _element + "++) // the loop below assigns each element before these exactly once"))
                     {
-                        _writer.Line(statement.Span + "[" + _element + "] = " + _code.Write(_program.Builder.Zero(_context.Spec.ReturnType)) + ";");
+                        _writer.Line(_context.Name(statement.Span) + "[" + _element + "] = " + _code.Write(_program.Builder.Zero(_context.Spec.ReturnType)) + ";");
                     }
 
                     _writer.Blank();
                     break;
                 default:
-                    _writer.Line(statement.Span + ".Clear();");
+                    _writer.Line(_context.Name(statement.Span) + ".Clear();");
                     break;
             }
         }
@@ -156,7 +158,7 @@ internal sealed partial class MethodBodyWriter
         var copies = new List<string>();
         foreach (SpanStatement statement in before ? _plan.SpanStarts[loop] : _plan.SpanEnds[loop])
         {
-            string own = statement.Span;
+            string own = _context.Name(statement.Span);
             switch (statement.Kind)
             {
                 case SpanStatementKind.Scale:
@@ -174,12 +176,13 @@ internal sealed partial class MethodBodyWriter
 
                     break;
                 case SpanStatementKind.ThroughNext:
-                    _writer.Line(own + "Next.Clear();");
-                    AddTerms(own + "Next", string.Empty, statement.Terms, null);
-                    copies.Add(own + "Next.CopyTo(" + own + ");");
+                    string next = _scope.NextSpan(statement.Span);
+                    _writer.Line(next + ".Clear();");
+                    AddTerms(next, string.Empty, statement.Terms, null);
+                    copies.Add(next + ".CopyTo(" + own + ");");
                     break;
                 default:
-                    AddTerms(own, string.Empty, statement.Terms, own);
+                    AddTerms(own, string.Empty, statement.Terms, statement.Span);
                     break;
             }
         }
@@ -190,40 +193,45 @@ internal sealed partial class MethodBodyWriter
         }
     }
 
-    private void WriteGradient()
-    {
-        for (int v = 0; v < _program.Vectors.Length; v++)
-        {
-            string offset = _context.VectorOffset[v] == "0" ? string.Empty : _context.VectorOffset[v];
-            if (_plan.InGradient.FirstOrDefault(p => p.Value == v).Key is { } span)
-            {
-                _writer.Line("// ∂" + _context.BareName + "/∂" + Identifiers.Unescape(_program.Vectors[v]) + "[…] is " + span + ", already in " + _context.GradientName + ".");
-                continue;
-            }
-
-            _writer.Line(_context.GradientName + ".Slice(" + _context.VectorOffset[v] + ", " + Length(v) + ").Clear(); // ∂" + _context.BareName + "/∂"
-                + Identifiers.Unescape(_program.Vectors[v]) + "[…]");
-            AddTerms(_context.GradientName, offset, _program.VectorGradient.Where(t => t.Vector == v), null);
-        }
-
-        for (int i = 0; i < _program.Variables.Length; i++)
-        {
-            _writer.Line(_context.GradientName + "[" + _context.ScalarOffset[i] + "] = " + _code.Write(_program.Gradient[i]) + "; // " + _context.PartialName(i));
-        }
-    }
-
-    /// <summary>The lower triangle, each entry below the diagonal mirrored above it.</summary>
-    private void WriteHessian()
+    /// <summary>The results as the plan lists them (<see cref="ResultStatements"/>): the gradient, then after a blank line
+    /// the Hessian's lower triangle, each entry below the diagonal mirrored above it, then after a blank line the return.</summary>
+    private void WriteResults()
     {
         int n = _program.Variables.Length;
-        _writer.Line();
-        for (int i = 0; i < n; i++)
+        bool hessianStarted = false;
+        foreach (ResultStatement statement in _plan.Results)
         {
-            for (int j = 0; j <= i; j++)
+            if (_plan.WithHessian && !hessianStarted && statement.Kind is ResultKind.HessianEntry or ResultKind.Return)
             {
-                string target = _context.HessianName + "[" + Text.Count((i * n) + j) + "]";
-                string mirror = i == j ? string.Empty : _context.HessianName + "[" + Text.Count((j * n) + i) + "] = ";
-                _writer.Line(mirror + target + " = " + _code.Write(_program.Hessian![i][j]) + "; // " + _context.SecondPartialName(i, j));
+                _writer.Line();
+                hessianStarted = true;
+            }
+
+            int v = statement.Row;
+            switch (statement.Kind)
+            {
+                case ResultKind.VectorGradientInPlace:
+                    _writer.Line("// ∂" + _context.BareName + "/∂" + Identifiers.Unescape(_program.Vectors[v]) + "[…] is " + _context.Name(statement.Span!) + ", already in " + _context.GradientName + ".");
+                    break;
+                case ResultKind.VectorGradient:
+                    string offset = _context.VectorOffset[v] == "0" ? string.Empty : _context.VectorOffset[v];
+                    _writer.Line(_context.GradientName + ".Slice(" + _context.VectorOffset[v] + ", " + Length(v) + ").Clear(); // ∂" + _context.BareName + "/∂"
+                        + Identifiers.Unescape(_program.Vectors[v]) + "[…]");
+                    AddTerms(_context.GradientName, offset, statement.Terms!, null);
+                    break;
+                case ResultKind.GradientEntry:
+                    _writer.Line(_context.GradientName + "[" + _context.ScalarOffset[statement.Row] + "] = " + _code.Write(statement.Value!) + "; // " + _context.PartialName(statement.Row));
+                    break;
+                case ResultKind.HessianEntry:
+                    int i = statement.Row, j = statement.Column;
+                    string target = _context.HessianName + "[" + Text.Count((i * n) + j) + "]";
+                    string mirror = statement.Mirrored ? _context.HessianName + "[" + Text.Count((j * n) + i) + "] = " : string.Empty;
+                    _writer.Line(mirror + target + " = " + _code.Write(statement.Value!) + "; // " + _context.SecondPartialName(i, j));
+                    break;
+                default:
+                    _writer.Line();
+                    _writer.Line("return " + _code.Write(statement.Value!) + ";");
+                    break;
             }
         }
     }

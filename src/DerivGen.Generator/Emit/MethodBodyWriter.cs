@@ -39,7 +39,7 @@ internal sealed partial class MethodBodyWriter
 
     public static void Write(IndentedWriter writer, EmitContext context, bool withHessian, string thrower)
     {
-        MethodPlan plan = MethodPlan.Create(context.Program, withHessian, context.Spec.HasSinCos);
+        MethodPlan plan = MethodPlan.Create(context.Program, withHessian, context.Spec.HasSinCos, context.Spec.HasOutputs);
         new MethodBodyWriter(writer, context, plan, thrower).WriteBody();
     }
 
@@ -57,21 +57,14 @@ internal sealed partial class MethodBodyWriter
             WriteLoop(loop);
         }
 
-        if (_context.Spec.HasOutputs)
+        if (_plan.Results.Count == 0)
         {
             _writer.TrimBlank();
             return; // The outputs and their rows are written where the method writes them.
         }
 
         _writer.Blank();
-        WriteGradient();
-        if (_plan.WithHessian)
-        {
-            WriteHessian();
-        }
-
-        _writer.Line();
-        _writer.Line("return " + _code.Write(_program.Value) + ";");
+        WriteResults();
     }
 
     /// <summary>The buffers one call of another generated method fills with its partial derivatives.</summary>
@@ -125,7 +118,7 @@ internal sealed partial class MethodBodyWriter
                 default:
                     // A temporary is written with its own definition, not its name.
                     _writer.Line(keyword + " " + _scope[node] + " = "
-                        + new ExpressionWriter(x => x == node ? null : NameOf(x), formula: false, calleeDerivative: CalleeDerivative).Write(node) + ";");
+                        + new ExpressionWriter(x => x == node ? _context.LeafName(x) : NameOf(x), formula: false, calleeDerivative: CalleeDerivative).Write(node) + ";");
                     _written.Add(node);
                     break;
             }
@@ -146,7 +139,7 @@ internal sealed partial class MethodBodyWriter
         {
             // The condition is written out in full (with && and || short-circuiting as in the user's code), reading only
             // temporaries already computed.
-            string condition = new ExpressionWriter(x => _written.Contains(x) ? NameOf(x) : null, formula: false).Write(guard);
+            string condition = new ExpressionWriter(x => _written.Contains(x) ? NameOf(x) : _context.LeafName(x), formula: false).Write(guard);
             definition = condition + " ? " + definition + " : " + Literals.CSharp(0, node.Type);
         }
 

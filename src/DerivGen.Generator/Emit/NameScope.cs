@@ -1,3 +1,4 @@
+using System;
 using System.Collections.Generic;
 using System.Linq;
 using DerivGen.Generator.Differentiation;
@@ -14,21 +15,27 @@ namespace DerivGen.Generator.Emit;
 /// The order is fixed, because it decides the names (<c>value</c> before <c>value2</c>): when the scope is made,
 /// <c>value</c>, the user's local names, snapshots (<c>sBefore</c>), the other temporaries (<see cref="TemporaryNames"/>)
 /// and the aliases of equal SinCos nodes; then, as the writer reaches them, the call buffers (<c>…Gradient</c>,
-/// <c>…Hessian</c>), the span index <c>k</c>, and <c>…Start</c>, <c>…Next</c>, <c>row</c> and <c>…Adjoint</c>.
+/// <c>…Hessian</c>), the span index <c>k</c>, the spans' <c>…Next</c> buffers, and <c>…Start</c>, <c>…Next</c>,
+/// <c>row</c> and <c>…Adjoint</c>. The running derivatives' names are allocated before all of these, once per program
+/// (<see cref="DerivativeNames"/>), and reserved here.
 /// </para>
 /// </summary>
 internal sealed class NameScope
 {
     private readonly TemporaryNames _names;
     private readonly Dictionary<Node, string> _nameOf = new();
+    private readonly EmitContext _context;
+    private readonly Dictionary<string, string> _nextSpans = new(StringComparer.Ordinal);
 
     public NameScope(EmitContext context, MethodPlan plan, string thrower)
     {
+        _context = context;
         DerivativeProgram program = plan.Program;
         List<Node> temporaries = plan.Temporaries;
         var reserved = context.Spec.Parameters.Select(p => p.Name)
             .Concat(new[] { context.GradientName, context.HessianName, context.JacobianName, thrower })
             .Concat(program.StateNames)
+            .Concat(context.DerivativeNames.Values)
             .Concat(program.Loops.Where(l => l.Index is not null).Select(l => l.Index!));
         _names = new TemporaryNames(reserved);
         if (temporaries.Contains(program.Value) && program.Names.LocalName(program.Value) is null)
@@ -43,12 +50,12 @@ internal sealed class NameScope
 
         foreach (Node node in plan.Snapshots)
         {
-            _nameOf[node] = _names.Claim(Identifiers.Unescape(node.Text!) + "Before");
+            _nameOf[node] = _names.Claim(Identifiers.Unescape(context.Name(node.Text!)) + "Before");
         }
 
         foreach (Node node in temporaries.Where(t => !_nameOf.ContainsKey(t)))
         {
-            _nameOf[node] = _names.For(node, program.Names, Of);
+            _nameOf[node] = _names.For(node, program.Names, x => x.Kind == NodeKind.Parameter ? context.Name(x.Text!) : Of(x));
         }
 
         foreach (KeyValuePair<Node, Node> pair in plan.SinCos.SameAs)
@@ -57,8 +64,28 @@ internal sealed class NameScope
         }
     }
 
-    /// <summary>The local holding the node, or null when it is written inline.</summary>
-    public string? Of(Node node) => _nameOf.TryGetValue(node, out string? name) ? name : null;
+    /// <summary>
+    /// The names of a program's running derivatives by id (<see cref="DerivativeLocals"/>): each its hint, made unique
+    /// in the order the ids were made, clear of the parameters, the names DerivGen generates, the carried locals and
+    /// the user's locals. This is the one clash-avoiding rename of these locals; the body's scope then reserves them.
+    /// </summary>
+    public static Dictionary<string, string> DerivativeNames(MethodSpec spec, DerivativeProgram program)
+    {
+        var taken = new HashSet<string>(spec.Parameters.Select(p => Identifiers.Unescape(p.Name)).Concat(GeneratedNames.Reserved), StringComparer.Ordinal);
+        taken.UnionWith(program.StateNames);
+        ProgramGraph.CollectLocalNames(spec.Body, taken);
+        var names = new Dictionary<string, string>(StringComparer.Ordinal);
+        for (int id = 0; id < program.Locals.Hints.Count; id++)
+        {
+            names[DerivativeLocals.Id(id)] = Identifiers.Unique(program.Locals.Hints[id], taken);
+        }
+
+        return names;
+    }
+
+    /// <summary>The local holding the node (a snapshot or temporary, or the running derivative a leaf reads), or null
+    /// when it is written inline.</summary>
+    public string? Of(Node node) => _nameOf.TryGetValue(node, out string? name) ? name : _context.LeafName(node);
 
     public string this[Node node] => _nameOf[node];
 
@@ -73,7 +100,18 @@ internal sealed class NameScope
     public string SpanIndex() => _names.Claim("k");
 
     /// <summary>The local a carried local's new value goes through (<paramref name="suffix"/>: Start or Next).</summary>
-    public string Through(string target, string suffix) => _names.Claim(Identifiers.Unescape(target) + suffix);
+    public string Through(string target, string suffix) => _names.Claim(Identifiers.Unescape(_context.Name(target)) + suffix);
+
+    /// <summary>The buffer a span's new value is computed in (<paramref name="span"/> is its id), the same name each time.</summary>
+    public string NextSpan(string span)
+    {
+        if (!_nextSpans.TryGetValue(span, out string? name))
+        {
+            _nextSpans[span] = name = _names.Claim(_context.Name(span) + "Next");
+        }
+
+        return name;
+    }
 
     /// <summary>The start of an output's Jacobian row.</summary>
     public string Row() => _names.Claim("row");

@@ -83,7 +83,7 @@ internal sealed class TemporaryNames
 
     private static string? SimpleName(Node node, Func<Node, string?> nameOf)
     {
-        string? name = node.Kind == NodeKind.Parameter ? node.Text : node.IsLeaf ? null : nameOf(node);
+        string? name = node.Kind == NodeKind.Parameter || !node.IsLeaf ? nameOf(node) : null;
         if (name is null || name.Length > 24)
         {
             return null;

@@ -67,6 +67,10 @@ internal sealed record IrLocal(string Name, ScalarType Type) : IrExpression(Type
 /// field or a static property), as a fully qualified C# expression.</summary>
 internal sealed record IrExternal(string Text, ScalarType Type) : IrExpression(Type);
 
+/// <summary>An index in the gradient span: <paramref name="Constant"/> plus the lengths of the vectors
+/// <paramref name="VectorsBefore"/> (Differentiation's pair method shifts its reads by one; Lower never makes it).</summary>
+internal sealed record IrSlotOffset(int Constant, EquatableArray<string> VectorsBefore) : IrExpression(ScalarType.Int32);
+
 internal sealed record IrNegate(IrExpression Operand, ScalarType Type) : IrExpression(Type);
 
 internal sealed record IrBinary(BinaryOperator Operator, IrExpression Left, IrExpression Right, ScalarType Type)

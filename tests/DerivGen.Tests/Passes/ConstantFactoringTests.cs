@@ -75,7 +75,7 @@ public sealed class ConstantFactoringTests
     private static List<(string Target, double Factor)> Factors(string method)
     {
         MethodPlan plan = PassHarness.Plan(Members, method);
-        return plan.Factored.Values.SelectMany(f => f).Select(f => (f.Target, f.Factor.Value)).ToList();
+        return plan.Factored.Values.SelectMany(f => f).Select(f => (PassHarness.Name(plan, f.Target), f.Factor.Value)).ToList();
     }
 
     [Fact]
@@ -86,7 +86,7 @@ public sealed class ConstantFactoringTests
 
         // The update inside the loop no longer multiplies by the constant.
         MethodPlan plan = PassHarness.Plan(Members, "Scaled");
-        StateUpdate update = plan.Next[plan.Program.Loops[0]].Single(u => u.Target == "dS_dX");
+        StateUpdate update = plan.Next[plan.Program.Loops[0]].Single(u => PassHarness.Name(plan, u.Target) == "dS_dX");
         Assert.Equal(Generator.Symbolic.NodeKind.Add, update.Value.Kind);
         Assert.DoesNotContain(update.Value.Arguments, a => a.Kind == Generator.Symbolic.NodeKind.Multiply);
     }

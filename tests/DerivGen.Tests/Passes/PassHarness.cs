@@ -51,14 +51,18 @@ internal static class PassHarness
     private static MethodPlan PlanOf(MethodSpec spec, bool withHessian, bool? hasSinCos)
     {
         DerivativeProgram program = DerivativeProgram.Create(withHessian ? spec : spec with { EmitHessian = false }, default);
-        return MethodPlan.Create(program, withHessian, hasSinCos ?? spec.HasSinCos);
+        return MethodPlan.Create(program, withHessian, hasSinCos ?? spec.HasSinCos, spec.HasOutputs);
     }
+
+    /// <summary>A key of the plan by name: a carried local's name, or a running derivative's name hint for its id
+    /// (<see cref="DerivativeLocals"/>; Emit makes it unique, which these sources never need).</summary>
+    public static string Name(MethodPlan plan, string key) => DerivativeLocals.IsId(key) ? plan.Program.Locals.Hint(key) : key;
 
     /// <summary>The targets of a loop's end-of-iteration assignments.</summary>
     public static IReadOnlyList<string> NextTargets(MethodPlan plan, int loop = 0) =>
-        plan.Next[plan.Program.Loops[loop]].Select(u => u.Target).ToList();
+        plan.Next[plan.Program.Loops[loop]].Select(u => Name(plan, u.Target)).ToList();
 
     /// <summary>The targets of every assignment (before loops and in them) of the plan.</summary>
     public static ISet<string> AllTargets(MethodPlan plan) =>
-        new HashSet<string>(plan.Initial.Values.Concat(plan.Next.Values).SelectMany(u => u).Select(u => u.Target), StringComparer.Ordinal);
+        new HashSet<string>(plan.Initial.Values.Concat(plan.Next.Values).SelectMany(u => u).Select(u => Name(plan, u.Target)), StringComparer.Ordinal);
 }

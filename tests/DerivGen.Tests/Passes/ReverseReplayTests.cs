@@ -248,7 +248,7 @@ public sealed class ReverseReplayTests : IClassFixture<InnerLoopReplayFixture>
     public void ThePassReplaysExactlyTheseSpans(string method, string spans)
     {
         MethodPlan plan = PassHarness.PlanInSource(InnerLoopReplayFixture.Source, method);
-        Assert.Equal(spans, string.Join(",", plan.Replayed.Keys.OrderBy(k => k, StringComparer.Ordinal)));
+        Assert.Equal(spans, string.Join(",", plan.Replayed.Keys.Select(k => PassHarness.Name(plan, k)).OrderBy(k => k, StringComparer.Ordinal)));
         foreach (ReverseReplay replay in plan.Replayed.Values)
         {
             // The inner loop replayed is the last loop of its parent's body (nothing runs between it and the replay).

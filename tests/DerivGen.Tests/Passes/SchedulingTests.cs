@@ -156,7 +156,7 @@ public sealed class SchedulingTests
         MethodPlan plan = Plan("Invariant");
         LoopSegment loop = plan.Program.Loops[0];
         Assert.Equal(new[] { ("s", AssignmentKind.InPlace, AssignmentForm.Add), ("dS_dX", AssignmentKind.InPlace, AssignmentForm.Add) },
-            plan.Ends[loop].Select(a => (a.Update.Target, a.Kind, a.Form)));
+            plan.Ends[loop].Select(a => (PassHarness.Name(plan, a.Update.Target), a.Kind, a.Form)));
         Assert.All(plan.Starts[loop], a => Assert.Equal(AssignmentKind.Declare, a.Kind)); // the first assignment of each declares it
     }
 
@@ -168,7 +168,7 @@ public sealed class SchedulingTests
         // none, is assigned in turn.
         MethodPlan plan = Plan("Coupled");
         LoopSegment loop = plan.Program.Loops[0];
-        var kinds = plan.Ends[loop].ToDictionary(a => a.Update.Target, a => a.Kind);
+        var kinds = plan.Ends[loop].ToDictionary(a => PassHarness.Name(plan, a.Update.Target), a => a.Kind);
         Assert.Equal(AssignmentKind.ThroughLocal, kinds["p"]);
         Assert.Equal(AssignmentKind.ThroughLocal, kinds["s"]);
         Assert.Equal(AssignmentKind.ThroughLocal, kinds["dS_dX"]);

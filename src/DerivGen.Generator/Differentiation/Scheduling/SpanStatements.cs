@@ -31,8 +31,9 @@ internal enum SpanStatementKind
 }
 
 /// <summary>A span to declare before any loop: a stack or heap buffer of the vector's length, or the slice of the gradient
-/// for <see cref="GradientSlice"/> (<see cref="InPlaceAccumulation.InGradient"/>).</summary>
-internal sealed record SpanDeclaration(string Span, int Vector, int? GradientSlice = null);
+/// for <see cref="GradientSlice"/> (<see cref="InPlaceAccumulation.InGradient"/>); with <see cref="IsNext"/>, the buffer
+/// the span's new value is computed in (<see cref="SpanStatementKind.ThroughNext"/>).</summary>
+internal sealed record SpanDeclaration(string Span, int Vector, int? GradientSlice = null, bool IsNext = false);
 
 /// <summary>One statement on a span: the span, its vector, the terms it adds (or assigns), and its stride or factor.</summary>
 internal sealed record SpanStatement(SpanStatementKind Kind, string Span, int Vector, IReadOnlyList<VectorTerm> Terms, int Stride = 0, Node? Factor = null);
@@ -62,7 +63,7 @@ internal static class SpanStatements
 
                 if (!plan.UpdatesInPlace(loop, d, v) && declared.Add(own + "Next"))
                 {
-                    plan.SpanDeclarations.Add(new SpanDeclaration(own + "Next", v));
+                    plan.SpanDeclarations.Add(new SpanDeclaration(own, v, IsNext: true));
                 }
             }
         }
