@@ -55,7 +55,17 @@ internal sealed class NameScope
         {
             _nameOf[pair.Key] = _nameOf[pair.Value];
         }
+
+        foreach (SpanSnapshot snapshot in plan.SpanSnapshots)
+        {
+            _spanSnapshots[snapshot] = _names.Claim(snapshot.Span + "Before");
+        }
     }
+
+    private readonly Dictionary<SpanSnapshot, string> _spanSnapshots = new();
+
+    /// <summary>The span holding a copy of a running-derivative span (<see cref="MethodPlan.SpanSnapshots"/>).</summary>
+    public string this[SpanSnapshot snapshot] => _spanSnapshots[snapshot];
 
     /// <summary>The local holding the node, or null when it is written inline.</summary>
     public string? Of(Node node) => _nameOf.TryGetValue(node, out string? name) ? name : null;

@@ -39,6 +39,7 @@ internal sealed class Scheduling
         _reachable = Graph.Reachable(_plan.Roots.Select(r => r.Node));
         CountUses();
         FindSnapshots();
+        FindSpanSnapshots();
         FindConditionalEvaluation();
         FindCalls();
         _plan.SinCos = MathCallSharing.Find(_hasSinCos, _reachable, Guarded);
@@ -113,6 +114,78 @@ internal sealed class Scheduling
         {
             _plan.Snapshots.Add(leaf);
         }
+    }
+
+    /// <summary>
+    /// The same for the spans of running derivatives with respect to vectors: a vector term reads the span of its leaf
+    /// (∂s/∂w as the leaf's value s stands for it) where it is used — at the end of an iteration, before a loop, at the
+    /// end or at an output. When a loop that updates that span has started in between (a nested loop updating the local
+    /// that an outer iteration read at its top, or a later loop updating a local whose earlier value was kept in
+    /// another), the span no longer holds ∂s/∂w there: the term reads a copy taken where the leaf's value holds. Any loop
+    /// carrying a local with that span counts as updating it (conservative: a copy too many costs time, never
+    /// correctness). Replayed spans are not stored and have no copies.
+    /// </summary>
+    private void FindSpanSnapshots()
+    {
+        Dictionary<string, ReverseReplay> replayed = _plan.Replayed;
+        var spanLoops = new Dictionary<string, List<LoopSegment>>(StringComparer.Ordinal);
+        foreach (LoopSegment loop in _program.Loops)
+        {
+            foreach (LoopState state in loop.States)
+            {
+                if (_program.States.TryGetValue(state, out StateDerivatives? d))
+                {
+                    foreach (string span in d.VectorNames.Where(span => !replayed.ContainsKey(span)))
+                    {
+                        if (!spanLoops.TryGetValue(span, out List<LoopSegment>? loops))
+                        {
+                            spanLoops[span] = loops = new List<LoopSegment>();
+                        }
+
+                        loops.Add(loop);
+                    }
+                }
+            }
+        }
+
+        var found = new Dictionary<(Node, string), SpanSnapshot>();
+        void Check(IEnumerable<VectorTerm> terms, int useStage)
+        {
+            foreach (VectorTerm term in terms)
+            {
+                if (term is { SourceSpan: { } span, SourceLeaf: { } leaf } && leaf.Stage < useStage && spanLoops.TryGetValue(span, out List<LoopSegment>? loops)
+                    && loops.Any(loop => leaf.Stage < loop.InsideStage && loop.InsideStage <= useStage))
+                {
+                    if (!found.TryGetValue((leaf, span), out SpanSnapshot? snapshot))
+                    {
+                        found[(leaf, span)] = snapshot = new SpanSnapshot(leaf, span, term.Vector);
+                        _plan.SpanSnapshots.Add(snapshot);
+                    }
+
+                    _plan.SpanSnapshotOf[term] = snapshot;
+                }
+            }
+        }
+
+        foreach (LoopSegment loop in _program.Loops)
+        {
+            foreach (LoopState state in loop.States)
+            {
+                if (_program.States.TryGetValue(state, out StateDerivatives? d))
+                {
+                    // A replayed span's own terms are written out again by the replay (single elements, no span read).
+                    Check(d.InitialVector.Where(t => !replayed.ContainsKey(d.VectorNames[t.Vector])), loop.BeforeStage);
+                    Check(d.NextVector.Where(t => !replayed.ContainsKey(d.VectorNames[t.Vector])), loop.BodyEndStage);
+                }
+            }
+        }
+
+        foreach (OutputWrite output in _program.Outputs)
+        {
+            Check(output.VectorRow, output.Stage);
+        }
+
+        Check(_program.VectorGradient, _program.FinalStage);
     }
 
     /// <summary>
