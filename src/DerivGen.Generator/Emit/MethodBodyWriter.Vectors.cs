@@ -50,7 +50,7 @@ internal sealed partial class MethodBodyWriter
         foreach (SpanSnapshot snapshot in _plan.SpanSnapshots.Where(s => s.Leaf.Stage == stage))
         {
             _writer.Line(snapshot.Span + ".CopyTo(" + _scope[snapshot] + "); // ∂" + Identifiers.Unescape(snapshot.Leaf.Text!) + "/∂"
-                + Identifiers.Unescape(_program.Vectors[snapshot.Vector]) + " here, read after a loop updates " + snapshot.Span);
+                + Identifiers.Unescape(_program.Vectors[snapshot.Vector]) + " here, read after " + snapshot.Span + " has changed");
         }
     }
 

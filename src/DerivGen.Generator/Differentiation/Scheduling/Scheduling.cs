@@ -186,6 +186,50 @@ internal sealed class Scheduling
         }
 
         Check(_program.VectorGradient, _program.FinalStage);
+
+        // Before a loop, the spans are cleared (or scaled, or started) one after another: a start that reads another
+        // span of the same loop which is not carried on unchanged there would read it cleared or already started. It
+        // reads a copy taken where its leaf's value holds (at the latest, just before the loop's statements).
+        foreach (LoopSegment loop in _program.Loops)
+        {
+            var restarted = new HashSet<string>(StringComparer.Ordinal);
+            foreach (LoopState state in loop.States)
+            {
+                if (_program.States.TryGetValue(state, out StateDerivatives? d))
+                {
+                    for (int v = 0; v < d.VectorNames.Length; v++)
+                    {
+                        string own = d.VectorNames[v];
+                        var terms = d.InitialVector.Where(t => t.Vector == v).ToList();
+                        if (!replayed.ContainsKey(own) && !(terms.Count == 1 && _plan.ReadsSpan(terms[0], own) && terms[0].Coefficient.IsConstant(1)))
+                        {
+                            restarted.Add(own);
+                        }
+                    }
+                }
+            }
+
+            foreach (LoopState state in loop.States)
+            {
+                if (_program.States.TryGetValue(state, out StateDerivatives? d))
+                {
+                    foreach (VectorTerm term in d.InitialVector.Where(t => !replayed.ContainsKey(d.VectorNames[t.Vector])))
+                    {
+                        if (term is { SourceSpan: { } span, SourceLeaf: { } leaf } && span != d.VectorNames[term.Vector] && restarted.Contains(span)
+                            && !_plan.SpanSnapshotOf.ContainsKey(term))
+                        {
+                            if (!found.TryGetValue((leaf, span), out SpanSnapshot? snapshot))
+                            {
+                                found[(leaf, span)] = snapshot = new SpanSnapshot(leaf, span, term.Vector);
+                                _plan.SpanSnapshots.Add(snapshot);
+                            }
+
+                            _plan.SpanSnapshotOf[term] = snapshot;
+                        }
+                    }
+                }
+            }
+        }
     }
 
     /// <summary>
