@@ -99,6 +99,49 @@ public sealed class VectorSpanSnapshotFixture : CompiledFixture
                 return kept * s;
             }
 
+            // Bug 3 (found while fixing bugs 1 and 2, same family): before the second loop, dS_dW is scaled by 3 for
+            // s's start, and t's start (t = s of before the scaling) then read the scaled span.
+            [Differentiate(nameof(w), Hessian = false)]
+            public static double StartReadsASpanScaledForTheSameLoop(double[] w)
+            {
+                double s = 0.0;
+                for (int i = 0; i < w.Length; i++)
+                {
+                    s += w[i];
+                }
+
+                double t = s;
+                s *= 3.0;
+                for (int r = 0; r < 2; r++)
+                {
+                    t += s;
+                    s += 1.0;
+                }
+
+                return t;
+            }
+
+            // The same with the other order of the loop's updates and a product at the end (through a Next span).
+            [Differentiate(nameof(w), Hessian = false)]
+            public static double StartReadsASpanScaledForTheSameLoopProduct(double[] w)
+            {
+                double s = 0.0;
+                for (int i = 0; i < w.Length; i++)
+                {
+                    s += w[i];
+                }
+
+                double t = s;
+                s *= 3.0;
+                for (int r = 0; r < 2; r++)
+                {
+                    s += 1.0;
+                    t += s;
+                }
+
+                return t * s;
+            }
+
             // The same through a method with outputs (the Jacobian rows read the spans where the outputs are written).
             [Differentiate(nameof(w))]
             public static void KeptAcrossALaterLoopOutputs(double[] w, Span<double> outputs)
@@ -133,7 +176,8 @@ public sealed class VectorSpanSnapshotFixture : CompiledFixture
 /// start value, by the outer iteration's update after a nested loop, or after a later loop. Found by the randomised
 /// suite's "d as a vector variable" variant (run seeds 3F6w5HTw9i-zRovcc and …dd at DERIVGEN_SOAK=8; cases
 /// dccGHhGjQ2w9Fixw3 and dxNSt92ChSZfc5dW3), present before the Differentiation/Emit restructuring too. Fixed in
-/// d483ab5: such terms read a copy of the span taken where the earlier value holds (MethodPlan.SpanSnapshots).
+/// d483ab5: such terms read a copy of the span taken where the earlier value holds (MethodPlan.SpanSnapshots); bug 3
+/// (a loop's start reading a span the same loop's start had already changed) in d912a62.
 /// Expected values are derived by hand (plain calculus, shown in each test) or MathNet.Numerics central differences.
 /// </summary>
 public sealed class VectorSpanSnapshotRegressionTests : IClassFixture<VectorSpanSnapshotFixture>
@@ -221,6 +265,28 @@ public sealed class VectorSpanSnapshotRegressionTests : IClassFixture<VectorSpan
         Assert.Equal(0.5, s);
         var gradient = new double[W.Length];
         Check.Close(m == 2 ? 1 + s : (1 + s) * (1 + (2 * s)), g(W, m, gradient), 1e-14, 0, "value");
+        Check.Close(new[] { expected, expected, expected }, gradient, 1e-14, 0, "gradient vs hand-derived");
+    }
+
+    /// <summary>
+    /// Bug 3 (same family, found while fixing bugs 1 and 2 by writing variants of them): the spans' starts before a loop
+    /// are made one after another, and t's start read dS_dW after s's start had already scaled it by 3. Closed forms,
+    /// S = Σw, ∂S/∂wₖ = 1: first method, t = S, s = 3S, then t ← t + s; s ← s + 1 twice: t = S + 3S + (3S + 1) = 7S + 1,
+    /// ∂t/∂wₖ = 7 (before the fix: 9). Second method, s ← s + 1; t ← t + s twice: s = 3S + 2, t = S + (3S + 1) + (3S + 2)
+    /// = 7S + 3, f = t·s, ∂f/∂wₖ = 7(3S + 2) + 3(7S + 3) = 42S + 23 = 44 at S = 0.5 (before the fix: 51).
+    /// </summary>
+    [Fact]
+    public void AStartReadingASpanTheSameLoopRestartsHasTheHandDerivedGradient()
+    {
+        double s = Sum(W);
+        var gradient = new double[W.Length];
+        var g = _fixture.Assembly.Method<PlainG>("Spans", "StartReadsASpanScaledForTheSameLoopGradient");
+        Check.Close((7 * s) + 1, g(W, gradient), 1e-14, 0, "value");
+        Check.Close(new[] { 7.0, 7.0, 7.0 }, gradient, 1e-14, 0, "gradient vs hand-derived");
+
+        var product = _fixture.Assembly.Method<PlainG>("Spans", "StartReadsASpanScaledForTheSameLoopProductGradient");
+        double expected = (42 * s) + 23;
+        Check.Close(((7 * s) + 3) * ((3 * s) + 2), product(W, gradient), 1e-14, 0, "value");
         Check.Close(new[] { expected, expected, expected }, gradient, 1e-14, 0, "gradient vs hand-derived");
     }
 
