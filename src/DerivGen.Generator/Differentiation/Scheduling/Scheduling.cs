@@ -11,7 +11,8 @@ namespace DerivGen.Generator.Differentiation;
 /// stage than its own (computed once before a loop rather than in every iteration — loop-invariant code motion), calls
 /// whose derivative buffers are read, and SinCos pairs; never to a node that could throw where the user's code would
 /// not (written inline inside the condition that guards it, see <see cref="ConditionalEvaluation"/>). A loop-carried
-/// value read after a loop that updates it is copied before (a snapshot).
+/// value read after a loop that updates it is copied before (a snapshot), and so is a span of running derivatives with
+/// respect to a vector (a span snapshot).
 /// </summary>
 internal sealed class Scheduling
 {
