@@ -69,6 +69,17 @@ internal sealed partial class MethodPlan
     /// <summary>Loop-carried values copied where their leaf's value holds, before a loop updates them (insertion order).</summary>
     public HashSet<Node> Snapshots { get; } = new();
 
+    /// <summary>Vector terms that read a running-derivative span after a loop that updates it has started since the value
+    /// their leaf stands for (the span holds a later value there): they read a copy of the span taken where the leaf's
+    /// value holds (<see cref="Scheduling"/>), as a scalar read does with a snapshot.</summary>
+    public Dictionary<VectorTerm, SpanSnapshot> SpanSnapshotOf { get; } = new();
+
+    /// <summary>The copies those terms read, in the order found (one per leaf and span).</summary>
+    public List<SpanSnapshot> SpanSnapshots { get; } = new();
+
+    /// <summary>Whether the term reads the span <paramref name="span"/> itself (not a copy taken earlier).</summary>
+    public bool ReadsSpan(VectorTerm term, string span) => term.SourceSpan == span && !SpanSnapshotOf.ContainsKey(term);
+
     /// <summary>Calls of other generated methods whose gradient buffer is read, in id order.</summary>
     public List<Node> GradientCalls { get; } = new();
 
@@ -129,8 +140,8 @@ internal sealed partial class MethodPlan
         plan._temporarySet = new HashSet<Node>(plan.Temporaries);
         StateAssignments.Schedule(plan);
         plan.Locals = LocalStatements.Schedule(plan);
-        plan.InGradient = InPlaceAccumulation.InGradient(program);
-        plan.SingleWrite = InPlaceAccumulation.SingleWrite(program, plan.Replayed);
+        plan.InGradient = InPlaceAccumulation.InGradient(program, plan.SpanSnapshotOf);
+        plan.SingleWrite = InPlaceAccumulation.SingleWrite(program, plan.Replayed, plan.SpanSnapshotOf);
         SpanStatements.Schedule(plan);
         plan.Outputs = ResultStatements.Outputs(plan);
         plan.Results = ResultStatements.Results(plan, hasOutputs);
@@ -138,7 +149,7 @@ internal sealed partial class MethodPlan
     }
 
     /// <summary>Whether a vector running derivative is added to where it is (<see cref="InPlaceAccumulation.UpdatesInPlace"/>).</summary>
-    public bool UpdatesInPlace(LoopSegment loop, StateDerivatives d, int v) => InPlaceAccumulation.UpdatesInPlace(Program, loop, d, v);
+    public bool UpdatesInPlace(LoopSegment loop, StateDerivatives d, int v) => InPlaceAccumulation.UpdatesInPlace(Program, loop, d, v, SpanSnapshotOf);
 
     private void AddResultRoots()
     {

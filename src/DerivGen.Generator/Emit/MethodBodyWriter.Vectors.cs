@@ -37,6 +37,22 @@ internal sealed partial class MethodBodyWriter
                     + _context.GradientName + ".Slice(" + _context.VectorOffset[slice] + ", " + Length(slice) + "); // accumulated in place"
                 : StackOrHeapSpan(name, Length(span.Vector), _context.Spec.ReturnType));
         }
+
+        foreach (SpanSnapshot snapshot in _plan.SpanSnapshots)
+        {
+            _writer.Line(StackOrHeapSpan(_scope[snapshot], Length(snapshot.Vector), _context.Spec.ReturnType));
+        }
+    }
+
+    /// <summary>The copies of running-derivative spans taken at a stage: where the carried value they stand for holds,
+    /// before anything of the stage (or a loop after it) updates the span.</summary>
+    private void WriteSpanSnapshots(int stage)
+    {
+        foreach (SpanSnapshot snapshot in _plan.SpanSnapshots.Where(s => s.Leaf.Stage == stage))
+        {
+            _writer.Line(_context.Name(snapshot.Span) + ".CopyTo(" + _scope[snapshot] + "); // ∂" + Identifiers.Unescape(_context.Name(snapshot.Leaf.Text!)) + "/∂"
+                + Identifiers.Unescape(_program.Vectors[snapshot.Vector]) + " here, read after " + _context.Name(snapshot.Span) + " has changed");
+        }
     }
 
     private void AddTerms(string target, string offset, IEnumerable<VectorTerm> terms, string? skipSource)
@@ -67,11 +83,12 @@ internal sealed partial class MethodBodyWriter
             {
                 WriteReplay(target, at, term, reversal);
             }
-            else if (term.SourceSpan != skipSource)
+            else if (_plan.SpanSnapshotOf.TryGetValue(term, out SpanSnapshot? snapshot) || term.SourceSpan != skipSource)
             {
+                string spanRead = snapshot is null ? _context.Name(term.SourceSpan!) : _scope[snapshot];
                 using (_writer.Block("for (int " + _element + " = 0; " + _element + " < " + Length(term.Vector) + "; " + _element + "++)"))
                 {
-                    _writer.Line(target + "[" + at + _element + "] += " + coefficient + _context.Name(term.SourceSpan!) + "[" + _element + "];");
+                    _writer.Line(target + "[" + at + _element + "] += " + coefficient + spanRead + "[" + _element + "];");
                 }
             }
         }

@@ -98,6 +98,7 @@ internal sealed partial class MethodBodyWriter
     /// written there.</summary>
     private void WriteTemporaries(int stage)
     {
+        WriteSpanSnapshots(stage);
         foreach (LocalStatement statement in _plan.Locals.TryGetValue(stage, out List<LocalStatement>? statements) ? statements : new List<LocalStatement>())
         {
             Node node = statement.Node;

@@ -62,6 +62,11 @@ internal sealed class NameScope
         {
             _nameOf[pair.Key] = _nameOf[pair.Value];
         }
+
+        foreach (SpanSnapshot snapshot in plan.SpanSnapshots)
+        {
+            _spanSnapshots[snapshot] = _names.Claim(context.Name(snapshot.Span) + "Before");
+        }
     }
 
     /// <summary>
@@ -82,6 +87,11 @@ internal sealed class NameScope
 
         return names;
     }
+
+    private readonly Dictionary<SpanSnapshot, string> _spanSnapshots = new();
+
+    /// <summary>The span holding a copy of a running-derivative span (<see cref="MethodPlan.SpanSnapshots"/>).</summary>
+    public string this[SpanSnapshot snapshot] => _spanSnapshots[snapshot];
 
     /// <summary>The local holding the node (a snapshot or temporary, or the running derivative a leaf reads), or null
     /// when it is written inline.</summary>

@@ -60,23 +60,24 @@ internal static class InPlaceAccumulation
     }
 
     /// <summary>In place when the span carries on with factor 1 and no other update at the end of the same loop reads it.</summary>
-    public static bool UpdatesInPlace(DerivativeProgram program, LoopSegment loop, StateDerivatives d, int v)
+    /// <remarks>A term that reads a copy of the span taken earlier (<see cref="MethodPlan.SpanSnapshotOf"/>) does not carry it on.</remarks>
+    public static bool UpdatesInPlace(DerivativeProgram program, LoopSegment loop, StateDerivatives d, int v, IReadOnlyDictionary<VectorTerm, SpanSnapshot> snapshots)
     {
-        bool carries = d.NextVector.Any(t => t.Vector == v && t.SourceSpan == d.VectorNames[v] && t.Coefficient.IsConstant(1));
+        bool carries = d.NextVector.Any(t => t.Vector == v && t.SourceSpan == d.VectorNames[v] && !snapshots.ContainsKey(t) && t.Coefficient.IsConstant(1));
         bool readByOthers = loop.States.Any(other => program.States.TryGetValue(other, out StateDerivatives? o) && o != d
             && o.NextVector.Any(t => t.SourceSpan == d.VectorNames[v]));
         return carries && !readByOthers;
     }
 
     /// <summary>The spans accumulated in the gradient itself, each with the vector whose slice it is.</summary>
-    public static Dictionary<string, int> InGradient(DerivativeProgram program)
+    public static Dictionary<string, int> InGradient(DerivativeProgram program, IReadOnlyDictionary<VectorTerm, SpanSnapshot> snapshots)
     {
         var inGradient = new Dictionary<string, int>(StringComparer.Ordinal);
         for (int v = 0; v < program.Vectors.Length; v++)
         {
             var terms = program.VectorGradient.Where(t => t.Vector == v).ToList();
             if (terms.Count == 1 && terms[0].Index is null && terms[0].SourceSpan is { } span && terms[0].Coefficient.IsConstant(1)
-                && !inGradient.ContainsKey(span))
+                && !snapshots.ContainsKey(terms[0]) && !inGradient.ContainsKey(span))
             {
                 inGradient[span] = v;
             }
@@ -86,7 +87,8 @@ internal static class InPlaceAccumulation
     }
 
     /// <summary>The spans whose loop writes each element exactly once, with the stride of the writes.</summary>
-    public static Dictionary<string, int> SingleWrite(DerivativeProgram program, IReadOnlyDictionary<string, ReverseReplay> replayed)
+    public static Dictionary<string, int> SingleWrite(DerivativeProgram program, IReadOnlyDictionary<string, ReverseReplay> replayed,
+        IReadOnlyDictionary<VectorTerm, SpanSnapshot> snapshots)
     {
         var singleWrite = new Dictionary<string, int>(StringComparer.Ordinal);
         foreach (LoopSegment loop in program.Loops)
@@ -97,7 +99,7 @@ internal static class InPlaceAccumulation
                 {
                     for (int v = 0; v < d.VectorNames.Length; v++)
                     {
-                        int stride = UpdatesInPlace(program, loop, d, v) ? SingleWriteLoop.Stride(program, loop, d, v, program.Vectors[v] + ".Length", replayed) : 0;
+                        int stride = UpdatesInPlace(program, loop, d, v, snapshots) ? SingleWriteLoop.Stride(program, loop, d, v, program.Vectors[v] + ".Length", replayed) : 0;
                         if (stride > 0)
                         {
                             singleWrite[d.VectorNames[v]] = stride;

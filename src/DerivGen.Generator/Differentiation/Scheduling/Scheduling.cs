@@ -11,7 +11,8 @@ namespace DerivGen.Generator.Differentiation;
 /// stage than its own (computed once before a loop rather than in every iteration — loop-invariant code motion), calls
 /// whose derivative buffers are read, and SinCos pairs; never to a node that could throw where the user's code would
 /// not (written inline inside the condition that guards it, see <see cref="ConditionalEvaluation"/>). A loop-carried
-/// value read after a loop that updates it is copied before (a snapshot).
+/// value read after a loop that updates it is copied before (a snapshot), and so is a span of running derivatives with
+/// respect to a vector (a span snapshot).
 /// </summary>
 internal sealed class Scheduling
 {
@@ -39,6 +40,7 @@ internal sealed class Scheduling
         _reachable = Graph.Reachable(_plan.Roots.Select(r => r.Node));
         CountUses();
         FindSnapshots();
+        FindSpanSnapshots();
         FindConditionalEvaluation();
         FindCalls();
         _plan.SinCos = MathCallSharing.Find(_hasSinCos, _reachable, Guarded);
@@ -112,6 +114,122 @@ internal sealed class Scheduling
             && _program.Loops.Any(loop => leaf.Stage < loop.InsideStage && loop.InsideStage <= useStage && _updatedBy[loop].Contains(leaf.Text!)))
         {
             _plan.Snapshots.Add(leaf);
+        }
+    }
+
+    /// <summary>
+    /// The same for the spans of running derivatives with respect to vectors: a vector term reads the span of its leaf
+    /// (∂s/∂w as the leaf's value s stands for it) where it is used — at the end of an iteration, before a loop, at the
+    /// end or at an output. When a loop that updates that span has started in between (a nested loop updating the local
+    /// that an outer iteration read at its top, or a later loop updating a local whose earlier value was kept in
+    /// another), the span no longer holds ∂s/∂w there: the term reads a copy taken where the leaf's value holds. Any loop
+    /// carrying a local with that span counts as updating it (conservative: a copy too many costs time, never
+    /// correctness). Replayed spans are not stored and have no copies.
+    /// </summary>
+    private void FindSpanSnapshots()
+    {
+        Dictionary<string, ReverseReplay> replayed = _plan.Replayed;
+        var spanLoops = new Dictionary<string, List<LoopSegment>>(StringComparer.Ordinal);
+        foreach (LoopSegment loop in _program.Loops)
+        {
+            foreach (LoopState state in loop.States)
+            {
+                if (_program.States.TryGetValue(state, out StateDerivatives? d))
+                {
+                    foreach (string span in d.VectorNames.Where(span => !replayed.ContainsKey(span)))
+                    {
+                        if (!spanLoops.TryGetValue(span, out List<LoopSegment>? loops))
+                        {
+                            spanLoops[span] = loops = new List<LoopSegment>();
+                        }
+
+                        loops.Add(loop);
+                    }
+                }
+            }
+        }
+
+        var found = new Dictionary<(Node, string), SpanSnapshot>();
+        void Check(IEnumerable<VectorTerm> terms, int useStage)
+        {
+            foreach (VectorTerm term in terms)
+            {
+                if (term is { SourceSpan: { } span, SourceLeaf: { } leaf } && leaf.Stage < useStage && spanLoops.TryGetValue(span, out List<LoopSegment>? loops)
+                    && loops.Any(loop => leaf.Stage < loop.InsideStage && loop.InsideStage <= useStage))
+                {
+                    if (!found.TryGetValue((leaf, span), out SpanSnapshot? snapshot))
+                    {
+                        found[(leaf, span)] = snapshot = new SpanSnapshot(leaf, span, term.Vector);
+                        _plan.SpanSnapshots.Add(snapshot);
+                    }
+
+                    _plan.SpanSnapshotOf[term] = snapshot;
+                }
+            }
+        }
+
+        foreach (LoopSegment loop in _program.Loops)
+        {
+            foreach (LoopState state in loop.States)
+            {
+                if (_program.States.TryGetValue(state, out StateDerivatives? d))
+                {
+                    // A replayed span's own terms are written out again by the replay (single elements, no span read).
+                    Check(d.InitialVector.Where(t => !replayed.ContainsKey(d.VectorNames[t.Vector])), loop.BeforeStage);
+                    Check(d.NextVector.Where(t => !replayed.ContainsKey(d.VectorNames[t.Vector])), loop.BodyEndStage);
+                }
+            }
+        }
+
+        foreach (OutputWrite output in _program.Outputs)
+        {
+            Check(output.VectorRow, output.Stage);
+        }
+
+        Check(_program.VectorGradient, _program.FinalStage);
+
+        // Before a loop, the spans are cleared (or scaled, or started) one after another: a start that reads another
+        // span of the same loop which is not carried on unchanged there would read it cleared or already started. It
+        // reads a copy taken where its leaf's value holds (at the latest, just before the loop's statements).
+        foreach (LoopSegment loop in _program.Loops)
+        {
+            var restarted = new HashSet<string>(StringComparer.Ordinal);
+            foreach (LoopState state in loop.States)
+            {
+                if (_program.States.TryGetValue(state, out StateDerivatives? d))
+                {
+                    for (int v = 0; v < d.VectorNames.Length; v++)
+                    {
+                        string own = d.VectorNames[v];
+                        var terms = d.InitialVector.Where(t => t.Vector == v).ToList();
+                        if (!replayed.ContainsKey(own) && !(terms.Count == 1 && _plan.ReadsSpan(terms[0], own) && terms[0].Coefficient.IsConstant(1)))
+                        {
+                            restarted.Add(own);
+                        }
+                    }
+                }
+            }
+
+            foreach (LoopState state in loop.States)
+            {
+                if (_program.States.TryGetValue(state, out StateDerivatives? d))
+                {
+                    foreach (VectorTerm term in d.InitialVector.Where(t => !replayed.ContainsKey(d.VectorNames[t.Vector])))
+                    {
+                        if (term is { SourceSpan: { } span, SourceLeaf: { } leaf } && span != d.VectorNames[term.Vector] && restarted.Contains(span)
+                            && !_plan.SpanSnapshotOf.ContainsKey(term))
+                        {
+                            if (!found.TryGetValue((leaf, span), out SpanSnapshot? snapshot))
+                            {
+                                found[(leaf, span)] = snapshot = new SpanSnapshot(leaf, span, term.Vector);
+                                _plan.SpanSnapshots.Add(snapshot);
+                            }
+
+                            _plan.SpanSnapshotOf[term] = snapshot;
+                        }
+                    }
+                }
+            }
         }
     }
 

@@ -35,6 +35,10 @@ internal enum SpanStatementKind
 /// the span's new value is computed in (<see cref="SpanStatementKind.ThroughNext"/>).</summary>
 internal sealed record SpanDeclaration(string Span, int Vector, int? GradientSlice = null, bool IsNext = false);
 
+/// <summary>A copy of the span <see cref="Span"/> (of the vector <see cref="Vector"/>) taken where the carried value
+/// <see cref="Leaf"/> holds (its stage), read by the terms that need that value after a loop has updated the span.</summary>
+internal sealed record SpanSnapshot(Node Leaf, string Span, int Vector);
+
 /// <summary>One statement on a span: the span, its vector, the terms it adds (or assigns), and its stride or factor.</summary>
 internal sealed record SpanStatement(SpanStatementKind Kind, string Span, int Vector, IReadOnlyList<VectorTerm> Terms, int Stride = 0, Node? Factor = null);
 
@@ -103,7 +107,7 @@ internal static class SpanStatements
             {
                 statements.Add(new SpanStatement(stride == 1 ? SpanStatementKind.AssignedOnceEach : SpanStatementKind.ClearTail, own, v, Array.Empty<VectorTerm>(), stride));
             }
-            else if (!d.InitialVector.Any(t => t.Vector == v && t.SourceSpan == own))
+            else if (!d.InitialVector.Any(t => t.Vector == v && plan.ReadsSpan(t, own)))
             {
                 // A span that starts from its own value (a local carried on from an earlier loop, scaled in between) is
                 // scaled in place, not cleared.
@@ -121,7 +125,7 @@ internal static class SpanStatements
         {
             string own = d.VectorNames[v];
             var terms = (before ? d.InitialVector : d.NextVector).Where(t => t.Vector == v).ToList();
-            if (terms.Count == 1 && terms[0].SourceSpan == own && terms[0].Coefficient.IsConstant(1))
+            if (terms.Count == 1 && plan.ReadsSpan(terms[0], own) && terms[0].Coefficient.IsConstant(1))
             {
                 continue; // carried on unchanged
             }
@@ -130,7 +134,7 @@ internal static class SpanStatements
             {
                 // Cleared above, unless it starts from its own value (carried on from an earlier loop): then it is scaled
                 // in place first (own ← c · own), and the other contributions are added to it.
-                var self = terms.Where(t => t.SourceSpan == own).ToList();
+                var self = terms.Where(t => plan.ReadsSpan(t, own)).ToList();
                 if (self.Count > 1)
                 {
                     throw new InvalidOperationException("A running derivative starts from its own value through several terms.");
