@@ -81,6 +81,14 @@ internal static class DifferentialRunner
 
     private static readonly CSharpParseOptions Parse = GeneratorHarness.ParseOptions;
 
+    /// <summary>
+    /// The case whose generated methods are being called on this thread, rewritten before each one and deleted after
+    /// the batch: if the test host dies (a stack overflow cannot be caught), the file names the case to replay with
+    /// DERIVGEN_CASE. .ci/run prints these files when the test command fails.
+    /// </summary>
+    private static string CurrentCaseFile => Path.Combine(Path.GetTempPath(), "derivgen-randomized-current-case-"
+        + Environment.CurrentManagedThreadId.ToString(CultureInfo.InvariantCulture) + ".txt"); // tests run in parallel
+
     public static BatchOutcome Run(IReadOnlyList<RandomCase> cases)
     {
         var outcome = new BatchOutcome();
@@ -227,6 +235,8 @@ internal static class DifferentialRunner
             string? reason;
             try
             {
+                // A stack overflow ends the test host before any report: the case being run is on record in a file.
+                File.WriteAllText(CurrentCaseFile, "DERIVGEN_CASE=" + cases[i].Seed + " (" + MethodName(i) + ")\n");
                 reason = CheckOne(assembly, MethodName(i), cases[i], outcome);
             }
             catch (Exception e)
@@ -240,6 +250,8 @@ internal static class DifferentialRunner
                 outcome.Failures.Add(new CaseFailure(cases[i], reason));
             }
         }
+
+        File.Delete(CurrentCaseFile);
 
         return failures;
     }
