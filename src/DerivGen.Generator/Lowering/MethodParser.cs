@@ -101,6 +101,13 @@ internal static class MethodParser
                 syntax = implementationSyntax;
             }
 
+            if (HasCompileError(syntax, semanticModel, cancellationToken))
+            {
+                // Roslyn already reports an error in the body (a typo, CS0103): DerivGen adds nothing to it and
+                // generates nothing until the code compiles.
+                return new LoweringResult(null, EquatableArray<DiagnosticInfo>.Empty, EquatableArray<HelperRequest>.Empty);
+            }
+
             bool ownBody = ReferenceEquals(syntax, originalSyntax);
             CompilationLowerings.CountMethod(semanticModel.Compilation, method);
             var helpers = new HelperContext(semanticModel.Compilation);
@@ -132,6 +139,27 @@ internal static class MethodParser
             return new LoweringResult(null, diagnostics.ToEquatableArray(), EquatableArray<HelperRequest>.Empty,
                 HintName(method), method.ToDisplayString(HeaderFormat) + " (" + failure.Replace('\r', ' ').Replace('\n', ' ') + ")");
         }
+    }
+
+    /// <summary>Whether the compiler reports an error inside the method's body (only the body is bound: cheap, and the
+    /// operation tree needs that binding anyway).</summary>
+    private static bool HasCompileError(MethodDeclarationSyntax syntax, SemanticModel semanticModel, CancellationToken cancellationToken)
+    {
+        SyntaxNode? body = (SyntaxNode?)syntax.Body ?? syntax.ExpressionBody;
+        if (body is null || body.SyntaxTree != semanticModel.SyntaxTree)
+        {
+            return false;
+        }
+
+        foreach (Diagnostic diagnostic in semanticModel.GetDiagnostics(body.Span, cancellationToken))
+        {
+            if (diagnostic.Severity == DiagnosticSeverity.Error)
+            {
+                return true;
+            }
+        }
+
+        return false;
     }
 
     /// <summary>
