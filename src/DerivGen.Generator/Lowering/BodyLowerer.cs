@@ -722,7 +722,7 @@ internal sealed partial class BodyLowerer
             case IIsPatternOperation isPattern:
                 return LowerIsPattern(isPattern);
 
-            case ISwitchExpressionOperation switchExpression when switchExpression.Type is { } switchType && ScalarTypeOf(switchType) is { } switchResultType:
+            case ISwitchExpressionOperation switchExpression when switchExpression.Type is { } switchType && ValueTypeOf(switchType) is { } switchResultType:
                 return LowerSwitchExpression(switchExpression, switchResultType);
 
             case IFieldReferenceOperation { Field: { IsStatic: true, IsReadOnly: true } field } when ScalarTypeOf(field.Type) is { } fieldType:
@@ -747,7 +747,7 @@ internal sealed partial class BodyLowerer
             case IPropertyReferenceOperation { Property.Name: "Length", Instance: { } lengthOf } when DataText(lengthOf) is { } lengthData:
                 return new IrExternal(lengthData + ".Length", ScalarType.Int32);
 
-            case IConditionalOperation { WhenFalse: not null } conditional when conditional.Type is { } conditionalType && ScalarTypeOf(conditionalType) is { } resultType:
+            case IConditionalOperation { WhenFalse: not null } conditional when conditional.Type is { } conditionalType && ValueTypeOf(conditionalType) is { } resultType:
             {
                 IrExpression? condition = LowerCondition(conditional.Condition, isConditionalOperator: true);
                 IrExpression? whenTrue = LowerExpression(conditional.WhenTrue);

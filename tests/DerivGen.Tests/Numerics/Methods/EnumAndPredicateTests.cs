@@ -18,6 +18,8 @@ public sealed class EnumAndPredicateFixture : UserCodeFixture
 
         public enum Penalty { Square, Absolute = 5, Cauchy }
 
+        public enum Side { Below, Inside, Above }
+
         public static partial class Enums
         {
             // A robust loss chosen by an enum: a switch statement over the parameter, an enum local, == and a cast.
@@ -43,6 +45,17 @@ public sealed class EnumAndPredicateFixture : UserCodeFixture
                 double w = chosen == Penalty.Absolute ? 2.0 : 1.0 + (int)kind;
                 return w * f;
             }
+
+            // An enum local chosen by a switch expression on the variable, then compared: x³ inside [−1, 1], continued
+            // by its tangent lines outside (value and slope continuous at ±1).
+        #pragma warning disable DG0007 // the pieces switch at ±1 on purpose
+            [Differentiate]
+            public static double Extended(double x)
+            {
+                Side side = x switch { < -1 => Side.Below, > 1 => Side.Above, _ => Side.Inside };
+                return side == Side.Inside ? x * x * x : side == Side.Below ? -1 + 3 * (x + 1) : 1 + 3 * (x - 1);
+            }
+        #pragma warning restore DG0007
 
             // A switch expression over an enum parameter.
             [Differentiate]
@@ -170,6 +183,18 @@ public sealed class EnumAndPredicateTests : IClassFixture<EnumAndPredicateFixtur
         var h = _fixture.Assembly.Method<KindH1>(adapters, "ScaledHessian");
         Probe probe = Probe.Of((F1)(x => f(x, kind)), (G1)((x, gr) => g(x, kind, gr)), (H1)((x, gr, he) => h(x, kind, gr, he)));
         Verify.At(probe, new[] { 1.25 }, new[] { derivative }, new[] { second }, $"Scaled kind = {kind}");
+    }
+
+    [Theory]
+    [InlineData(-2.5)] // below: f = −1 + 3(x + 1), f' = 3, f'' = 0
+    [InlineData(0.4)]  // inside: f = x³, f' = 3x², f'' = 6x (plain calculus)
+    [InlineData(1.0)]  // on the edge, inside (x > 1 fails): f' = 3, f'' = 6
+    [InlineData(1.75)] // above: f = 1 + 3(x − 1), f' = 3, f'' = 0
+    public void EnumLocalFromASwitchExpression(double x)
+    {
+        bool inside = x is >= -1 and <= 1;
+        Verify.At(Probe.Load(_fixture.Assembly, "Methods.Enums", "Extended", 1), new[] { x }, new[] { inside ? 3 * x * x : 3 },
+            new[] { inside ? 6 * x : 0 }, "Extended", oracle: x != 1.0);
     }
 
     [Fact]
