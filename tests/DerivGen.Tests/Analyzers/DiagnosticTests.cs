@@ -134,6 +134,26 @@ public sealed class DiagnosticTests
         """);
 
     [Fact]
+    public Task DG0007CaseGuardOnAVariable() => VerifyAsync(Usings + """
+        public static partial class C
+        {
+            [Differentiate]
+            public static double F(double x, int k)
+            {
+                double f = x;
+                switch ({|DG0007:k|})
+                {
+                    case > 0 when x > 1:
+                        f = x * x;
+                        break;
+                }
+
+                return f;
+            }
+        }
+        """);
+
+    [Fact]
     public Task FloatingPointPredicatesOnAVariableAreNoKink() => VerifyAsync(Usings + """
         public static partial class C
         {

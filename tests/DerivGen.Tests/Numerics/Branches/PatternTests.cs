@@ -43,6 +43,15 @@ public sealed class PatternFixture : CompiledFixture
 
                 return f;
             }
+
+            // float: a ramp continued by its tangent line (value and slope continuous at 1).
+            [Differentiate]
+            public static float Ramp(float x) => x switch
+            {
+                < 0f => 0f,
+                < 1f => x * x,
+                _ => 2f * x - 1f,
+            };
         #pragma warning restore DG0007
 
             // A switch expression on data (an int): constant, or, relational patterns and a guard.
@@ -185,6 +194,25 @@ public sealed class PatternTests : IClassFixture<PatternFixture>
             Check.SameBits(value, p.Gradient(new[] { x, y }, new double[2]), $"{method}({x}, {y}): MGradient's value");
             Check.SameBits(value, p.Hessian!(new[] { x, y }, new double[2], new double[4]), $"{method}({x}, {y}): MHessian's value");
         }
+    }
+
+    [Theory]
+    [InlineData(-0.5f, 0f)]   // f = 0:       f' = 0
+    [InlineData(0.75f, 1.5f)] // f = x²:      f' = 2x (plain calculus)
+    [InlineData(3f, 2f)]      // f = 2x − 1:  f' = 2
+    [InlineData(float.NaN, 0f)] // NaN fails < 0 and < 1: the discard arm, f = 2x − 1 = NaN, f' = 2
+    public void FloatSwitchExpression(float x, float derivative)
+    {
+        var f = _fixture.Assembly.Method<F1f>(Type, "Ramp");
+        var g = _fixture.Assembly.Method<G1f>(Type, "RampGradient");
+        var h = _fixture.Assembly.Method<H1f>(Type, "RampHessian");
+        var gradient = new float[1];
+        var hessian = new float[1];
+        float value = f(x);
+        Check.SameBits(value, g(x, gradient), "RampGradient's value");
+        Check.SameBits(value, h(x, new float[1], hessian), "RampHessian's value");
+        Assert.Equal(float.IsNaN(x) ? 2f : derivative, gradient[0]);
+        Assert.Equal(x is >= 0f and < 1f ? 2f : 0f, hessian[0]); // f'' = 2 on the square piece, 0 elsewhere
     }
 
     [Theory]
