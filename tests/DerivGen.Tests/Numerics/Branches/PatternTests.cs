@@ -44,6 +44,27 @@ public sealed class PatternFixture : CompiledFixture
                 return f;
             }
 
+            // A switch statement on a computed value (kept in a double local) with relational cases.
+            [Differentiate]
+            public static double Product(double x, double y)
+            {
+                double f;
+                switch (x * y)
+                {
+                    case > 1:
+                        f = x * x;
+                        break;
+                    case < -1:
+                        f = y * y;
+                        break;
+                    default:
+                        f = x + y;
+                        break;
+                }
+
+                return f;
+            }
+
             // float: a ramp continued by its tangent line (value and slope continuous at 1).
             [Differentiate]
             public static float Ramp(float x) => x switch
@@ -194,6 +215,21 @@ public sealed class PatternTests : IClassFixture<PatternFixture>
             Check.SameBits(value, p.Gradient(new[] { x, y }, new double[2]), $"{method}({x}, {y}): MGradient's value");
             Check.SameBits(value, p.Hessian!(new[] { x, y }, new double[2], new double[4]), $"{method}({x}, {y}): MHessian's value");
         }
+    }
+
+    [Theory]
+    [InlineData(2.0, 1.0)]  // xy > 1:  f = x²,    ∇f = (2x, 0),  H = [[2, 0], [0, 0]]
+    [InlineData(-2.0, 1.5)] // xy < −1: f = y²,    ∇f = (0, 2y),  H = [[0, 0], [0, 2]]
+    [InlineData(0.5, 0.5)]  // default: f = x + y, ∇f = (1, 1),   H = 0 (plain calculus)
+    public void SwitchStatementOnAComputedValue(double x, double y)
+    {
+        (double[] g, double[] h) = (x * y) switch
+        {
+            > 1 => (new[] { 2 * x, 0.0 }, new[] { 2.0, 0, 0, 0 }),
+            < -1 => (new[] { 0.0, 2 * y }, new[] { 0.0, 0, 0, 2 }),
+            _ => (new[] { 1.0, 1.0 }, new[] { 0.0, 0, 0, 0 }),
+        };
+        Verify.At(Probe.Load(_fixture.Assembly, Type, "Product", 2), new[] { x, y }, g, h, "Product");
     }
 
     [Theory]
