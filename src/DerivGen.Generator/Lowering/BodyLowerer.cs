@@ -584,10 +584,28 @@ internal sealed partial class BodyLowerer
                 Unsupported(expression, $"the assignment '{Text(expression)}'", "only locals of the method can be assigned");
                 break;
 
+            case IInvocationOperation { TargetMethod: { IsStatic: true, Name: var helperName, ContainingType: { } thrower } } when helperName.StartsWith("ThrowIf", StringComparison.Ordinal) && IsException(thrower):
+                Unsupported(expression, $"the throw helper '{thrower.Name}.{helperName}'",
+                    "the generated methods cannot throw yet; check the arguments before calling the method (the check can stay in a method that calls this one)");
+                break;
+
             default:
                 Unsupported(expression, $"the statement '{Text(expression)}'", "a differentiable body only declares and assigns locals and returns a value");
                 break;
         }
+    }
+
+    private static bool IsException(INamedTypeSymbol? type)
+    {
+        for (; type is not null; type = type.BaseType)
+        {
+            if (type is { Name: "Exception", ContainingNamespace: { Name: "System", ContainingNamespace.IsGlobalNamespace: true } })
+            {
+                return true;
+            }
+        }
+
+        return false;
     }
 
     /// <summary>Whether the operation is the span of outputs of a method that writes its values.</summary>
@@ -1144,7 +1162,8 @@ internal sealed partial class BodyLowerer
         IWhileLoopOperation => "this version differentiates 'for (int i = start; i < end; i++)' and foreach loops over data; rewrite the loop in that form",
         ISwitchOperation => "use if/else or the conditional operator instead",
         IBranchOperation => "break, continue and goto are not supported yet; put the condition around the loop body's statements instead",
-        ITryOperation or IThrowOperation => "exceptions cannot be differentiated; validate arguments before calling the method",
+        ITryOperation => "exceptions cannot be differentiated; validate arguments before calling the method",
+        IThrowOperation => "the generated methods cannot throw yet; check the arguments before calling the method (the check can stay in a method that calls this one)",
         _ => "a differentiable body uses locals, + - * /, and the math functions listed in the README",
     };
 }

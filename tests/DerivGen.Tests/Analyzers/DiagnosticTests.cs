@@ -216,6 +216,20 @@ public sealed class DiagnosticTests
         """);
 
     [Fact]
+    public Task DG0001ThrowHelperGuard() => VerifyAsync(Usings + """
+        public static partial class C
+        {
+            [Differentiate(nameof(x))]
+            public static double F(double x, double[] t)
+            {
+                {|DG0001:ArgumentNullException.ThrowIfNull(t)|};
+                {|DG0001:ArgumentOutOfRangeException.ThrowIfNegative(x)|};
+                return x * t[0];
+            }
+        }
+        """);
+
+    [Fact]
     public Task CompileErrorInTheBodyGetsNoDerivGenDiagnostic() => VerifyAsync(Usings + """
         public static partial class C
         {

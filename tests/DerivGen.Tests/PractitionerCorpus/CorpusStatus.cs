@@ -61,8 +61,8 @@ internal static class CorpusStatus
         }),
         ["JointLimitPenaltyGuards"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
         {
-            "DG0001: The statement 'ArgumentNullException.ThrowIfNull(q)' cannot be differentiated: a differentiable body only declares and assigns locals and returns a value",
-            "DG0001: The statement 'ArgumentOutOfRangeException.ThrowIfNotEqual(q.Length, hom...' cannot be differentiated: a differentiable body only declares and assigns locals and returns a value",
+            "DG0001: The throw helper 'ArgumentNullException.ThrowIfNull' cannot be differentiated: the generated methods cannot throw yet; check the arguments before calling the method (the check can stay in a method that calls this one)",
+            "DG0001: The throw helper 'ArgumentOutOfRangeException.ThrowIfNotEqual' cannot be differentiated: the generated methods cannot throw yet; check the arguments before calling the method (the check can stay in a method that calls this one)",
             "DG0007: 'q[i] switch { … }' is not differentiable everywhere: an arm's condition depends on a differentiation variable, so the derivative is that of the arm taken and jumps where the arm changes",
         }),
         ["ProjectileRk4Drag"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
@@ -117,7 +117,7 @@ internal static class CorpusStatus
         ["BallisticRangeFiniteGuard"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
         {
             "DG0007: 'if (!double.IsFinite(speed) || speed <= 0)' is not differentiable everywhere: the condition depends on a differentiation variable, so the derivative is that of the branch taken and jumps where the condition changes",
-            "DG0001: The throw statement cannot be differentiated: exceptions cannot be differentiated; validate arguments before calling the method",
+            "DG0001: The throw statement cannot be differentiated: the generated methods cannot throw yet; check the arguments before calling the method (the check can stay in a method that calls this one)",
         }),
         ["SoftmaxCrossEntropyLinq"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
         {
@@ -144,7 +144,7 @@ internal static class CorpusStatus
         }),
         ["ActivationEnumSwitchThrow"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
         {
-            "DG0001: The throw statement cannot be differentiated: exceptions cannot be differentiated; validate arguments before calling the method",
+            "DG0001: The throw statement cannot be differentiated: the generated methods cannot throw yet; check the arguments before calling the method (the check can stay in a method that calls this one)",
         }),
         ["QuadraticHorizonLocalArray"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
         {
@@ -184,7 +184,7 @@ internal static class CorpusStatus
         }),
         ["NormalLikelihoodLinqGuard"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
         {
-            "DG0001: The statement 'ArgumentOutOfRangeException.ThrowIfNegativeOrZero(sigma)' cannot be differentiated: a differentiable body only declares and assigns locals and returns a value",
+            "DG0001: The throw helper 'ArgumentOutOfRangeException.ThrowIfNegativeOrZero' cannot be differentiated: the generated methods cannot throw yet; check the arguments before calling the method (the check can stay in a method that calls this one)",
             "DG0001: The call to 'System.Linq.Enumerable.Sum' cannot be differentiated: only the functions of System.Math, System.MathF, double and float listed in the README, and other [Differentiate] methods, can be called; mark the method [Differentiate] to differentiate through it",
         }),
         ["PoissonRegressionInstanceHelper"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
@@ -217,9 +217,9 @@ internal static class CorpusStatus
         }),
         ["TrackingErrorThrowHelpers"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
         {
-            "DG0001: The statement 'ArgumentNullException.ThrowIfNull(w)' cannot be differentiated: a differentiable body only declares and assigns locals and returns a value",
-            "DG0001: The statement 'ArgumentNullException.ThrowIfNull(volatility)' cannot be differentiated: a differentiable body only declares and assigns locals and returns a value",
-            "DG0001: The throw statement cannot be differentiated: exceptions cannot be differentiated; validate arguments before calling the method",
+            "DG0001: The throw helper 'ArgumentNullException.ThrowIfNull' cannot be differentiated: the generated methods cannot throw yet; check the arguments before calling the method (the check can stay in a method that calls this one)",
+            "DG0001: The throw helper 'ArgumentNullException.ThrowIfNull' cannot be differentiated: the generated methods cannot throw yet; check the arguments before calling the method (the check can stay in a method that calls this one)",
+            "DG0001: The throw statement cannot be differentiated: the generated methods cannot throw yet; check the arguments before calling the method (the check can stay in a method that calls this one)",
             "DG0001: The call to 'System.Linq.Enumerable.Sum' cannot be differentiated: only the functions of System.Math, System.MathF, double and float listed in the README, and other [Differentiate] methods, can be called; mark the method [Differentiate] to differentiate through it",
         }),
         ["SineFitSpanSlice"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
