@@ -111,6 +111,15 @@ public sealed class PatternFixture : CompiledFixture
                 return s;
             }
 
+            // A bool-valued switch expression and an `is` pattern kept in bool locals.
+            [Differentiate]
+            public static double BoolArms(double x, int k)
+            {
+                bool big = k switch { > 2 => true, _ => false };
+                bool odd = k is 1 or 3 or 5;
+                return big ? 2 * x : odd ? x * x * x : x * x;
+            }
+
             // An arm's value is evaluated only where the arm is selected: t[i] out of range is never read.
             [Differentiate]
             public static double GuardedRead(double x, double[] t, int i) => i switch
@@ -151,6 +160,12 @@ public sealed class PatternTests : IClassFixture<PatternFixture>
     private delegate double BandG(double a, double b, double[] t, Span<double> g);
 
     private delegate double BandH(double a, double b, double[] t, Span<double> g, Span<double> h);
+
+    private delegate double BoolF(double x, int k);
+
+    private delegate double BoolG(double x, int k, Span<double> g);
+
+    private delegate double BoolH(double x, int k, Span<double> g, Span<double> h);
 
     private delegate double ReadF(double x, double[] t, int i);
 
@@ -288,6 +303,19 @@ public sealed class PatternTests : IClassFixture<PatternFixture>
         var h = _fixture.Assembly.Method<BandH>(Type, "BandedHessian");
         Probe p = Probe.Of((F2)((x0, x1) => f(x0, x1, t)), (G2)((x0, x1, gr) => g(x0, x1, t, gr)), (H2)((x0, x1, gr, he) => h(x0, x1, t, gr, he)));
         Verify.At(p, new[] { a, b }, new[] { sum1 + (b * sum2), (a * sum2) + (2 * b * m) }, new[] { 0, sum2, sum2, 2.0 * m }, "Banded", closedFormAbsolute: 1e-14);
+    }
+
+    [Theory]
+    [InlineData(4, 2.0, 0.0)]            // big:  f = 2x, f' = 2, f'' = 0
+    [InlineData(1, 3 * 1.5 * 1.5, 9.0)]  // odd:  f = x³, f' = 3x², f'' = 6x (plain calculus)
+    [InlineData(0, 2 * 1.5, 2.0)]        // else: f = x², f' = 2x, f'' = 2
+    public void BoolValuedSwitchExpressionAndIsPattern(int k, double derivative, double second)
+    {
+        var f = _fixture.Assembly.Method<BoolF>(Type, "BoolArms");
+        var g = _fixture.Assembly.Method<BoolG>(Type, "BoolArmsGradient");
+        var h = _fixture.Assembly.Method<BoolH>(Type, "BoolArmsHessian");
+        Probe p = Probe.Of((F1)(x => f(x, k)), (G1)((x, gr) => g(x, k, gr)), (H1)((x, gr, he) => h(x, k, gr, he)));
+        Verify.At(p, new[] { 1.5 }, new[] { derivative }, new[] { second }, $"BoolArms k = {k}");
     }
 
     [Theory]
