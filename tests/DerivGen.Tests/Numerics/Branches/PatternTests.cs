@@ -111,6 +111,27 @@ public sealed class PatternFixture : CompiledFixture
                 return s;
             }
 
+            // Constant case labels only, one of them NaN (C# matches NaN with double.IsNaN, not ==).
+            [Differentiate(nameof(x))]
+            public static double NaNLabel(double x, double c)
+            {
+                double f;
+                switch (c)
+                {
+                    case 1.0:
+                        f = x * x;
+                        break;
+                    case double.NaN:
+                        f = 5 * x;
+                        break;
+                    default:
+                        f = x;
+                        break;
+                }
+
+                return f;
+            }
+
             // A bool-valued switch expression and an `is` pattern kept in bool locals.
             [Differentiate]
             public static double BoolArms(double x, int k)
@@ -160,6 +181,10 @@ public sealed class PatternTests : IClassFixture<PatternFixture>
     private delegate double BandG(double a, double b, double[] t, Span<double> g);
 
     private delegate double BandH(double a, double b, double[] t, Span<double> g, Span<double> h);
+
+    private delegate double G1c(double x, double c, Span<double> g);
+
+    private delegate double H1c(double x, double c, Span<double> g, Span<double> h);
 
     private delegate double BoolF(double x, int k);
 
@@ -303,6 +328,19 @@ public sealed class PatternTests : IClassFixture<PatternFixture>
         var h = _fixture.Assembly.Method<BandH>(Type, "BandedHessian");
         Probe p = Probe.Of((F2)((x0, x1) => f(x0, x1, t)), (G2)((x0, x1, gr) => g(x0, x1, t, gr)), (H2)((x0, x1, gr, he) => h(x0, x1, t, gr, he)));
         Verify.At(p, new[] { a, b }, new[] { sum1 + (b * sum2), (a * sum2) + (2 * b * m) }, new[] { 0, sum2, sum2, 2.0 * m }, "Banded", closedFormAbsolute: 1e-14);
+    }
+
+    [Theory]
+    [InlineData(1.0, 2 * 1.5, 2.0)]      // f = x²: f' = 2x, f'' = 2
+    [InlineData(double.NaN, 5.0, 0.0)]   // f = 5x: f' = 5
+    [InlineData(2.0, 1.0, 0.0)]          // f = x:  f' = 1
+    public void ConstantNaNCaseLabelMatchesNaN(double c, double derivative, double second)
+    {
+        var f = _fixture.Assembly.Method<F2>(Type, "NaNLabel");
+        var g = _fixture.Assembly.Method<G1c>(Type, "NaNLabelGradient");
+        var h = _fixture.Assembly.Method<H1c>(Type, "NaNLabelHessian");
+        Probe p = Probe.Of((F1)(x => f(x, c)), (G1)((x, gr) => g(x, c, gr)), (H1)((x, gr, he) => h(x, c, gr, he)));
+        Verify.At(p, new[] { 1.5 }, new[] { derivative }, new[] { second }, $"NaNLabel c = {c}");
     }
 
     [Theory]
