@@ -225,7 +225,7 @@ internal sealed partial class BodyLowerer
     {
         string local = FreshName(name);
         AssignLocal(local, condition);
-        return new IrLocal(local, ScalarType.Boolean);
+        return new IrLocal(local, condition.Type);
     }
 
     private static bool ContainsLoop(EquatableArray<IrStatement> statements) => statements.Any(s => s switch
@@ -448,7 +448,8 @@ internal sealed partial class BodyLowerer
                     ISingleValueCaseClauseOperation { Value: { } label } => LowerExpression(label) is { } lowered
                         ? new IrCompare(ComparisonOperator.Equal, subject, lowered)
                         : null,
-                    _ => Unsupported(clause, "the case label '" + Text(clause) + "'", "use constant case labels (case 1:, case 2:) or if/else"),
+                    IPatternCaseClauseOperation { Pattern: var pattern, Guard: var guard } => LowerCaseClause(pattern, guard, subject),
+                    _ => Unsupported(clause, "the case label '" + Text(clause) + "'", "use constant or relational case labels (case 1:, case < 0:) or if/else"),
                 };
                 if (clause is IDefaultCaseClauseOperation)
                 {
@@ -483,12 +484,14 @@ internal sealed partial class BodyLowerer
         }
 
         var ordered = sections.Where(s => s.Condition is not null).Concat(sections.Where(s => s.Condition is null)).ToList();
-        bool dependsOnVariable = DependsOnVariable(subject);
-        if (dependsOnVariable)
+        bool dependsOnVariable = DependsOnVariable(subject) || sections.Any(s => s.Condition is { } c && DependsOnVariable(c));
+        if (sections.Any(s => s.Condition is { } c && IsKink(c)))
         {
             _diagnostics.Add(DiagnosticInfo.Create(DiagnosticDescriptors.NonSmoothFunction, switchStatement.Value.Syntax.GetLocation(),
                 "switch (" + Text(switchStatement.Value) + ")",
-                "the value switched on depends on a differentiation variable, so the derivative is that of the section taken and jumps where the value changes"));
+                DependsOnVariable(subject)
+                    ? "the value switched on depends on a differentiation variable, so the derivative is that of the section taken and jumps where the value changes"
+                    : "a case's condition depends on a differentiation variable, so the derivative is that of the section taken and jumps where the condition changes"));
         }
 
         _variableBranchDepth += dependsOnVariable ? 1 : 0;
@@ -500,6 +503,18 @@ internal sealed partial class BodyLowerer
         {
             _variableBranchDepth -= dependsOnVariable ? 1 : 0;
         }
+    }
+
+    /// <summary><c>case pattern when guard:</c> — the pattern's condition, and then the guard (evaluated only where it matches).</summary>
+    private IrExpression? LowerCaseClause(IPatternOperation pattern, IOperation? guard, IrExpression subject)
+    {
+        IrExpression? condition = LowerPattern(pattern, subject);
+        if (guard is null || condition is null)
+        {
+            return condition;
+        }
+
+        return LowerExpression(guard) is { } loweredGuard ? new IrLogical(LogicalOperator.And, condition, loweredGuard) : null;
     }
 
     /// <summary>The sections from <paramref name="index"/> on as an if/else-if chain (the default, if any, last).</summary>

@@ -283,7 +283,7 @@ internal sealed partial class BodyLowerer
     private IrExpression? LowerCondition(IOperation operation, bool isConditionalOperator = false)
     {
         IrExpression? condition = LowerExpression(operation);
-        if (condition is not null && DependsOnVariable(condition))
+        if (condition is not null && IsKink(condition))
         {
             _diagnostics.Add(DiagnosticInfo.Create(DiagnosticDescriptors.NonSmoothFunction, operation.Syntax.GetLocation(),
                 isConditionalOperator ? Text(operation) + " ? … : …" : "if (" + Text(operation) + ")",
@@ -501,7 +501,7 @@ internal sealed partial class BodyLowerer
     private void LowerDeclarator(IVariableDeclaratorOperation declarator)
     {
         ILocalSymbol local = declarator.Symbol;
-        ScalarType? type = ScalarTypeOf(local.Type);
+        ScalarType? type = ValueTypeOf(local.Type);
         if (type is null)
         {
             Unsupported(declarator, $"the local '{local.Name}' of type '{local.Type.ToDisplayString()}'", "locals must be double, float, int or bool");
@@ -584,10 +584,28 @@ internal sealed partial class BodyLowerer
                 Unsupported(expression, $"the assignment '{Text(expression)}'", "only locals of the method can be assigned");
                 break;
 
+            case IInvocationOperation { TargetMethod: { IsStatic: true, Name: var helperName, ContainingType: { } thrower } } when helperName.StartsWith("ThrowIf", StringComparison.Ordinal) && IsException(thrower):
+                Unsupported(expression, $"the throw helper '{thrower.Name}.{helperName}'",
+                    "the generated methods cannot throw yet; check the arguments before calling the method (the check can stay in a method that calls this one)");
+                break;
+
             default:
                 Unsupported(expression, $"the statement '{Text(expression)}'", "a differentiable body only declares and assigns locals and returns a value");
                 break;
         }
+    }
+
+    private static bool IsException(INamedTypeSymbol? type)
+    {
+        for (; type is not null; type = type.BaseType)
+        {
+            if (type is { Name: "Exception", ContainingNamespace: { Name: "System", ContainingNamespace.IsGlobalNamespace: true } })
+            {
+                return true;
+            }
+        }
+
+        return false;
     }
 
     /// <summary>Whether the operation is the span of outputs of a method that writes its values.</summary>
@@ -674,7 +692,7 @@ internal sealed partial class BodyLowerer
 
     private IrExpression? LowerExpressionCore(IOperation operation)
     {
-        if (operation.ConstantValue.HasValue && operation.Type is { } constantType && ScalarTypeOf(constantType) is { } scalar
+        if (operation.ConstantValue.HasValue && operation.Type is { } constantType && ValueTypeOf(constantType) is { } scalar
             && TryConstant(operation.ConstantValue.Value, scalar, out IrConstant? constant))
         {
             return constant;
@@ -688,11 +706,16 @@ internal sealed partial class BodyLowerer
                     return new IrParameter(Identifiers.Escape(parameter.Parameter.Name), parameterType);
                 }
 
+                if (IsIntEnum(parameter.Parameter.Type) && parameter.Parameter.RefKind is RefKind.None or RefKind.In)
+                {
+                    return EnumParameter(parameter.Parameter);
+                }
+
                 return Unsupported(operation, $"the use of parameter '{parameter.Parameter.Name}' of type '{parameter.Parameter.Type.ToDisplayString()}'",
                     "arrays, spans and other types come in a later version; pass double, float or int values");
 
             case ILocalReferenceOperation local:
-                if (ScalarTypeOf(local.Local.Type) is { } localType)
+                if (ValueTypeOf(local.Local.Type) is { } localType)
                 {
                     return new IrLocal(LocalName(local.Local), localType);
                 }
@@ -713,6 +736,12 @@ internal sealed partial class BodyLowerer
 
             case IInvocationOperation invocation:
                 return LowerInvocation(invocation);
+
+            case IIsPatternOperation isPattern:
+                return LowerIsPattern(isPattern);
+
+            case ISwitchExpressionOperation switchExpression when switchExpression.Type is { } switchType && ValueTypeOf(switchType) is { } switchResultType:
+                return LowerSwitchExpression(switchExpression, switchResultType);
 
             case IFieldReferenceOperation { Field: { IsStatic: true, IsReadOnly: true } field } when ScalarTypeOf(field.Type) is { } fieldType:
                 return new IrExternal(FullyQualified(field.ContainingType) + "." + Identifiers.Escape(field.Name), fieldType);
@@ -736,7 +765,7 @@ internal sealed partial class BodyLowerer
             case IPropertyReferenceOperation { Property.Name: "Length", Instance: { } lengthOf } when DataText(lengthOf) is { } lengthData:
                 return new IrExternal(lengthData + ".Length", ScalarType.Int32);
 
-            case IConditionalOperation { WhenFalse: not null } conditional when conditional.Type is { } conditionalType && ScalarTypeOf(conditionalType) is { } resultType:
+            case IConditionalOperation { WhenFalse: not null } conditional when conditional.Type is { } conditionalType && ValueTypeOf(conditionalType) is { } resultType:
             {
                 IrExpression? condition = LowerCondition(conditional.Condition, isConditionalOperator: true);
                 IrExpression? whenTrue = LowerExpression(conditional.WhenTrue);
@@ -768,7 +797,7 @@ internal sealed partial class BodyLowerer
     private IrExpression? LowerBinary(IBinaryOperation binary)
     {
         if (binary.OperatorMethod is null && ComparisonOf(binary.OperatorKind) is { } comparison
-            && binary.LeftOperand.Type is { } leftType && ScalarTypeOf(leftType) is ScalarType.Double or ScalarType.Single or ScalarType.Int32)
+            && binary.LeftOperand.Type is { } leftType && ValueTypeOf(leftType) is ScalarType.Double or ScalarType.Single or ScalarType.Int32)
         {
             IrExpression? compareLeft = LowerExpression(binary.LeftOperand);
             IrExpression? compareRight = LowerExpression(binary.RightOperand);
@@ -890,8 +919,8 @@ internal sealed partial class BodyLowerer
 
     private IrExpression? LowerConversion(IConversionOperation conversion)
     {
-        ScalarType? to = conversion.Type is null ? null : ScalarTypeOf(conversion.Type);
-        ScalarType? from = conversion.Operand.Type is null ? null : ScalarTypeOf(conversion.Operand.Type);
+        ScalarType? to = conversion.Type is null ? null : ValueTypeOf(conversion.Type);
+        ScalarType? from = conversion.Operand.Type is null ? null : ValueTypeOf(conversion.Operand.Type);
         if (conversion.OperatorMethod is null && to is { } target && from is { } source
             && target != ScalarType.Boolean && source != ScalarType.Boolean)
         {
@@ -905,6 +934,12 @@ internal sealed partial class BodyLowerer
     private IrExpression? LowerInvocation(IInvocationOperation invocation)
     {
         IMethodSymbol target = invocation.TargetMethod;
+        IrExpression? predicate = TryLowerPredicate(invocation, out bool isPredicate);
+        if (isPredicate)
+        {
+            return predicate;
+        }
+
         if (target.Name == "GetLength" && invocation.Instance is { } array && DataText(array) is { } arrayText
             && invocation.Arguments.Length == 1 && invocation.Arguments[0].Value.ConstantValue is { HasValue: true, Value: int dimension })
         {
@@ -1127,7 +1162,8 @@ internal sealed partial class BodyLowerer
         IWhileLoopOperation => "this version differentiates 'for (int i = start; i < end; i++)' and foreach loops over data; rewrite the loop in that form",
         ISwitchOperation => "use if/else or the conditional operator instead",
         IBranchOperation => "break, continue and goto are not supported yet; put the condition around the loop body's statements instead",
-        ITryOperation or IThrowOperation => "exceptions cannot be differentiated; validate arguments before calling the method",
+        ITryOperation => "exceptions cannot be differentiated; validate arguments before calling the method",
+        IThrowOperation => "the generated methods cannot throw yet; check the arguments before calling the method (the check can stay in a method that calls this one)",
         _ => "a differentiable body uses locals, + - * /, and the math functions listed in the README",
     };
 }

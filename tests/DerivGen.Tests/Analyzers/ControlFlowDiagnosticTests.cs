@@ -384,7 +384,7 @@ public sealed class ControlFlowDiagnosticTests
         """);
 
     [Fact]
-    public Task DG0001SwitchWithAPatternOrAnEarlyBreak() => VerifyAsync(Usings + """
+    public Task DG0001SwitchWithADeclarationPatternOrAnEarlyBreak() => VerifyAsync(Usings + """
         public static partial class C
         {
             [Differentiate(nameof(x))]
@@ -393,7 +393,7 @@ public sealed class ControlFlowDiagnosticTests
                 double s = x;
                 switch (k)
                 {
-                    {|DG0001:case > 1:|}
+                    case > 1 and {|DG0001:int m|}:
                         s = 2 * x;
                         break;
                     default:

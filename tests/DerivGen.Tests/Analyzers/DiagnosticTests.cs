@@ -75,11 +75,170 @@ public sealed class DiagnosticTests
         """);
 
     [Fact]
-    public Task DG0001SwitchExpression() => VerifyAsync(Usings + """
+    public Task SwitchExpressionOnDataHasNoDiagnostic() => VerifyAsync(Usings + """
         public static partial class C
         {
             [Differentiate]
-            public static double F(double x, int k) => {|DG0001:k switch { 0 => x, _ => -x }|};
+            public static double F(double x, int k) => k switch { 0 => x, > 3 and not 7 => 2 * x, _ => -x };
+        }
+        """);
+
+    [Fact]
+    public Task DG0007SwitchExpressionOnAVariable() => VerifyAsync(Usings + """
+        public static partial class C
+        {
+            [Differentiate]
+            public static double F(double x) => {|DG0007:x switch { < 0 => -x, _ => x * x }|};
+        }
+        """);
+
+    [Fact]
+    public Task DG0007IsPatternOnAVariableInAnIf() => VerifyAsync(Usings + """
+        public static partial class C
+        {
+            [Differentiate]
+            public static double F(double x)
+            {
+                double f = x;
+                if ({|DG0007:x is > 0 and < 1|})
+                {
+                    f = x * x;
+                }
+
+                return f;
+            }
+        }
+        """);
+
+    [Fact]
+    public Task DG0007RelationalCaseOnAVariable() => VerifyAsync(Usings + """
+        public static partial class C
+        {
+            [Differentiate]
+            public static double F(double x)
+            {
+                double f;
+                switch ({|DG0007:x|})
+                {
+                    case < 0:
+                        f = -x;
+                        break;
+                    default:
+                        f = x;
+                        break;
+                }
+
+                return f;
+            }
+        }
+        """);
+
+    [Fact]
+    public Task DG0007CaseGuardOnAVariable() => VerifyAsync(Usings + """
+        public static partial class C
+        {
+            [Differentiate]
+            public static double F(double x, int k)
+            {
+                double f = x;
+                switch ({|DG0007:k|})
+                {
+                    case > 0 when x > 1:
+                        f = x * x;
+                        break;
+                }
+
+                return f;
+            }
+        }
+        """);
+
+    [Fact]
+    public Task FloatingPointPredicatesOnAVariableAreNoKink() => VerifyAsync(Usings + """
+        public static partial class C
+        {
+            [Differentiate]
+            public static double F(double x, double y) => double.IsFinite(x * y) && !double.IsNaN(y) && !double.IsInfinity(x) ? x * y : 0.0;
+        }
+        """);
+
+    [Fact]
+    public Task EnumParameterAndLocalHaveNoDiagnostic() => VerifyAsync(Usings + """
+        public enum Mode { Plain, Doubled }
+
+        public static partial class C
+        {
+            [Differentiate]
+            public static double F(double x, Mode mode)
+            {
+                Mode m = mode;
+                return m == Mode.Doubled ? 2 * x : x;
+            }
+        }
+        """);
+
+    [Fact]
+    public Task DG0001EnumWithAnUnderlyingTypeOtherThanInt() => VerifyAsync(Usings + """
+        public enum Mode : long { Plain, Doubled }
+
+        public static partial class C
+        {
+            [Differentiate]
+            public static double F(double x, Mode mode) => {|DG0001:mode == Mode.Doubled|} ? 2 * x : x;
+        }
+        """);
+
+    [Fact]
+    public Task DG0001SwitchExpressionThatCanFindNoArm() => VerifyAsync(Usings + """
+        public static partial class C
+        {
+            [Differentiate]
+            public static double F(double x, int k) => {|DG0001:k switch { 0 => x, 1 => -x }|};
+        }
+        """);
+
+    [Fact]
+    public Task DG0001SwitchExpressionArmThatThrows() => VerifyAsync(Usings + """
+        public static partial class C
+        {
+            [Differentiate]
+            public static double F(double x, int k) => k switch { 0 => x, _ => {|DG0001:throw new ArgumentOutOfRangeException(nameof(k))|} };
+        }
+        """);
+
+    [Fact]
+    public Task DG0001DeclarationPatternInASwitchExpression() => VerifyAsync(Usings + """
+        public static partial class C
+        {
+            [Differentiate]
+            public static double F(double x, int k) => k switch { 0 => x, {|DG0001:var m|} => m * x };
+        }
+        """);
+
+    [Fact]
+    public Task DG0001ThrowHelperGuard() => VerifyAsync(Usings + """
+        public static partial class C
+        {
+            [Differentiate(nameof(x))]
+            public static double F(double x, double[] t)
+            {
+                {|DG0001:ArgumentNullException.ThrowIfNull(t)|};
+                {|DG0001:ArgumentOutOfRangeException.ThrowIfNegative(x)|};
+                return x * t[0];
+            }
+        }
+        """);
+
+    [Fact]
+    public Task CompileErrorInTheBodyGetsNoDerivGenDiagnostic() => VerifyAsync(Usings + """
+        public static partial class C
+        {
+            [Differentiate]
+            public static double F(double x)
+            {
+                double s = x * x;
+                return {|CS0103:sx|} + Math.Sin(x);
+            }
         }
         """);
 

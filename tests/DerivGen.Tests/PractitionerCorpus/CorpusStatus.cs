@@ -26,7 +26,7 @@ internal static class CorpusStatus
         }),
         ["RobustLossEnumSwitch"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
         {
-            "DG0001: The expression 'kind switch             {                 LossKind.Square...' cannot be differentiated: a differentiable body uses locals, + - * /, and the math functions listed in the README",
+            "DG0001: The arm that throws ('throw new ArgumentOutOfRangeException(nameof(kind))') cannot be differentiated: the generated methods cannot throw yet; validate the argument before calling the method, or return double.NaN from this arm",
         }),
         ["TwoLinkReachVector2"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
         {
@@ -61,9 +61,9 @@ internal static class CorpusStatus
         }),
         ["JointLimitPenaltyGuards"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
         {
-            "DG0001: The statement 'ArgumentNullException.ThrowIfNull(q)' cannot be differentiated: a differentiable body only declares and assigns locals and returns a value",
-            "DG0001: The statement 'ArgumentOutOfRangeException.ThrowIfNotEqual(q.Length, hom...' cannot be differentiated: a differentiable body only declares and assigns locals and returns a value",
-            "DG0001: The expression 'q[i] switch             {                 > Limit => 10 *...' cannot be differentiated: a differentiable body uses locals, + - * /, and the math functions listed in the README",
+            "DG0001: The throw helper 'ArgumentNullException.ThrowIfNull' cannot be differentiated: the generated methods cannot throw yet; check the arguments before calling the method (the check can stay in a method that calls this one)",
+            "DG0001: The throw helper 'ArgumentOutOfRangeException.ThrowIfNotEqual' cannot be differentiated: the generated methods cannot throw yet; check the arguments before calling the method (the check can stay in a method that calls this one)",
+            "DG0007: 'q[i] switch { … }' is not differentiable everywhere: an arm's condition depends on a differentiation variable, so the derivative is that of the arm taken and jumps where the arm changes",
         }),
         ["ProjectileRk4Drag"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
         {
@@ -116,9 +116,8 @@ internal static class CorpusStatus
         }),
         ["BallisticRangeFiniteGuard"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
         {
-            "DG0001: The call to 'double.IsFinite' cannot be differentiated: only the functions of System.Math, System.MathF, double and float listed in the README, and other [Differentiate] methods, can be called; mark the method [Differentiate] to differentiate through it",
-            "DG0001: The throw statement cannot be differentiated: exceptions cannot be differentiated; validate arguments before calling the method",
-            "DG0001: The call to 'double.IsNaN' cannot be differentiated: only the functions of System.Math, System.MathF, double and float listed in the README, and other [Differentiate] methods, can be called; mark the method [Differentiate] to differentiate through it",
+            "DG0007: 'if (!double.IsFinite(speed) || speed <= 0)' is not differentiable everywhere: the condition depends on a differentiation variable, so the derivative is that of the branch taken and jumps where the condition changes",
+            "DG0001: The throw statement cannot be differentiated: the generated methods cannot throw yet; check the arguments before calling the method (the check can stay in a method that calls this one)",
         }),
         ["SoftmaxCrossEntropyLinq"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
         {
@@ -145,7 +144,7 @@ internal static class CorpusStatus
         }),
         ["ActivationEnumSwitchThrow"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
         {
-            "DG0001: The use of parameter 'activation' of type 'Corpus.ActivationEnumSwitchThrow.Activation' cannot be differentiated: arrays, spans and other types come in a later version; pass double, float or int values",
+            "DG0001: The throw statement cannot be differentiated: the generated methods cannot throw yet; check the arguments before calling the method (the check can stay in a method that calls this one)",
         }),
         ["QuadraticHorizonLocalArray"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
         {
@@ -179,13 +178,13 @@ internal static class CorpusStatus
             "DG0001: The local function cannot be differentiated: a differentiable body uses locals, + - * /, and the math functions listed in the README",
             "DG0001: The call to 'PiTuning.Lag' cannot be differentiated: a helper called from a differentiated method must be a static method with a body in this compilation, not generic, return double or float and take double, float, int or bool parameters; or mark it [Differentiate]",
         }),
-        ["ValveSaturationPatterns"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
+        ["ValveSaturationPatterns"] = new(Accepted: true, Hessian: true, Diagnostics: new string[]
         {
-            "DG0001: The expression 'limiter switch             {                 Limiter.Soft...' cannot be differentiated: a differentiable body uses locals, + - * /, and the math functions listed in the README",
+            "DG0007: 'u switch { … }' is not differentiable everywhere: an arm's condition depends on a differentiation variable, so the derivative is that of the arm taken and jumps where the arm changes",
         }),
         ["NormalLikelihoodLinqGuard"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
         {
-            "DG0001: The statement 'ArgumentOutOfRangeException.ThrowIfNegativeOrZero(sigma)' cannot be differentiated: a differentiable body only declares and assigns locals and returns a value",
+            "DG0001: The throw helper 'ArgumentOutOfRangeException.ThrowIfNegativeOrZero' cannot be differentiated: the generated methods cannot throw yet; check the arguments before calling the method (the check can stay in a method that calls this one)",
             "DG0001: The call to 'System.Linq.Enumerable.Sum' cannot be differentiated: only the functions of System.Math, System.MathF, double and float listed in the README, and other [Differentiate] methods, can be called; mark the method [Differentiate] to differentiate through it",
         }),
         ["PoissonRegressionInstanceHelper"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
@@ -196,9 +195,8 @@ internal static class CorpusStatus
         {
             "DG0001: The call to 'BearingLife.LogPdf' cannot be differentiated: a helper called from a differentiated method must be a static method with a body in this compilation, not generic, return double or float and take double, float, int or bool parameters; or mark it [Differentiate]",
         }),
-        ["MixtureSkipsMissingIsNaN"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
+        ["MixtureSkipsMissingIsNaN"] = new(Accepted: true, Hessian: true, Diagnostics: new string[]
         {
-            "DG0001: The call to 'double.IsNaN' cannot be differentiated: only the functions of System.Math, System.MathF, double and float listed in the README, and other [Differentiate] methods, can be called; mark the method [Differentiate] to differentiate through it",
         }),
         ["Ar1RangesZip"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
         {
@@ -219,9 +217,9 @@ internal static class CorpusStatus
         }),
         ["TrackingErrorThrowHelpers"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
         {
-            "DG0001: The statement 'ArgumentNullException.ThrowIfNull(w)' cannot be differentiated: a differentiable body only declares and assigns locals and returns a value",
-            "DG0001: The statement 'ArgumentNullException.ThrowIfNull(volatility)' cannot be differentiated: a differentiable body only declares and assigns locals and returns a value",
-            "DG0001: The throw statement cannot be differentiated: exceptions cannot be differentiated; validate arguments before calling the method",
+            "DG0001: The throw helper 'ArgumentNullException.ThrowIfNull' cannot be differentiated: the generated methods cannot throw yet; check the arguments before calling the method (the check can stay in a method that calls this one)",
+            "DG0001: The throw helper 'ArgumentNullException.ThrowIfNull' cannot be differentiated: the generated methods cannot throw yet; check the arguments before calling the method (the check can stay in a method that calls this one)",
+            "DG0001: The throw statement cannot be differentiated: the generated methods cannot throw yet; check the arguments before calling the method (the check can stay in a method that calls this one)",
             "DG0001: The call to 'System.Linq.Enumerable.Sum' cannot be differentiated: only the functions of System.Math, System.MathF, double and float listed in the README, and other [Differentiate] methods, can be called; mark the method [Differentiate] to differentiate through it",
         }),
         ["SineFitSpanSlice"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
@@ -242,12 +240,10 @@ internal static class CorpusStatus
         ["RingDownStaticLocalFunction"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
         {
             "DG0001: The local function cannot be differentiated: a differentiable body uses locals, + - * /, and the math functions listed in the README",
-            "DG0001: The call to 'double.IsFinite' cannot be differentiated: only the functions of System.Math, System.MathF, double and float listed in the README, and other [Differentiate] methods, can be called; mark the method [Differentiate] to differentiate through it",
             "DG0001: The call to 'RingDown.Envelope' cannot be differentiated: a helper called from a differentiated method must be a static method with a body in this compilation, not generic, return double or float and take double, float, int or bool parameters; or mark it [Differentiate]",
         }),
-        ["EdgeFitWindowEnumSwitch"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
+        ["EdgeFitWindowEnumSwitch"] = new(Accepted: true, Hessian: true, Diagnostics: new string[]
         {
-            "DG0001: The use of parameter 'window' of type 'Corpus.EdgeFitWindowEnumSwitch.Window' cannot be differentiated: arrays, spans and other types come in a later version; pass double, float or int values",
         }),
         ["CircleFitVector2"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
         {
@@ -323,16 +319,13 @@ internal static class CorpusStatus
             "DG0005: 'Loss' returns 'T'; [Differentiate] needs a method that returns double or float, or a void method whose last parameter is a Span<double> or Span<float> of outputs",
             "DG0001: The generic method 'Loss' cannot be differentiated: differentiated methods cannot have type parameters; make the containing type generic instead",
         }),
-        ["ConversionFilterPredicates"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
+        ["ConversionFilterPredicates"] = new(Accepted: true, Hessian: true, Diagnostics: new string[]
         {
-            "DG0001: The call to 'double.IsFinite' cannot be differentiated: only the functions of System.Math, System.MathF, double and float listed in the README, and other [Differentiate] methods, can be called; mark the method [Differentiate] to differentiate through it",
-            "DG0001: The expression 'y is not (> 0 and < 1)' cannot be differentiated: a differentiable body uses locals, + - * /, and the math functions listed in the README",
         }),
-        ["HuberLocationCaseRelational"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
+        ["HuberLocationCaseRelational"] = new(Accepted: true, Hessian: true, Diagnostics: new string[]
         {
-            "DG0001: The local 'side' of type 'Corpus.HuberLocationCaseRelational.Side' cannot be differentiated: locals must be double, float, int or bool",
-            "DG0001: The case label 'case < -Delta:' cannot be differentiated: use constant case labels (case 1:, case 2:) or if/else",
-            "DG0001: The operator 'side == Side.Inside' cannot be differentiated: only + - * / on double, float and int, comparisons, && and || are supported",
+            "DG0007: 'switch (r)' is not differentiable everywhere: the value switched on depends on a differentiation variable, so the derivative is that of the section taken and jumps where the value changes",
+            "DG0007: 'side == Side.Inside ? … : …' is not differentiable everywhere: the condition depends on a differentiation variable, so the derivative is that of the branch taken and jumps where the condition changes",
             "DG0007: 'Math.Abs' is not differentiable everywhere: its derivative at 0 is taken as 0",
         }),
         ["PathEndClearanceMin"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
