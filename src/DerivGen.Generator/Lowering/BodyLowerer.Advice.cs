@@ -124,7 +124,7 @@ internal sealed partial class BodyLowerer
         string squares = Sum(x => x + " * " + x);
         string differences = "double " + string.Join(", ", c.Select(x => "d" + x + " = a" + x + " - b" + x));
         string differenceSquares = Sum(x => "d" + x + " * d" + x);
-        string formula = method switch
+        string? formula = method switch
         {
             "Dot" => Sum(x => "a" + x + " * b" + x),
             "LengthSquared" => squares,
@@ -137,7 +137,7 @@ internal sealed partial class BodyLowerer
             "Min" or "Max" => PerComponent(x => "Math." + method + "(a" + x + ", b" + x + ")"),
             "Abs" => PerComponent(x => "Math.Abs(" + x + ")"),
             "Clamp" => PerComponent(x => "Math.Clamp(" + x + ", min" + x + ", max" + x + ")"),
-            _ => null!,
+            _ => null,
         };
         string components = string.Join(", ", c);
         return formula is null
