@@ -172,6 +172,23 @@ internal sealed partial class BodyLowerer
             }
         }
 
+        // An array written out in the call (new[] { w0, w1 }.Select(…).Sum()): a local array is refused too, so the
+        // advice is the expression written out over its elements.
+        if (source is IArrayCreationOperation { Initializer.ElementValues: { Length: > 0 and <= 8 } elements })
+        {
+            string names = string.Join(", ", elements.Select(Text));
+            string terms = string.Join(" + ", elements.Select(_ => "…"));
+            string arguments = string.Join(", ", elements.Select(_ => "…"));
+            string written = method switch
+            {
+                "Sum" => "write the sum out, one term for each of " + names + ": `" + terms + "`",
+                "Average" => "write the mean out, one term for each of " + names + ": `(" + terms + ") / " + elements.Length.ToString(System.Globalization.CultureInfo.InvariantCulture) + "`",
+                "Max" or "Min" => "write it out with Math." + method + ", one argument for each of " + names + ": `Math." + method + "(" + arguments + ")`",
+                _ => "write it out with one term for each of " + names + ": `" + terms + "`",
+            };
+            return "LINQ is not differentiated in this version; " + written;
+        }
+
         string loop, count;
         if (source is IInvocationOperation { TargetMethod: { Name: "Range", ContainingType.Name: "Enumerable" } } range && range.Arguments.Length == 2)
         {

@@ -199,6 +199,28 @@ public sealed class RefusalAdviceTests
     }
 
     [Fact]
+    public async Task LinqOverAnArrayWrittenInTheCallIsWrittenOutTermByTerm()
+    {
+        await RefusedWith(Usings + """
+            public static partial class Penalty
+            {
+                [Differentiate]
+                public static double Ridge(double w0, double w1) => new[] { w0, w1 }.Select(v => v * v).Sum();
+            }
+            """,
+            Call("System.Linq.Enumerable.Sum", "LINQ is not differentiated in this version; write the sum out, one term for each of w0, w1: `… + …`"));
+
+        using CompiledAssembly asm = await Accepted(Usings + """
+            public static partial class Penalty
+            {
+                [Differentiate]
+                public static double Ridge(double w0, double w1) => w0 * w0 + w1 * w1;
+            }
+            """);
+        Assert.True(asm.HasMethod("Penalty", "RidgeGradient"));
+    }
+
+    [Fact]
     public async Task OtherLinqCallsBecomeAForLoop()
     {
         await RefusedWith(Usings + """

@@ -339,7 +339,7 @@ internal static class CorpusStatus
         ["LogisticRangeSumSelectPenalty"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
         {
             "DG0001: The call to 'System.Linq.Enumerable.Sum' cannot be differentiated: LINQ is not differentiated in this version; write the sum as a for loop over the array: `double s = 0; for (int i = 0; i < Y.Length; i++) s += …;`",
-            "DG0001: The call to 'System.Linq.Enumerable.Sum' cannot be differentiated: LINQ is not differentiated in this version; write the sum as a for loop over the array: `double s = 0; for (int i = 0; i < xs.Length; i++) s += …;`",
+            "DG0001: The call to 'System.Linq.Enumerable.Sum' cannot be differentiated: LINQ is not differentiated in this version; write the sum out, one term for each of w0, w1: `… + …`",
         }),
         ["SpectralUnmixingArrayHelper"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
         {
