@@ -30,7 +30,7 @@ internal sealed partial class BodyLowerer
         if (helper.Syntax is not { } syntax || helper.ReturnType is not { } type)
         {
             return Unsupported(invocation, "the call to " + name,
-                "a helper called from a differentiated method must be a static method with a body in this compilation, not generic, return double or float and take double, float, int or bool parameters; or mark it [Differentiate]");
+                HelperAdvice(target));
         }
 
         if (helper.NotPartialType is { } notPartial)

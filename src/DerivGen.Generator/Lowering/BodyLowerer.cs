@@ -504,7 +504,7 @@ internal sealed partial class BodyLowerer
         ScalarType? type = ValueTypeOf(local.Type);
         if (type is null)
         {
-            Unsupported(declarator, $"the local '{local.Name}' of type '{local.Type.ToDisplayString()}'", "locals must be double, float, int or bool");
+            Unsupported(declarator, $"the local '{local.Name}' of type '{local.Type.ToDisplayString()}'", VectorLocalAdvice(local) ?? "locals must be double, float, int or bool");
             return;
         }
 
@@ -778,7 +778,10 @@ internal sealed partial class BodyLowerer
 
             case IFieldReferenceOperation field:
                 return Unsupported(operation, $"the field '{field.Field.Name}'",
-                    field.Field.IsStatic ? "only const and static readonly fields are read as constants" : "instance fields come in a later version; pass the value as a parameter");
+                    field.Field.IsStatic ? "only const and static readonly fields are read as constants"
+                    : VectorComponents(field.Field.ContainingType) is not null
+                        ? "System.Numerics vectors are not differentiated in this version; keep the component in a double or float parameter or local instead of the vector"
+                        : "instance fields come in a later version; pass the value as a parameter");
 
             case IPropertyReferenceOperation { Property: { IsStatic: true, IsIndexer: false, GetMethod: not null } property } when ScalarTypeOf(property.Type) is { } propertyType:
                 return new IrExternal(FullyQualified(property.ContainingType) + "." + Identifiers.Escape(property.Name), propertyType);
@@ -971,7 +974,7 @@ internal sealed partial class BodyLowerer
             || ScalarTypeOf(target.ReturnType) is not { } returnType)
         {
             return Unsupported(invocation, $"the call to '{target.ContainingType?.ToDisplayString()}.{target.Name}'",
-                "only the functions of System.Math, System.MathF, double and float listed in the README, and other [Differentiate] methods, can be called; mark the method [Differentiate] to differentiate through it");
+                CallAdvice(invocation, target));
         }
 
         var arguments = new IrExpression[invocation.Arguments.Length];
@@ -1164,6 +1167,7 @@ internal sealed partial class BodyLowerer
         IBranchOperation => "break, continue and goto are not supported yet; put the condition around the loop body's statements instead",
         ITryOperation => "exceptions cannot be differentiated; validate arguments before calling the method",
         IThrowOperation => "the generated methods cannot throw yet; check the arguments before calling the method (the check can stay in a method that calls this one)",
+        ILocalFunctionOperation => LocalFunctionAdvice,
         _ => "a differentiable body uses locals, + - * /, and the math functions listed in the README",
     };
 }

@@ -10,19 +10,19 @@ internal static class CorpusStatus
     {
         ["ExpDecayZipSum"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
         {
-            "DG0001: The call to 'System.Linq.Enumerable.Sum' cannot be differentiated: only the functions of System.Math, System.MathF, double and float listed in the README, and other [Differentiate] methods, can be called; mark the method [Differentiate] to differentiate through it",
+            "DG0001: The call to 'System.Linq.Enumerable.Sum' cannot be differentiated: LINQ is not differentiated in this version; write the sum as a for loop over the array: `double s = 0; for (int i = 0; i < Hours.Length; i++) s += …;`",
         }),
         ["LogisticGrowthLocalFunction"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
         {
-            "DG0001: The local function cannot be differentiated: a differentiable body uses locals, + - * /, and the math functions listed in the README",
-            "DG0001: The call to 'Corpus.LogisticGrowthLocalFunction.GrowthCurve.Model' cannot be differentiated: only the functions of System.Math, System.MathF, double and float listed in the README, and other [Differentiate] methods, can be called; mark the method [Differentiate] to differentiate through it",
+            "DG0001: The local function cannot be differentiated: local functions are not differentiated in this version; make it a static method of this type with double, float, int or bool parameters and a double or float result (pass what it captures as arguments): such a helper is differentiated through",
+            "DG0001: The call to 'Corpus.LogisticGrowthLocalFunction.GrowthCurve.Model' cannot be differentiated: only the functions of System.Math, System.MathF, double and float listed in the README, and other [Differentiate] methods, can be called; local functions are not differentiated in this version; make it a static method of this type with double, float, int or bool parameters and a double or float result (pass what it captures as arguments): such a helper is differentiated through",
         }),
         ["GaussianPeakHelper"] = new(Accepted: true, Hessian: true, Diagnostics: new string[]
         {
         }),
         ["PolynomialHornerSpanHelper"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
         {
-            "DG0001: The call to 'Calibration.Horner' cannot be differentiated: a helper called from a differentiated method must be a static method with a body in this compilation, not generic, return double or float and take double, float, int or bool parameters; or mark it [Differentiate]",
+            "DG0001: The call to 'Calibration.Horner' cannot be differentiated: a helper called from a differentiated method must be a static method with a body in this compilation, not generic, return double or float and take double, float, int or bool parameters; 'Horner' takes 'System.ReadOnlySpan<double> c': write its computation inline in this method with double and float locals",
         }),
         ["RobustLossEnumSwitch"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
         {
@@ -30,9 +30,9 @@ internal static class CorpusStatus
         }),
         ["TwoLinkReachVector2"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
         {
-            "DG0001: The local 'elbowPosition' of type 'System.Numerics.Vector2' cannot be differentiated: locals must be double, float, int or bool",
-            "DG0001: The local 'tip' of type 'System.Numerics.Vector2' cannot be differentiated: locals must be double, float, int or bool",
-            "DG0001: The call to 'System.Numerics.Vector2.DistanceSquared' cannot be differentiated: only the functions of System.Math, System.MathF, double and float listed in the README, and other [Differentiate] methods, can be called; mark the method [Differentiate] to differentiate through it",
+            "DG0001: The local 'elbowPosition' of type 'System.Numerics.Vector2' cannot be differentiated: locals must be double, float, int or bool; System.Numerics vectors are not differentiated in this version: keep its components in double or float locals (elbowPositionX, elbowPositionY)",
+            "DG0001: The local 'tip' of type 'System.Numerics.Vector2' cannot be differentiated: locals must be double, float, int or bool; System.Numerics vectors are not differentiated in this version: keep its components in double or float locals (tipX, tipY)",
+            "DG0001: The call to 'System.Numerics.Vector2.DistanceSquared' cannot be differentiated: System.Numerics vectors are not differentiated in this version; work on the components as double or float scalars (pass x, y as separate parameters, keep them in separate locals) and write Vector2.DistanceSquared as `double dx = ax - bx, dy = ay - by; … dx * dx + dy * dy`",
         }),
         ["ThreeLinkStackalloc"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
         {
@@ -44,9 +44,9 @@ internal static class CorpusStatus
         ["SerialChainPoseStruct"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
         {
             "DG0001: The local 'p' of type 'Corpus.SerialChainPoseStruct.Pose' cannot be differentiated: locals must be double, float, int or bool",
-            "DG0001: The call to 'SerialChain.Advance' cannot be differentiated: a helper called from a differentiated method must be a static method with a body in this compilation, not generic, return double or float and take double, float, int or bool parameters; or mark it [Differentiate]",
-            "DG0001: The call to 'SerialChain.Advance' cannot be differentiated: a helper called from a differentiated method must be a static method with a body in this compilation, not generic, return double or float and take double, float, int or bool parameters; or mark it [Differentiate]",
-            "DG0001: The call to 'SerialChain.Advance' cannot be differentiated: a helper called from a differentiated method must be a static method with a body in this compilation, not generic, return double or float and take double, float, int or bool parameters; or mark it [Differentiate]",
+            "DG0001: The call to 'SerialChain.Advance' cannot be differentiated: a helper called from a differentiated method must be a static method with a body in this compilation, not generic, return double or float and take double, float, int or bool parameters; 'Advance' returns 'Corpus.SerialChainPoseStruct.Pose': write its computation inline in this method with double and float locals",
+            "DG0001: The call to 'SerialChain.Advance' cannot be differentiated: a helper called from a differentiated method must be a static method with a body in this compilation, not generic, return double or float and take double, float, int or bool parameters; 'Advance' returns 'Corpus.SerialChainPoseStruct.Pose': write its computation inline in this method with double and float locals",
+            "DG0001: The call to 'SerialChain.Advance' cannot be differentiated: a helper called from a differentiated method must be a static method with a body in this compilation, not generic, return double or float and take double, float, int or bool parameters; 'Advance' returns 'Corpus.SerialChainPoseStruct.Pose': write its computation inline in this method with double and float locals",
             "DG0001: The property 'X' cannot be differentiated: only static properties of double, float or int type are read as constants",
             "DG0001: The property 'Y' cannot be differentiated: only static properties of double, float or int type are read as constants",
             "DG0001: The property 'Heading' cannot be differentiated: only static properties of double, float or int type are read as constants",
@@ -54,10 +54,10 @@ internal static class CorpusStatus
         }),
         ["PanTiltAimVector3"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
         {
-            "DG0001: The local 'forward' of type 'System.Numerics.Vector3' cannot be differentiated: locals must be double, float, int or bool",
-            "DG0001: The local 'toTarget' of type 'System.Numerics.Vector3' cannot be differentiated: locals must be double, float, int or bool",
-            "DG0001: The call to 'System.Numerics.Vector3.Dot' cannot be differentiated: only the functions of System.Math, System.MathF, double and float listed in the README, and other [Differentiate] methods, can be called; mark the method [Differentiate] to differentiate through it",
-            "DG0001: The call to 'System.Numerics.Vector3.Length' cannot be differentiated: only the functions of System.Math, System.MathF, double and float listed in the README, and other [Differentiate] methods, can be called; mark the method [Differentiate] to differentiate through it",
+            "DG0001: The local 'forward' of type 'System.Numerics.Vector3' cannot be differentiated: locals must be double, float, int or bool; System.Numerics vectors are not differentiated in this version: keep its components in double or float locals (forwardX, forwardY, forwardZ)",
+            "DG0001: The local 'toTarget' of type 'System.Numerics.Vector3' cannot be differentiated: locals must be double, float, int or bool; System.Numerics vectors are not differentiated in this version: keep its components in double or float locals (toTargetX, toTargetY, toTargetZ)",
+            "DG0001: The call to 'System.Numerics.Vector3.Dot' cannot be differentiated: System.Numerics vectors are not differentiated in this version; work on the components as double or float scalars (pass x, y, z as separate parameters, keep them in separate locals) and write Vector3.Dot as `ax * bx + ay * by + az * bz`",
+            "DG0001: The call to 'System.Numerics.Vector3.Length' cannot be differentiated: System.Numerics vectors are not differentiated in this version; work on the components as double or float scalars (pass x, y, z as separate parameters, keep them in separate locals) and write Vector3.Length as `Math.Sqrt(x * x + y * y + z * z)`",
         }),
         ["JointLimitPenaltyGuards"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
         {
@@ -91,26 +91,26 @@ internal static class CorpusStatus
         }),
         ["PendulumLocalFunction"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
         {
-            "DG0001: The local function cannot be differentiated: a differentiable body uses locals, + - * /, and the math functions listed in the README",
-            "DG0001: The call to 'Corpus.PendulumLocalFunction.Pendulum.Acceleration' cannot be differentiated: only the functions of System.Math, System.MathF, double and float listed in the README, and other [Differentiate] methods, can be called; mark the method [Differentiate] to differentiate through it",
+            "DG0001: The local function cannot be differentiated: local functions are not differentiated in this version; make it a static method of this type with double, float, int or bool parameters and a double or float result (pass what it captures as arguments): such a helper is differentiated through",
+            "DG0001: The call to 'Corpus.PendulumLocalFunction.Pendulum.Acceleration' cannot be differentiated: only the functions of System.Math, System.MathF, double and float listed in the README, and other [Differentiate] methods, can be called; local functions are not differentiated in this version; make it a static method of this type with double, float, int or bool parameters and a double or float result (pass what it captures as arguments): such a helper is differentiated through",
         }),
         ["OrbitLeapfrogVector3"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
         {
-            "DG0001: The local 'r' of type 'System.Numerics.Vector3' cannot be differentiated: locals must be double, float, int or bool",
-            "DG0001: The local 'v' of type 'System.Numerics.Vector3' cannot be differentiated: locals must be double, float, int or bool",
-            "DG0001: The call to 'System.Numerics.Vector3.LengthSquared' cannot be differentiated: only the functions of System.Math, System.MathF, double and float listed in the README, and other [Differentiate] methods, can be called; mark the method [Differentiate] to differentiate through it",
-            "DG0001: The local 'a' of type 'System.Numerics.Vector3' cannot be differentiated: locals must be double, float, int or bool",
+            "DG0001: The local 'r' of type 'System.Numerics.Vector3' cannot be differentiated: locals must be double, float, int or bool; System.Numerics vectors are not differentiated in this version: keep its components in double or float locals (rX, rY, rZ)",
+            "DG0001: The local 'v' of type 'System.Numerics.Vector3' cannot be differentiated: locals must be double, float, int or bool; System.Numerics vectors are not differentiated in this version: keep its components in double or float locals (vX, vY, vZ)",
+            "DG0001: The call to 'System.Numerics.Vector3.LengthSquared' cannot be differentiated: System.Numerics vectors are not differentiated in this version; work on the components as double or float scalars (pass x, y, z as separate parameters, keep them in separate locals) and write Vector3.LengthSquared as `x * x + y * y + z * z`",
+            "DG0001: The local 'a' of type 'System.Numerics.Vector3' cannot be differentiated: locals must be double, float, int or bool; System.Numerics vectors are not differentiated in this version: keep its components in double or float locals (aX, aY, aZ)",
             "DG0001: The assignment 'v += 0.5f * Dt * a' cannot be differentiated: only locals of the method can be assigned",
             "DG0001: The assignment 'r += Dt * v' cannot be differentiated: only locals of the method can be assigned",
-            "DG0001: The call to 'System.Numerics.Vector3.LengthSquared' cannot be differentiated: only the functions of System.Math, System.MathF, double and float listed in the README, and other [Differentiate] methods, can be called; mark the method [Differentiate] to differentiate through it",
+            "DG0001: The call to 'System.Numerics.Vector3.LengthSquared' cannot be differentiated: System.Numerics vectors are not differentiated in this version; work on the components as double or float scalars (pass x, y, z as separate parameters, keep them in separate locals) and write Vector3.LengthSquared as `x * x + y * y + z * z`",
             "DG0001: The operator '-r / (d2 * MathF.Sqrt(d2))' cannot be differentiated: only + - * / on double, float and int, comparisons, && and || are supported",
             "DG0001: The assignment 'v += 0.5f * Dt * a' cannot be differentiated: only locals of the method can be assigned",
-            "DG0001: The call to 'System.Numerics.Vector3.Distance' cannot be differentiated: only the functions of System.Math, System.MathF, double and float listed in the README, and other [Differentiate] methods, can be called; mark the method [Differentiate] to differentiate through it",
+            "DG0001: The call to 'System.Numerics.Vector3.Distance' cannot be differentiated: System.Numerics vectors are not differentiated in this version; work on the components as double or float scalars (pass x, y, z as separate parameters, keep them in separate locals) and write Vector3.Distance as `double dx = ax - bx, dy = ay - by, dz = az - bz; … Math.Sqrt(dx * dx + dy * dy + dz * dz)`",
         }),
         ["SpringMassRecordStruct"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
         {
             "DG0001: The local 'state' of type 'Corpus.SpringMassRecordStruct.State' cannot be differentiated: locals must be double, float, int or bool",
-            "DG0001: The call to 'Suspension.Step' cannot be differentiated: a helper called from a differentiated method must be a static method with a body in this compilation, not generic, return double or float and take double, float, int or bool parameters; or mark it [Differentiate]",
+            "DG0001: The call to 'Suspension.Step' cannot be differentiated: a helper called from a differentiated method must be a static method with a body in this compilation, not generic, return double or float and take double, float, int or bool parameters; 'Step' returns 'Corpus.SpringMassRecordStruct.State': write its computation inline in this method with double and float locals",
             "DG0001: The property 'Position' cannot be differentiated: only static properties of double, float or int type are read as constants",
             "DG0001: The property 'Position' cannot be differentiated: only static properties of double, float or int type are read as constants",
         }),
@@ -123,8 +123,8 @@ internal static class CorpusStatus
         {
             "DG0001: The local 'logits' of type 'double[]?' cannot be differentiated: locals must be double, float, int or bool",
             "DG0001: The assignment 'logits[c] = weights[2 * c] * Features[0] + weights[2 * c ...' cannot be differentiated: only locals of the method can be assigned",
-            "DG0001: The call to 'System.Linq.Enumerable.Max' cannot be differentiated: only the functions of System.Math, System.MathF, double and float listed in the README, and other [Differentiate] methods, can be called; mark the method [Differentiate] to differentiate through it",
-            "DG0001: The call to 'System.Linq.Enumerable.Sum' cannot be differentiated: only the functions of System.Math, System.MathF, double and float listed in the README, and other [Differentiate] methods, can be called; mark the method [Differentiate] to differentiate through it",
+            "DG0001: The call to 'System.Linq.Enumerable.Max' cannot be differentiated: LINQ is not differentiated in this version; write the maximum as a for loop over the array: `double m = double.NegativeInfinity; for (int i = 0; i < logits.Length; i++) m = Math.Max(m, …);`",
+            "DG0001: The call to 'System.Linq.Enumerable.Sum' cannot be differentiated: LINQ is not differentiated in this version; write the sum as a for loop over the array: `double s = 0; for (int i = 0; i < logits.Length; i++) s += …;`",
             "DG0001: The element access 'logits[Label]' cannot be differentiated: read elements of double, float or int arrays and spans that are parameters (not variables), fields of this instance or static readonly fields",
         }),
         ["LogisticRegressionTupleHelper"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
@@ -140,7 +140,7 @@ internal static class CorpusStatus
         }),
         ["RidgeEnumerableRangeAverage"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
         {
-            "DG0001: The call to 'System.Linq.Enumerable.Average' cannot be differentiated: only the functions of System.Math, System.MathF, double and float listed in the README, and other [Differentiate] methods, can be called; mark the method [Differentiate] to differentiate through it",
+            "DG0001: The call to 'System.Linq.Enumerable.Average' cannot be differentiated: LINQ is not differentiated in this version; write the mean as a for loop over the array: `double s = 0; for (int i = 0; i < Size.Length; i++) s += …; double mean = s / Size.Length;`",
         }),
         ["ActivationEnumSwitchThrow"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
         {
@@ -169,14 +169,14 @@ internal static class CorpusStatus
         }),
         ["PlantStructInstanceHelper"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
         {
-            "DG0001: The call to 'Corpus.PlantStructInstanceHelper.FirstOrderPlant.Next' cannot be differentiated: only the functions of System.Math, System.MathF, double and float listed in the README, and other [Differentiate] methods, can be called; mark the method [Differentiate] to differentiate through it",
-            "DG0001: The call to 'Corpus.PlantStructInstanceHelper.FirstOrderPlant.Next' cannot be differentiated: only the functions of System.Math, System.MathF, double and float listed in the README, and other [Differentiate] methods, can be called; mark the method [Differentiate] to differentiate through it",
-            "DG0001: The call to 'Corpus.PlantStructInstanceHelper.FirstOrderPlant.Next' cannot be differentiated: only the functions of System.Math, System.MathF, double and float listed in the README, and other [Differentiate] methods, can be called; mark the method [Differentiate] to differentiate through it",
+            "DG0001: The call to 'Corpus.PlantStructInstanceHelper.FirstOrderPlant.Next' cannot be differentiated: only the functions of System.Math, System.MathF, double and float listed in the README, and other [Differentiate] methods, can be called; 'Next' is called on another object than this one, so marking it [Differentiate] would not help: write its computation inline in this method with double and float locals",
+            "DG0001: The call to 'Corpus.PlantStructInstanceHelper.FirstOrderPlant.Next' cannot be differentiated: only the functions of System.Math, System.MathF, double and float listed in the README, and other [Differentiate] methods, can be called; 'Next' is called on another object than this one, so marking it [Differentiate] would not help: write its computation inline in this method with double and float locals",
+            "DG0001: The call to 'Corpus.PlantStructInstanceHelper.FirstOrderPlant.Next' cannot be differentiated: only the functions of System.Math, System.MathF, double and float listed in the README, and other [Differentiate] methods, can be called; 'Next' is called on another object than this one, so marking it [Differentiate] would not help: write its computation inline in this method with double and float locals",
         }),
         ["PiTuningStaticLocalFunction"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
         {
-            "DG0001: The local function cannot be differentiated: a differentiable body uses locals, + - * /, and the math functions listed in the README",
-            "DG0001: The call to 'PiTuning.Lag' cannot be differentiated: a helper called from a differentiated method must be a static method with a body in this compilation, not generic, return double or float and take double, float, int or bool parameters; or mark it [Differentiate]",
+            "DG0001: The local function cannot be differentiated: local functions are not differentiated in this version; make it a static method of this type with double, float, int or bool parameters and a double or float result (pass what it captures as arguments): such a helper is differentiated through",
+            "DG0001: The call to 'PiTuning.Lag' cannot be differentiated: a helper called from a differentiated method must be a static method with a body in this compilation, not generic, return double or float and take double, float, int or bool parameters; local functions are not differentiated in this version; make it a static method of this type with double, float, int or bool parameters and a double or float result (pass what it captures as arguments): such a helper is differentiated through",
         }),
         ["ValveSaturationPatterns"] = new(Accepted: true, Hessian: true, Diagnostics: new string[]
         {
@@ -185,7 +185,7 @@ internal static class CorpusStatus
         ["NormalLikelihoodLinqGuard"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
         {
             "DG0001: The throw helper 'ArgumentOutOfRangeException.ThrowIfNegativeOrZero' cannot be differentiated: the generated methods cannot throw yet; check the arguments before calling the method (the check can stay in a method that calls this one)",
-            "DG0001: The call to 'System.Linq.Enumerable.Sum' cannot be differentiated: only the functions of System.Math, System.MathF, double and float listed in the README, and other [Differentiate] methods, can be called; mark the method [Differentiate] to differentiate through it",
+            "DG0001: The call to 'System.Linq.Enumerable.Sum' cannot be differentiated: LINQ is not differentiated in this version; write the sum as a for loop over the array: `double s = 0; for (int i = 0; i < Sample.Length; i++) s += …;`",
         }),
         ["PoissonRegressionInstanceHelper"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
         {
@@ -193,7 +193,7 @@ internal static class CorpusStatus
         }),
         ["WeibullGenericMathHelper"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
         {
-            "DG0001: The call to 'BearingLife.LogPdf' cannot be differentiated: a helper called from a differentiated method must be a static method with a body in this compilation, not generic, return double or float and take double, float, int or bool parameters; or mark it [Differentiate]",
+            "DG0001: The call to 'BearingLife.LogPdf' cannot be differentiated: a helper called from a differentiated method must be a static method with a body in this compilation, not generic, return double or float and take double, float, int or bool parameters; 'LogPdf' is generic: write its computation inline in this method with double and float locals",
         }),
         ["MixtureSkipsMissingIsNaN"] = new(Accepted: true, Hessian: true, Diagnostics: new string[]
         {
@@ -201,15 +201,15 @@ internal static class CorpusStatus
         ["Ar1RangesZip"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
         {
             "DG0001: The local 'ys' of type 'double[]' cannot be differentiated: locals must be double, float, int or bool",
-            "DG0001: The call to 'System.Linq.Enumerable.Sum' cannot be differentiated: only the functions of System.Math, System.MathF, double and float listed in the README, and other [Differentiate] methods, can be called; mark the method [Differentiate] to differentiate through it",
+            "DG0001: The call to 'System.Linq.Enumerable.Sum' cannot be differentiated: LINQ is not differentiated in this version; write the sum as a for loop over the array: `double s = 0; for (int i = 0; i < xs.Length; i++) s += …;`",
         }),
         ["MeanVarianceQuadraticForm"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
         {
-            "DG0001: The call to 'Portfolio.QuadraticForm' cannot be differentiated: a helper called from a differentiated method must be a static method with a body in this compilation, not generic, return double or float and take double, float, int or bool parameters; or mark it [Differentiate]",
+            "DG0001: The call to 'Portfolio.QuadraticForm' cannot be differentiated: a helper called from a differentiated method must be a static method with a body in this compilation, not generic, return double or float and take double, float, int or bool parameters; 'QuadraticForm' takes 'double[*,*] m': write its computation inline in this method with double and float locals",
         }),
         ["KellyFractionSelectAverage"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
         {
-            "DG0001: The call to 'System.Linq.Enumerable.Average' cannot be differentiated: only the functions of System.Math, System.MathF, double and float listed in the README, and other [Differentiate] methods, can be called; mark the method [Differentiate] to differentiate through it",
+            "DG0001: The call to 'System.Linq.Enumerable.Average' cannot be differentiated: LINQ is not differentiated in this version; write the mean as a for loop over the array: `double s = 0; for (int i = 0; i < Returns.Length; i++) s += …; double mean = s / Returns.Length;`",
         }),
         ["BachelierQuotesRecordStruct"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
         {
@@ -220,7 +220,7 @@ internal static class CorpusStatus
             "DG0001: The throw helper 'ArgumentNullException.ThrowIfNull' cannot be differentiated: the generated methods cannot throw yet; check the arguments before calling the method (the check can stay in a method that calls this one)",
             "DG0001: The throw helper 'ArgumentNullException.ThrowIfNull' cannot be differentiated: the generated methods cannot throw yet; check the arguments before calling the method (the check can stay in a method that calls this one)",
             "DG0001: The throw statement cannot be differentiated: the generated methods cannot throw yet; check the arguments before calling the method (the check can stay in a method that calls this one)",
-            "DG0001: The call to 'System.Linq.Enumerable.Sum' cannot be differentiated: only the functions of System.Math, System.MathF, double and float listed in the README, and other [Differentiate] methods, can be called; mark the method [Differentiate] to differentiate through it",
+            "DG0001: The call to 'System.Linq.Enumerable.Sum' cannot be differentiated: LINQ is not differentiated in this version; write the sum as a for loop over the array: `double s = 0; for (int i = 0; i < w.Length; i++) s += …;`",
         }),
         ["SineFitSpanSlice"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
         {
@@ -239,22 +239,22 @@ internal static class CorpusStatus
         }),
         ["RingDownStaticLocalFunction"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
         {
-            "DG0001: The local function cannot be differentiated: a differentiable body uses locals, + - * /, and the math functions listed in the README",
-            "DG0001: The call to 'RingDown.Envelope' cannot be differentiated: a helper called from a differentiated method must be a static method with a body in this compilation, not generic, return double or float and take double, float, int or bool parameters; or mark it [Differentiate]",
+            "DG0001: The local function cannot be differentiated: local functions are not differentiated in this version; make it a static method of this type with double, float, int or bool parameters and a double or float result (pass what it captures as arguments): such a helper is differentiated through",
+            "DG0001: The call to 'RingDown.Envelope' cannot be differentiated: a helper called from a differentiated method must be a static method with a body in this compilation, not generic, return double or float and take double, float, int or bool parameters; local functions are not differentiated in this version; make it a static method of this type with double, float, int or bool parameters and a double or float result (pass what it captures as arguments): such a helper is differentiated through",
         }),
         ["EdgeFitWindowEnumSwitch"] = new(Accepted: true, Hessian: true, Diagnostics: new string[]
         {
         }),
         ["CircleFitVector2"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
         {
-            "DG0001: The local 'center' of type 'System.Numerics.Vector2' cannot be differentiated: locals must be double, float, int or bool",
+            "DG0001: The local 'center' of type 'System.Numerics.Vector2' cannot be differentiated: locals must be double, float, int or bool; System.Numerics vectors are not differentiated in this version: keep its components in double or float locals (centerX, centerY)",
             "DG0001: The foreach loop 'foreach (Vector2 p in Points)' cannot be differentiated: foreach works over a one-dimensional array or span of data (not a variable), with the element's own type",
         }),
         ["BezierControlPointLerp"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
         {
             "DG0004: Parameter 'control' has type 'System.Numerics.Vector3'; a differentiation variable must be a double or float parameter passed by value or with 'in'",
             "DG0001: The property 'Length' cannot be differentiated: only static properties of double, float or int type are read as constants",
-            "DG0001: The call to 'System.Numerics.Vector3.DistanceSquared' cannot be differentiated: only the functions of System.Math, System.MathF, double and float listed in the README, and other [Differentiate] methods, can be called; mark the method [Differentiate] to differentiate through it",
+            "DG0001: The call to 'System.Numerics.Vector3.DistanceSquared' cannot be differentiated: System.Numerics vectors are not differentiated in this version; work on the components as double or float scalars (pass x, y, z as separate parameters, keep them in separate locals) and write Vector3.DistanceSquared as `double dx = ax - bx, dy = ay - by, dz = az - bz; … dx * dx + dy * dy + dz * dz`",
         }),
         ["MeshSmoothingMutableStruct"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
         {
@@ -262,7 +262,7 @@ internal static class CorpusStatus
             "DG0001: The property 'Length' cannot be differentiated: only static properties of double, float or int type are read as constants",
             "DG0001: The local 'a' of type 'Corpus.MeshSmoothingMutableStruct.Vertex' cannot be differentiated: locals must be double, float, int or bool",
             "DG0001: The local 'b' of type 'Corpus.MeshSmoothingMutableStruct.Vertex' cannot be differentiated: locals must be double, float, int or bool",
-            "DG0001: The call to 'MeshSmoothing.SignedArea' cannot be differentiated: a helper called from a differentiated method must be a static method with a body in this compilation, not generic, return double or float and take double, float, int or bool parameters; or mark it [Differentiate]",
+            "DG0001: The call to 'MeshSmoothing.SignedArea' cannot be differentiated: a helper called from a differentiated method must be a static method with a body in this compilation, not generic, return double or float and take double, float, int or bool parameters; 'SignedArea' takes 'Corpus.MeshSmoothingMutableStruct.Vertex a': write its computation inline in this method with double and float locals",
             "DG0001: The field 'X' cannot be differentiated: instance fields come in a later version; pass the value as a parameter",
             "DG0001: The field 'X' cannot be differentiated: instance fields come in a later version; pass the value as a parameter",
             "DG0001: The field 'Y' cannot be differentiated: instance fields come in a later version; pass the value as a parameter",
@@ -275,24 +275,24 @@ internal static class CorpusStatus
         ["KeepOutBoxComponentwise"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
         {
             "DG0004: Parameter 'p' has type 'System.Numerics.Vector3'; a differentiation variable must be a double or float parameter passed by value or with 'in'",
-            "DG0001: The local 'q' of type 'System.Numerics.Vector3' cannot be differentiated: locals must be double, float, int or bool",
-            "DG0001: The local 'outside' of type 'System.Numerics.Vector3' cannot be differentiated: locals must be double, float, int or bool",
-            "DG0001: The field 'X' cannot be differentiated: instance fields come in a later version; pass the value as a parameter",
-            "DG0001: The field 'Y' cannot be differentiated: instance fields come in a later version; pass the value as a parameter",
-            "DG0001: The field 'Z' cannot be differentiated: instance fields come in a later version; pass the value as a parameter",
-            "DG0001: The call to 'System.Numerics.Vector3.LengthSquared' cannot be differentiated: only the functions of System.Math, System.MathF, double and float listed in the README, and other [Differentiate] methods, can be called; mark the method [Differentiate] to differentiate through it",
+            "DG0001: The local 'q' of type 'System.Numerics.Vector3' cannot be differentiated: locals must be double, float, int or bool; System.Numerics vectors are not differentiated in this version: keep its components in double or float locals (qX, qY, qZ)",
+            "DG0001: The local 'outside' of type 'System.Numerics.Vector3' cannot be differentiated: locals must be double, float, int or bool; System.Numerics vectors are not differentiated in this version: keep its components in double or float locals (outsideX, outsideY, outsideZ)",
+            "DG0001: The field 'X' cannot be differentiated: System.Numerics vectors are not differentiated in this version; keep the component in a double or float parameter or local instead of the vector",
+            "DG0001: The field 'Y' cannot be differentiated: System.Numerics vectors are not differentiated in this version; keep the component in a double or float parameter or local instead of the vector",
+            "DG0001: The field 'Z' cannot be differentiated: System.Numerics vectors are not differentiated in this version; keep the component in a double or float parameter or local instead of the vector",
+            "DG0001: The call to 'System.Numerics.Vector3.LengthSquared' cannot be differentiated: System.Numerics vectors are not differentiated in this version; work on the components as double or float scalars (pass x, y, z as separate parameters, keep them in separate locals) and write Vector3.LengthSquared as `x * x + y * y + z * z`",
         }),
         ["ColourGradeVector4"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
         {
             "DG0001: The property 'Length' cannot be differentiated: only static properties of double, float or int type are read as constants",
-            "DG0001: The local 'm' of type 'System.Numerics.Vector4' cannot be differentiated: locals must be double, float, int or bool",
-            "DG0001: The local 'graded' of type 'System.Numerics.Vector4' cannot be differentiated: locals must be double, float, int or bool",
-            "DG0001: The local 'clipped' of type 'System.Numerics.Vector4' cannot be differentiated: locals must be double, float, int or bool",
-            "DG0001: The call to 'System.Numerics.Vector4.DistanceSquared' cannot be differentiated: only the functions of System.Math, System.MathF, double and float listed in the README, and other [Differentiate] methods, can be called; mark the method [Differentiate] to differentiate through it",
+            "DG0001: The local 'm' of type 'System.Numerics.Vector4' cannot be differentiated: locals must be double, float, int or bool; System.Numerics vectors are not differentiated in this version: keep its components in double or float locals (mX, mY, mZ, mW)",
+            "DG0001: The local 'graded' of type 'System.Numerics.Vector4' cannot be differentiated: locals must be double, float, int or bool; System.Numerics vectors are not differentiated in this version: keep its components in double or float locals (gradedX, gradedY, gradedZ, gradedW)",
+            "DG0001: The local 'clipped' of type 'System.Numerics.Vector4' cannot be differentiated: locals must be double, float, int or bool; System.Numerics vectors are not differentiated in this version: keep its components in double or float locals (clippedX, clippedY, clippedZ, clippedW)",
+            "DG0001: The call to 'System.Numerics.Vector4.DistanceSquared' cannot be differentiated: System.Numerics vectors are not differentiated in this version; work on the components as double or float scalars (pass x, y, z, w as separate parameters, keep them in separate locals) and write Vector4.DistanceSquared as `double dx = ax - bx, dy = ay - by, dz = az - bz, dw = aw - bw; … dx * dx + dy * dy + dz * dz + dw * dw`",
         }),
         ["ArrheniusZipTuples"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
         {
-            "DG0001: The call to 'System.Linq.Enumerable.Sum' cannot be differentiated: only the functions of System.Math, System.MathF, double and float listed in the README, and other [Differentiate] methods, can be called; mark the method [Differentiate] to differentiate through it",
+            "DG0001: The call to 'System.Linq.Enumerable.Sum' cannot be differentiated: LINQ is not differentiated in this version; write the sum as a for loop over the array: `double s = 0; for (int i = 0; i < Kelvin.Length; i++) s += …;`",
         }),
         ["ConsecutiveReactionRk4"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
         {
@@ -334,16 +334,16 @@ internal static class CorpusStatus
             "DG0001: The expression '^1' cannot be differentiated: a differentiable body uses locals, + - * /, and the math functions listed in the README",
             "DG0001: The expression '^1' cannot be differentiated: a differentiable body uses locals, + - * /, and the math functions listed in the README",
             "DG0001: The expression '^1' cannot be differentiated: a differentiable body uses locals, + - * /, and the math functions listed in the README",
-            "DG0001: The call to 'System.Linq.Enumerable.Min' cannot be differentiated: only the functions of System.Math, System.MathF, double and float listed in the README, and other [Differentiate] methods, can be called; mark the method [Differentiate] to differentiate through it",
+            "DG0001: The call to 'System.Linq.Enumerable.Min' cannot be differentiated: LINQ is not differentiated in this version; write the minimum as a for loop over the array: `double m = double.PositiveInfinity; for (int i = 0; i < ObstacleX.Length; i++) m = Math.Min(m, …);`",
         }),
         ["LogisticRangeSumSelectPenalty"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
         {
-            "DG0001: The call to 'System.Linq.Enumerable.Sum' cannot be differentiated: only the functions of System.Math, System.MathF, double and float listed in the README, and other [Differentiate] methods, can be called; mark the method [Differentiate] to differentiate through it",
-            "DG0001: The call to 'System.Linq.Enumerable.Sum' cannot be differentiated: only the functions of System.Math, System.MathF, double and float listed in the README, and other [Differentiate] methods, can be called; mark the method [Differentiate] to differentiate through it",
+            "DG0001: The call to 'System.Linq.Enumerable.Sum' cannot be differentiated: LINQ is not differentiated in this version; write the sum as a for loop over the array: `double s = 0; for (int i = 0; i < Y.Length; i++) s += …;`",
+            "DG0001: The call to 'System.Linq.Enumerable.Sum' cannot be differentiated: LINQ is not differentiated in this version; write the sum out, one term for each of w0, w1: `… + …`",
         }),
         ["SpectralUnmixingArrayHelper"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
         {
-            "DG0001: The call to 'Unmixing.Dot' cannot be differentiated: a helper called from a differentiated method must be a static method with a body in this compilation, not generic, return double or float and take double, float, int or bool parameters; or mark it [Differentiate]",
+            "DG0001: The call to 'Unmixing.Dot' cannot be differentiated: a helper called from a differentiated method must be a static method with a body in this compilation, not generic, return double or float and take double, float, int or bool parameters; 'Dot' takes 'double[] a': write its computation inline in this method with double and float locals",
         }),
     };
 }

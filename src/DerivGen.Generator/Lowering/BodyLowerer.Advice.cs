@@ -1,0 +1,225 @@
+using System.Linq;
+using DerivGen.Generator.Model;
+using Microsoft.CodeAnalysis;
+using Microsoft.CodeAnalysis.Operations;
+
+namespace DerivGen.Generator.Lowering;
+
+// The advice of DG0001 for calls that cannot be differentiated: each names the construct and suggests a rewrite this
+// version accepts. "Mark it [Differentiate]" is suggested only for a method of this compilation that, marked, would be
+// differentiated through (an ordinary method with a body, not generic, double or float result, scalar parameters by
+// value or 'in', static or called on this instance). LINQ gets the equivalent for loop, System.Numerics vectors their
+// component formulas, any other library call the supported functions.
+internal sealed partial class BodyLowerer
+{
+    private const string CallablesHint =
+        "only the functions of System.Math, System.MathF, double and float listed in the README, and other [Differentiate] methods, can be called";
+
+    private const string LocalFunctionAdvice =
+        "local functions are not differentiated in this version; make it a static method of this type with double, float, int or bool parameters and a double or float result (pass what it captures as arguments): such a helper is differentiated through";
+
+    private const string VectorPrefix =
+        "System.Numerics vectors are not differentiated in this version; work on the components as double or float scalars (pass ";
+
+    /// <summary>The hint for a call that is neither a supported function nor a marked method nor a helper.</summary>
+    private string CallAdvice(IInvocationOperation invocation, IMethodSymbol target)
+    {
+        INamedTypeSymbol? type = target.ContainingType;
+        if (type is { Name: "Enumerable" } && type.ToDisplayString() == "System.Linq.Enumerable")
+        {
+            return LinqAdvice(invocation, target.Name);
+        }
+
+        if (VectorComponents(type) is { } components)
+        {
+            return VectorCallAdvice(type!.Name, target.Name, components);
+        }
+
+        if (target.MethodKind == MethodKind.LocalFunction)
+        {
+            return CallablesHint + "; " + LocalFunctionAdvice;
+        }
+
+        if (MathTypeHost(type) is not null || type?.SpecialType is SpecialType.System_Double or SpecialType.System_Single)
+        {
+            return CallablesHint + "; '" + target.Name + "' is not one of them: compute it with the supported functions of System.Math in this method";
+        }
+
+        if (!SymbolEqualityComparer.Default.Equals(target.ContainingAssembly, _helpers.Compilation.Assembly) || target.DeclaringSyntaxReferences.Length == 0)
+        {
+            return CallablesHint + "; '" + target.Name + "' is a method of another assembly and cannot be marked: compute it with the supported functions of System.Math in this method";
+        }
+
+        return WhyNotMarkable(invocation, target) is { } reason
+            ? CallablesHint + "; '" + target.Name + "' " + reason + ", so marking it [Differentiate] would not help: write its computation inline in this method with double and float locals"
+            : CallablesHint + "; mark the method [Differentiate] to differentiate through it";
+    }
+
+    /// <summary>The hint for a static method of the compilation that cannot be a helper (see <see cref="HelperTarget"/>).</summary>
+    private static string HelperAdvice(IMethodSymbol target)
+    {
+        const string Rule = "a helper called from a differentiated method must be a static method with a body in this compilation, not generic, return double or float and take double, float, int or bool parameters";
+        if (target.MethodKind == MethodKind.LocalFunction)
+        {
+            return Rule + "; " + LocalFunctionAdvice;
+        }
+
+        return WhyNotMarkable(null, target) is { } reason
+            ? Rule + "; '" + target.Name + "' " + reason + ": write its computation inline in this method with double and float locals"
+            : Rule + "; or mark it [Differentiate]";
+    }
+
+    /// <summary>Why the method, marked [Differentiate], would still not be differentiated through; null where it would.</summary>
+    private static string? WhyNotMarkable(IInvocationOperation? invocation, IMethodSymbol target)
+    {
+        if (target.MethodKind != MethodKind.Ordinary)
+        {
+            return "is not an ordinary method";
+        }
+
+        if (target.IsGenericMethod || target.ContainingType.IsGenericType)
+        {
+            return "is generic";
+        }
+
+        if (ScalarTypeOf(target.ReturnType) is not (ScalarType.Double or ScalarType.Single))
+        {
+            return "returns '" + target.ReturnType.ToDisplayString() + "'";
+        }
+
+        if (target.Parameters.FirstOrDefault(p => ScalarTypeOf(p.Type) is null || p.RefKind is not (RefKind.None or RefKind.In)) is { } parameter)
+        {
+            return "takes '" + parameter.Type.ToDisplayString() + " " + parameter.Name + "'";
+        }
+
+        if (target.IsAbstract || target.IsVirtual || target.IsOverride || target.IsExtern || target.DeclaringSyntaxReferences.Length != 1)
+        {
+            return "has no single body of its own";
+        }
+
+        if (!target.IsStatic && invocation?.Instance is not IInstanceReferenceOperation)
+        {
+            return "is called on another object than this one";
+        }
+
+        return null;
+    }
+
+    /// <summary>The components' names of System.Numerics.Vector2/3/4, else null.</summary>
+    private static string[]? VectorComponents(ITypeSymbol? type) =>
+        type is INamedTypeSymbol { Name: "Vector2" or "Vector3" or "Vector4", IsGenericType: false } named
+        && named.ContainingNamespace?.ToDisplayString() == "System.Numerics"
+            ? named.Name switch
+            {
+                "Vector2" => new[] { "x", "y" },
+                "Vector3" => new[] { "x", "y", "z" },
+                _ => new[] { "x", "y", "z", "w" },
+            }
+            : null;
+
+    private static string VectorCallAdvice(string type, string method, string[] c)
+    {
+        string Sum(System.Func<string, string> term) => string.Join(" + ", c.Select(term));
+        string PerComponent(System.Func<string, string> term) => string.Join(", ", c.Select(term));
+        string squares = Sum(x => x + " * " + x);
+        string differences = "double " + string.Join(", ", c.Select(x => "d" + x + " = a" + x + " - b" + x));
+        string differenceSquares = Sum(x => "d" + x + " * d" + x);
+        string? formula = method switch
+        {
+            "Dot" => Sum(x => "a" + x + " * b" + x),
+            "LengthSquared" => squares,
+            "Length" => "Math.Sqrt(" + squares + ")",
+            "DistanceSquared" => differences + "; … " + differenceSquares,
+            "Distance" => differences + "; … Math.Sqrt(" + differenceSquares + ")",
+            "Normalize" => PerComponent(x => x + " / len") + " with double len = Math.Sqrt(" + squares + ")",
+            "Lerp" => PerComponent(x => "a" + x + " + (b" + x + " - a" + x + ") * t"),
+            "Cross" when c.Length == 3 => "ay * bz - az * by, az * bx - ax * bz, ax * by - ay * bx",
+            "Min" or "Max" => PerComponent(x => "Math." + method + "(a" + x + ", b" + x + ")"),
+            "Abs" => PerComponent(x => "Math.Abs(" + x + ")"),
+            "Clamp" => PerComponent(x => "Math.Clamp(" + x + ", min" + x + ", max" + x + ")"),
+            _ => null,
+        };
+        string components = string.Join(", ", c);
+        return formula is null
+            ? VectorPrefix + components + " as separate parameters, keep them in separate locals) and compute " + type + "." + method + " component by component"
+            : VectorPrefix + components + " as separate parameters, keep them in separate locals) and write " + type + "." + method + " as `" + formula + "`";
+    }
+
+    /// <summary>The hint for a local of a System.Numerics vector type, else null.</summary>
+    private static string? VectorLocalAdvice(ILocalSymbol local) =>
+        VectorComponents(local.Type) is { } c
+            ? "locals must be double, float, int or bool; System.Numerics vectors are not differentiated in this version: keep its components in double or float locals ("
+              + string.Join(", ", c.Select(x => local.Name + x.ToUpperInvariant())) + ")"
+            : null;
+
+    private static string LinqAdvice(IInvocationOperation invocation, string method)
+    {
+        // The innermost source of a chain (xs in xs.Select(…).Sum()), named where it is a parameter, local or field.
+        IOperation? source = invocation.Arguments.Length > 0 ? invocation.Arguments[0].Value : null;
+        while (true)
+        {
+            if (source is IConversionOperation conversion)
+            {
+                source = conversion.Operand;
+            }
+            else if (source is IInvocationOperation { TargetMethod: { Name: not "Range", ContainingType.Name: "Enumerable" } } inner && inner.Arguments.Length > 0)
+            {
+                source = inner.Arguments[0].Value;
+            }
+            else
+            {
+                break;
+            }
+        }
+
+        // An array written out in the call (new[] { w0, w1 }.Select(…).Sum()): a local array is refused too, so the
+        // advice is the expression written out over its elements.
+        if (source is IArrayCreationOperation { Initializer.ElementValues: { Length: > 0 and <= 8 } elements })
+        {
+            string names = string.Join(", ", elements.Select(Text));
+            string terms = string.Join(" + ", elements.Select(_ => "…"));
+            string arguments = string.Join(", ", elements.Select(_ => "…"));
+            string written = method switch
+            {
+                "Sum" => "write the sum out, one term for each of " + names + ": `" + terms + "`",
+                "Average" => "write the mean out, one term for each of " + names + ": `(" + terms + ") / " + elements.Length.ToString(System.Globalization.CultureInfo.InvariantCulture) + "`",
+                "Max" or "Min" => "write it out with Math." + method + ", one argument for each of " + names + ": `Math." + method + "(" + arguments + ")`",
+                _ => "write it out with one term for each of " + names + ": `" + terms + "`",
+            };
+            return "LINQ is not differentiated in this version; " + written;
+        }
+
+        string loop, count;
+        if (source is IInvocationOperation { TargetMethod: { Name: "Range", ContainingType.Name: "Enumerable" } } range && range.Arguments.Length == 2)
+        {
+            count = Text(range.Arguments[1].Value);
+            loop = range.Arguments[0].Value.ConstantValue is { HasValue: true, Value: 0 }
+                ? "for (int i = 0; i < " + count + "; i++)"
+                : "for (int i = " + Text(range.Arguments[0].Value) + "; i < " + Text(range.Arguments[0].Value) + " + " + count + "; i++)";
+        }
+        else
+        {
+            count = SourceName(source) + ".Length";
+            loop = "for (int i = 0; i < " + count + "; i++)";
+        }
+
+        string what = method switch
+        {
+            "Sum" => "write the sum as a for loop over the array: `double s = 0; " + loop + " s += …;`",
+            "Average" => "write the mean as a for loop over the array: `double s = 0; " + loop + " s += …; double mean = s / " + count + ";`",
+            "Max" => "write the maximum as a for loop over the array: `double m = double.NegativeInfinity; " + loop + " m = Math.Max(m, …);`",
+            "Min" => "write the minimum as a for loop over the array: `double m = double.PositiveInfinity; " + loop + " m = Math.Min(m, …);`",
+            _ => "write the computation as a for loop over the array (over several arrays, one index for all): `double s = 0; " + loop + " s += …;`",
+        };
+        return "LINQ is not differentiated in this version; " + what;
+    }
+
+    private static string SourceName(IOperation? source) => source switch
+    {
+        IParameterReferenceOperation parameter => parameter.Parameter.Name,
+        ILocalReferenceOperation local => local.Local.Name,
+        IFieldReferenceOperation field => field.Field.Name,
+        IPropertyReferenceOperation { Property.IsIndexer: false } property => property.Property.Name,
+        _ => "xs",
+    };
+}
