@@ -43,7 +43,7 @@ internal sealed partial class BodyLowerer
         if (WhyNotInlinedHere(invocation) is { } where)
         {
             return Unsupported(invocation, "the call of the local function " + name + " " + where,
-                "its statements would run where the expression is not evaluated; call it before, into a local ('double v = " + target.Name + "(…);'), and use the local");
+                "its statements would run where the expression is not evaluated; call it before, into a local ('" + DerivGen.Generator.Emit.ExpressionWriter.TypeKeyword(returnType) + " v = " + target.Name + "(…);'), and use the local");
         }
 
         for (int i = 0; i < body.Operations.Length; i++)

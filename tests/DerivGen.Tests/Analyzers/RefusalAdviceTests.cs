@@ -448,6 +448,19 @@ public sealed class RefusalAdviceTests
                     double Sq(double u) => u * u;
                     return x > 0 ? Sq(x) : 0;
                 }
+
+                [Differentiate]
+                public static double InACondition(double x)
+                {
+                    int Count(int n) => 2 * n;
+                    double s = 0;
+                    for (int i = 0; i < Count(3); i++)
+                    {
+                        s += x * i;
+                    }
+
+                    return s;
+                }
             }
             """,
             "DG0001: The recursive call of the local function 'Power' cannot be differentiated: a local function is inlined at each call, so it cannot call itself; write the recursion as a loop in the method",
@@ -455,7 +468,8 @@ public sealed class RefusalAdviceTests
             "DG0001: The call of the local function 'Twice' cannot be differentiated: " + Rule,
             "DG0001: The call of the local function 'First' cannot be differentiated: " + Rule,
             "DG0001: The call of the local function 'Add', which assigns the captured local 'total' cannot be differentiated: let it return the new value and assign that at the call ('total = Add(…);')",
-            "DG0001: The call of the local function 'Sq' in an arm of the conditional operator cannot be differentiated: its statements would run where the expression is not evaluated; call it before, into a local ('double v = Sq(…);'), and use the local");
+            "DG0001: The call of the local function 'Sq' in an arm of the conditional operator cannot be differentiated: its statements would run where the expression is not evaluated; call it before, into a local ('double v = Sq(…);'), and use the local",
+            "DG0001: The call of the local function 'Count' in the condition or step of a loop cannot be differentiated: its statements would run where the expression is not evaluated; call it before, into a local ('int v = Count(…);'), and use the local");
 
         // Each rewritten as its message says.
         using CompiledAssembly asm = await Accepted(Usings + """
@@ -516,6 +530,20 @@ public sealed class RefusalAdviceTests
                     double Sq(double u) => u * u;
                     double v = Sq(x);
                     return x > 0 ? v : 0;
+                }
+
+                [Differentiate]
+                public static double InACondition(double x)
+                {
+                    int Count(int n) => 2 * n;
+                    int v = Count(3);
+                    double s = 0;
+                    for (int i = 0; i < v; i++)
+                    {
+                        s += x * i;
+                    }
+
+                    return s;
                 }
             }
             """);
