@@ -95,13 +95,13 @@ internal sealed partial class BodyLowerer
     /// </summary>
     private static bool NeedsReturnFlag(IBlockOperation body)
     {
-        IOperation? last = body.Operations.Length > 0 ? body.Operations[body.Operations.Length - 1] : null;
+        IOperation? last = body.Operations.LastOrDefault(o => o is not ILocalFunctionOperation);
         // One walk of the body finds the returns and the loops (each walk of an operation tree allocates).
         var returns = new List<IReturnOperation>();
         var loops = new List<IOperation>();
         foreach (IOperation operation in body.Descendants())
         {
-            if (operation is IReturnOperation found)
+            if (operation is IReturnOperation found && !Ancestors(found, body).Any(a => a is ILocalFunctionOperation))
             {
                 returns.Add(found);
             }

@@ -55,6 +55,7 @@ internal sealed partial class BodyLowerer
 
     public EquatableArray<IrStatement> Lower(IBlockOperation body)
     {
+        _root = body;
         ReserveUserNames(body);
         if (NeedsReturnFlag(body) && ScalarTypeOf(_method.ReturnType) is { } returnType)
         {
@@ -183,6 +184,9 @@ internal sealed partial class BodyLowerer
 
             case IEmptyOperation:
                 return true;
+
+            case ILocalFunctionOperation:
+                return true; // inlined at each call (BodyLowerer.LocalFunctions.cs)
 
             default:
                 Unsupported(statement, DescribeStatement(statement), HintFor(statement));
@@ -700,6 +704,9 @@ internal sealed partial class BodyLowerer
 
         switch (operation)
         {
+            case IParameterReferenceOperation parameter when _boundParameters.TryGetValue(parameter.Parameter.OriginalDefinition, out IrExpression? argument):
+                return argument;
+
             case IParameterReferenceOperation parameter:
                 if (ScalarTypeOf(parameter.Parameter.Type) is { } parameterType)
                 {
@@ -941,6 +948,11 @@ internal sealed partial class BodyLowerer
         if (isPredicate)
         {
             return predicate;
+        }
+
+        if (target.MethodKind == MethodKind.LocalFunction)
+        {
+            return LowerLocalFunctionCall(invocation, target);
         }
 
         if (target.Name == "GetLength" && invocation.Instance is { } array && DataText(array) is { } arrayText

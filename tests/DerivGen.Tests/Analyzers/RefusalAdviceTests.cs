@@ -359,11 +359,9 @@ public sealed class RefusalAdviceTests
     }
 
     [Fact]
-    public async Task LocalFunctionBecomesAStaticHelper()
+    public async Task LocalFunctionsAreInlinedAndTheirDeclarationIsNoLongerRefused()
     {
-        const string LocalFunctionAdvice = "local functions are not differentiated in this version; make it a static method of this type with double, float, int or bool parameters and a double or float result (pass what it captures as arguments): such a helper is differentiated through";
-        const string LocalFunction = "DG0001: The local function cannot be differentiated: " + LocalFunctionAdvice;
-        await RefusedWith(Usings + """
+        using CompiledAssembly asm = await Accepted(Usings + """
             public static partial class Decay
             {
                 [Differentiate]
@@ -380,28 +378,176 @@ public sealed class RefusalAdviceTests
                     return Lag(k * k);
                 }
             }
-            """,
-            LocalFunction,
-            Call("Decay.Model", Callables + "; " + LocalFunctionAdvice),
-            Call("Decay.Model", Callables + "; " + LocalFunctionAdvice),
-            LocalFunction,
-            Call("Decay.Lag", "a helper called from a differentiated method must be a static method with a body in this compilation, not generic, return double or float and take double, float, int or bool parameters; " + LocalFunctionAdvice));
-
-        using CompiledAssembly asm = await Accepted(Usings + """
-            public static partial class Decay
-            {
-                private static double Model(double k, double t) => Math.Exp(-k * t);
-
-                [Differentiate]
-                public static double Twice(double k) => Model(k, 1) + Model(k, 2);
-
-                private static double Lag(double x) => x / (1 + x);
-
-                [Differentiate]
-                public static double Lagged(double k) => Lag(k * k);
-            }
             """);
         Assert.True(asm.HasMethod("Decay", "TwiceGradient") && asm.HasMethod("Decay", "LaggedGradient"));
+        Assert.False(asm.HasMethod("Decay", "LagGradient"));
+    }
+
+    [Fact]
+    public async Task LocalFunctionsThatCannotBeInlinedAreRefusedAtTheCall()
+    {
+        const string Rule = "inlined local functions take double, float, int or bool parameters by value, return one of those types, are not generic or recursive, do not assign what they capture, and have an expression body or a block of local declarations and assignments ending in one return";
+        const string Statements = "loops, branches and early returns inside a local function are not inlined in this version (the conditional operator ?: is); write its statements in the method, or make it a static method of this type with double, float, int or bool parameters (a helper, differentiated through)";
+        await RefusedWith(Usings + """
+            public static partial class Odd
+            {
+                [Differentiate]
+                public static double Recursive(double x)
+                {
+                    double Power(double u, int n) => n == 0 ? 1 : u * Power(u, n - 1);
+                    return Power(x, 3);
+                }
+
+                [Differentiate]
+                public static double Looping(double x)
+                {
+                    double Sum(double u)
+                    {
+                        double s = 0;
+                        for (int i = 0; i < 3; i++)
+                        {
+                            s += u * i;
+                        }
+
+                        return s;
+                    }
+
+                    return Sum(x);
+                }
+
+                [Differentiate]
+                public static double ByRef(double x)
+                {
+                    double Twice(ref double u) => 2 * u;
+                    return Twice(ref x);
+                }
+
+                [Differentiate]
+                public static double Generic(double x)
+                {
+                    double First<T>(double u, T tag) => u;
+                    return First(x, 1);
+                }
+
+                [Differentiate]
+                public static double AssignsCaptured(double x)
+                {
+                    double total = 0;
+                    double Add(double u)
+                    {
+                        total = total + u;
+                        return total;
+                    }
+
+                    return Add(x) + total;
+                }
+
+                [Differentiate]
+                public static double InAnArm(double x)
+                {
+                    double Sq(double u) => u * u;
+                    return x > 0 ? Sq(x) : 0;
+                }
+
+                [Differentiate]
+                public static double InACondition(double x)
+                {
+                    int Count(int n) => 2 * n;
+                    double s = 0;
+                    for (int i = 0; i < Count(3); i++)
+                    {
+                        s += x * i;
+                    }
+
+                    return s;
+                }
+            }
+            """,
+            "DG0001: The recursive call of the local function 'Power' cannot be differentiated: a local function is inlined at each call, so it cannot call itself; write the recursion as a loop in the method",
+            "DG0001: The call of the local function 'Sum', whose body has a loop cannot be differentiated: " + Statements,
+            "DG0001: The call of the local function 'Twice' cannot be differentiated: " + Rule,
+            "DG0001: The call of the local function 'First' cannot be differentiated: " + Rule,
+            "DG0001: The call of the local function 'Add', which assigns the captured local 'total' cannot be differentiated: let it return the new value and assign that at the call ('total = Add(…);')",
+            "DG0001: The call of the local function 'Sq' in an arm of the conditional operator cannot be differentiated: its statements would run where the expression is not evaluated; call it before, into a local ('double v = Sq(…);'), and use the local",
+            "DG0001: The call of the local function 'Count' in the condition or step of a loop cannot be differentiated: its statements would run where the expression is not evaluated; call it before, into a local ('int v = Count(…);'), and use the local");
+
+        // Each rewritten as its message says.
+        using CompiledAssembly asm = await Accepted(Usings + """
+            public static partial class Odd
+            {
+                [Differentiate]
+                public static double Recursive(double x)
+                {
+                    double p = 1;
+                    for (int n = 0; n < 3; n++)
+                    {
+                        p *= x;
+                    }
+
+                    return p;
+                }
+
+                private static double Sum(double u)
+                {
+                    double s = 0;
+                    for (int i = 0; i < 3; i++)
+                    {
+                        s += u * i;
+                    }
+
+                    return s;
+                }
+
+                [Differentiate]
+                public static double Looping(double x) => Sum(x);
+
+                [Differentiate]
+                public static double ByRef(double x)
+                {
+                    double Twice(double u) => 2 * u;
+                    return Twice(x);
+                }
+
+                [Differentiate]
+                public static double Generic(double x)
+                {
+                    double First(double u, int tag) => u;
+                    return First(x, 1);
+                }
+
+                [Differentiate]
+                public static double AssignsCaptured(double x)
+                {
+                    double total = 0;
+                    double Add(double u) => total + u;
+                    total = Add(x);
+                    return total + total;
+                }
+
+                [Differentiate]
+                public static double InAnArm(double x)
+                {
+                    double Sq(double u) => u * u;
+                    double v = Sq(x);
+                    return x > 0 ? v : 0;
+                }
+
+                [Differentiate]
+                public static double InACondition(double x)
+                {
+                    int Count(int n) => 2 * n;
+                    int v = Count(3);
+                    double s = 0;
+                    for (int i = 0; i < v; i++)
+                    {
+                        s += x * i;
+                    }
+
+                    return s;
+                }
+            }
+            """);
+        Assert.True(asm.HasMethod("Odd", "InAnArmGradient") && asm.HasMethod("Odd", "AssignsCapturedGradient"));
     }
 
     [Fact]

@@ -14,14 +14,6 @@ internal static partial class CorpusCases
     private static readonly Dictionary<string, (string[] Constructs, string? Advice, (string, string)[] Edit)> Judgments = new(StringComparer.Ordinal)
     {
         ["ExpDecayZipSum"] = (new[] { "System.Linq.Enumerable.Sum" }, null, NoEdit),
-        ["LogisticGrowthLocalFunction"] = (new[] { "local function", "Model" }, null,
-            // The advice works: the local function made a static helper, what it captures passed as arguments, is accepted.
-            new[]
-            {
-                ("double Model(double t) => capacity / (1 + (capacity / N0 - 1) * Math.Exp(-rate * t));", ""),
-                ("Model(T[i])", "Model(capacity, rate, T[i])"),
-                ("[Differentiate(nameof(capacity), nameof(rate))]", "private static double Model(double capacity, double rate, double t) => capacity / (1 + (capacity / N0 - 1) * Math.Exp(-rate * t));\n\n    [Differentiate(nameof(capacity), nameof(rate))]"),
-            }),
         ["PolynomialHornerSpanHelper"] = (new[] { "Calibration.Horner" },
             "the message says to write Horner inline; its loop runs downwards (k--) and reads c[^1], neither of which this version accepts, so the rewrite needs more than the message says",
             NoEdit),
@@ -34,14 +26,6 @@ internal static partial class CorpusCases
         ["PanTiltAimVector3"] = (new[] { "System.Numerics.Vector3", "Vector3.Dot" }, null, NoEdit),
         ["JointLimitPenaltyGuards"] = (new[] { "ThrowIfNull", "ThrowIfNotEqual" }, null, NoEdit),
         ["ProjectileRk4Drag"] = (new[] { "System.Span<double>", "Rhs(s, drag, k1)" }, null, NoEdit),
-        ["PendulumLocalFunction"] = (new[] { "local function", "Acceleration" }, null,
-            // The advice works: the local function made a static helper (length and damping passed as arguments) is accepted.
-            new[]
-            {
-                ("double Acceleration(double th, double om)\n        {\n            double gravity = -9.81 / length * Math.Sin(th);\n            return gravity - damping * om;\n        }\n", ""),
-                ("Acceleration(theta, omega)", "Acceleration(length, damping, theta, omega)"),
-                ("[Differentiate(nameof(length), nameof(damping))]", "private static double Acceleration(double length, double damping, double th, double om) => -9.81 / length * Math.Sin(th) - damping * om;\n\n    [Differentiate(nameof(length), nameof(damping))]"),
-            }),
         ["OrbitLeapfrogVector3"] = (new[] { "System.Numerics.Vector3" }, null, NoEdit),
         ["SpringMassRecordStruct"] = (new[] { "State", "Suspension.Step" },
             "'only static properties … are read as constants' for state.Position cannot apply to a property of a local record struct (the message for Step now says to write it inline, as a State result cannot be differentiated)",
@@ -56,13 +40,6 @@ internal static partial class CorpusCases
         ["PlantStructInstanceHelper"] = (new[] { "FirstOrderPlant.Next" },
             "the message says to write Next inline; its coefficients are properties of a static readonly struct (Plant.Pole, Plant.Gain), which a differentiated body cannot read either, so the rewrite needs more than the message says",
             NoEdit),
-        ["PiTuningStaticLocalFunction"] = (new[] { "local function", "Lag" }, null,
-            // The advice works: the static local function moved out as a static helper of the type is accepted.
-            new[]
-            {
-                ("static double Lag(double y, double u, double dt)\n        {\n            const double tau = 0.8;\n            return y + dt * (u - y) / tau;\n        }\n", ""),
-                ("[Differentiate(nameof(kp), nameof(ki))]", "private static double Lag(double y, double u, double dt) => y + dt * (u - y) / 0.8;\n\n    [Differentiate(nameof(kp), nameof(ki))]"),
-            }),
         ["NormalLikelihoodLinqGuard"] = (new[] { "ThrowIfNegativeOrZero", "System.Linq.Enumerable.Sum" }, null, NoEdit),
         // The advice works here: with Rate marked [Differentiate] the loss is accepted (checked on the edited source).
         ["PoissonRegressionInstanceHelper"] = (new[] { "DefectModel.Rate" }, null,
@@ -85,13 +62,6 @@ internal static partial class CorpusCases
         ["FirEqualizerStackalloc"] = (new[] { "System.Span<double>", "output" },
             "'only static properties of double, float or int type are read as constants' for output.Length cannot apply: Length is the span's own instance property",
             NoEdit),
-        ["RingDownStaticLocalFunction"] = (new[] { "local function", "Envelope" }, null,
-            // The advice works: the static local function moved out as a static helper of the type is accepted.
-            new[]
-            {
-                ("static double Envelope(double t, double rate) => Math.Exp(-rate * t);\n", ""),
-                ("[Differentiate(nameof(decay), nameof(omega))]", "private static double Envelope(double t, double rate) => Math.Exp(-rate * t);\n\n    [Differentiate(nameof(decay), nameof(omega))]"),
-            }),
                 ["CircleFitVector2"] = (new[] { "System.Numerics.Vector2", "foreach (Vector2 p in Points)" },
             "the message asks for 'a one-dimensional array or span of data (not a variable), with the element's own type' — Points is exactly that; the obstacle (Vector2 elements) is not named",
             NoEdit),

@@ -12,10 +12,8 @@ internal static class CorpusStatus
         {
             "DG0001: The call to 'System.Linq.Enumerable.Sum' cannot be differentiated: LINQ is not differentiated in this version; write the sum as a for loop over the array: `double s = 0; for (int i = 0; i < Hours.Length; i++) s += …;`",
         }),
-        ["LogisticGrowthLocalFunction"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
+        ["LogisticGrowthLocalFunction"] = new(Accepted: true, Hessian: true, Diagnostics: new string[]
         {
-            "DG0001: The local function cannot be differentiated: local functions are not differentiated in this version; make it a static method of this type with double, float, int or bool parameters and a double or float result (pass what it captures as arguments): such a helper is differentiated through",
-            "DG0001: The call to 'Corpus.LogisticGrowthLocalFunction.GrowthCurve.Model' cannot be differentiated: only the functions of System.Math, System.MathF, double and float listed in the README, and other [Differentiate] methods, can be called; local functions are not differentiated in this version; make it a static method of this type with double, float, int or bool parameters and a double or float result (pass what it captures as arguments): such a helper is differentiated through",
         }),
         ["GaussianPeakHelper"] = new(Accepted: true, Hessian: true, Diagnostics: new string[]
         {
@@ -89,10 +87,8 @@ internal static class CorpusStatus
             "DG0001: The element access 's[1]' cannot be differentiated: read elements of double, float or int arrays and spans that are parameters (not variables), fields of this instance or static readonly fields",
             "DG0001: The element access 's[1]' cannot be differentiated: read elements of double, float or int arrays and spans that are parameters (not variables), fields of this instance or static readonly fields",
         }),
-        ["PendulumLocalFunction"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
+        ["PendulumLocalFunction"] = new(Accepted: true, Hessian: true, Diagnostics: new string[]
         {
-            "DG0001: The local function cannot be differentiated: local functions are not differentiated in this version; make it a static method of this type with double, float, int or bool parameters and a double or float result (pass what it captures as arguments): such a helper is differentiated through",
-            "DG0001: The call to 'Corpus.PendulumLocalFunction.Pendulum.Acceleration' cannot be differentiated: only the functions of System.Math, System.MathF, double and float listed in the README, and other [Differentiate] methods, can be called; local functions are not differentiated in this version; make it a static method of this type with double, float, int or bool parameters and a double or float result (pass what it captures as arguments): such a helper is differentiated through",
         }),
         ["OrbitLeapfrogVector3"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
         {
@@ -173,10 +169,8 @@ internal static class CorpusStatus
             "DG0001: The call to 'Corpus.PlantStructInstanceHelper.FirstOrderPlant.Next' cannot be differentiated: only the functions of System.Math, System.MathF, double and float listed in the README, and other [Differentiate] methods, can be called; 'Next' is called on another object than this one, so marking it [Differentiate] would not help: write its computation inline in this method with double and float locals",
             "DG0001: The call to 'Corpus.PlantStructInstanceHelper.FirstOrderPlant.Next' cannot be differentiated: only the functions of System.Math, System.MathF, double and float listed in the README, and other [Differentiate] methods, can be called; 'Next' is called on another object than this one, so marking it [Differentiate] would not help: write its computation inline in this method with double and float locals",
         }),
-        ["PiTuningStaticLocalFunction"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
+        ["PiTuningStaticLocalFunction"] = new(Accepted: true, Hessian: true, Diagnostics: new string[]
         {
-            "DG0001: The local function cannot be differentiated: local functions are not differentiated in this version; make it a static method of this type with double, float, int or bool parameters and a double or float result (pass what it captures as arguments): such a helper is differentiated through",
-            "DG0001: The call to 'PiTuning.Lag' cannot be differentiated: a helper called from a differentiated method must be a static method with a body in this compilation, not generic, return double or float and take double, float, int or bool parameters; local functions are not differentiated in this version; make it a static method of this type with double, float, int or bool parameters and a double or float result (pass what it captures as arguments): such a helper is differentiated through",
         }),
         ["ValveSaturationPatterns"] = new(Accepted: true, Hessian: true, Diagnostics: new string[]
         {
@@ -237,10 +231,8 @@ internal static class CorpusStatus
             "DG0001: The element access 'output[n]' cannot be differentiated: read elements of double, float or int arrays and spans that are parameters (not variables), fields of this instance or static readonly fields",
             "DG0001: The property 'Length' cannot be differentiated: only static properties of double, float or int type are read as constants",
         }),
-        ["RingDownStaticLocalFunction"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
+        ["RingDownStaticLocalFunction"] = new(Accepted: true, Hessian: true, Diagnostics: new string[]
         {
-            "DG0001: The local function cannot be differentiated: local functions are not differentiated in this version; make it a static method of this type with double, float, int or bool parameters and a double or float result (pass what it captures as arguments): such a helper is differentiated through",
-            "DG0001: The call to 'RingDown.Envelope' cannot be differentiated: a helper called from a differentiated method must be a static method with a body in this compilation, not generic, return double or float and take double, float, int or bool parameters; local functions are not differentiated in this version; make it a static method of this type with double, float, int or bool parameters and a double or float result (pass what it captures as arguments): such a helper is differentiated through",
         }),
         ["EdgeFitWindowEnumSwitch"] = new(Accepted: true, Hessian: true, Diagnostics: new string[]
         {
