@@ -766,6 +766,10 @@ internal sealed partial class BodyLowerer
             case IPropertyReferenceOperation { Property.IsIndexer: true, Instance: { } spanInstance } indexer when IsSpan(spanInstance.Type):
                 return LowerElement(indexer, spanInstance, indexer.Arguments.Select(a => a.Value).ToImmutableArray());
 
+            case IImplicitIndexerReferenceOperation { Instance: { } fromEndInstance, Argument: IUnaryOperation { OperatorKind: UnaryOperatorKind.Hat } } fromEnd
+                when IsSpan(fromEndInstance.Type):
+                return LowerElement(fromEnd, fromEndInstance, new[] { fromEnd.Argument });
+
             case IPropertyReferenceOperation { Property.Name: "Length", Instance: { } outputs } when IsOutput(outputs):
                 return new IrExternal(Identifiers.Escape(_output!.Name) + ".Length", ScalarType.Int32);
 
@@ -855,6 +859,12 @@ internal sealed partial class BodyLowerer
             return Unsupported(element, $"reading the output '{Text(element)}'", "outputs are written, never read back; keep the value in a local and read that");
         }
 
+        if (IsRangeOrSlice(data))
+        {
+            return Unsupported(element, $"the range '{Text(data)}'",
+                "ranges and Slice are not supported in this version; index the data itself, e.g. t[i + 1] for t[1..][i], or t[^1] for its last element");
+        }
+
         if (DataText(data) is not { } text || element.Type is null || ScalarTypeOf(element.Type) is not (ScalarType.Double or ScalarType.Single or ScalarType.Int32) || indices.Count == 0)
         {
             return Unsupported(element, $"the element access '{Text(element)}'",
@@ -864,7 +874,15 @@ internal sealed partial class BodyLowerer
         var lowered = new List<IrExpression>();
         foreach (IOperation index in indices)
         {
-            IrExpression? loweredIndex = LowerExpression(index);
+            // a[^e] is a[a.Length - e], as C# evaluates it (the same exception when out of range); ranges stay refused.
+            bool isFromEnd = index is IUnaryOperation { OperatorKind: UnaryOperatorKind.Hat, OperatorMethod: null } && indices.Count == 1;
+            IOperation position = isFromEnd ? ((IUnaryOperation)index).Operand : index;
+            IrExpression? loweredIndex = LowerExpression(position);
+            if (isFromEnd && loweredIndex is { Type: ScalarType.Int32 })
+            {
+                loweredIndex = new IrBinary(BinaryOperator.Subtract, new IrExternal(text + ".Length", ScalarType.Int32), loweredIndex, ScalarType.Int32);
+            }
+
             if (loweredIndex is null)
             {
                 return null;
@@ -872,7 +890,7 @@ internal sealed partial class BodyLowerer
 
             if (loweredIndex.Type != ScalarType.Int32)
             {
-                return Unsupported(index, $"the index '{Text(index)}'", "indices must be int expressions");
+                return Unsupported(position, $"the index '{Text(position)}'", "indices must be int expressions");
             }
 
             lowered.Add(loweredIndex);
@@ -880,6 +898,15 @@ internal sealed partial class BodyLowerer
 
         return new IrElement(text, lowered.ToEquatableArray(), ScalarTypeOf(element.Type)!.Value);
     }
+
+    /// <summary>Whether the operation takes a part of an array or span: <c>t[1..]</c>, <c>t[..^1]</c> or <c>t.Slice(…)</c>.</summary>
+    private static bool IsRangeOrSlice(IOperation data) => data switch
+    {
+        IArrayElementReferenceOperation array => array.Indices.Any(index => index is IRangeOperation),
+        IImplicitIndexerReferenceOperation implicitIndexer => implicitIndexer.Argument is IRangeOperation,
+        IInvocationOperation { TargetMethod.Name: "Slice" or "GetSubArray" } => true,
+        _ => false,
+    };
 
     /// <summary>The C# text naming data (an array or span that is not a variable), or null when it is not data.</summary>
     private string? DataText(IOperation data) => data switch

@@ -84,6 +84,32 @@ public sealed class DiagnosticTests
         """);
 
     [Fact]
+    public Task IndexFromEndOnDataHasNoDiagnostic() => VerifyAsync(Usings + """
+        public static partial class C
+        {
+            private static readonly double[] W = { 1.0, 2.0 };
+            [Differentiate(nameof(x))]
+            public static double F(double x, double[] t, ReadOnlySpan<double> y, Span<int> n, int k) =>
+                x * t[^1] - y[^2] + W[^k] * n[^1] + y[^k] * x;
+        }
+        """);
+
+    [Fact]
+    public Task DG0001RangeOnDataStaysRefused() => VerifyAsync(Usings + """
+        public static partial class C
+        {
+            [Differentiate]
+            public static double F(double x, double[] t, ReadOnlySpan<double> y) =>
+                x * {|#0:t[1..][0]|} + {|#1:y[..^1][0]|} + {|#2:y.Slice(1)[0]|};
+        }
+        """,
+        Diagnostic("DG0001").WithLocation(0).WithArguments("The range 't[1..]'", RangeAdvice),
+        Diagnostic("DG0001").WithLocation(1).WithArguments("The range 'y[..^1]'", RangeAdvice),
+        Diagnostic("DG0001").WithLocation(2).WithArguments("The range 'y.Slice(1)'", RangeAdvice));
+
+    private const string RangeAdvice = "ranges and Slice are not supported in this version; index the data itself, e.g. t[i + 1] for t[1..][i], or t[^1] for its last element";
+
+    [Fact]
     public Task DG0007SwitchExpressionOnAVariable() => VerifyAsync(Usings + """
         public static partial class C
         {
