@@ -122,25 +122,13 @@ public static class LeastSquares
                 rhs.Slice(0, n).CopyTo(h);
 
                 // Predicted reduction ‖Jh‖² + 2λ‖Dh‖² (= Σr² − ‖r + Jh‖² for the exact solution; no cancellation).
-                double jhSquared = 0;
-                for (int i = 0; i < m; i++)
-                {
-                    double t = DenseMath.Dot(jacobian.Slice(i * n, n), h);
-                    jhSquared += t * t;
-                }
-
-                double dh = 0, dx = 0;
+                double dh = ScaledNorm(scale, h, n), dx = ScaledNorm(scale, x, n);
                 for (int j = 0; j < n; j++)
                 {
-                    double a = scale[j] * h[j], b = scale[j] * x[j];
-                    dh += a * a;
-                    dx += b * b;
                     xTrial[j] = x[j] + h[j];
                 }
 
-                dh = Math.Sqrt(dh);
-                dx = Math.Sqrt(dx);
-                double predicted = jhSquared + (2 * lambda * dh * dh);
+                double predicted = SquaredNormOfProduct(jacobian, h, m, n) + (2 * lambda * dh * dh);
 
                 double rssTrial = double.NaN;
                 if (DenseMath.AllFinite(h))
@@ -183,15 +171,7 @@ public static class LeastSquares
                         return Polish(model, x, rss, StopReason.ValueChangeSmall, standardErrors, s, w, m, n, iteration, residualEvaluations, jacobianEvaluations);
                     }
 
-                    // The new point's scaled norm.
-                    double dxNew = 0;
-                    for (int j = 0; j < n; j++)
-                    {
-                        double b = scale[j] * x[j];
-                        dxNew += b * b;
-                    }
-
-                    if (dh <= s.StepTolerance * Math.Sqrt(dxNew))
+                    if (dh <= s.StepTolerance * ScaledNorm(scale, x, n)) // the new point's scaled norm
                     {
                         return Polish(model, x, rss, StopReason.StepSmall, standardErrors, s, w, m, n, iteration, residualEvaluations, jacobianEvaluations);
                     }
@@ -219,6 +199,32 @@ public static class LeastSquares
                 }
             }
         }
+    }
+
+    /// <summary>‖D v‖ for the diagonal scaling D, summed in index order.</summary>
+    private static double ScaledNorm(ReadOnlySpan<double> scale, ReadOnlySpan<double> v, int n)
+    {
+        double sum = 0;
+        for (int j = 0; j < n; j++)
+        {
+            double a = scale[j] * v[j];
+            sum += a * a;
+        }
+
+        return Math.Sqrt(sum);
+    }
+
+    /// <summary>‖J h‖² for the row-major m × n matrix J, summed row by row.</summary>
+    private static double SquaredNormOfProduct(ReadOnlySpan<double> jacobian, ReadOnlySpan<double> h, int m, int n)
+    {
+        double sum = 0;
+        for (int i = 0; i < m; i++)
+        {
+            double t = DenseMath.Dot(jacobian.Slice(i * n, n), h);
+            sum += t * t;
+        }
+
+        return sum;
     }
 
     /// <summary>
