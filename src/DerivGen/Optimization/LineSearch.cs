@@ -8,9 +8,10 @@ internal struct Counters
     public int Values;
     public int Gradients;
     public int Hessians;
+    public int HessianVectors;
     public int Limit;
 
-    public readonly int Total => Values + Gradients + Hessians;
+    public readonly int Total => Values + Gradients + Hessians + HessianVectors;
 
     public readonly bool Exhausted => Total >= Limit;
 }

@@ -14,7 +14,7 @@ namespace DerivGen.Minimization;
 /// iteration; after every iteration the observer is called, then the gradient, step and value-change tests are
 /// made, then the iteration limit. The evaluation limit is checked before every call of the objective.
 /// </remarks>
-public static class Minimize
+public static partial class Minimize
 {
     // Created on first use without settings, not in a static initialiser: a caller that passes its own settings (made
     // before its hot loop) never allocates, not even the first time.
@@ -687,5 +687,5 @@ public static class Minimize
     }
 
     private static MinimizeResult Result(double f, double gradientNorm, int iterations, in Counters counters, StopReason reason) =>
-        new(f, gradientNorm, iterations, counters.Values, counters.Gradients, counters.Hessians, reason);
+        new(f, gradientNorm, iterations, counters.Values, counters.Gradients, counters.Hessians, counters.HessianVectors, reason);
 }

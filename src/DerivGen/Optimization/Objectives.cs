@@ -34,6 +34,30 @@ public interface IHessianObjective : IGradientObjective
 }
 
 /// <summary>
+/// An objective that provides Hessian–vector products H(x)·v (for <see cref="Minimize.NewtonCg{TObjective}"/>), so
+/// that second-order steps cost a few gradients and the n×n Hessian is never formed. The method has the layout of a
+/// generated <c>MHessianVectorProduct(…, direction, gradient, product)</c>, so a struct wraps it in one line.
+/// </summary>
+/// <example>
+/// <code>
+/// readonly struct Loss : IHessianVectorObjective
+/// {
+///     public double Value(ReadOnlySpan&lt;double&gt; w) =&gt; Model.Loss(w);
+///     public double ValueAndGradient(ReadOnlySpan&lt;double&gt; w, Span&lt;double&gt; gradient) =&gt; Model.LossGradient(w, gradient);
+///     public double ValueGradientHessianVector(ReadOnlySpan&lt;double&gt; w, ReadOnlySpan&lt;double&gt; direction, Span&lt;double&gt; gradient, Span&lt;double&gt; product) =&gt;
+///         Model.LossHessianVectorProduct(w, direction, gradient, product);
+/// }
+/// </code>
+/// </example>
+public interface IHessianVectorObjective : IGradientObjective
+{
+    /// <summary>f(x); ∇f(x) into <paramref name="gradient"/> and H(x)·<paramref name="direction"/> into
+    /// <paramref name="product"/> (n elements each). The minimiser passes a scratch buffer as
+    /// <paramref name="gradient"/> and reads only <paramref name="product"/> and the value.</summary>
+    double ValueGradientHessianVector(ReadOnlySpan<double> x, ReadOnlySpan<double> direction, Span<double> gradient, Span<double> product);
+}
+
+/// <summary>
 /// The residuals r(x) ∈ Rᵐ of a nonlinear least-squares problem, minimise Σ rᵢ(x)², and their m×n Jacobian
 /// (for <see cref="LeastSquares.LevenbergMarquardt{TModel}"/>). For a model y ≈ g(t; b) fitted to data (tᵢ, yᵢ) write
 /// rᵢ = yᵢ − g(tᵢ; b) as a <c>[Differentiate(Hessian = false)]</c> method of b at one data point: its generated gradient
@@ -100,12 +124,13 @@ public readonly ref struct IterationReport
     /// <summary>max |Δxⱼ| of the step just taken.</summary>
     public double StepNorm { get; }
 
-    /// <summary>The line search's step length α (x ← x + α d); 1 for Levenberg–Marquardt and a fixed step's size for
-    /// fixed-step gradient descent.</summary>
+    /// <summary>The line search's step length α (x ← x + α d); 1 for Levenberg–Marquardt and Newton–CG and a fixed
+    /// step's size for fixed-step gradient descent.</summary>
     public double StepLength { get; }
 
     /// <summary>Newton: the multiple τ of diag(|Hᵢᵢ|) added to the Hessian to make it positive definite (0 when it
-    /// already was). Levenberg–Marquardt: the damping λ of the accepted step. Otherwise 0.</summary>
+    /// already was). Levenberg–Marquardt: the damping λ of the accepted step. Newton–CG: the trust-region radius Δ
+    /// the accepted step was computed in. Otherwise 0.</summary>
     public double Regularization { get; }
 
     /// <summary>Calls of the objective so far (of any kind).</summary>

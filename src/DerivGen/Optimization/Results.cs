@@ -5,7 +5,14 @@ public readonly struct MinimizeResult
 {
     /// <summary>Creates a result (the minimisers do this).</summary>
     public MinimizeResult(double value, double gradientNorm, int iterations, int valueEvaluations, int gradientEvaluations, int hessianEvaluations, StopReason reason)
+        : this(value, gradientNorm, iterations, valueEvaluations, gradientEvaluations, hessianEvaluations, 0, reason)
     {
+    }
+
+    /// <summary>Creates a result with Hessian–vector products counted (the minimisers do this).</summary>
+    public MinimizeResult(double value, double gradientNorm, int iterations, int valueEvaluations, int gradientEvaluations, int hessianEvaluations, int hessianVectorEvaluations, StopReason reason)
+    {
+        HessianVectorEvaluations = hessianVectorEvaluations;
         Value = value;
         GradientNorm = gradientNorm;
         Iterations = iterations;
@@ -33,8 +40,12 @@ public readonly struct MinimizeResult
     /// <summary>Calls of <see cref="IHessianObjective.ValueGradientHessian"/>.</summary>
     public int HessianEvaluations { get; }
 
+    /// <summary>Calls of <see cref="IHessianVectorObjective.ValueGradientHessianVector"/> (Newton–CG's
+    /// Hessian–vector products).</summary>
+    public int HessianVectorEvaluations { get; }
+
     /// <summary>All calls of the objective.</summary>
-    public int Evaluations => ValueEvaluations + GradientEvaluations + HessianEvaluations;
+    public int Evaluations => ValueEvaluations + GradientEvaluations + HessianEvaluations + HessianVectorEvaluations;
 
     /// <summary>Why it stopped.</summary>
     public StopReason Reason { get; }

@@ -8,7 +8,9 @@ namespace DerivGen.Minimization;
 /// met, tested in this order: the gradient at the start or after a step (<see cref="GradientTolerance"/>), the
 /// observer, the step (<see cref="StepTolerance"/>), the change of value (<see cref="ValueTolerance"/>), the
 /// iteration limit and the evaluation limit; and whenever the line search finds no acceptable step
-/// (<see cref="StopReason.NoProgress"/>).
+/// (<see cref="StopReason.NoProgress"/>). Newton–CG has no line search: a rejected trial step shrinks the trust region,
+/// and it stops when a rejected trial step already meets the step test (<see cref="StopReason.StepSmall"/>) or
+/// changes no component of x (<see cref="StopReason.NoProgress"/>).
 /// </summary>
 public sealed class MinimizeSettings
 {
@@ -22,13 +24,14 @@ public sealed class MinimizeSettings
     private int _lineSearchLimit = 40;
     private int _historyLength = 8;
     private double _initialStep = 1;
+    private double _trustRadius = 1;
 
     /// <summary>Stop after this many iterations (<see cref="StopReason.IterationLimit"/>). Default 1000.
     /// Gradient descent usually needs many more on curved problems.</summary>
     public int MaxIterations { get => _maxIterations; set => _maxIterations = Positive(value); }
 
-    /// <summary>Stop once the objective has been called this many times, counting value, gradient and Hessian
-    /// calls alike (<see cref="StopReason.EvaluationLimit"/>). Default 100 000.</summary>
+    /// <summary>Stop once the objective has been called this many times, counting value, gradient, Hessian and
+    /// Hessian–vector calls alike (<see cref="StopReason.EvaluationLimit"/>). Default 100 000.</summary>
     public int MaxEvaluations { get => _maxEvaluations; set => _maxEvaluations = Positive(value); }
 
     /// <summary>Converged (<see cref="StopReason.GradientSmall"/>) when max |∂f/∂xⱼ| ≤ GradientTolerance · max(1, |f|).
@@ -36,7 +39,8 @@ public sealed class MinimizeSettings
     public double GradientTolerance { get => _gradientTolerance; set => _gradientTolerance = NonNegative(value); }
 
     /// <summary>Converged (<see cref="StopReason.StepSmall"/>) when every component of the last step satisfies
-    /// |Δxⱼ| ≤ StepTolerance · (1 + |xⱼ|). Default 1e-12; 0 turns the test off.</summary>
+    /// |Δxⱼ| ≤ StepTolerance · (1 + |xⱼ|) (for Newton–CG also a rejected trial step). Default 1e-12; 0 turns the test
+    /// off.</summary>
     public double StepTolerance { get => _stepTolerance; set => _stepTolerance = NonNegative(value); }
 
     /// <summary>Converged (<see cref="StopReason.ValueChangeSmall"/>) when the last step changed f by at most
@@ -72,6 +76,15 @@ public sealed class MinimizeSettings
     {
         get => _initialStep;
         set => _initialStep = value > 0 && !double.IsInfinity(value) ? value : throw new ArgumentOutOfRangeException(nameof(value), value, "Must be positive and finite.");
+    }
+
+    /// <summary>Newton–CG's first trust-region radius Δ₀ (Euclidean norm of the step). Default 1. The radius is then
+    /// adapted (Nocedal &amp; Wright, Algorithm 4.1): quartered when a step achieves less than a quarter of the
+    /// reduction its model predicts, doubled when a step on the boundary achieves more than three quarters.</summary>
+    public double TrustRadius
+    {
+        get => _trustRadius;
+        set => _trustRadius = value > 0 && !double.IsInfinity(value) ? value : throw new ArgumentOutOfRangeException(nameof(value), value, "Must be positive and finite.");
     }
 
     internal void Validate()

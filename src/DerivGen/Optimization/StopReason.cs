@@ -7,8 +7,9 @@ public enum StopReason
     /// for Levenberg–Marquardt every column of J is nearly orthogonal to r (|cos| ≤ GradientTolerance) or r = 0.</summary>
     GradientSmall,
 
-    /// <summary>The last step was small: max |Δxⱼ| ≤ StepTolerance · (1 + max |xⱼ|) (line-search methods), or
-    /// ‖DΔx‖ ≤ StepTolerance · ‖Dx‖ in Moré's scaled norm (Levenberg–Marquardt).</summary>
+    /// <summary>The last step was small: every |Δxⱼ| ≤ StepTolerance · (1 + |xⱼ|) (line-search methods; Newton–CG
+    /// also for a rejected trial step, its trust region having shrunk to that size), or ‖DΔx‖ ≤ StepTolerance · ‖Dx‖
+    /// in Moré's scaled norm (Levenberg–Marquardt).</summary>
     StepSmall,
 
     /// <summary>The value stopped changing: |f_old − f_new| ≤ ValueTolerance · max(1, |f_old|) (line-search
@@ -23,11 +24,13 @@ public enum StopReason
     EvaluationLimit,
 
     /// <summary>No step along the search direction lowers the value enough (the line search, or for
-    /// Levenberg–Marquardt the damping, ran out of tries). Usually the point is a minimum to within rounding
-    /// error and the tolerances are tighter than the arithmetic allows; it can also mean a wrong gradient.</summary>
+    /// Levenberg–Marquardt the damping, ran out of tries; for Newton–CG the trust region shrank until a trial step
+    /// no longer changes x). Usually the point is a minimum to within rounding error and the tolerances are tighter
+    /// than the arithmetic allows; it can also mean a wrong gradient or Hessian–vector product.</summary>
     NoProgress,
 
-    /// <summary>The value or gradient at the starting point is NaN or infinite, or (fixed-step gradient descent,
+    /// <summary>The value or gradient at the starting point is NaN or infinite (for Newton–CG also a Hessian–vector
+    /// product, in which case the point returned is the last accepted one), or (fixed-step gradient descent,
     /// which has no line search to back off) the iteration diverged to NaN or infinity. The point returned is the
     /// last one with finite values.</summary>
     NotFinite,

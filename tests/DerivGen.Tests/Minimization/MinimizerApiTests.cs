@@ -15,7 +15,7 @@ namespace DerivGen.Tests.Minimization;
 /// </summary>
 public sealed class MinimizerApiTests
 {
-    public static TheoryData<string> Methods() => new() { "fixed", "armijo", "newton", "bfgs", "lbfgs" };
+    public static TheoryData<string> Methods() => new() { "fixed", "armijo", "newton", "bfgs", "lbfgs", "newtoncg" };
 
     [Theory]
     [MemberData(nameof(Methods))]
@@ -32,7 +32,7 @@ public sealed class MinimizerApiTests
         Assert.Equal(observer.LastPoint, x);
         Assert.Equal(observer.Values[^1], result.Value);
         Assert.Equal(Rosenbrock.F(x[0], x[1]), result.Value);
-        Assert.Equal(result.Evaluations, result.ValueEvaluations + result.GradientEvaluations + result.HessianEvaluations);
+        Assert.Equal(result.Evaluations, result.ValueEvaluations + result.GradientEvaluations + result.HessianEvaluations + result.HessianVectorEvaluations);
     }
 
     [Theory]
@@ -229,11 +229,13 @@ public sealed class MinimizerApiTests
             "newton" => Minimize.Newton(new Rosenbrock(), x, observer, settings, workspace),
             "bfgs" => Minimize.Bfgs(new Rosenbrock(), x, observer, settings, workspace),
             "lbfgs" => Minimize.LimitedMemoryBfgs(new Rosenbrock(), x, observer, settings, workspace),
+            "newtoncg" => Minimize.NewtonCg(new Rosenbrock(), x, observer, settings, workspace),
             _ => throw new ArgumentOutOfRangeException(nameof(method)),
         };
 
-    /// <summary>Rosenbrock's function (1 − x)² + 100 (y − x²)² with its gradient and Hessian (plain calculus).</summary>
-    private readonly struct Rosenbrock : IHessianObjective
+    /// <summary>Rosenbrock's function (1 − x)² + 100 (y − x²)² with its gradient, Hessian and Hessian–vector product
+    /// (plain calculus).</summary>
+    private readonly struct Rosenbrock : IHessianObjective, IHessianVectorObjective
     {
         public static double F(double x, double y) => ((1 - x) * (1 - x)) + (100 * (y - (x * x)) * (y - (x * x)));
 
@@ -253,6 +255,14 @@ public sealed class MinimizerApiTests
             h[0] = 2 - (400 * (y - (3 * x * x)));
             h[1] = h[2] = -400 * x;
             h[3] = 200;
+            return ValueAndGradient(p, g);
+        }
+
+        public double ValueGradientHessianVector(ReadOnlySpan<double> p, ReadOnlySpan<double> v, Span<double> g, Span<double> hv)
+        {
+            double x = p[0], y = p[1];
+            hv[0] = ((2 - (400 * (y - (3 * x * x)))) * v[0]) - (400 * x * v[1]);
+            hv[1] = (-400 * x * v[0]) + (200 * v[1]);
             return ValueAndGradient(p, g);
         }
     }

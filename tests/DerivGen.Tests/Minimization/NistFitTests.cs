@@ -150,28 +150,37 @@ internal static class DocumentTables
 {
     public static string RepositoryRoot { get; } = Path.GetFullPath(Path.Combine(Path.GetDirectoryName(Approvals.ApprovedDirectory)!, "..", ".."));
 
-    public static void Verify(string fileName, string marker, string table)
+    /// <summary>Compares <paramref name="table"/> with docs/<paramref name="fileName"/> and, unless
+    /// <paramref name="marker"/> is null, with the README's block between its markers.</summary>
+    public static void Verify(string fileName, string? marker, string table)
     {
         bool accept = Environment.GetEnvironmentVariable("DERIVGEN_ACCEPT") == "1";
         string path = Path.Combine(RepositoryRoot, "docs", fileName);
         string readmePath = Path.Combine(RepositoryRoot, "README.md");
-        string begin = $"<!-- {marker}:begin -->\n", end = $"<!-- {marker}:end -->";
         string readme = File.ReadAllText(readmePath);
+        string begin = $"<!-- {marker}:begin -->\n", end = $"<!-- {marker}:end -->";
         int b = readme.IndexOf(begin, StringComparison.Ordinal), e = readme.IndexOf(end, StringComparison.Ordinal);
-        Assert.True(b >= 0 && e > b, $"README.md has no block between '{begin.Trim()}' and '{end}'.");
-        string shown = readme.Substring(b + begin.Length, e - b - begin.Length);
+        Assert.True(marker is null || (b >= 0 && e > b), $"README.md has no block between '{begin.Trim()}' and '{end}'.");
 
         if (accept)
         {
             Directory.CreateDirectory(Path.GetDirectoryName(path)!);
             File.WriteAllText(path, table);
-            File.WriteAllText(readmePath, readme.Substring(0, b + begin.Length) + table + readme.Substring(e));
+            if (marker is not null)
+            {
+                File.WriteAllText(readmePath, readme.Substring(0, b + begin.Length) + table + readme.Substring(e));
+            }
+
             return;
         }
 
         string committed = File.Exists(path) ? File.ReadAllText(path) : "<missing>";
         Assert.True(committed == table, $"docs/{fileName} differs from this run's table; if the change is intended rerun with DERIVGEN_ACCEPT=1.\n{FirstDifference(committed, table)}");
-        Assert.True(shown == table, $"README.md's {marker} block differs from this run's table; rerun with DERIVGEN_ACCEPT=1.\n{FirstDifference(shown, table)}");
+        if (marker is not null)
+        {
+            string shown = readme.Substring(b + begin.Length, e - b - begin.Length);
+            Assert.True(shown == table, $"README.md's {marker} block differs from this run's table; rerun with DERIVGEN_ACCEPT=1.\n{FirstDifference(shown, table)}");
+        }
     }
 
     private static string FirstDifference(string expected, string actual)
