@@ -26,6 +26,12 @@ public static class LeastSquares
     /// <summary>The relative rise of Σ rᵢ² a polishing step may cause: rounding noise, not a real increase.</summary>
     private const double PolishRise = 1e-10;
 
+    /// <summary>The finite-difference step t (along the velocity) of geodesic acceleration: Transtrum &amp; Sethna's 0.1.</summary>
+    private const double AccelerationStep = 0.1;
+
+    /// <summary>The largest 2‖Da‖ / ‖Dv‖ accepted with geodesic acceleration: Transtrum &amp; Sethna's α = 0.75.</summary>
+    private const double AccelerationRatio = 0.75;
+
     // Created on first use without settings, not in a static initialiser: a caller that passes its own settings (made
     // before its hot loop) never allocates, not even the first time.
     private static LeastSquaresSettings? s_defaults;
@@ -38,7 +44,8 @@ public static class LeastSquares
     /// actual reduction of Σ rᵢ² is more than 10⁻⁴ of the predicted one, ρ = actual / predicted; then
     /// λ ← λ · max(1/3, 1 − (2ρ − 1)³), otherwise λ grows by a factor that doubles with every consecutive rejection
     /// (Nielsen's update: Madsen, Nielsen &amp; Tingleff, Methods for Non-Linear Least Squares Problems, 2004, §3.2).
-    /// Stopping rules: <see cref="LeastSquaresSettings"/>.
+    /// With <see cref="LeastSquaresSettings.GeodesicAcceleration"/> each trial step gets Transtrum &amp; Sethna's
+    /// second-order correction (one more residual call per trial). Stopping rules: <see cref="LeastSquaresSettings"/>.
     /// </summary>
     /// <param name="model">The residuals and their Jacobian.</param>
     /// <param name="x">The starting parameters on entry; the fitted parameters on return.</param>
@@ -112,8 +119,9 @@ public static class LeastSquares
 
             while (true)
             {
-                // A trial costs one residual call, and an accepted one a Jacobian call: keep room for both.
-                if (residualEvaluations + jacobianEvaluations + 2 > s.MaxEvaluations)
+                // A trial costs one residual call (two with geodesic acceleration), and an accepted one a Jacobian
+                // call: keep room for them.
+                if (residualEvaluations + jacobianEvaluations + (s.GeodesicAcceleration ? 3 : 2) > s.MaxEvaluations)
                 {
                     return Finish(rss, StopReason.EvaluationLimit, standardErrors, w, m, n, iteration, residualEvaluations, jacobianEvaluations);
                 }
@@ -123,15 +131,22 @@ public static class LeastSquares
 
                 // Predicted reduction ‖Jh‖² + 2λ‖Dh‖² (= Σr² − ‖r + Jh‖² for the exact solution; no cancellation).
                 double dh = ScaledNorm(scale, h, n), dx = ScaledNorm(scale, x, n);
+                double predicted = SquaredNormOfProduct(jacobian, h, m, n) + (2 * lambda * dh * dh);
+                bool tooCurved = false;
+                if (s.GeodesicAcceleration && dh > 0 && DenseMath.AllFinite(h.Slice(0, n)))
+                {
+                    residualEvaluations++;
+                    tooCurved = !Accelerate(model, x, r, jacobian, scale, lambda, m, n, w, ref predicted);
+                    dh = ScaledNorm(scale, h, n);
+                }
+
                 for (int j = 0; j < n; j++)
                 {
                     xTrial[j] = x[j] + h[j];
                 }
 
-                double predicted = SquaredNormOfProduct(jacobian, h, m, n) + (2 * lambda * dh * dh);
-
                 double rssTrial = double.NaN;
-                if (DenseMath.AllFinite(h))
+                if (DenseMath.AllFinite(h) && !tooCurved)
                 {
                     model.Residuals(xTrial, rTrial);
                     residualEvaluations++;
@@ -199,6 +214,62 @@ public static class LeastSquares
                 }
             }
         }
+    }
+
+    /// <summary>
+    /// Geodesic acceleration (Transtrum &amp; Sethna, "Improvements to the Levenberg–Marquardt algorithm for nonlinear
+    /// least-squares minimization", arXiv:1201.5885, 2012): the second directional derivative of the residuals along
+    /// the velocity v = h, r_vv ≈ (2/t)((r(x + tv) − r(x))/t − Jv) with t = <see cref="AccelerationStep"/> (their finite
+    /// difference), gives the acceleration a = −(JᵀJ + λD²)⁻¹Jᵀr_vv (the same damped system, solved by QR), and the
+    /// step becomes h = v + ½a. The step is refused (false) when 2‖Da‖ / ‖Dv‖ &gt; <see cref="AccelerationRatio"/>,
+    /// their bound for the second-order term to be a correction. On success h holds the step and
+    /// <paramref name="predicted"/> the linear model's reduction Σr² − ‖r + Jh‖² for it.
+    /// </summary>
+    private static bool Accelerate<TModel>(TModel model, ReadOnlySpan<double> x, ReadOnlySpan<double> r, ReadOnlySpan<double> jacobian, ReadOnlySpan<double> scale,
+        double lambda, int m, int n, LeastSquaresWorkspace w, ref double predicted)
+        where TModel : IResidualModel
+    {
+        Span<double> h = w.Step, xShift = w.TrialPoint, rvv = w.TrialResiduals, augmented = w.Augmented, rhs = w.RightHandSide;
+        const double t = AccelerationStep;
+        for (int j = 0; j < n; j++)
+        {
+            xShift[j] = x[j] + (t * h[j]);
+        }
+
+        model.Residuals(xShift, rvv);
+        for (int i = 0; i < m; i++)
+        {
+            double jv = DenseMath.Dot(jacobian.Slice(i * n, n), h.Slice(0, n));
+            rvv[i] = (2 / t) * (((rvv[i] - r[i]) / t) - jv);
+        }
+
+        if (!DenseMath.AllFinite(rvv.Slice(0, m)))
+        {
+            return false;
+        }
+
+        SolveDamped(jacobian, rvv, scale, lambda, m, n, augmented, rhs);
+        double velocity = ScaledNorm(scale, h, n), acceleration = ScaledNorm(scale, rhs, n);
+        if (!(2 * acceleration <= AccelerationRatio * velocity))
+        {
+            return false;
+        }
+
+        for (int j = 0; j < n; j++)
+        {
+            h[j] += 0.5 * rhs[j];
+        }
+
+        // Σr² − ‖r + Jh‖² = −Σ (Jh)ᵢ (2rᵢ + (Jh)ᵢ).
+        double sum = 0;
+        for (int i = 0; i < m; i++)
+        {
+            double jh = DenseMath.Dot(jacobian.Slice(i * n, n), h.Slice(0, n));
+            sum += jh * ((2 * r[i]) + jh);
+        }
+
+        predicted = -sum;
+        return true;
     }
 
     /// <summary>‖D v‖ for the diagonal scaling D, summed in index order.</summary>
