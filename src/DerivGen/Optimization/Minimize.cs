@@ -5,7 +5,8 @@ namespace DerivGen.Minimization;
 /// <summary>
 /// Unconstrained minimisers of a smooth f: Rⁿ → R. Each takes the starting point in <c>x</c> and leaves the solution
 /// there, and returns a <see cref="MinimizeResult"/>. They are generic over the objective (implement
-/// <see cref="IGradientObjective"/> or <see cref="IHessianObjective"/> on a struct for direct, inlinable calls) and
+/// <see cref="IGradientObjective"/>, <see cref="IHessianObjective"/> or <see cref="IHessianVectorObjective"/> on a
+/// struct for direct, inlinable calls) and
 /// over an optional <see cref="IIterationObserver"/>. With a <see cref="MinimizeWorkspace"/> passed in they allocate
 /// nothing; without one they allocate it once per call. They use no reflection and are trimming- and AOT-safe.
 /// </summary>
