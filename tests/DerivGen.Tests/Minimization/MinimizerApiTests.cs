@@ -180,6 +180,40 @@ public sealed class MinimizerApiTests
     }
 
     [Fact]
+    public void NewtonCgFollowsNegativeCurvatureToTheBoundary()
+    {
+        // f = (x² − 1)² + y² at (0.1, 0): ∇f = (4x(x² − 1), 2y) = (−0.396, 0) and Hₓₓ = 12x² − 4 < 0 (plain calculus), so
+        // the first CG direction −∇f has negative curvature and Steihaug's step goes to the boundary of the first region
+        // (radius 1), to x = 1.1, the end with the lower model value. The minima are (±1, 0) with f = 0.
+        double[] x = { 0.1, 0 };
+        var observer = new Recorder();
+        MinimizeResult result = Minimize.NewtonCg(new DoubleWell(), x, observer, new MinimizeSettings { GradientTolerance = 1e-12 });
+
+        Assert.True(result.Converged, result.Reason.ToString());
+        Check.Close(1, Math.Abs(x[0]), 1e-10, 0, "|x|");
+        Check.Close(0, x[1], 0, 1e-10, "y");
+        Assert.Equal(1, observer.Regularizations[0]); // the first step was taken in the first region, radius 1
+        Assert.True(result.HessianVectorEvaluations > 0 && result.HessianEvaluations == 0);
+        for (int i = 1; i < observer.Values.Count; i++)
+        {
+            Assert.True(observer.Values[i] < observer.Values[i - 1], "f must fall at every accepted step");
+        }
+    }
+
+    [Fact]
+    public void NewtonCgCountsProductsAgainstTheEvaluationLimit()
+    {
+        double[] x = { -1.2, 1 };
+        MinimizeResult r = Minimize.NewtonCg(new Rosenbrock(), x, new MinimizeSettings { MaxEvaluations = 9 });
+        Assert.Equal(StopReason.EvaluationLimit, r.Reason);
+        Assert.True(r.Evaluations <= 9, r.Evaluations.ToString());
+        Assert.True(r.HessianVectorEvaluations > 0);
+        Assert.Equal(r.Evaluations, r.ValueEvaluations + r.GradientEvaluations + r.HessianVectorEvaluations);
+        Assert.Throws<ArgumentOutOfRangeException>(() => new MinimizeSettings { TrustRadius = 0 });
+        Assert.Throws<ArgumentOutOfRangeException>(() => new MinimizeSettings { TrustRadius = double.PositiveInfinity });
+    }
+
+    [Fact]
     public void LimitsAreReported()
     {
         double[] x = { -1.2, 1 };
@@ -268,7 +302,7 @@ public sealed class MinimizerApiTests
     }
 
     /// <summary>(x² − 1)² + y² (plain calculus for the derivatives).</summary>
-    private readonly struct DoubleWell : IHessianObjective
+    private readonly struct DoubleWell : IHessianObjective, IHessianVectorObjective
     {
         public double Value(ReadOnlySpan<double> p) => ((p[0] * p[0]) - 1) * ((p[0] * p[0]) - 1) + (p[1] * p[1]);
 
@@ -284,6 +318,13 @@ public sealed class MinimizerApiTests
             h[0] = (12 * p[0] * p[0]) - 4;
             h[1] = h[2] = 0;
             h[3] = 2;
+            return ValueAndGradient(p, g);
+        }
+
+        public double ValueGradientHessianVector(ReadOnlySpan<double> p, ReadOnlySpan<double> v, Span<double> g, Span<double> hv)
+        {
+            hv[0] = ((12 * p[0] * p[0]) - 4) * v[0];
+            hv[1] = 2 * v[1];
             return ValueAndGradient(p, g);
         }
     }
