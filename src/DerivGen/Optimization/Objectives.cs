@@ -52,8 +52,8 @@ public interface IHessianObjective : IGradientObjective
 public interface IHessianVectorObjective : IGradientObjective
 {
     /// <summary>f(x); ∇f(x) into <paramref name="gradient"/> and H(x)·<paramref name="direction"/> into
-    /// <paramref name="product"/> (n elements each). The minimiser passes a scratch buffer as
-    /// <paramref name="gradient"/> and reads only <paramref name="product"/> and the value.</summary>
+    /// <paramref name="product"/> (n elements each). Newton–CG calls it once per CG iteration at the same x with a
+    /// scratch buffer as <paramref name="gradient"/>, and reads only <paramref name="product"/>.</summary>
     double ValueGradientHessianVector(ReadOnlySpan<double> x, ReadOnlySpan<double> direction, Span<double> gradient, Span<double> product);
 }
 
