@@ -101,12 +101,14 @@ public sealed class MinimizerApiTests
         Assert.Equal(0, allocated);
     }
 
-    [Fact]
-    public void LevenbergMarquardtAllocatesNothingWithAWorkspace()
+    [Theory]
+    [InlineData(false)]
+    [InlineData(true)]
+    public void LevenbergMarquardtAllocatesNothingWithAWorkspace(bool geodesicAcceleration)
     {
         var model = new Line(LineT, LineY);
         var workspace = new LeastSquaresWorkspace(LineT.Length, 2);
-        var settings = new LeastSquaresSettings();
+        var settings = new LeastSquaresSettings { GeodesicAcceleration = geodesicAcceleration };
         var x = new double[2];
         var se = new double[2];
         LeastSquares.LevenbergMarquardt(model, x, se, new CountingObserver(), settings, workspace);
