@@ -39,6 +39,8 @@ internal sealed partial class BodyLowerer
                 return LowerStruct(parenthesized.Operand);
             case IConversionOperation { Conversion.IsIdentity: true } identity:
                 return LowerStruct(identity.Operand);
+            case IConversionOperation { OperatorMethod: null, Operand.Type: { } operandType } targetTyped when SymbolEqualityComparer.Default.Equals(operandType, operation.Type):
+                return LowerStruct(targetTyped.Operand); // new(…) and default, typed by their target
             case ILocalReferenceOperation local when layout is not null && _structLocals.TryGetValue(local.Local, out string[]? names):
                 return FromLocals(layout, names);
             case IParameterReferenceOperation parameter when layout is not null && _structLocals.TryGetValue(parameter.Parameter.OriginalDefinition, out string[]? bound):

@@ -80,6 +80,10 @@ internal sealed partial class BodyLowerer
         result = null;
         switch (operation)
         {
+            case IPropertyReferenceOperation { Property.Name: "Length", Instance: { Type: IArrayTypeSymbol { ElementType: var elementType } } array }
+                when LayoutOf(elementType) is not null && StructDataText(array) is { } data:
+                result = new IrExternal(data + ".Length", ScalarType.Int32);
+                return true;
             case IFieldReferenceOperation { Instance: { } instance, Field: var field } when IsStructInstance(instance):
                 result = ReadMember(operation, instance, field);
                 return true;
