@@ -28,6 +28,9 @@ internal sealed partial class BodyLowerer
 
     private readonly Dictionary<ITypeSymbol, StructLayout?> _layouts = new(SymbolEqualityComparer.Default);
 
+    /// <summary>Struct locals refused at their declaration: their uses are not reported again.</summary>
+    private readonly HashSet<ILocalSymbol> _refusedStructLocals = new(SymbolEqualityComparer.Default);
+
     /// <summary>A struct value: one IR expression per component of its layout.</summary>
     private sealed class StructValue
     {
@@ -84,6 +87,8 @@ internal sealed partial class BodyLowerer
                 when LayoutOf(elementType) is not null && StructDataText(array) is { } data:
                 result = new IrExternal(data + ".Length", ScalarType.Int32);
                 return true;
+            case IMemberReferenceOperation { Instance: ILocalReferenceOperation refused } when _refusedStructLocals.Contains(refused.Local):
+                return true; // reported at the declaration
             case IFieldReferenceOperation { Instance: { } instance, Field: var field } when IsStructInstance(instance):
                 result = ReadMember(operation, instance, field);
                 return true;
@@ -126,6 +131,7 @@ internal sealed partial class BodyLowerer
             if (StructLayout.Of(local.Type, out string? problem) is null && problem is not null)
             {
                 Unsupported(declarator, $"the local '{local.Name}' of type '{local.Type.ToDisplayString()}'", problem + "; keep the fields you need in double, float or int locals");
+                _refusedStructLocals.Add(local);
                 return true;
             }
 
