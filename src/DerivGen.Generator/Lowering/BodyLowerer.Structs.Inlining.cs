@@ -128,9 +128,33 @@ internal sealed partial class BodyLowerer
         }
     }
 
-    /// <summary>Evaluates an argument once, into fresh locals bound to the parameter.</summary>
-    private bool BindArgument(IParameterSymbol parameter, IOperation value, List<IParameterSymbol> bound)
+    /// <summary>Struct parameters of a constructor being inlined, bound to their arguments' values.</summary>
+    private readonly Dictionary<IParameterSymbol, StructValue> _boundStructValues = new(SymbolEqualityComparer.Default);
+
+    /// <summary>Evaluates an argument once, into fresh locals bound to the parameter; with <paramref name="direct"/>
+    /// (a constructor, whose body only assigns fields: nothing is hoisted before the expression) the parameter is bound
+    /// to the argument's value itself, so a constructor in an arm of ?: evaluates nothing outside it.</summary>
+    private bool BindArgument(IParameterSymbol parameter, IOperation value, List<IParameterSymbol> bound, bool direct = false)
     {
+        if (direct)
+        {
+            object? lowered = LayoutOf(parameter.Type) is not null ? LowerStruct(value) : LowerExpression(value);
+            switch (lowered)
+            {
+                case StructValue structValue:
+                    _boundStructValues[parameter.OriginalDefinition] = structValue;
+                    break;
+                case IrExpression scalar:
+                    _boundParameters[parameter.OriginalDefinition] = Convert(scalar, ScalarTypeOf(parameter.Type)!.Value);
+                    break;
+                default:
+                    return false;
+            }
+
+            bound.Add(parameter.OriginalDefinition);
+            return true;
+        }
+
         if (LayoutOf(parameter.Type) is { } layout)
         {
             if (LowerStruct(value) is not { } lowered)
@@ -164,6 +188,7 @@ internal sealed partial class BodyLowerer
         {
             _boundParameters.Remove(parameter);
             _structLocals.Remove(parameter);
+            _boundStructValues.Remove(parameter);
         }
     }
 
@@ -236,7 +261,7 @@ internal sealed partial class BodyLowerer
         var bound = new List<IParameterSymbol>();
         foreach (IArgumentOperation argument in creation.Arguments)
         {
-            if (argument.Parameter is not { } parameter || !BindArgument(parameter, argument.Value, bound))
+            if (argument.Parameter is not { } parameter || !BindArgument(parameter, argument.Value, bound, direct: true))
             {
                 UnbindAll(bound);
                 return null;
@@ -256,8 +281,8 @@ internal sealed partial class BodyLowerer
                         return null;
                     }
 
-                    IrExpression[] value = _structLocals.TryGetValue(parameter.OriginalDefinition, out string[]? names)
-                        ? FromLocals(member.Nested!, names).Parts
+                    IrExpression[] value = _boundStructValues.TryGetValue(parameter.OriginalDefinition, out StructValue? nested)
+                        ? nested.Parts
                         : new[] { Convert(_boundParameters[parameter.OriginalDefinition], layout.Components[member.Offset].Type) };
                     System.Array.Copy(value, 0, self.Parts, member.Offset, member.Count);
                 }

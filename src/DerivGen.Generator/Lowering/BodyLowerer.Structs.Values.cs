@@ -45,6 +45,8 @@ internal sealed partial class BodyLowerer
                 return FromLocals(layout, names);
             case IParameterReferenceOperation parameter when layout is not null && _structLocals.TryGetValue(parameter.Parameter.OriginalDefinition, out string[]? bound):
                 return FromLocals(layout, bound);
+            case IParameterReferenceOperation parameter when _boundStructValues.TryGetValue(parameter.Parameter.OriginalDefinition, out StructValue? direct):
+                return direct;
             case IParameterReferenceOperation { Parameter: var parameter } when layout is not null:
                 if (parameter.RefKind is RefKind.Ref or RefKind.Out)
                 {
@@ -339,7 +341,7 @@ internal sealed partial class BodyLowerer
     /// <summary>Lerp per lane, fused where the runtime fuses it (see the file's comment).</summary>
     private StructValue Lerp(StructValue a, StructValue b, IrExpression t)
     {
-        IrExpression amount = t is IrConstant or IrLocal or IrParameter ? t : Temporary("lerpAmount", t);
+        IrExpression amount = t; // read as often as needed: the expression DAG computes it once
         IrExpression oneMinus = Sub(FloatOne, amount);
         IrExpression fused = new IrLogical(LogicalOperator.Or,
             new IrExternal("global::System.Runtime.Intrinsics.X86.Fma.IsSupported", ScalarType.Boolean),
@@ -390,8 +392,7 @@ internal sealed partial class BodyLowerer
 
             if (values.Count == 1 && layout.Count > 1)
             {
-                IrExpression single = values[0] is IrConstant or IrLocal or IrParameter ? values[0] : Temporary("component", values[0]);
-                values = Enumerable.Repeat(single, layout.Count).ToList();
+                values = Enumerable.Repeat(values[0], layout.Count).ToList(); // one node in the DAG, computed once
             }
 
             if (values.Count != layout.Count)

@@ -104,6 +104,40 @@ public sealed class UserStructFixture : UserCodeFixture
 
                 return s;
             }
+
+            // A constructor in each arm of ?: — the arm not taken is not evaluated (t may be empty there).
+            [Differentiate(nameof(x))]
+            public static double Pick(double x, double[] t)
+            {
+                var p = x > 0 ? new Pose(t[0] * x, x, 0) : new Pose(x, x, 1);
+                return p.X + p.Y * p.Heading;
+            }
+        }
+
+        // The corpus's mesh-smoothing energy with the remainder written as a conditional index (the ring of
+        // neighbours is invented): a mutable struct, its constructor, struct data and a helper taking 'in' structs.
+        public static partial class Mesh
+        {
+            private static readonly Vertex[] Ring = { new(1, 0), new(0.4, 0.9), new(-0.6, 0.8), new(-1, -0.1), new(-0.3, -0.9), new(0.7, -0.7) };
+
+            static double SignedArea(in Vertex a, in Vertex b, in Vertex c) =>
+                0.5 * ((b.X - a.X) * (c.Y - a.Y) - (c.X - a.X) * (b.Y - a.Y));
+
+            [Differentiate(nameof(x), nameof(y))]
+            public static double Energy(double x, double y)
+            {
+                var free = new Vertex(x, y);
+                double energy = 0;
+                for (int i = 0; i < Ring.Length; i++)
+                {
+                    Vertex a = Ring[i], b = Ring[i + 1 < Ring.Length ? i + 1 : 0];
+                    double area = SignedArea(free, a, b);
+                    double edges = (a.X - x) * (a.X - x) + (a.Y - y) * (a.Y - y) + (b.X - x) * (b.X - x) + (b.Y - y) * (b.Y - y);
+                    energy += edges / area;
+                }
+
+                return energy;
+            }
         }
         """;
 
@@ -174,12 +208,38 @@ public sealed class UserStructTests : IClassFixture<UserStructFixture>
             closedFormAbsolute: 1e-14);
     }
 
+    [Theory]
+    [InlineData(0.05, 0.02)]
+    [InlineData(-0.2, 0.1)]
+    public void MeshEnergyWithStructDataAndAnInStructHelper(double x, double y)
+    {
+        // Reference: MathNet's finite differences of the user's method (no closed form written here).
+        Verify.At(Probe.Load(_fixture.Assembly, "Mesh", "Energy", 2), new[] { x, y }, null, null, "Mesh.Energy");
+    }
+
+    [Fact]
+    public void ConstructorInAnArmOfTheConditionalIsNotEvaluatedOutsideIt()
+    {
+        // x ≤ 0: f = x + x·1, f' = 2; x > 0: f = t₀x + x·0, f' = t₀ (plain calculus). With t empty, the user's method
+        // never reads t[0] at x ≤ 0, and neither may the generated one.
+        var gradient = _fixture.Assembly.Method<GData>("Shapes", "PickGradient");
+        var g = new double[1];
+        Check.SameBits(_fixture.Assembly.Method<FData>("Shapes", "Pick")(-1.5, Array.Empty<double>()), gradient(-1.5, Array.Empty<double>(), g), "value at x ≤ 0");
+        Assert.Equal(2.0, g[0]);
+        gradient(0.5, new[] { 3.0 }, g);
+        Assert.Equal(3.0, g[0]);
+    }
+
     [Fact]
     public void StructVariableIsNamedByItsFieldsInTheDocs()
     {
         string text = _fixture.Run.Source("Shapes.Spring.g.cs");
         Assert.Contains("with respect to (v.X, v.Y)", text, StringComparison.Ordinal);
     }
+
+    private delegate double FData(double x, double[] t);
+
+    private delegate double GData(double x, double[] t, Span<double> gradient);
 
     private delegate double F4(double a, double b, double c, double d);
 
