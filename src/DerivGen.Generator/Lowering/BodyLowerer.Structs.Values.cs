@@ -27,6 +27,8 @@ internal sealed partial class BodyLowerer
     private static readonly IrExpression FloatZero = new IrConstant(BitConverter.DoubleToInt64Bits(0.0), ScalarType.Single);
     private static readonly IrExpression FloatOne = new IrConstant(BitConverter.DoubleToInt64Bits(1.0), ScalarType.Single);
 
+    private readonly HashSet<IParameterSymbol> _refusedStructParameters = new(SymbolEqualityComparer.Default);
+
     /// <summary>Lowers a struct-valued expression; null (after reporting) when it is not supported.</summary>
     private StructValue? LowerStruct(IOperation operation)
     {
@@ -50,6 +52,11 @@ internal sealed partial class BodyLowerer
             case IParameterReferenceOperation { Parameter: var parameter } when layout is not null:
                 if (parameter.RefKind is RefKind.Ref or RefKind.Out)
                 {
+                    if (!_refusedStructParameters.Add(parameter))
+                    {
+                        return null; // reported at its first use
+                    }
+
                     return Refuse(operation, $"the {parameter.RefKind.ToString().ToLowerInvariant()} struct parameter '{parameter.Name}'", "pass it by value or as 'in'");
                 }
 
