@@ -240,6 +240,14 @@ internal sealed partial class BodyLowerer
     /// <summary>A user struct's constructor: a record struct's positional parameters, or a body of field assignments.</summary>
     private IrExpression[]? InlineConstructor(IObjectCreationOperation creation, IMethodSymbol constructor, StructLayout layout)
     {
+        int diagnosticsBefore = _diagnostics.Count;
+        IrExpression[]? parts = InlineConstructorCore(creation, constructor, layout);
+        RelocateDiagnostics(creation, "constructor of '" + layout.Type.Name + "'", diagnosticsBefore);
+        return parts;
+    }
+
+    private IrExpression[]? InlineConstructorCore(IObjectCreationOperation creation, IMethodSymbol constructor, StructLayout layout)
+    {
         RecordSymbolReads(constructor);
         bool positional = constructor.DeclaringSyntaxReferences.Length == 1
             && constructor.DeclaringSyntaxReferences[0].GetSyntax(_cancellationToken) is RecordDeclarationSyntax;

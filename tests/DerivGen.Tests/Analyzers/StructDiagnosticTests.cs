@@ -100,6 +100,26 @@ public sealed class StructDiagnosticTests
         """);
 
     [Fact]
+    public Task DG0001InsideAnInlinedHelperOfAnotherFileIsReportedAtTheCall() => VerifyAsync(new[]
+    {
+        Usings + """
+            public static partial class C
+            {
+                [Differentiate]
+                public static double F(double x) => {|DG0001:Shapes.Make(x)|}.X;
+            }
+            """,
+        Usings + """
+            public readonly record struct Pose(double X, double Y);
+
+            public static partial class Shapes
+            {
+                public static Pose Make(double x) => new Pose(x % 2.0, x);
+            }
+            """,
+    });
+
+    [Fact]
     public Task DG0001StructWithAnArrayField() => VerifyAsync(Usings + """
         public struct Series
         {
