@@ -129,7 +129,7 @@ internal sealed class DerivativeProgram
     public static DerivativeProgram Create(MethodSpec spec, System.Threading.CancellationToken cancellationToken)
     {
         var builder = new ExpressionBuilder(cancellationToken);
-        string[] variables = spec.Parameters.Where(p => p.IsVariable && !p.IsVector).Select(p => p.Name).ToArray();
+        string[] variables = spec.Parameters.Where(p => p.IsVariable && !p.IsVector).SelectMany(p => p.ScalarVariables).ToArray();
         string[] vectors = spec.Parameters.Where(p => p.IsVector).Select(p => p.Name).ToArray();
         var vectorIndex = new Dictionary<string, int>(StringComparer.Ordinal);
         for (int v = 0; v < vectors.Length; v++)
@@ -320,7 +320,7 @@ internal sealed class DerivativeProgram
 
     private static string Capital(string name)
     {
-        string bare = Identifiers.Unescape(name);
+        string bare = Identifiers.Unescape(name).Replace(".", string.Empty); // a struct variable's component, p.X → PX
         return bare.Length == 0 ? bare : char.ToUpperInvariant(bare[0]) + bare.Substring(1);
     }
 }

@@ -62,8 +62,11 @@ internal sealed class SlotLayout
             }
             else
             {
-                scalar.Add(Offset());
-                constant++;
+                foreach (string _ in parameter.ScalarVariables)
+                {
+                    scalar.Add(Offset()); // a struct variable takes one slot per component
+                    constant++;
+                }
             }
         }
 

@@ -51,7 +51,7 @@ internal sealed record PairHessian(MethodSpec Spec, DerivativeProgram Program, s
             IsPairMethod = true,
         };
         return new PairHessian(pairSpec, DerivativeProgram.Create(pairSpec, cancellationToken), row, column,
-            spec.Parameters.Count(p => p.IsVariable && !p.IsVector));
+            spec.Parameters.Where(p => p.IsVariable && !p.IsVector).Sum(p => p.ScalarVariables.Count()));
     }
 
     /// <summary>Rewrites every read of a vector variable's element into the shifted read; everything else is kept.</summary>

@@ -215,7 +215,10 @@ internal sealed class ExpressionWriter
 
             case NodeKind.Element:
             case NodeKind.VariableElement:
-                text.Append(node.Text).Append('[');
+            {
+                // "Points|.X" is Points[i].X: a component of a struct element (Lowering/StructLayout.cs).
+                int member = node.Text!.IndexOf(Lowering.StructLayout.ElementMemberMark);
+                text.Append(node.Text, 0, member < 0 ? node.Text.Length : member).Append('[');
                 for (int i = 0; i < node.Arguments.Length; i++)
                 {
                     if ((i > 0 && !Append(text, ", ")) || !Write(node.Arguments[i], Conditional, text))
@@ -224,8 +227,9 @@ internal sealed class ExpressionWriter
                     }
                 }
 
-                text.Append(']');
+                text.Append(']').Append(member < 0 ? string.Empty : node.Text.Substring(member + 1));
                 return true;
+            }
 
             case NodeKind.Select:
                 return Write(node.Arguments[0], Conditional + 1, text)

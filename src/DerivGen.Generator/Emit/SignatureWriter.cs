@@ -12,7 +12,7 @@ internal static class SignatureWriter
 {
     /// <summary>The method's variables as the docs list them: <c>a, b, w[…]</c>.</summary>
     public static string VariableList(MethodSpec spec) =>
-        string.Join(", ", spec.Parameters.Where(p => p.IsVariable).Select(p => Identifiers.Unescape(p.Name) + (p.IsVector ? "[…]" : string.Empty)));
+        string.Join(", ", spec.Parameters.Where(p => p.IsVariable).SelectMany(p => p.IsVector ? new[] { Identifiers.Unescape(p.Name) + "[…]" } : p.ScalarVariables.Select(Identifiers.Unescape)));
 
     /// <summary>Docs, attributes and signature of MGradient, MHessian or MJacobian (and of the pair method); returns the
     /// scope of the body.</summary>

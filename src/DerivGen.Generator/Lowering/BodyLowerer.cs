@@ -333,6 +333,11 @@ internal sealed partial class BodyLowerer
     /// </summary>
     private void LowerForEach(IForEachLoopOperation loop)
     {
+        if (TryLowerStructForEach(loop))
+        {
+            return; // BodyLowerer.Structs.cs
+        }
+
         IOperation collection = loop.Collection is IConversionOperation conversion ? conversion.Operand : loop.Collection;
         ILocalSymbol? element = loop.Locals.Length == 1 ? loop.Locals[0] : null;
         string? data = DataText(collection);
@@ -506,6 +511,11 @@ internal sealed partial class BodyLowerer
     {
         ILocalSymbol local = declarator.Symbol;
         ScalarType? type = ValueTypeOf(local.Type);
+        if (type is null && TryLowerStructDeclarator(declarator))
+        {
+            return; // BodyLowerer.Structs.cs
+        }
+
         if (type is null)
         {
             Unsupported(declarator, $"the local '{local.Name}' of type '{local.Type.ToDisplayString()}'", VectorLocalAdvice(local) ?? "locals must be double, float, int or bool");
@@ -524,6 +534,11 @@ internal sealed partial class BodyLowerer
 
     private void LowerExpressionStatement(IOperation expression)
     {
+        if (TryLowerStructStatement(expression))
+        {
+            return; // BodyLowerer.Structs.cs
+        }
+
         switch (expression)
         {
             case IDeconstructionAssignmentOperation deconstruction:
@@ -700,6 +715,11 @@ internal sealed partial class BodyLowerer
             && TryConstant(operation.ConstantValue.Value, scalar, out IrConstant? constant))
         {
             return constant;
+        }
+
+        if (TryLowerStructScalar(operation, out IrExpression? throughStruct))
+        {
+            return throughStruct; // BodyLowerer.Structs.cs
         }
 
         switch (operation)

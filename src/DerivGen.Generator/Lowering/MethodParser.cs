@@ -317,7 +317,8 @@ internal static class MethodParser
             if (semanticModel.GetOperation(syntax, cancellationToken) is IMethodBodyOperation { BlockBody: var block, ExpressionBody: var expression }
                 && (block ?? expression) is { } bodyOperation)
             {
-                var lowerer = new BodyLowerer(method, emitHessian, new HashSet<string>(variables.Select(Identifiers.Escape), StringComparer.Ordinal), helpers, diagnostics,
+                var lowerer = new BodyLowerer(method, emitHessian, new HashSet<string>(method.Parameters.Where(p => variables.Contains(p.Name))
+                    .SelectMany(p => StructLayout.VariableComponents(p) ?? new[] { Identifiers.Escape(p.Name) }), StringComparer.Ordinal), helpers, diagnostics,
                     cancellationToken, output);
                 body = lowerer.Lower(bodyOperation);
                 if (output is not null)
@@ -353,7 +354,8 @@ internal static class MethodParser
                 Modifiers(p, method),
                 helpers.Shared.Memo(p.Type, ParameterTypeOf),
                 variables.Contains(p.Name),
-                variables.Contains(p.Name) && IsFloatingPointVector(p.Type))).ToEquatableArray(),
+                variables.Contains(p.Name) && IsFloatingPointVector(p.Type),
+                variables.Contains(p.Name) ? (StructLayout.VariableComponents(p) ?? Array.Empty<string>()).ToEquatableArray() : default)).ToEquatableArray(),
             EmitHessian: emitHessian,
             DisplayName: method.ToDisplayString(HeaderFormat),
             Cref: Identifiers.Escape(method.Name) + "(" + string.Join(", ", method.Parameters.Select(p => RefKindPrefix(p) + helpers.Shared.Memo(p.Type, CrefTypeOf))) + ")",
@@ -504,6 +506,16 @@ internal static class MethodParser
                         "a vector variable's elements must have the method's return type (double elements for a double method, float for float)"));
                 }
                 else if (!variables.Add(name))
+                {
+                    diagnostics.Add(DiagnosticInfo.Create(DiagnosticDescriptors.DuplicateVariable, location, name));
+                }
+            }
+            else if (StructLayout.IsStructVariable(parameter, out string? structProblem) || structProblem is not null)
+            {
+                // A System.Numerics vector or user struct of float/double fields: one variable per field (StructLayout.cs).
+                diagnostics.AddRange(structProblem is null ? Enumerable.Empty<DiagnosticInfo>() : new[] { DiagnosticInfo.Create(DiagnosticDescriptors.UnsupportedConstruct, location,
+                    "The struct variable '" + parameter.Name + "'", structProblem) });
+                if (structProblem is null && !variables.Add(name))
                 {
                     diagnostics.Add(DiagnosticInfo.Create(DiagnosticDescriptors.DuplicateVariable, location, name));
                 }

@@ -1,3 +1,5 @@
+using System.Collections.Generic;
+
 namespace DerivGen.Generator.Model;
 
 /// <summary>
@@ -54,4 +56,11 @@ internal sealed record ContainingTypeSpec(string Keyword, string Name);
 /// <param name="TypeName">The fully qualified type.</param>
 /// <param name="IsVariable">Whether this is a differentiation variable.</param>
 /// <param name="IsVector">Whether it is a vector of variables (an array or span named in [Differentiate]).</param>
-internal sealed record ParameterSpec(string Name, string Modifiers, string TypeName, bool IsVariable, bool IsVector = false);
+/// <param name="Components">For a struct variable (a Vector3, a user struct), its scalar variables as the body reads them
+/// (<c>p.X</c>, <c>p.Y</c>, …), one gradient slot each in this order; empty for any other parameter.</param>
+internal sealed record ParameterSpec(string Name, string Modifiers, string TypeName, bool IsVariable, bool IsVector = false,
+    EquatableArray<string> Components = default)
+{
+    /// <summary>The scalar variables this parameter stands for: its components, or itself.</summary>
+    public IEnumerable<string> ScalarVariables => Components.Count > 0 ? Components : new[] { Name };
+}

@@ -26,11 +26,8 @@ internal static class CorpusStatus
         {
             "DG0001: The arm that throws ('throw new ArgumentOutOfRangeException(nameof(kind))') cannot be differentiated: the generated methods cannot throw yet; validate the argument before calling the method, or return double.NaN from this arm",
         }),
-        ["TwoLinkReachVector2"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
+        ["TwoLinkReachVector2"] = new(Accepted: true, Hessian: true, Diagnostics: new string[]
         {
-            "DG0001: The local 'elbowPosition' of type 'System.Numerics.Vector2' cannot be differentiated: locals must be double, float, int or bool; System.Numerics vectors are not differentiated in this version: keep its components in double or float locals (elbowPositionX, elbowPositionY)",
-            "DG0001: The local 'tip' of type 'System.Numerics.Vector2' cannot be differentiated: locals must be double, float, int or bool; System.Numerics vectors are not differentiated in this version: keep its components in double or float locals (tipX, tipY)",
-            "DG0001: The call to 'System.Numerics.Vector2.DistanceSquared' cannot be differentiated: System.Numerics vectors are not differentiated in this version; work on the components as double or float scalars (pass x, y as separate parameters, keep them in separate locals) and write Vector2.DistanceSquared as `double dx = ax - bx, dy = ay - by; … dx * dx + dy * dy`",
         }),
         ["ThreeLinkStackalloc"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
         {
@@ -39,23 +36,11 @@ internal static class CorpusStatus
             "DG0001: The element access 'cumulative[j]' cannot be differentiated: read elements of double, float or int arrays and spans that are parameters (not variables), fields of this instance or static readonly fields",
             "DG0001: The element access 'cumulative[j]' cannot be differentiated: read elements of double, float or int arrays and spans that are parameters (not variables), fields of this instance or static readonly fields",
         }),
-        ["SerialChainPoseStruct"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
+        ["SerialChainPoseStruct"] = new(Accepted: true, Hessian: true, Diagnostics: new string[]
         {
-            "DG0001: The local 'p' of type 'Corpus.SerialChainPoseStruct.Pose' cannot be differentiated: locals must be double, float, int or bool",
-            "DG0001: The call to 'SerialChain.Advance' cannot be differentiated: a helper called from a differentiated method must be a static method with a body in this compilation, not generic, return double or float and take double, float, int or bool parameters; 'Advance' returns 'Corpus.SerialChainPoseStruct.Pose': write its computation inline in this method with double and float locals",
-            "DG0001: The call to 'SerialChain.Advance' cannot be differentiated: a helper called from a differentiated method must be a static method with a body in this compilation, not generic, return double or float and take double, float, int or bool parameters; 'Advance' returns 'Corpus.SerialChainPoseStruct.Pose': write its computation inline in this method with double and float locals",
-            "DG0001: The call to 'SerialChain.Advance' cannot be differentiated: a helper called from a differentiated method must be a static method with a body in this compilation, not generic, return double or float and take double, float, int or bool parameters; 'Advance' returns 'Corpus.SerialChainPoseStruct.Pose': write its computation inline in this method with double and float locals",
-            "DG0001: The property 'X' cannot be differentiated: only static properties of double, float or int type are read as constants",
-            "DG0001: The property 'Y' cannot be differentiated: only static properties of double, float or int type are read as constants",
-            "DG0001: The property 'Heading' cannot be differentiated: only static properties of double, float or int type are read as constants",
-            "DG0001: The property 'Heading' cannot be differentiated: only static properties of double, float or int type are read as constants",
         }),
-        ["PanTiltAimVector3"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
+        ["PanTiltAimVector3"] = new(Accepted: true, Hessian: true, Diagnostics: new string[]
         {
-            "DG0001: The local 'forward' of type 'System.Numerics.Vector3' cannot be differentiated: locals must be double, float, int or bool; System.Numerics vectors are not differentiated in this version: keep its components in double or float locals (forwardX, forwardY, forwardZ)",
-            "DG0001: The local 'toTarget' of type 'System.Numerics.Vector3' cannot be differentiated: locals must be double, float, int or bool; System.Numerics vectors are not differentiated in this version: keep its components in double or float locals (toTargetX, toTargetY, toTargetZ)",
-            "DG0001: The call to 'System.Numerics.Vector3.Dot' cannot be differentiated: System.Numerics vectors are not differentiated in this version; work on the components as double or float scalars (pass x, y, z as separate parameters, keep them in separate locals) and write Vector3.Dot as `ax * bx + ay * by + az * bz`",
-            "DG0001: The call to 'System.Numerics.Vector3.Length' cannot be differentiated: System.Numerics vectors are not differentiated in this version; work on the components as double or float scalars (pass x, y, z as separate parameters, keep them in separate locals) and write Vector3.Length as `Math.Sqrt(x * x + y * y + z * z)`",
         }),
         ["JointLimitPenaltyGuards"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
         {
@@ -90,25 +75,11 @@ internal static class CorpusStatus
         ["PendulumLocalFunction"] = new(Accepted: true, Hessian: true, Diagnostics: new string[]
         {
         }),
-        ["OrbitLeapfrogVector3"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
+        ["OrbitLeapfrogVector3"] = new(Accepted: true, Hessian: true, Diagnostics: new string[]
         {
-            "DG0001: The local 'r' of type 'System.Numerics.Vector3' cannot be differentiated: locals must be double, float, int or bool; System.Numerics vectors are not differentiated in this version: keep its components in double or float locals (rX, rY, rZ)",
-            "DG0001: The local 'v' of type 'System.Numerics.Vector3' cannot be differentiated: locals must be double, float, int or bool; System.Numerics vectors are not differentiated in this version: keep its components in double or float locals (vX, vY, vZ)",
-            "DG0001: The call to 'System.Numerics.Vector3.LengthSquared' cannot be differentiated: System.Numerics vectors are not differentiated in this version; work on the components as double or float scalars (pass x, y, z as separate parameters, keep them in separate locals) and write Vector3.LengthSquared as `x * x + y * y + z * z`",
-            "DG0001: The local 'a' of type 'System.Numerics.Vector3' cannot be differentiated: locals must be double, float, int or bool; System.Numerics vectors are not differentiated in this version: keep its components in double or float locals (aX, aY, aZ)",
-            "DG0001: The assignment 'v += 0.5f * Dt * a' cannot be differentiated: only locals of the method can be assigned",
-            "DG0001: The assignment 'r += Dt * v' cannot be differentiated: only locals of the method can be assigned",
-            "DG0001: The call to 'System.Numerics.Vector3.LengthSquared' cannot be differentiated: System.Numerics vectors are not differentiated in this version; work on the components as double or float scalars (pass x, y, z as separate parameters, keep them in separate locals) and write Vector3.LengthSquared as `x * x + y * y + z * z`",
-            "DG0001: The operator '-r / (d2 * MathF.Sqrt(d2))' cannot be differentiated: only + - * / on double, float and int, comparisons, && and || are supported",
-            "DG0001: The assignment 'v += 0.5f * Dt * a' cannot be differentiated: only locals of the method can be assigned",
-            "DG0001: The call to 'System.Numerics.Vector3.Distance' cannot be differentiated: System.Numerics vectors are not differentiated in this version; work on the components as double or float scalars (pass x, y, z as separate parameters, keep them in separate locals) and write Vector3.Distance as `double dx = ax - bx, dy = ay - by, dz = az - bz; … Math.Sqrt(dx * dx + dy * dy + dz * dz)`",
         }),
-        ["SpringMassRecordStruct"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
+        ["SpringMassRecordStruct"] = new(Accepted: true, Hessian: true, Diagnostics: new string[]
         {
-            "DG0001: The local 'state' of type 'Corpus.SpringMassRecordStruct.State' cannot be differentiated: locals must be double, float, int or bool",
-            "DG0001: The call to 'Suspension.Step' cannot be differentiated: a helper called from a differentiated method must be a static method with a body in this compilation, not generic, return double or float and take double, float, int or bool parameters; 'Step' returns 'Corpus.SpringMassRecordStruct.State': write its computation inline in this method with double and float locals",
-            "DG0001: The property 'Position' cannot be differentiated: only static properties of double, float or int type are read as constants",
-            "DG0001: The property 'Position' cannot be differentiated: only static properties of double, float or int type are read as constants",
         }),
         ["BallisticRangeFiniteGuard"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
         {
@@ -159,11 +130,8 @@ internal static class CorpusStatus
             "DG0001: The element access 'x[1]' cannot be differentiated: read elements of double, float or int arrays and spans that are parameters (not variables), fields of this instance or static readonly fields",
             "DG0001: The element access 'x[1]' cannot be differentiated: read elements of double, float or int arrays and spans that are parameters (not variables), fields of this instance or static readonly fields",
         }),
-        ["PlantStructInstanceHelper"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
+        ["PlantStructInstanceHelper"] = new(Accepted: true, Hessian: true, Diagnostics: new string[]
         {
-            "DG0001: The call to 'Corpus.PlantStructInstanceHelper.FirstOrderPlant.Next' cannot be differentiated: only the functions of System.Math, System.MathF, double and float listed in the README, and other [Differentiate] methods, can be called; 'Next' is called on another object than this one, so marking it [Differentiate] would not help: write its computation inline in this method with double and float locals",
-            "DG0001: The call to 'Corpus.PlantStructInstanceHelper.FirstOrderPlant.Next' cannot be differentiated: only the functions of System.Math, System.MathF, double and float listed in the README, and other [Differentiate] methods, can be called; 'Next' is called on another object than this one, so marking it [Differentiate] would not help: write its computation inline in this method with double and float locals",
-            "DG0001: The call to 'Corpus.PlantStructInstanceHelper.FirstOrderPlant.Next' cannot be differentiated: only the functions of System.Math, System.MathF, double and float listed in the README, and other [Differentiate] methods, can be called; 'Next' is called on another object than this one, so marking it [Differentiate] would not help: write its computation inline in this method with double and float locals",
         }),
         ["PiTuningStaticLocalFunction"] = new(Accepted: true, Hessian: true, Diagnostics: new string[]
         {
@@ -201,9 +169,8 @@ internal static class CorpusStatus
         {
             "DG0001: The call to 'System.Linq.Enumerable.Average' cannot be differentiated: LINQ is not differentiated in this version; write the mean as a for loop over the array: `double s = 0; for (int i = 0; i < Returns.Length; i++) s += …; double mean = s / Returns.Length;`",
         }),
-        ["BachelierQuotesRecordStruct"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
+        ["BachelierQuotesRecordStruct"] = new(Accepted: true, Hessian: true, Diagnostics: new string[]
         {
-            "DG0001: The foreach loop 'foreach (Quote q in Quotes)' cannot be differentiated: foreach works over a one-dimensional array or span of data (not a variable), with the element's own type",
         }),
         ["TrackingErrorThrowHelpers"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
         {
@@ -233,50 +200,27 @@ internal static class CorpusStatus
         ["EdgeFitWindowEnumSwitch"] = new(Accepted: true, Hessian: true, Diagnostics: new string[]
         {
         }),
-        ["CircleFitVector2"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
+        ["CircleFitVector2"] = new(Accepted: true, Hessian: true, Diagnostics: new string[]
         {
-            "DG0001: The local 'center' of type 'System.Numerics.Vector2' cannot be differentiated: locals must be double, float, int or bool; System.Numerics vectors are not differentiated in this version: keep its components in double or float locals (centerX, centerY)",
-            "DG0001: The foreach loop 'foreach (Vector2 p in Points)' cannot be differentiated: foreach works over a one-dimensional array or span of data (not a variable), with the element's own type",
         }),
-        ["BezierControlPointLerp"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
+        ["BezierControlPointLerp"] = new(Accepted: true, Hessian: true, Diagnostics: new string[]
         {
-            "DG0004: Parameter 'control' has type 'System.Numerics.Vector3'; a differentiation variable must be a double or float parameter passed by value or with 'in'",
-            "DG0001: The property 'Length' cannot be differentiated: only static properties of double, float or int type are read as constants",
-            "DG0001: The call to 'System.Numerics.Vector3.DistanceSquared' cannot be differentiated: System.Numerics vectors are not differentiated in this version; work on the components as double or float scalars (pass x, y, z as separate parameters, keep them in separate locals) and write Vector3.DistanceSquared as `double dx = ax - bx, dy = ay - by, dz = az - bz; … dx * dx + dy * dy + dz * dz`",
         }),
         ["MeshSmoothingMutableStruct"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
         {
-            "DG0001: The local 'free' of type 'Corpus.MeshSmoothingMutableStruct.Vertex' cannot be differentiated: locals must be double, float, int or bool",
-            "DG0001: The property 'Length' cannot be differentiated: only static properties of double, float or int type are read as constants",
-            "DG0001: The local 'a' of type 'Corpus.MeshSmoothingMutableStruct.Vertex' cannot be differentiated: locals must be double, float, int or bool",
-            "DG0001: The local 'b' of type 'Corpus.MeshSmoothingMutableStruct.Vertex' cannot be differentiated: locals must be double, float, int or bool",
-            "DG0001: The call to 'MeshSmoothing.SignedArea' cannot be differentiated: a helper called from a differentiated method must be a static method with a body in this compilation, not generic, return double or float and take double, float, int or bool parameters; 'SignedArea' takes 'Corpus.MeshSmoothingMutableStruct.Vertex a': write its computation inline in this method with double and float locals",
-            "DG0001: The field 'X' cannot be differentiated: instance fields come in a later version; pass the value as a parameter",
-            "DG0001: The field 'X' cannot be differentiated: instance fields come in a later version; pass the value as a parameter",
-            "DG0001: The field 'Y' cannot be differentiated: instance fields come in a later version; pass the value as a parameter",
-            "DG0001: The field 'Y' cannot be differentiated: instance fields come in a later version; pass the value as a parameter",
-            "DG0001: The field 'X' cannot be differentiated: instance fields come in a later version; pass the value as a parameter",
-            "DG0001: The field 'X' cannot be differentiated: instance fields come in a later version; pass the value as a parameter",
-            "DG0001: The field 'Y' cannot be differentiated: instance fields come in a later version; pass the value as a parameter",
-            "DG0001: The field 'Y' cannot be differentiated: instance fields come in a later version; pass the value as a parameter",
+            "DG0001: The operator '(i + 1) % Ring.Length' cannot be differentiated: the remainder operator is not supported",
         }),
-        ["KeepOutBoxComponentwise"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
+        ["KeepOutBoxComponentwise"] = new(Accepted: true, Hessian: true, Diagnostics: new string[]
         {
-            "DG0004: Parameter 'p' has type 'System.Numerics.Vector3'; a differentiation variable must be a double or float parameter passed by value or with 'in'",
-            "DG0001: The local 'q' of type 'System.Numerics.Vector3' cannot be differentiated: locals must be double, float, int or bool; System.Numerics vectors are not differentiated in this version: keep its components in double or float locals (qX, qY, qZ)",
-            "DG0001: The local 'outside' of type 'System.Numerics.Vector3' cannot be differentiated: locals must be double, float, int or bool; System.Numerics vectors are not differentiated in this version: keep its components in double or float locals (outsideX, outsideY, outsideZ)",
-            "DG0001: The field 'X' cannot be differentiated: System.Numerics vectors are not differentiated in this version; keep the component in a double or float parameter or local instead of the vector",
-            "DG0001: The field 'Y' cannot be differentiated: System.Numerics vectors are not differentiated in this version; keep the component in a double or float parameter or local instead of the vector",
-            "DG0001: The field 'Z' cannot be differentiated: System.Numerics vectors are not differentiated in this version; keep the component in a double or float parameter or local instead of the vector",
-            "DG0001: The call to 'System.Numerics.Vector3.LengthSquared' cannot be differentiated: System.Numerics vectors are not differentiated in this version; work on the components as double or float scalars (pass x, y, z as separate parameters, keep them in separate locals) and write Vector3.LengthSquared as `x * x + y * y + z * z`",
+            "DG0007: 'Vector3.Abs' is not differentiable everywhere: its derivative at 0 is taken as 0 (per component, as MathF.Abs)",
+            "DG0007: 'Vector3.Max' is not differentiable everywhere: at a tie the derivative of the first argument is used (per component, as MathF.Max)",
+            "DG0007: 'MathF.Min' is not differentiable everywhere: at a tie the derivative of the first argument is used",
+            "DG0007: 'MathF.Max' is not differentiable everywhere: at a tie the derivative of the first argument is used",
+            "DG0007: 'MathF.Max' is not differentiable everywhere: at a tie the derivative of the first argument is used",
         }),
-        ["ColourGradeVector4"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
+        ["ColourGradeVector4"] = new(Accepted: true, Hessian: true, Diagnostics: new string[]
         {
-            "DG0001: The property 'Length' cannot be differentiated: only static properties of double, float or int type are read as constants",
-            "DG0001: The local 'm' of type 'System.Numerics.Vector4' cannot be differentiated: locals must be double, float, int or bool; System.Numerics vectors are not differentiated in this version: keep its components in double or float locals (mX, mY, mZ, mW)",
-            "DG0001: The local 'graded' of type 'System.Numerics.Vector4' cannot be differentiated: locals must be double, float, int or bool; System.Numerics vectors are not differentiated in this version: keep its components in double or float locals (gradedX, gradedY, gradedZ, gradedW)",
-            "DG0001: The local 'clipped' of type 'System.Numerics.Vector4' cannot be differentiated: locals must be double, float, int or bool; System.Numerics vectors are not differentiated in this version: keep its components in double or float locals (clippedX, clippedY, clippedZ, clippedW)",
-            "DG0001: The call to 'System.Numerics.Vector4.DistanceSquared' cannot be differentiated: System.Numerics vectors are not differentiated in this version; work on the components as double or float scalars (pass x, y, z, w as separate parameters, keep them in separate locals) and write Vector4.DistanceSquared as `double dx = ax - bx, dy = ay - by, dz = az - bz, dw = aw - bw; … dx * dx + dy * dy + dz * dz + dw * dw`",
+            "DG0007: 'Vector4.Min' is not differentiable everywhere: at a tie the derivative of the first argument is used (per component, as MathF.Min)",
         }),
         ["ArrheniusZipTuples"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
         {
