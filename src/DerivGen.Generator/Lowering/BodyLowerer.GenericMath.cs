@@ -180,7 +180,8 @@ internal sealed partial class BodyLowerer
             || invocation.Arguments.Any(a => a.Parameter is null || !IsMethodTypeParameter(a.Parameter.Type)))
         {
             return Unsupported(invocation, $"the call to 'T.{target.Name}'",
-                "the functions of T that are differentiated are those of System.Math listed in the README (T.Exp, T.Log, T.Sqrt, T.Sin, T.Pow, …), T.CreateChecked, T.CreateTruncating and T.CreateSaturating");
+                "the functions of T that are differentiated are those named like the functions of System.Math listed in the README (T.Exp, T.Log, T.Sqrt, T.Sin, T.Pow, …), and T.CreateChecked, T.CreateTruncating and T.CreateSaturating; '"
+                + target.Name + "' is not one of them: compute it with those functions of T in this method");
         }
 
         if (MissingDerivativeInterface(function, invocation) is { } missing)
