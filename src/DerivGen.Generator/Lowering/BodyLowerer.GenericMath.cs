@@ -66,7 +66,7 @@ internal sealed partial class BodyLowerer
 
         if (t.ConstraintTypes.FirstOrDefault(c => c is not INamedTypeSymbol { TypeKind: TypeKind.Interface }) is { } other)
         {
-            return "constrains T to '" + other.ToDisplayString() + "' (only interfaces, 'struct' and 'unmanaged' are copied to the generated methods)";
+            return "constrains T to the class '" + other.ToDisplayString() + "' (the generated methods copy interface constraints only)";
         }
 
         var parts = new List<string>();
@@ -78,8 +78,21 @@ internal sealed partial class BodyLowerer
         {
             parts.Add("struct");
         }
+        else if (t.HasReferenceTypeConstraint)
+        {
+            parts.Add("class");
+        }
+        else if (t.HasNotNullConstraint)
+        {
+            parts.Add("notnull");
+        }
 
         parts.AddRange(t.ConstraintTypes.Select(c => c.ToDisplayString(SymbolDisplayFormat.FullyQualifiedFormat)));
+        if (t.HasConstructorConstraint)
+        {
+            parts.Add("new()");
+        }
+
         constraints = string.Join(", ", parts);
         return null;
     }

@@ -5,6 +5,10 @@ using DerivGen.Tests.Infrastructure;
 
 namespace DerivGen.Tests.Numerics.GenericMath;
 
+internal delegate T GF1<T>(T x);
+
+internal delegate T GG1<T>(T x, Span<T> gradient);
+
 internal delegate T GF2<T>(T x, T y);
 
 internal delegate T GG2<T>(T x, T y, Span<T> gradient);

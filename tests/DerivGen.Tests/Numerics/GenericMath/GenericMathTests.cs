@@ -63,6 +63,25 @@ public sealed class GenericMathFixture : CompiledFixture
             }
         }
 
+        public static partial class Calls
+        {
+            [Differentiate]
+            public static T Model<T>(T a, T t) where T : IFloatingPointIeee754<T> => a * T.Exp(-t);
+
+            [Differentiate(nameof(a))]
+            public static double FromDouble(double a) => Model(a, 0.5) * a;
+
+            [Differentiate(nameof(a))]
+            public static float FromFloat(float a) => Model(a, 0.5f) * a;
+
+            [Differentiate]
+            public static T FromGeneric<T>(T a) where T : unmanaged, IFloatingPointIeee754<T>
+            {
+                static T Square(T v) => v * v;
+                return Model(a, T.One) * a + Square(a) * T.Max(a, T.Zero);
+            }
+        }
+
         public static partial class Decay
         {
             // r_i = a·e^(−b·t_i) − 0.1·t_i with t_i = i/4.
@@ -250,6 +269,33 @@ public sealed class GenericMathTests : IClassFixture<GenericMathFixture>
             Check.Close(e, jf[2 * i], FloatRelative, 1e-7, $"float ∂r[{i}]/∂a");
             Check.Close(-a * t * e, jf[(2 * i) + 1], FloatRelative, 1e-7, $"float ∂r[{i}]/∂b");
         }
+    }
+
+    [Theory]
+    [InlineData(0.8)]
+    [InlineData(-1.3)]
+    public void MarkedGenericMethodCalledAtFloatDoubleAndT(double a)
+    {
+        // Plain calculus: d/da (a·e^(−1/2)·a) = 2a·e^(−1/2); d/da (a·e^(−1)·a + a²·max(a, 0)) = 2a·e^(−1) + (a > 0 ? 3a² : 0).
+        double[] g = new double[1];
+        double value = _fixture.Assembly.Method<G1>("GenericLosses.Calls", "FromDoubleGradient")(a, g);
+        Check.SameBits(_fixture.Assembly.Method<F1>("GenericLosses.Calls", "FromDouble")(a), value, "FromDouble value");
+        Check.Close(2 * a * Math.Exp(-0.5), g[0], 1e-15, 1e-16, "FromDouble gradient");
+
+        float[] gf = new float[1];
+        float valueF = _fixture.Assembly.Method<G1f>("GenericLosses.Calls", "FromFloatGradient")((float)a, gf);
+        Check.SameBits(_fixture.Assembly.Method<F1f>("GenericLosses.Calls", "FromFloat")((float)a), valueF, "FromFloat value");
+        Check.Close(2 * a * Math.Exp(-0.5), gf[0], FloatRelative, 1e-7, "FromFloat gradient");
+
+        double expected = (2 * a * Math.Exp(-1)) + (a > 0 ? 3 * a * a : 0);
+        double[] gt = new double[1];
+        double valueT = Bind<GG1<double>>("Calls", "FromGenericGradient", typeof(double))(a, gt);
+        Check.SameBits(Bind<GF1<double>>("Calls", "FromGeneric", typeof(double))(a), valueT, "FromGeneric<double> value");
+        Check.Close(expected, gt[0], 1e-15, 1e-16, "FromGeneric<double> gradient");
+        float[] gtf = new float[1];
+        float valueTf = Bind<GG1<float>>("Calls", "FromGenericGradient", typeof(float))((float)a, gtf);
+        Check.SameBits(Bind<GF1<float>>("Calls", "FromGeneric", typeof(float))((float)a), valueTf, "FromGeneric<float> value");
+        Check.Close(expected, gtf[0], FloatRelative, 1e-7, "FromGeneric<float> gradient");
     }
 
     private TDelegate Bind<TDelegate>(string type, string method, Type typeArgument)
