@@ -510,6 +510,12 @@ internal static class MethodParser
             {
                 diagnostics.Add(DiagnosticInfo.Create(DiagnosticDescriptors.UnknownVariable, location, name ?? "null", method.Name));
             }
+            else if (IsVectorOfT(parameter.Type))
+            {
+                diagnostics.Add(DiagnosticInfo.Create(DiagnosticDescriptors.UnsupportedConstruct, location,
+                    "The vector variable '" + parameter.Name + "' of T",
+                    "vectors of variables are differentiated in double and float methods in this version: write this method for double (a double[] variable) or float, or take the elements as T parameters"));
+            }
             else if (IsFloatingPointVector(parameter.Type))
             {
                 if (ElementType(parameter.Type).SpecialType != (OutputParameter(method) is { } output ? ElementType(output.Type) : method.ReturnType).SpecialType)
@@ -604,6 +610,11 @@ internal static class MethodParser
         (type is IArrayTypeSymbol { Rank: 1 } array && IsDoubleOrFloat(array.ElementType))
         || (type is INamedTypeSymbol { Name: "Span" or "ReadOnlySpan", TypeArguments.Length: 1 } span
             && span.ContainingNamespace?.ToDisplayString() == "System" && IsDoubleOrFloat(span.TypeArguments[0]));
+
+    private static bool IsVectorOfT(ITypeSymbol type) =>
+        (type is IArrayTypeSymbol { Rank: 1 } array && BodyLowerer.IsMethodTypeParameter(array.ElementType))
+        || (type is INamedTypeSymbol { Name: "Span" or "ReadOnlySpan", TypeArguments.Length: 1 } span
+            && span.ContainingNamespace?.ToDisplayString() == "System" && BodyLowerer.IsMethodTypeParameter(span.TypeArguments[0]));
 
     /// <summary>double, float, or the T of a generic method (vectors of variables are double or float only).</summary>
     private static bool IsFloatingPoint(ITypeSymbol type) => IsDoubleOrFloat(type) || BodyLowerer.IsMethodTypeParameter(type);

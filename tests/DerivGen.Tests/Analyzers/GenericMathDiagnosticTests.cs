@@ -111,6 +111,15 @@ public sealed class GenericMathDiagnosticTests
         """);
 
     [Fact]
+    public Task DG0001VectorOfTVariables() => VerifyAsync(Usings + """
+        public static partial class C
+        {
+            [Differentiate({|DG0001:nameof(w)|})]
+            public static T F<T>(T[] w, T x) where T : IFloatingPointIeee754<T> => w[0] * x;
+        }
+        """);
+
+    [Fact]
     public Task DG0001TypeParameterOfTheContainingType() => VerifyAsync(Usings + """
         public static partial class C<T> where T : IFloatingPointIeee754<T>
         {

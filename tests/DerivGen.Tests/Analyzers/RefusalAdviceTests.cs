@@ -720,4 +720,26 @@ public sealed class RefusalAdviceTests
         Assert.True(asm.HasMethod("Gm", "NamedGradient") && asm.HasMethod("Gm", "IntegerGradient") && asm.HasMethod("Gm", "NarrowGradient")
             && asm.HasMethod("Gm", "CallsHelperGradient") && asm.HasMethod("Gm", "GrowthGradient"));
     }
+
+    [Fact]
+    public async Task AVectorOfTVariablesBecomesADoubleMethod()
+    {
+        await RefusedWith(Usings + """
+            public static partial class Fit
+            {
+                [Differentiate(nameof(w))]
+                public static T Loss<T>(T[] w, T x) where T : IFloatingPointIeee754<T> => w[0] * w[1] * x;
+            }
+            """,
+            "DG0001: The vector variable 'w' of T cannot be differentiated: vectors of variables are differentiated in double and float methods in this version: write this method for double (a double[] variable) or float, or take the elements as T parameters");
+
+        using CompiledAssembly asm = await Accepted(Usings + """
+            public static partial class Fit
+            {
+                [Differentiate(nameof(w))]
+                public static double Loss(double[] w, double x) => w[0] * w[1] * x;
+            }
+            """);
+        Assert.True(asm.HasMethod("Fit", "LossGradient"));
+    }
 }
