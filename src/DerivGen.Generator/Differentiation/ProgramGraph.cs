@@ -433,7 +433,7 @@ internal sealed class ProgramGraph
         foreach (string name in assigned.Where(locals.ContainsKey).OrderBy(n => n, StringComparer.Ordinal))
         {
             Node initial = locals[name];
-            bool active = (initial.Type is ScalarType.Double or ScalarType.Single) && _passive?.Contains(StateKey(ordinal, name)) != true;
+            bool active = (initial.Type is ScalarType.Double or ScalarType.Single or ScalarType.Generic) && _passive?.Contains(StateKey(ordinal, name)) != true;
             var state = new LoopState(name, initial.Type, initial, _builder.StageLeaf(name, initial.Type, inside, active));
             if (_builder.Names.LocalName(initial) == name)
             {

@@ -22,7 +22,7 @@ internal static class TangentSweep
         {
             if (!node.DependsOnVariables)
             {
-                tangents[node] = b.Zero(node.Type is ScalarType.Single ? ScalarType.Single : ScalarType.Double);
+                tangents[node] = b.Zero(node.Type is ScalarType.Single or ScalarType.Generic ? node.Type : ScalarType.Double);
                 continue;
             }
 

@@ -136,6 +136,13 @@ internal sealed class ExpressionWriter
                     return Write(node.Arguments[0], Primary, text);
                 }
 
+                if (node.Type == ScalarType.Generic)
+                {
+                    // No cast converts to a type parameter; T.CreateTruncating(v) is v rounded to T (from int, float or double).
+                    text.Append("T.CreateTruncating(");
+                    return Write(node.Arguments[0], Conditional, text) && Append(text, ")");
+                }
+
                 text.Append('(').Append(TypeKeyword(node.Type)).Append(')');
                 return Write(node.Arguments[0], Primary, text);
 
@@ -258,7 +265,7 @@ internal sealed class ExpressionWriter
         {
             NodeKind.Constant => Literals.IsNegative(node.Value) && !double.IsNaN(node.Value) ? Unary : Primary,
             NodeKind.Negate => Unary,
-            NodeKind.Convert => _formula ? Primary : Unary,
+            NodeKind.Convert => _formula || node.Type == ScalarType.Generic ? Primary : Unary,
             NodeKind.Add or NodeKind.Subtract => Additive,
             NodeKind.Multiply or NodeKind.Divide => Multiplicative,
             NodeKind.Compare => node.Comparison is ComparisonOperator.Equal or ComparisonOperator.NotEqual ? Equality : Relational,
@@ -280,12 +287,18 @@ internal sealed class ExpressionWriter
         ScalarType.Single => "float",
         ScalarType.Int32 => "int",
         ScalarType.Boolean => "bool",
+        ScalarType.Generic => "T",
         _ => "double",
     };
 
     private static string CSharpHost(Node node)
     {
         MathHost host = node.Host;
+        if (host == MathHost.Generic || (host == MathHost.Default && node.Type == ScalarType.Generic))
+        {
+            return "T";
+        }
+
         if (host == MathHost.Default)
         {
             bool onMath = node.Function != MathFunction.Hypot;

@@ -15,6 +15,8 @@ internal static class Literals
                 return ((int)value).ToString(CultureInfo.InvariantCulture);
             case ScalarType.Boolean:
                 return value != 0 ? "true" : "false";
+            case ScalarType.Generic:
+                return Generic(value);
             case ScalarType.Single:
                 float single = (float)value;
                 if (float.IsNaN(single))
@@ -60,6 +62,26 @@ internal static class Literals
         return type == ScalarType.Single
             ? ((float)value).ToString("R", CultureInfo.InvariantCulture)
             : value.ToString("R", CultureInfo.InvariantCulture);
+    }
+
+    /// <summary>
+    /// A constant of the method's type parameter T: <c>T.Zero</c>, <c>T.One</c>, or <c>T.CreateTruncating(c)</c> with c
+    /// an int literal where it is one and the shortest round-trip double otherwise — c rounded to T, the number a user's
+    /// <c>T.CreateChecked(c)</c> gives (see ExpressionBuilder.IsFoldable for which constants are folded).
+    /// </summary>
+    private static string Generic(double value)
+    {
+        string sign = IsNegative(value) ? "-" : string.Empty;
+        double magnitude = Math.Abs(value);
+        if (magnitude == 0 || magnitude == 1)
+        {
+            return sign + (magnitude == 0 ? "T.Zero" : "T.One");
+        }
+
+        string text = magnitude == Math.Floor(magnitude) && magnitude <= int.MaxValue
+            ? ((int)magnitude).ToString(CultureInfo.InvariantCulture)
+            : CSharp(magnitude, ScalarType.Double);
+        return sign + "T.CreateTruncating(" + text + ")";
     }
 
     public static bool IsNegative(double value) => value < 0 || (value == 0 && BitConverter.DoubleToInt64Bits(value) != 0);

@@ -133,7 +133,16 @@ internal static class SignatureWriter
         var parameters = spec.Parameters.Select(p => p.Modifiers + p.TypeName + " " + p.Name).ToList();
         parameters.AddRange(spans.Select(span => "global::System.Span<" + type + "> " + span));
         string modifiers = spec.Accessibility + (spec.IsStatic ? " static " : " ");
-        return writer.Block(modifiers + returnType + " " + name + "(" + string.Join(", ", parameters) + ")");
+        return spec.GenericConstraints is { } constraints
+            ? WriteGeneric(writer, modifiers + returnType + " " + name + "<T>(" + string.Join(", ", parameters) + ")", constraints)
+            : writer.Block(modifiers + returnType + " " + name + "(" + string.Join(", ", parameters) + ")");
+    }
+
+    /// <summary>The signature of a method generic over T, its constraints on the next line (as the user's).</summary>
+    private static IndentedWriter.Scope WriteGeneric(IndentedWriter writer, string signature, string constraints)
+    {
+        writer.Line(signature);
+        return writer.Block("    where T : " + constraints);
     }
 
     public static void LengthCheck(IndentedWriter writer, string name, string length, string what, string thrower)

@@ -77,7 +77,17 @@ internal sealed partial class BodyLowerer
             return "is not an ordinary method";
         }
 
-        if (target.IsGenericMethod || target.ContainingType.IsGenericType)
+        if (target.IsGenericMethod && GenericDeclarationProblem(target.OriginalDefinition, out _) is { } genericProblem)
+        {
+            return genericProblem;
+        }
+
+        if (target.IsGenericMethod && !IsMethodTypeParameter(target.OriginalDefinition.ReturnType))
+        {
+            return "is generic and does not return T";
+        }
+
+        if (target.ContainingType.IsGenericType)
         {
             return "is generic";
         }

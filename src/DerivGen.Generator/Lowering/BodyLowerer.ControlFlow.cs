@@ -216,7 +216,7 @@ internal sealed partial class BodyLowerer
 
     private static IrConstant Zero(ScalarType type) => type switch
     {
-        ScalarType.Double or ScalarType.Single => new IrConstant(BitConverter.DoubleToInt64Bits(0.0), type),
+        ScalarType.Double or ScalarType.Single or ScalarType.Generic => new IrConstant(BitConverter.DoubleToInt64Bits(0.0), type),
         _ => new IrConstant(0, type),
     };
 

@@ -169,9 +169,9 @@ internal sealed partial class BodyLowerer
         IMethodSymbol target = invocation.TargetMethod;
         handled = false;
         if (!target.IsStatic || invocation.Arguments.Length != 1
-            || target.ContainingType?.SpecialType is not (SpecialType.System_Double or SpecialType.System_Single)
+            || (target.ContainingType?.SpecialType is not (SpecialType.System_Double or SpecialType.System_Single) && !IsGenericMathMember(target))
             || target.Name is not ("IsNaN" or "IsFinite" or "IsInfinity" or "IsPositiveInfinity" or "IsNegativeInfinity")
-            || ScalarTypeOf(target.Parameters[0].Type) is not ({ } type and (ScalarType.Double or ScalarType.Single)))
+            || ScalarTypeOf(target.Parameters[0].Type) is not ({ } type and (ScalarType.Double or ScalarType.Single or ScalarType.Generic)))
         {
             return null;
         }
@@ -210,6 +210,6 @@ internal sealed partial class BodyLowerer
     };
 
     private static bool IsInfinite(IrExpression expression) =>
-        expression is IrConstant { Type: ScalarType.Double or ScalarType.Single } constant
+        expression is IrConstant { Type: ScalarType.Double or ScalarType.Single or ScalarType.Generic } constant
         && double.IsInfinity(BitConverter.Int64BitsToDouble(constant.Bits));
 }

@@ -550,7 +550,7 @@ internal sealed partial class BodyLowerer
                 break;
 
             case ICompoundAssignmentOperation { Target: ILocalReferenceOperation target } compound
-                when compound.OperatorMethod is null && TryBinaryOperator(compound.OperatorKind, out BinaryOperator op):
+                when (compound.OperatorMethod is null || IsGenericOperator(compound.OperatorMethod)) && TryBinaryOperator(compound.OperatorKind, out BinaryOperator op):
             {
                 // s op= e  is  s = (T)((S)s op e)  with the compiler's own in/out conversions (C# spec §12.21.4).
                 string name = LocalName(target.Local);
@@ -574,7 +574,7 @@ internal sealed partial class BodyLowerer
             }
 
             case IIncrementOrDecrementOperation { Target: ILocalReferenceOperation counter } step
-                when ScalarTypeOf(counter.Local.Type) is ScalarType.Int32 or ScalarType.Double or ScalarType.Single:
+                when ScalarTypeOf(counter.Local.Type) is ScalarType.Int32 or ScalarType.Double or ScalarType.Single or ScalarType.Generic:
             {
                 // c++ and c-- as statements: c = c ± 1.
                 ScalarType counterType = ScalarTypeOf(counter.Local.Type)!.Value;
@@ -758,6 +758,12 @@ internal sealed partial class BodyLowerer
             case IUnaryOperation { OperatorKind: UnaryOperatorKind.Plus, OperatorMethod: null } plus:
                 return LowerExpression(plus.Operand);
 
+            case IUnaryOperation { OperatorKind: UnaryOperatorKind.Minus or UnaryOperatorKind.Plus } genericUnary when IsGenericOperator(genericUnary.OperatorMethod):
+                return LowerGenericUnary(genericUnary);
+
+            case IPropertyReferenceOperation { Property: var genericProperty } when IsGenericMathMember(genericProperty):
+                return LowerGenericProperty((IPropertyReferenceOperation)operation);
+
             case IConversionOperation conversion:
                 return LowerConversion(conversion);
 
@@ -830,8 +836,9 @@ internal sealed partial class BodyLowerer
 
     private IrExpression? LowerBinary(IBinaryOperation binary)
     {
-        if (binary.OperatorMethod is null && ComparisonOf(binary.OperatorKind) is { } comparison
-            && binary.LeftOperand.Type is { } leftType && ValueTypeOf(leftType) is ScalarType.Double or ScalarType.Single or ScalarType.Int32)
+        bool builtIn = binary.OperatorMethod is null || IsGenericOperator(binary.OperatorMethod);
+        if (builtIn && ComparisonOf(binary.OperatorKind) is { } comparison
+            && binary.LeftOperand.Type is { } leftType && ValueTypeOf(leftType) is ScalarType.Double or ScalarType.Single or ScalarType.Int32 or ScalarType.Generic)
         {
             IrExpression? compareLeft = LowerExpression(binary.LeftOperand);
             IrExpression? compareRight = LowerExpression(binary.RightOperand);
@@ -846,7 +853,7 @@ internal sealed partial class BodyLowerer
                 : new IrLogical(binary.OperatorKind == BinaryOperatorKind.ConditionalAnd ? LogicalOperator.And : LogicalOperator.Or, logicalLeft, logicalRight);
         }
 
-        if (binary.OperatorMethod is not null || !TryBinaryOperator(binary.OperatorKind, out BinaryOperator op)
+        if (!builtIn || !TryBinaryOperator(binary.OperatorKind, out BinaryOperator op)
             || ScalarTypeOf(binary.Type!) is not { } type || type == ScalarType.Boolean)
         {
             string hint = binary.OperatorKind is BinaryOperatorKind.Remainder
@@ -885,7 +892,7 @@ internal sealed partial class BodyLowerer
                 "ranges and Slice are not supported in this version; index the data itself, e.g. t[i + 1] for t[1..][i], or t[^1] for its last element");
         }
 
-        if (DataText(data) is not { } text || element.Type is null || ScalarTypeOf(element.Type) is not (ScalarType.Double or ScalarType.Single or ScalarType.Int32) || indices.Count == 0)
+        if (DataText(data) is not { } text || element.Type is null || ScalarTypeOf(element.Type) is not (ScalarType.Double or ScalarType.Single or ScalarType.Int32 or ScalarType.Generic) || indices.Count == 0)
         {
             return Unsupported(element, $"the element access '{Text(element)}'",
                 "read elements of double, float or int arrays and spans that are parameters (not variables), fields of this instance or static readonly fields");
@@ -943,7 +950,7 @@ internal sealed partial class BodyLowerer
 
     private static bool IsData(ITypeSymbol type) => type switch
     {
-        IArrayTypeSymbol array => ScalarTypeOf(array.ElementType) is ScalarType.Double or ScalarType.Single or ScalarType.Int32,
+        IArrayTypeSymbol array => ScalarTypeOf(array.ElementType) is ScalarType.Double or ScalarType.Single or ScalarType.Int32 or ScalarType.Generic,
         _ => IsSpan(type),
     };
 
@@ -960,7 +967,7 @@ internal sealed partial class BodyLowerer
     private static bool IsSpan(ITypeSymbol? type) =>
         type is INamedTypeSymbol { IsGenericType: true, TypeArguments.Length: 1, Name: "Span" or "ReadOnlySpan" } named
         && named.ContainingNamespace?.ToDisplayString() == "System"
-        && ScalarTypeOf(named.TypeArguments[0]) is ScalarType.Double or ScalarType.Single or ScalarType.Int32;
+        && ScalarTypeOf(named.TypeArguments[0]) is ScalarType.Double or ScalarType.Single or ScalarType.Int32 or ScalarType.Generic;
 
     private static bool TryBinaryOperator(BinaryOperatorKind kind, out BinaryOperator op)
     {
@@ -1000,6 +1007,17 @@ internal sealed partial class BodyLowerer
         if (target.MethodKind == MethodKind.LocalFunction)
         {
             return LowerLocalFunctionCall(invocation, target);
+        }
+
+        IrExpression? generic = TryLowerGenericCall(invocation, out bool isGeneric);
+        if (isGeneric)
+        {
+            return generic;
+        }
+
+        if (target.MethodKind == MethodKind.Ordinary && GenericCallBufferProblem(invocation) is { } refused)
+        {
+            return refused;
         }
 
         if (target.Name == "GetLength" && invocation.Instance is { } array && DataText(array) is { } arrayText
@@ -1089,8 +1107,8 @@ internal sealed partial class BodyLowerer
 
         string? receiver = target.IsStatic ? FullyQualified(target.ContainingType!)
             : invocation.Instance is IInstanceReferenceOperation ? "this" : null;
-        if (receiver is null || target.IsGenericMethod || target.DeclaringSyntaxReferences.IsEmpty
-            || ScalarTypeOf(target.ReturnType) is not ({ } type and (ScalarType.Double or ScalarType.Single))
+        if (receiver is null || (target.IsGenericMethod && GenericDeclarationProblem(target.OriginalDefinition, out _) is not null) || target.DeclaringSyntaxReferences.IsEmpty
+            || ScalarTypeOf(target.ReturnType) is not ({ } type and (ScalarType.Double or ScalarType.Single or ScalarType.Generic))
             || target.Parameters.Any(p => ScalarTypeOf(p.Type) is null || p.RefKind is not (RefKind.None or RefKind.In)))
         {
             return Unsupported(invocation, "the call to " + name,
@@ -1168,7 +1186,7 @@ internal sealed partial class BodyLowerer
         SpecialType.System_Single => ScalarType.Single,
         SpecialType.System_Int32 => ScalarType.Int32,
         SpecialType.System_Boolean => ScalarType.Boolean,
-        _ => null,
+        _ => IsMethodTypeParameter(type) ? ScalarType.Generic : null,
     };
 
     private static bool TryConstant(object? value, ScalarType type, out IrConstant? constant)

@@ -63,9 +63,11 @@ internal sealed class HelperTarget
         List<IParameterSymbol> variables = target.Parameters.Where(MethodParser.IsDefaultVariable).ToList();
         VariableOrdinals = variables.Select(p => p.Ordinal).ToEquatableArray();
         VariableNames = variables.Select(p => p.Name).ToEquatableArray();
-        if (target.IsGenericMethod || target.IsExtern || target.DeclaringSyntaxReferences[0].GetSyntax(cancellationToken) is not MethodDeclarationSyntax syntax
+        if ((target.IsGenericMethod && (BodyLowerer.GenericDeclarationProblem(target.OriginalDefinition, out _) is not null
+                || !BodyLowerer.IsMethodTypeParameter(target.OriginalDefinition.ReturnType)))
+            || target.IsExtern || target.DeclaringSyntaxReferences[0].GetSyntax(cancellationToken) is not MethodDeclarationSyntax syntax
             || (syntax.Body is null && syntax.ExpressionBody is null)
-            || BodyLowerer.ScalarTypeOf(target.ReturnType) is not ({ } type and (ScalarType.Double or ScalarType.Single))
+            || BodyLowerer.ScalarTypeOf(target.ReturnType) is not ({ } type and (ScalarType.Double or ScalarType.Single or ScalarType.Generic))
             || target.Parameters.Any(p => BodyLowerer.ScalarTypeOf(p.Type) is null || p.RefKind is not (RefKind.None or RefKind.In)))
         {
             return;

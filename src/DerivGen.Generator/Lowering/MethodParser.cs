@@ -173,6 +173,7 @@ internal static class MethodParser
     internal static MethodSpec? LowerHelper(IMethodSymbol method, MethodDeclarationSyntax syntax, bool emitHessian, HelperContext helpers,
         List<DiagnosticInfo> diagnostics, CancellationToken cancellationToken)
     {
+        method = method.OriginalDefinition; // a generic helper is lowered once, over its T
         var variables = new HashSet<string>(method.Parameters.Where(IsDefaultVariable).Select(p => p.Name), StringComparer.Ordinal);
         if (variables.Count == 0)
         {
@@ -259,7 +260,7 @@ internal static class MethodParser
         }
 
         ScalarType? returnType = output is not null ? BodyLowerer.ScalarTypeOf(ElementType(output.Type)) : BodyLowerer.ScalarTypeOf(method.ReturnType);
-        if (returnType is not (ScalarType.Double or ScalarType.Single))
+        if (!BodyLowerer.IsFloating(returnType))
         {
             diagnostics.Add(DiagnosticInfo.Create(DiagnosticDescriptors.ReturnTypeNotFloatingPoint, syntax.ReturnType.GetLocation(),
                 method.Name, method.ReturnType.ToDisplayString()));
@@ -284,11 +285,24 @@ internal static class MethodParser
             }
         }
 
+        string? genericConstraints = null;
         if (method.IsGenericMethod)
         {
-            diagnostics.Add(DiagnosticInfo.Create(DiagnosticDescriptors.UnsupportedConstruct, syntax.TypeParameterList?.GetLocation() ?? nameLocation,
-                "The generic method '" + method.Name + "'", "differentiated methods cannot have type parameters; make the containing type generic instead"));
+            if (BodyLowerer.GenericDeclarationProblem(method, out string constraints) is { } problem)
+            {
+                diagnostics.Add(DiagnosticInfo.Create(DiagnosticDescriptors.UnsupportedConstruct, syntax.TypeParameterList?.GetLocation() ?? nameLocation,
+                    "The generic method '" + method.Name + "', which " + problem + ",", BodyLowerer.GenericRule));
+            }
+            else if (returnType is not ScalarType.Generic)
+            {
+                diagnostics.Add(DiagnosticInfo.Create(DiagnosticDescriptors.UnsupportedConstruct, syntax.ReturnType.GetLocation(),
+                    "The generic method '" + method.Name + "', which returns " + (output is null ? method.ReturnType : ElementType(output.Type)).ToDisplayString() + ",", BodyLowerer.GenericRule));
+            }
+
+            genericConstraints = constraints;
         }
+
+        BodyLowerer.CheckContainingTypeParameter(method, nameLocation, diagnostics);
 
         foreach (IParameterSymbol parameter in method.Parameters.Where(p => p.RefKind == RefKind.Out))
         {
@@ -305,14 +319,14 @@ internal static class MethodParser
             diagnostics.Add(DiagnosticInfo.Create(DiagnosticDescriptors.UnsupportedConstruct, nameLocation,
                 "The method '" + method.Name + "' without a body", "DerivGen differentiates the body of the method it is applied to"));
         }
-        else if (returnType is (ScalarType.Double or ScalarType.Single) && ExpressionDepth(syntax, BodyLowerer.MaxDepth, cancellationToken) > BodyLowerer.MaxDepth)
+        else if (BodyLowerer.IsFloating(returnType) && ExpressionDepth(syntax, BodyLowerer.MaxDepth, cancellationToken) > BodyLowerer.MaxDepth)
         {
             // Refused from the syntax, before the compiler builds the operation tree: its builder recurses once per level
             // and overflows a 1 MB stack (an editor's worker thread) at about 410 nested calls, a crash no code can catch.
             diagnostics.Add(DiagnosticInfo.Create(DiagnosticDescriptors.UnsupportedConstruct, nameLocation,
                 "An expression nested more than " + BodyLowerer.MaxDepth.ToString(System.Globalization.CultureInfo.InvariantCulture) + " levels deep", "split it into locals"));
         }
-        else if (returnType is (ScalarType.Double or ScalarType.Single))
+        else if (BodyLowerer.IsFloating(returnType))
         {
             if (semanticModel.GetOperation(syntax, cancellationToken) is IMethodBodyOperation { BlockBody: var block, ExpressionBody: var expression }
                 && (block ?? expression) is { } bodyOperation)
@@ -336,7 +350,7 @@ internal static class MethodParser
             }
         }
 
-        if (returnType is not (ScalarType.Double or ScalarType.Single) || diagnostics.Any(d => d.IsError))
+        if (!BodyLowerer.IsFloating(returnType) || diagnostics.Any(d => d.IsError))
         {
             return null;
         }
@@ -348,7 +362,7 @@ internal static class MethodParser
             Name: Identifiers.Escape(method.Name),
             Accessibility: AccessibilityText(method.DeclaredAccessibility),
             IsStatic: method.IsStatic,
-            ReturnType: returnType.Value,
+            ReturnType: returnType!.Value,
             Parameters: method.Parameters.Select(p => new ParameterSpec(
                 Identifiers.Escape(p.Name),
                 Modifiers(p, method),
@@ -358,10 +372,11 @@ internal static class MethodParser
                 variables.Contains(p.Name) ? (StructLayout.VariableComponents(p) ?? Array.Empty<string>()).ToEquatableArray() : default)).ToEquatableArray(),
             EmitHessian: emitHessian,
             DisplayName: method.ToDisplayString(HeaderFormat),
-            Cref: Identifiers.Escape(method.Name) + "(" + string.Join(", ", method.Parameters.Select(p => RefKindPrefix(p) + helpers.Shared.Memo(p.Type, CrefTypeOf))) + ")",
+            Cref: Identifiers.Escape(method.Name) + (method.IsGenericMethod ? "{T}" : string.Empty) + "(" + string.Join(", ", method.Parameters.Select(p => RefKindPrefix(p) + helpers.Shared.Memo(p.Type, CrefTypeOf))) + ")",
             Body: body,
             OutputName: output is null ? null : Identifiers.Escape(output.Name),
-            HasSinCos: helpers.Shared.HasSinCos(semanticModel.Compilation, HasSinCosOf));
+            HasSinCos: helpers.Shared.HasSinCos(semanticModel.Compilation, HasSinCosOf),
+            GenericConstraints: genericConstraints);
     }
 
     /// <summary>
@@ -497,6 +512,12 @@ internal static class MethodParser
             {
                 diagnostics.Add(DiagnosticInfo.Create(DiagnosticDescriptors.UnknownVariable, location, name ?? "null", method.Name));
             }
+            else if (IsVectorOfT(parameter.Type))
+            {
+                diagnostics.Add(DiagnosticInfo.Create(DiagnosticDescriptors.UnsupportedConstruct, location,
+                    "The vector variable '" + parameter.Name + "' of T",
+                    "vectors of variables are differentiated in double and float methods in this version: write this method for double (a double[] variable) or float, or take the elements as T parameters"));
+            }
             else if (IsFloatingPointVector(parameter.Type))
             {
                 if (ElementType(parameter.Type).SpecialType != (OutputParameter(method) is { } output ? ElementType(output.Type) : method.ReturnType).SpecialType)
@@ -598,11 +619,19 @@ internal static class MethodParser
         type is IArrayTypeSymbol array ? array.ElementType : ((INamedTypeSymbol)type).TypeArguments[0];
 
     private static bool IsFloatingPointVector(ITypeSymbol type) =>
-        (type is IArrayTypeSymbol { Rank: 1 } array && IsFloatingPoint(array.ElementType))
+        (type is IArrayTypeSymbol { Rank: 1 } array && IsDoubleOrFloat(array.ElementType))
         || (type is INamedTypeSymbol { Name: "Span" or "ReadOnlySpan", TypeArguments.Length: 1 } span
-            && span.ContainingNamespace?.ToDisplayString() == "System" && IsFloatingPoint(span.TypeArguments[0]));
+            && span.ContainingNamespace?.ToDisplayString() == "System" && IsDoubleOrFloat(span.TypeArguments[0]));
 
-    private static bool IsFloatingPoint(ITypeSymbol type) => type.SpecialType is SpecialType.System_Double or SpecialType.System_Single;
+    private static bool IsVectorOfT(ITypeSymbol type) =>
+        (type is IArrayTypeSymbol { Rank: 1 } array && BodyLowerer.IsMethodTypeParameter(array.ElementType))
+        || (type is INamedTypeSymbol { Name: "Span" or "ReadOnlySpan", TypeArguments.Length: 1 } span
+            && span.ContainingNamespace?.ToDisplayString() == "System" && BodyLowerer.IsMethodTypeParameter(span.TypeArguments[0]));
+
+    /// <summary>double, float, or the T of a generic method (vectors of variables are double or float only).</summary>
+    private static bool IsFloatingPoint(ITypeSymbol type) => IsDoubleOrFloat(type) || BodyLowerer.IsMethodTypeParameter(type);
+
+    private static bool IsDoubleOrFloat(ITypeSymbol type) => type.SpecialType is SpecialType.System_Double or SpecialType.System_Single;
 
     private static string Modifiers(IParameterSymbol parameter, IMethodSymbol method)
     {

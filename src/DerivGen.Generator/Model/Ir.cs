@@ -11,6 +11,10 @@ internal enum ScalarType
     Single,
     Double,
     Boolean,
+
+    /// <summary>The type parameter T of a generic method constrained to the floating-point interfaces of
+    /// System.Numerics (Lowering/BodyLowerer.GenericMath.cs); its generated methods are generic over the same T.</summary>
+    Generic,
 }
 
 internal enum BinaryOperator
@@ -48,6 +52,9 @@ internal enum MathHost
     MathF,
     Double,
     Single,
+
+    /// <summary>The static members of the method's type parameter: <c>T.Exp(x)</c>.</summary>
+    Generic,
 }
 
 /// <summary>An expression of the IR. <see cref="Type"/> is the C# type of its value.</summary>

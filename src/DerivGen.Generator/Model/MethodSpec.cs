@@ -25,6 +25,8 @@ namespace DerivGen.Generator.Model;
 /// <paramref name="ReturnType"/> is the span's element type.</param>
 /// <param name="IsHelper">Whether the method is not marked but called from one that is (its derivatives are generated for that call).</param>
 /// <param name="HasSinCos">Whether the compilation has Math.SinCos and MathF.SinCos (one call for the sine and cosine of one argument).</param>
+/// <param name="GenericConstraints">For a method generic over T (<see cref="ScalarType.Generic"/>), the constraints of T as the
+/// generated methods declare them (<c>global::System.Numerics.IFloatingPointIeee754&lt;T&gt;</c>); null for any other method.</param>
 internal sealed record MethodSpec(
     string HintName,
     string? Namespace,
@@ -41,10 +43,14 @@ internal sealed record MethodSpec(
     bool IsHelper = false,
     bool IsPairMethod = false,
     string? OutputName = null,
-    bool HasSinCos = false)
+    bool HasSinCos = false,
+    string? GenericConstraints = null)
 {
     /// <summary>Whether this is a method with a span of outputs, whose Jacobian is generated.</summary>
     public bool HasOutputs => OutputName is not null;
+
+    /// <summary>Whether the method is generic over T, and so are its generated methods.</summary>
+    public bool IsGeneric => GenericConstraints is not null;
 }
 
 /// <summary>A containing type: its declaration keyword(s) ("class", "record struct", ...) and name with type parameters.</summary>

@@ -165,7 +165,7 @@ internal static class DerivativeRules
             return b.Multiply(f, b.Call(MathFunction.Log, a));                                            // ∂aᵖ/∂p = aᵖ ln a
         }
 
-        if (p.Kind == NodeKind.Constant)                                                                  // ∂aᵖ/∂a = p aᵖ⁻¹
+        if (p.Kind == NodeKind.Constant && (p.Type != ScalarType.Generic || ExpressionBuilder.IsSingle(p.Value))) // ∂aᵖ/∂a = p aᵖ⁻¹ (a p of T that is not a float: p − 1 in T)
         {
             double exponent = p.Value - 1;
             bool isSmallInteger = exponent == System.Math.Floor(exponent) && System.Math.Abs(exponent) <= MaxProductExponent;
@@ -195,5 +195,5 @@ internal static class DerivativeRules
 
     /// <summary>A constant of f's type (partials of an int-valued node are not needed: it is flat).</summary>
     private static Node C(ExpressionBuilder b, Node f, double value) =>
-        b.Constant(value, f.Type is ScalarType.Single ? ScalarType.Single : ScalarType.Double);
+        b.Constant(value, f.Type is ScalarType.Single or ScalarType.Generic ? f.Type : ScalarType.Double);
 }

@@ -104,7 +104,8 @@ internal sealed class ExpressionBuilder
     /// <c>Math.Sin(u)</c> serves both the value and the derivative of a <c>Math.Cos(u)</c>.
     /// </summary>
     private static bool IsDefaultHost(MathFunction function, MathHost host, ScalarType type) =>
-        function == MathFunction.Hypot
+        type == ScalarType.Generic ? host == MathHost.Generic
+        : function == MathFunction.Hypot
             ? host == (type == ScalarType.Single ? MathHost.Single : MathHost.Double)
             : host == (type == ScalarType.Single ? MathHost.MathF : MathHost.Math);
 
@@ -114,7 +115,7 @@ internal sealed class ExpressionBuilder
     {
         System.Runtime.CompilerServices.RuntimeHelpers.EnsureSufficientExecutionStack(); // a deep input fails as a diagnostic, never as a stack overflow
         Unify(ref a, ref b);
-        if (a.Kind == NodeKind.Constant && b.Kind == NodeKind.Constant)
+        if (a.Kind == NodeKind.Constant && b.Kind == NodeKind.Constant && IsFoldable(a, b))
         {
             return Constant(Fold(a.Type, a.Value + b.Value, (float)a.Value + (float)b.Value), a.Type);
         }
@@ -160,7 +161,7 @@ internal sealed class ExpressionBuilder
     public Node Subtract(Node a, Node b)
     {
         Unify(ref a, ref b);
-        if (a.Kind == NodeKind.Constant && b.Kind == NodeKind.Constant)
+        if (a.Kind == NodeKind.Constant && b.Kind == NodeKind.Constant && IsFoldable(a, b))
         {
             return Constant(Fold(a.Type, a.Value - b.Value, (float)a.Value - (float)b.Value), a.Type);
         }
@@ -209,7 +210,7 @@ internal sealed class ExpressionBuilder
 
         if (a.Kind == NodeKind.Constant)
         {
-            if (b.Kind == NodeKind.Constant)
+            if (b.Kind == NodeKind.Constant && IsFoldable(a, b))
             {
                 return Constant(Fold(a.Type, a.Value * b.Value, (float)a.Value * (float)b.Value), a.Type);
             }
@@ -229,7 +230,7 @@ internal sealed class ExpressionBuilder
                 return Negate(b);
             }
 
-            if (b.Kind == NodeKind.Multiply && b.Arguments[0].Kind == NodeKind.Constant)
+            if (b.Kind == NodeKind.Multiply && b.Arguments[0].Kind == NodeKind.Constant && IsFoldable(a, b.Arguments[0]))
             {
                 return Multiply(Multiply(a, b.Arguments[0]), b.Arguments[1]);
             }
@@ -300,7 +301,7 @@ internal sealed class ExpressionBuilder
     public Node Divide(Node a, Node b)
     {
         Unify(ref a, ref b);
-        if (a.Kind == NodeKind.Constant && b.Kind == NodeKind.Constant)
+        if (a.Kind == NodeKind.Constant && b.Kind == NodeKind.Constant && IsFoldable(a, b))
         {
             return Constant(Fold(a.Type, a.Value / b.Value, (float)a.Value / (float)b.Value), a.Type);
         }
@@ -509,7 +510,7 @@ internal sealed class ExpressionBuilder
         (double ka, Node ta) = AsTerm(a);
         (double kb, Node tb) = AsTerm(b);
         combined = null;
-        if (ta != tb || ta.Kind == NodeKind.Constant)
+        if (ta != tb || ta.Kind == NodeKind.Constant || (ta.Type == ScalarType.Generic && !(IsSingle(ka) && IsSingle(kb))))
         {
             return false;
         }
@@ -541,6 +542,20 @@ internal sealed class ExpressionBuilder
 
     private static double Fold(ScalarType type, double asDouble, float asSingle) => type == ScalarType.Single ? asSingle : asDouble;
 
+    /// <summary>
+    /// Whether two constants are folded. Constants of T (<see cref="ScalarType.Generic"/>) hold a double and are written
+    /// <c>T.CreateTruncating(c)</c>, which is c rounded to T. They are folded only when both are floats (exactly
+    /// representable in float, so the same number in float and in double): one IEEE operation on two floats, rounded to
+    /// double and then to float, is the operation rounded to float directly, as double has more than 2·24 + 2 bits
+    /// (Figueroa, "When is double rounding innocuous?", SIGNUM Newsletter 30(3), 1995). The folded constant is so, at
+    /// T = float and at T = double alike, exactly what that T's own arithmetic gives; any other operation on constants of
+    /// T is left to T at run time.
+    /// </summary>
+    private static bool IsFoldable(Node a, Node b) => a.Type != ScalarType.Generic || (IsSingle(a.Value) && IsSingle(b.Value));
+
+    /// <summary>Whether a double is exactly a float (NaN and the infinities included).</summary>
+    internal static bool IsSingle(double value) => double.IsNaN(value) || (double)(float)value == value;
+
     /// <summary>Brings two operands to one type as C# would (int → float → double); constants are re-typed exactly.</summary>
     private void Unify(ref Node a, ref Node b)
     {
@@ -564,6 +579,7 @@ internal sealed class ExpressionBuilder
         ScalarType.Boolean => 0,
         ScalarType.Int32 => 1,
         ScalarType.Single => 2,
+        ScalarType.Generic => 4,
         _ => 3,
     };
 

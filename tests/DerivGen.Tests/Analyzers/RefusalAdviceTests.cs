@@ -734,4 +734,119 @@ public sealed class RefusalAdviceTests
             """);
         Assert.True(asm.HasMethod("Model", "LossGradient"));
     }
+
+    private const string GenericRule =
+        "a differentiated generic method has one type parameter, named T, constrained to IFloatingPointIeee754<T> (or to INumberBase<T> with the System.Numerics function interfaces it uses), and returns T";
+
+    private delegate float GradFloat2(float pKa, float hill, Span<float> gradient);
+
+    /// <summary>
+    /// A loss generic over its containing type's T: the advice (T on the method, the type not generic) is taken and the
+    /// loss is accepted; at T = float its gradient is checked against a hand derivative (plain calculus).
+    /// </summary>
+    [Fact]
+    public async Task AContainingTypesTypeParameterMovesToTheMethod()
+    {
+        await RefusedWith(Usings + """
+            public static partial class Quadratic<T> where T : IFloatingPointIeee754<T>
+            {
+                [Differentiate]
+                public static T Loss(T a, T b) => a * a * b - T.CreateChecked(3) * b;
+            }
+            """,
+            "DG0005: 'Loss' returns 'T'; [Differentiate] needs a method that returns double or float, or a void method whose last parameter is a Span<double> or Span<float> of outputs",
+            "DG0008: 'Loss' has no double or float parameter to differentiate with respect to",
+            "DG0001: The type parameter 'T' of the containing type 'Quadratic<T>' cannot be differentiated: a generic type is not differentiated over its type parameter; declare it on the method instead, in a type that is not generic: static T Loss<T>(T x, …) where T : IFloatingPointIeee754<T>");
+
+        using CompiledAssembly asm = await Accepted(Usings + """
+            public static partial class Quadratic
+            {
+                [Differentiate]
+                public static T Loss<T>(T a, T b) where T : IFloatingPointIeee754<T> => a * a * b - T.CreateChecked(3) * b;
+            }
+            """);
+        var gradient = (GradFloat2)asm.Type("Quadratic").GetMethods().Single(m => m.Name == "LossGradient")
+            .MakeGenericMethod(typeof(float)).CreateDelegate(typeof(GradFloat2));
+        float[] g = new float[2];
+        gradient(1.5f, -2f, g);
+        Assert.Equal(2 * 1.5f * -2f, g[0]);   // ∂(a²b − 3b)/∂a = 2ab
+        Assert.Equal((1.5f * 1.5f) - 3f, g[1]); // ∂/∂b = a² − 3
+    }
+
+    [Fact]
+    public async Task GenericDeclarationsAreRenamedOrConstrainedAsTheMessageSays()
+    {
+        await RefusedWith(Usings + """
+            public static partial class Gm
+            {
+                [Differentiate]
+                public static TReal Named<TReal>(TReal x) where TReal : IFloatingPointIeee754<TReal> => x * x;
+
+                [Differentiate]
+                public static T Integer<T>(T x) where T : INumber<T> => x * x;
+
+                [Differentiate]
+                public static T Narrow<T>(T x) where T : INumberBase<T>, ITrigonometricFunctions<T> => T.Asin(x);
+
+                static T Square<T>(T v) where T : IFloatingPointIeee754<T> => v * v;
+
+                [Differentiate]
+                public static T CallsHelper<T>(T x) where T : IFloatingPointIeee754<T> => Square(x) + x;
+
+                [Differentiate]
+                public static T Growth<T>(T x) where T : IFloatingPointIeee754<T> => T.ExpM1(x);
+            }
+            """,
+            "DG0001: The generic method 'Named', which names its type parameter 'TReal' (the generated methods declare T: rename it T), cannot be differentiated: " + GenericRule,
+            "DG0001: The generic method 'Integer', which constrains T to System.Numerics.INumber<T>, which does not make it a floating-point type (add IFloatingPointIeee754<T>), cannot be differentiated: " + GenericRule,
+            "DG0001: The call to 'T.Asin' cannot be differentiated: its derivative needs T.Sqrt (IRootFunctions<T>) of T; add that interface to T's constraints (or constrain T to IFloatingPointIeee754<T>)",
+            "DG0001: The call to 'Square' with T values cannot be differentiated: its derivatives are read from buffers of T on the stack, which needs T unmanaged: declare 'where T : unmanaged, IFloatingPointIeee754<T>'",
+            "DG0001: The call to 'T.ExpM1' cannot be differentiated: the functions of T that are differentiated are those named like the functions of System.Math listed in the README (T.Exp, T.Log, T.Sqrt, T.Sin, T.Pow, …), and T.CreateChecked, T.CreateTruncating and T.CreateSaturating; 'ExpM1' is not one of them: compute it with those functions of T in this method");
+
+        using CompiledAssembly asm = await Accepted(Usings + """
+            public static partial class Gm
+            {
+                [Differentiate]
+                public static T Named<T>(T x) where T : IFloatingPointIeee754<T> => x * x;
+
+                [Differentiate]
+                public static T Integer<T>(T x) where T : INumber<T>, IFloatingPointIeee754<T> => x * x;
+
+                [Differentiate]
+                public static T Narrow<T>(T x) where T : INumberBase<T>, ITrigonometricFunctions<T>, IRootFunctions<T> => T.Asin(x);
+
+                static T Square<T>(T v) where T : IFloatingPointIeee754<T> => v * v;
+
+                [Differentiate]
+                public static T CallsHelper<T>(T x) where T : unmanaged, IFloatingPointIeee754<T> => Square(x) + x;
+
+                [Differentiate]
+                public static T Growth<T>(T x) where T : IFloatingPointIeee754<T> => T.Exp(x) - T.One;
+            }
+            """);
+        Assert.True(asm.HasMethod("Gm", "NamedGradient") && asm.HasMethod("Gm", "IntegerGradient") && asm.HasMethod("Gm", "NarrowGradient")
+            && asm.HasMethod("Gm", "CallsHelperGradient") && asm.HasMethod("Gm", "GrowthGradient"));
+    }
+
+    [Fact]
+    public async Task AVectorOfTVariablesBecomesADoubleMethod()
+    {
+        await RefusedWith(Usings + """
+            public static partial class Fit
+            {
+                [Differentiate(nameof(w))]
+                public static T Loss<T>(T[] w, T x) where T : IFloatingPointIeee754<T> => w[0] * w[1] * x;
+            }
+            """,
+            "DG0001: The vector variable 'w' of T cannot be differentiated: vectors of variables are differentiated in double and float methods in this version: write this method for double (a double[] variable) or float, or take the elements as T parameters");
+
+        using CompiledAssembly asm = await Accepted(Usings + """
+            public static partial class Fit
+            {
+                [Differentiate(nameof(w))]
+                public static double Loss(double[] w, double x) => w[0] * w[1] * x;
+            }
+            """);
+        Assert.True(asm.HasMethod("Fit", "LossGradient"));
+    }
 }

@@ -295,4 +295,36 @@ public sealed class ApprovedOutputTests
             }
         }
         """).Source("Samples.Optimization.TestFunctions.ExtendedRosenbrock.g.cs"));
+
+    [Fact]
+    public void GenericMethod() => Approvals.Verify(nameof(GenericMethod), GeneratorHarness.Run("""
+        using System;
+        using System.Numerics;
+        using DerivGen;
+
+        namespace Samples.Chemistry;
+
+        // Invented titration: fraction deprotonated against pH (made up for this test).
+        public static partial class Titration
+        {
+            public static readonly double[] PH = { 3.0, 3.5, 4.0, 4.5, 5.0, 5.5, 6.0 };
+            public static readonly double[] Fraction = { 0.02, 0.05, 0.15, 0.36, 0.64, 0.85, 0.95 };
+
+            [Differentiate(nameof(pKa), nameof(hill))]
+            public static T Loss<T>(T pKa, T hill) where T : IFloatingPointIeee754<T>
+            {
+                T ten = T.CreateChecked(10);
+                T sum = T.Zero;
+                for (int i = 0; i < PH.Length; i++)
+                {
+                    T ph = T.CreateChecked(PH[i]);
+                    T model = T.One / (T.One + T.Pow(ten, hill * (pKa - ph)));
+                    T r = model - T.CreateChecked(Fraction[i]);
+                    sum += r * r;
+                }
+
+                return sum;
+            }
+        }
+        """).Source("Samples.Chemistry.Titration.Loss.g.cs"));
 }

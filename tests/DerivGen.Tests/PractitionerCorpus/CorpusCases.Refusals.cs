@@ -36,9 +36,6 @@ internal static partial class CorpusCases
         // The advice works here: with Rate marked [Differentiate] the loss is accepted (checked on the edited source).
         ["PoissonRegressionInstanceHelper"] = (new[] { "DefectModel.Rate" }, null,
             new[] { ("private double Rate(", "[Differentiate] private double Rate(") }),
-        ["WeibullGenericMathHelper"] = (new[] { "BearingLife.LogPdf" }, null,
-            // The advice works: LogPdf written inline with double locals (T's functions as System.Math's) is accepted.
-            new[] { ("nll -= LogPdf(h, shape, scale);", "double z = h / scale;\n            nll -= Math.Log(shape / scale) + (shape - 1) * Math.Log(z) - Math.Pow(z, shape);") }),
         ["Ar1RangesZip"] = (new[] { "'ys'", "System.Linq.Enumerable.Sum" }, null, NoEdit),
         ["MeanVarianceQuadraticForm"] = (new[] { "Portfolio.QuadraticForm" }, null,
             // The advice works: the quadratic form written inline as a double loop is accepted.
@@ -56,13 +53,6 @@ internal static partial class CorpusCases
             NoEdit),
         ["ArrheniusZipTuples"] = (new[] { "System.Linq.Enumerable.Sum" }, null, NoEdit),
         ["ConsecutiveReactionRk4"] = (new[] { "double[]", "Rhs(c, k1, k2, s1)" }, null, NoEdit),
-        ["TitrationGenericLoss"] = (new[] { "generic method", "DG0004", "DG0005" },
-            "the message says to make the containing type generic instead; done (checked on the edited source), the variables are still of type T and the method is refused in turn",
-            new[]
-            {
-                ("public static partial class Titration", "public static partial class Titration<T> where T : IFloatingPointIeee754<T>"),
-                ("public static T Loss<T>(T pKa, T hill) where T : IFloatingPointIeee754<T>", "public static T Loss(T pKa, T hill)"),
-            }),
         ["PathEndClearanceMin"] = (new[] { "System.Linq.Enumerable.Min" }, null, NoEdit),
         ["LogisticRangeSumSelectPenalty"] = (new[] { "System.Linq.Enumerable.Sum" }, null, NoEdit),
         ["SpectralUnmixingArrayHelper"] = (new[] { "Unmixing.Dot" },
