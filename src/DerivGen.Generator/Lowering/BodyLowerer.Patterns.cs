@@ -122,7 +122,7 @@ internal sealed partial class BodyLowerer
 
             IrExpression? value = (arm.Value is IConversionOperation { Operand: IThrowOperation thrown } ? thrown : arm.Value) is IThrowOperation throwing
                 ? Unsupported(throwing, "the arm that throws ('" + Text(throwing) + "')",
-                    "the generated methods cannot throw yet; validate the argument before calling the method, or return double.NaN from this arm")
+                    "the generated methods make a check that throws only at the top of the method, before anything that can throw: check the value there ('if (" + Text(switchExpression.Value) + " is not (…)) throw …;', the patterns of the other arms) and give this arm a value ('_ => double.NaN')")
                 : LowerExpression(arm.Value);
             ok &= condition is not null && value is not null;
             dependsOnVariable |= condition is not null && DependsOnVariable(condition);

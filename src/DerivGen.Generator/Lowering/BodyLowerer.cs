@@ -153,6 +153,10 @@ internal sealed partial class BodyLowerer
                 LowerJump(jump);
                 return false;
 
+            case IConditionalOperation branch when SingleThrow(branch.WhenTrue) is not null:
+                TryLowerThrowingIf(branch); // a check that throws: a guard (BodyLowerer.Throws.cs)
+                return true;
+
             case IConditionalOperation branch when isTopLevel && _returnValue is null && EndsWithReturn(branch.WhenTrue):
                 // if (c) { …; return a; } rest  ≡  if (c) { …; return a; } else { rest }: the value is selected.
                 LowerReturningIf(branch, list.Skip(position + 1));
@@ -165,6 +169,9 @@ internal sealed partial class BodyLowerer
             case ISwitchOperation switchStatement:
                 LowerSwitch(switchStatement);
                 return true;
+
+            case IForLoopOperation loop when TryLowerCheckingLoop(loop):
+                return true; // a loop that only checks: a guard (BodyLowerer.Throws.cs)
 
             case IForLoopOperation loop:
                 LowerFor(loop);
@@ -207,6 +214,7 @@ internal sealed partial class BodyLowerer
     {
         List<IrStatement> outer = _statements;
         _statements = new List<IrStatement>();
+        _nestedDepth++;
         try
         {
             LowerStatements(statements, isTopLevel);
@@ -214,6 +222,7 @@ internal sealed partial class BodyLowerer
         }
         finally
         {
+            _nestedDepth--;
             _statements = outer;
         }
     }
@@ -589,8 +598,7 @@ internal sealed partial class BodyLowerer
                 break;
 
             case IInvocationOperation { TargetMethod: { IsStatic: true, Name: var helperName, ContainingType: { } thrower } } when helperName.StartsWith("ThrowIf", StringComparison.Ordinal) && IsException(thrower):
-                Unsupported(expression, $"the throw helper '{thrower.Name}.{helperName}'",
-                    "the generated methods cannot throw yet; check the arguments before calling the method (the check can stay in a method that calls this one)");
+                LowerThrowHelper((IInvocationOperation)expression);
                 break;
 
             default:
@@ -704,6 +712,9 @@ internal sealed partial class BodyLowerer
 
         switch (operation)
         {
+            case IFieldReferenceOperation tupleField when _boundTuples.Count > 0 && BoundTupleElement(tupleField) is { } tupleElement:
+                return tupleElement; // pair.First of Zip's tuples (BodyLowerer.Linq.cs)
+
             case IParameterReferenceOperation parameter when _boundParameters.TryGetValue(parameter.Parameter.OriginalDefinition, out IrExpression? argument):
                 return argument;
 
@@ -982,6 +993,11 @@ internal sealed partial class BodyLowerer
             return LowerLocalFunctionCall(invocation, target);
         }
 
+        if (IsEnumerable(target.ContainingType) && TryLowerLinq(invocation, out bool isLinq) is var linq && isLinq)
+        {
+            return linq; // a loop (BodyLowerer.Linq.cs)
+        }
+
         if (target.Name == "GetLength" && invocation.Instance is { } array && DataText(array) is { } arrayText
             && invocation.Arguments.Length == 1 && invocation.Arguments[0].Value.ConstantValue is { HasValue: true, Value: int dimension })
         {
@@ -1205,7 +1221,7 @@ internal sealed partial class BodyLowerer
         ISwitchOperation => "use if/else or the conditional operator instead",
         IBranchOperation => "break, continue and goto are not supported yet; put the condition around the loop body's statements instead",
         ITryOperation => "exceptions cannot be differentiated; validate arguments before calling the method",
-        IThrowOperation => "the generated methods cannot throw yet; check the arguments before calling the method (the check can stay in a method that calls this one)",
+        IThrowOperation => GuardAdvice,
         ILocalFunctionOperation => LocalFunctionAdvice,
         _ => "a differentiable body uses locals, + - * /, and the math functions listed in the README",
     };

@@ -300,6 +300,7 @@ internal static class MethodParser
             output is not null, nameLocation, diagnostics);
 
         EquatableArray<IrStatement> body = EquatableArray<IrStatement>.Empty;
+        EquatableArray<IrGuard> guards = EquatableArray<IrGuard>.Empty;
         if (syntax.Body is null && syntax.ExpressionBody is null)
         {
             diagnostics.Add(DiagnosticInfo.Create(DiagnosticDescriptors.UnsupportedConstruct, nameLocation,
@@ -320,6 +321,7 @@ internal static class MethodParser
                 var lowerer = new BodyLowerer(method, emitHessian, new HashSet<string>(variables.Select(Identifiers.Escape), StringComparer.Ordinal), helpers, diagnostics,
                     cancellationToken, output);
                 body = lowerer.Lower(bodyOperation);
+                guards = lowerer.Guards.ToEquatableArray();
                 if (output is not null)
                 {
                     CheckOutputsUnconditional(body, lowerer.OutputLocations, insideBranch: false, diagnostics);
@@ -359,7 +361,8 @@ internal static class MethodParser
             Cref: Identifiers.Escape(method.Name) + "(" + string.Join(", ", method.Parameters.Select(p => RefKindPrefix(p) + helpers.Shared.Memo(p.Type, CrefTypeOf))) + ")",
             Body: body,
             OutputName: output is null ? null : Identifiers.Escape(output.Name),
-            HasSinCos: helpers.Shared.HasSinCos(semanticModel.Compilation, HasSinCosOf));
+            HasSinCos: helpers.Shared.HasSinCos(semanticModel.Compilation, HasSinCosOf),
+            Guards: guards);
     }
 
     /// <summary>

@@ -23,6 +23,7 @@ namespace DerivGen.Generator.Model;
 /// <paramref name="ReturnType"/> is the span's element type.</param>
 /// <param name="IsHelper">Whether the method is not marked but called from one that is (its derivatives are generated for that call).</param>
 /// <param name="HasSinCos">Whether the compilation has Math.SinCos and MathF.SinCos (one call for the sine and cosine of one argument).</param>
+/// <param name="Guards">The method's checks that throw, in its order, run first by every generated method (see <see cref="IrGuard"/>).</param>
 internal sealed record MethodSpec(
     string HintName,
     string? Namespace,
@@ -39,7 +40,8 @@ internal sealed record MethodSpec(
     bool IsHelper = false,
     bool IsPairMethod = false,
     string? OutputName = null,
-    bool HasSinCos = false)
+    bool HasSinCos = false,
+    EquatableArray<IrGuard> Guards = default)
 {
     /// <summary>Whether this is a method with a span of outputs, whose Jacobian is generated.</summary>
     public bool HasOutputs => OutputName is not null;
