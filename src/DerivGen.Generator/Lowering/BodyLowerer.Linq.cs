@@ -203,6 +203,12 @@ internal sealed partial class BodyLowerer
             }, IsArray: true, ElementMayThrow: false, KnownLength(data));
         }
 
+        if (operation is IArrayCreationOperation { DimensionSizes.Length: 1, Initializer: { } initializer, Type: IArrayTypeSymbol { ElementType: var createdType } }
+            && ScalarTypeOf(createdType) is (ScalarType.Double or ScalarType.Int32) and var created)
+        {
+            return WrittenArray(initializer, created, out refusal);
+        }
+
         if (operation is not IInvocationOperation { TargetMethod: { } method } invocation || !IsEnumerable(method.ContainingType))
         {
             return null;
@@ -291,6 +297,49 @@ internal sealed partial class BodyLowerer
             default:
                 return null;
         }
+    }
+
+    /// <summary>
+    /// An array written in the call (<c>new[] { w0, w1 }</c>): its values computed once each, in order, into locals
+    /// before the loop (where C# creates the array, before LINQ starts), element k read as
+    /// <c>k == 0 ? e0 : k == 1 ? e1 : …</c> (nothing allocated).
+    /// </summary>
+    private LinqSequence? WrittenArray(IArrayInitializerOperation initializer, ScalarType type, out string? refusal)
+    {
+        refusal = initializer.ElementValues.Length == 0 ? "an empty array written in the call: write the value itself (0 for a sum)" : null;
+        if (refusal is not null)
+        {
+            return null;
+        }
+
+        var values = new List<IrExpression>();
+        foreach (IOperation element in initializer.ElementValues)
+        {
+            if (LowerExpression(element) is not { } value)
+            {
+                refusal = "the elements of an array written in the call must be double or int values of parameters, locals, constants and data";
+                return null;
+            }
+
+            values.Add(BindToLocal("element", Convert(value, type)));
+        }
+
+        var count = new IrConstant(values.Count, ScalarType.Int32);
+        return new LinqSequence(count, count, k =>
+        {
+            if (values.Count == 0)
+            {
+                return null;
+            }
+
+            IrExpression chosen = values[values.Count - 1];
+            for (int i = values.Count - 2; i >= 0; i--)
+            {
+                chosen = new IrConditional(new IrCompare(ComparisonOperator.Equal, k, new IrConstant(i, ScalarType.Int32)), values[i], chosen, type);
+            }
+
+            return new[] { chosen };
+        }, IsArray: true, ElementMayThrow: false, values.Count);
     }
 
     private static IAnonymousFunctionOperation? Lambda(IOperation argument) => argument switch

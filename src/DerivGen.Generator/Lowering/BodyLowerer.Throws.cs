@@ -32,6 +32,12 @@ internal sealed partial class BodyLowerer
     /// <summary>The guards of the method, in source order.</summary>
     public List<IrGuard> Guards { get; } = new();
 
+    /// <summary>The statement lists that enclose the one being lowered, outermost (the method's body) first.</summary>
+    private readonly List<List<IrStatement>> _outerStatements = new();
+
+    /// <summary>The counted loops being lowered (their headers, without bodies), outermost first; null for another loop.</summary>
+    private readonly List<IrFor?> _countedLoops = new();
+
     /// <summary>While a LINQ call is lowered: how many statements there were before it.</summary>
     private int? _linqStatementsBefore;
 
@@ -64,6 +70,53 @@ internal sealed partial class BodyLowerer
         return _statements.Take(before).Any(MayThrow) ? "after a statement that can throw (a data read, a division of ints, a call)" : null;
     }
 
+    /// <summary>Adds a guard once (a loop body is lowered twice; the same check twice would change nothing).</summary>
+    private void AddGuard(IrGuard guard)
+    {
+        if (!Guards.Contains(guard))
+        {
+            Guards.Add(guard);
+        }
+    }
+
+    /// <summary>
+    /// The last arm of a switch expression, <c>_ =&gt; throw new X(…)</c>, in the method's body or in the body of one
+    /// top-level counted loop: the guard "the loop runs and no other arm matches" — exact where the other arms'
+    /// patterns read only parameters, constants and data (so the first evaluation decides), nothing before the
+    /// expression can throw (before the loop, earlier in the iteration, earlier in the statement). Null where it cannot
+    /// be a guard (reported), else true.
+    /// </summary>
+    private bool? TryGuardThrowingArm(ISwitchExpressionOperation switchExpression, IThrowOperation thrown, List<IrExpression?> earlier)
+    {
+        string? where = _helpers.Chain.Count > 1 ? "in a helper" : _inlining.Count > 0 ? "in an inlined local function"
+            : _variableBranchDepth > 0 || _jumps > 0 || _returnFlag is not null ? "in a branch or after a jump"
+            : _nestedDepth == 0 ? (_statements.Any(MayThrow) ? "after a statement that can throw" : null)
+            : _nestedDepth == 1 && _countedLoops.Count == 1 && _countedLoops[0] is { } loop && _outerStatements.Count == 1
+                ? (_outerStatements[0].Any(MayThrow) || _statements.Any(s => MayThrowInLoop(s, loop)) ? "after a statement that can throw" : null)
+                : "in a nested loop or a branch";
+        where ??= ThrowsBeforeInStatement(switchExpression) || WhyNotInlinedHere(switchExpression) is not null ? "after a part of its statement that can throw, or under a condition" : null;
+        if (where is not null || earlier.Any(c => c is null))
+        {
+            return null;
+        }
+
+        IrExpression matched = earlier.Count == 0 ? False : earlier.Aggregate((a, b) => new IrLogical(LogicalOperator.Or, a!, b!))!;
+        IrExpression condition = Not(matched);
+        if (_nestedDepth == 1 && _countedLoops[0] is { } counted)
+        {
+            condition = new IrLogical(LogicalOperator.And,
+                new IrCompare(counted.Inclusive ? ComparisonOperator.LessOrEqual : ComparisonOperator.Less, counted.Start, counted.End), condition);
+        }
+
+        if (IrText(condition) is not { } text || ThrowText(thrown) is not { } statement)
+        {
+            return null;
+        }
+
+        AddGuard(new IrGuard(text, statement));
+        return true;
+    }
+
     /// <summary><c>if (c) throw …;</c> (the throw alone in its branch): a guard, then the else branch (if any) as ordinary code.</summary>
     private bool TryLowerThrowingIf(IConditionalOperation branch)
     {
@@ -82,7 +135,7 @@ internal sealed partial class BodyLowerer
         string? statement = ThrowText(thrown);
         if (condition is not null && statement is not null)
         {
-            Guards.Add(new IrGuard(condition, statement));
+            AddGuard(new IrGuard(condition, statement));
         }
 
         if (branch.WhenFalse is { } otherwise)
@@ -137,7 +190,7 @@ internal sealed partial class BodyLowerer
 
         if (start is not null && end is not null)
         {
-            Guards.Add(new IrGuard(null, "for (int " + index + " = " + start + "; " + index + (condition.OperatorKind == BinaryOperatorKind.LessThan ? " < " : " <= ")
+            AddGuard(new IrGuard(null, "for (int " + index + " = " + start + "; " + index + (condition.OperatorKind == BinaryOperatorKind.LessThan ? " < " : " <= ")
                 + end + "; " + index + "++) { " + string.Join(" ", checks) + " }"));
         }
 
@@ -176,7 +229,7 @@ internal sealed partial class BodyLowerer
         }
 
         string typeArguments = target.IsGenericMethod ? "<" + string.Join(", ", target.TypeArguments.Select(FullyQualified)) + ">" : "";
-        Guards.Add(new IrGuard(null, FullyQualified(target.ContainingType) + "." + target.Name + typeArguments + "(" + string.Join(", ", arguments) + ");"));
+        AddGuard(new IrGuard(null, FullyQualified(target.ContainingType) + "." + target.Name + typeArguments + "(" + string.Join(", ", arguments) + ");"));
     }
 
     /// <summary>A switch statement whose default section only throws: the guard "no case matches".</summary>
@@ -208,7 +261,7 @@ internal sealed partial class BodyLowerer
             return true;
         }
 
-        Guards.Add(new IrGuard(condition, statement));
+        AddGuard(new IrGuard(condition, statement));
         // After the guard one of the other sections matches: the last of them needs no test.
         sections.RemoveAt(index);
         var last = sections[sections.Count - 1];
@@ -399,6 +452,13 @@ internal sealed partial class BodyLowerer
         }
 
         int? length = KnownLength(element.Data);
+        if (loop is not null && index is IrLocal counter && counter.Name == loop.Index && !loop.Inclusive && loop.Start is IrConstant { Bits: >= 0 }
+            && loop.End is IrExternal { Text: var bound } && bound.EndsWith(".Length", StringComparison.Ordinal)
+            && KnownLength(bound.Substring(0, bound.Length - 7)) is { } boundLength && length is not null && boundLength <= length)
+        {
+            return true; // for (k = 0; k < Z.Length; k++) reading data[k], both static readonly arrays, Z no longer
+        }
+
         return length is not null && index switch
         {
             IrConstant { Bits: var c } => c >= 0 && c < length,

@@ -215,6 +215,7 @@ internal sealed partial class BodyLowerer
         List<IrStatement> outer = _statements;
         _statements = new List<IrStatement>();
         _nestedDepth++;
+        _outerStatements.Add(outer);
         try
         {
             LowerStatements(statements, isTopLevel);
@@ -222,6 +223,7 @@ internal sealed partial class BodyLowerer
         }
         finally
         {
+            _outerStatements.RemoveAt(_outerStatements.Count - 1);
             _nestedDepth--;
             _statements = outer;
         }
@@ -329,7 +331,10 @@ internal sealed partial class BodyLowerer
         IrExpression? start = LowerExpression(startValue);
         IrExpression? end = LowerExpression(condition.RightOperand);
         string index = DeclareLocal(declarator.Symbol);
+        _countedLoops.Add(start is null || end is null ? null
+            : new IrFor(index, start, end, condition.OperatorKind == BinaryOperatorKind.LessThanOrEqual, EquatableArray<IrStatement>.Empty));
         LoweredLoop lowered = LowerLoop(loop.Body, ImmutableArray<IOperation>.Empty, null);
+        _countedLoops.RemoveAt(_countedLoops.Count - 1);
         if (start is not null && end is not null)
         {
             AddCountedLoop(new IrFor(index, start, end, condition.OperatorKind == BinaryOperatorKind.LessThanOrEqual, lowered.Body), lowered.Exits);

@@ -227,8 +227,12 @@ public sealed class DiagnosticTests
     public Task DG0001SwitchExpressionArmThatThrows() => VerifyAsync(Usings + """
         public static partial class C
         {
+            // A throwing last arm is a check run first: accepted where nothing before it can throw, refused after a read.
             [Differentiate]
-            public static double F(double x, int k) => k switch { 0 => x, _ => {|DG0001:throw new ArgumentOutOfRangeException(nameof(k))|} };
+            public static double F(double x, int k) => k switch { 0 => x, _ => throw new ArgumentOutOfRangeException(nameof(k)) };
+
+            [Differentiate(nameof(x))]
+            public static double G(double x, int k, double[] d) => d[0] * (k switch { 0 => x, _ => {|DG0001:throw new ArgumentOutOfRangeException(nameof(k))|} });
         }
         """);
 

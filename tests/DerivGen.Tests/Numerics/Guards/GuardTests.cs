@@ -54,6 +54,25 @@ public sealed class GuardFixture : CompiledFixture
 
                 return y;
             }
+
+            // The last arm throws, inside the loop: the check runs first, where the loop runs at least once.
+            [Differentiate(nameof(a))]
+            public static double Robust(double a, double[] r, int kind)
+            {
+                double s = 0;
+                for (int i = 0; i < r.Length; i++)
+                {
+                    double e = a - r[i];
+                    s += kind switch
+                    {
+                        0 => e * e,
+                        1 => Math.Sqrt(e * e + 1e-6),
+                        _ => throw new ArgumentOutOfRangeException(nameof(kind), kind, "unknown loss"),
+                    };
+                }
+
+                return s;
+            }
         }
         """;
 
@@ -178,6 +197,31 @@ public sealed class GuardTests : IClassFixture<GuardFixture>
         Assert.Equal(4.0, gradient[0]);
         Assert.Equal(2.0, hessian[0]);
     }
+
+    [Fact]
+    public void AThrowingLastArmInALoopThrowsWhereTheLoopEvaluatesIt()
+    {
+        var f = _fixture.Assembly.Method<RobustF>("Checked", "Robust");
+        var h = _fixture.Assembly.Method<RobustH>("Checked", "RobustHessian");
+        double[] r = { 1.0, 4.0 };
+        var gradient = new[] { double.NaN };
+        var hessian = new[] { double.NaN };
+        SameException(() => f(2.0, r, 5), () => h(2.0, r, 5, gradient, hessian));
+        Assert.True(double.IsNaN(gradient[0]) && double.IsNaN(hessian[0]));
+
+        // No element: the switch is never evaluated, so neither throws.
+        Assert.Equal(BitConverter.DoubleToInt64Bits(f(2.0, Array.Empty<double>(), 5)), BitConverter.DoubleToInt64Bits(h(2.0, Array.Empty<double>(), 5, gradient, hessian)));
+        Assert.Equal(0.0, gradient[0]);
+
+        // kind 0: f = Σ (a − r)², f' = Σ 2(a − r), f'' = 2n (plain calculus).
+        Assert.Equal(BitConverter.DoubleToInt64Bits(f(2.0, r, 0)), BitConverter.DoubleToInt64Bits(h(2.0, r, 0, gradient, hessian)));
+        Assert.Equal(2 * (2.0 - 1.0) + 2 * (2.0 - 4.0), gradient[0], 1e-14);
+        Assert.Equal(4.0, hessian[0], 1e-14);
+    }
+
+    private delegate double RobustF(double a, double[] r, int kind);
+
+    private delegate double RobustH(double a, double[] r, int kind, Span<double> gradient, Span<double> hessian);
 
     internal static class Delegates
     {

@@ -48,6 +48,12 @@ public sealed class LinqLoopFixture : CompiledFixture
                 xs.Zip(ys, (x, y) => (a * x + b - y) * (a * x + b - y)).Max();
         }
 
+        public static partial class Written
+        {
+            [Differentiate]
+            public static double Penalty(double w0, double w1) => new[] { w0, w1 }.Select(v => v * v).Sum() + new[] { w0, 2 * w1, 1.0 }.Max();
+        }
+
         public static partial class Vectors
         {
             [Differentiate(nameof(w))]
@@ -316,6 +322,29 @@ public sealed class LinqLoopTests : IClassFixture<LinqLoopFixture>
         Assert.Equal(3.0, one[0]);
         _fixture.Assembly.Method<OneG>("Fits", "MinOfGradient")(2.0, w, one);
         Assert.Equal(-2.0, one[0]);
+    }
+
+    private delegate double Two(double w0, double w1);
+
+    private delegate double TwoH(double w0, double w1, Span<double> gradient, Span<double> hessian);
+
+    [Theory]
+    [InlineData(3.0, 1.0, 7.0, 2.0)]  // max(w0, 2w1, 1) = w0: ∇ = 2w + (1, 0)
+    [InlineData(0.5, 1.0, 1.0, 4.0)]  // max = 2w1: ∇ = 2w + (0, 2)
+    [InlineData(0.25, 0.25, 0.5, 0.5)] // max = 1 (a constant): ∇ = 2w
+    public void ArraysWrittenInTheCall(double w0, double w1, double g0, double g1)
+    {
+        var f = _fixture.Assembly.Method<Two>("Written", "Penalty");
+        var h = _fixture.Assembly.Method<TwoH>("Written", "PenaltyHessian");
+        var gradient = new double[2];
+        var hessian = new double[4];
+        double linq = new[] { w0, w1 }.Select(v => v * v).Sum() + new[] { w0, 2 * w1, 1.0 }.Max();
+        Assert.Equal(BitConverter.DoubleToInt64Bits(linq), BitConverter.DoubleToInt64Bits(f(w0, w1)));
+        Assert.Equal(BitConverter.DoubleToInt64Bits(linq), BitConverter.DoubleToInt64Bits(h(w0, w1, gradient, hessian)));
+
+        // Plain calculus: ∇(w0² + w1²) = 2w, ∇² = 2I; the maximum adds the gradient of the element selected.
+        Assert.Equal(new[] { g0, g1 }, gradient);
+        Assert.Equal(new[] { 2.0, 0.0, 0.0, 2.0 }, hessian);
     }
 
     [Fact]
