@@ -89,6 +89,7 @@ internal static class DerivativeEmitter
         using (SignatureWriter.DerivativeMethod(writer, context, withHessian, IsSmallStraightLine(program, withHessian)))
         {
             string thrower = context.ThrowerName;
+            MethodBodyWriter.WriteGuards(writer, spec);
             if (jacobian)
             {
                 SignatureWriter.LengthCheck(writer, context.JacobianName, "(long)" + spec.OutputName + ".Length * " + Text.Parenthesized(context.GradientLength),

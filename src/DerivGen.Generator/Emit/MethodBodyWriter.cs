@@ -43,6 +43,32 @@ internal sealed partial class MethodBodyWriter
         new MethodBodyWriter(writer, context, plan, thrower).WriteBody();
     }
 
+    /// <summary>
+    /// The user's checks that throw (<see cref="IrGuard"/>), first in every generated method, in the user's order: the
+    /// method throws there with the user's exception before any span check and before anything is written.
+    /// </summary>
+    public static void WriteGuards(IndentedWriter writer, MethodSpec spec)
+    {
+        foreach (IrGuard guard in spec.Guards)
+        {
+            if (guard.Condition is null)
+            {
+                writer.Line(guard.Statement);
+                continue;
+            }
+
+            using (writer.Block("if (" + guard.Condition + ")"))
+            {
+                writer.Line(guard.Statement);
+            }
+        }
+
+        if (spec.Guards.Count > 0)
+        {
+            writer.Line();
+        }
+    }
+
     private void WriteBody()
     {
         _scope = new NameScope(_context, _plan, _thrower);

@@ -162,6 +162,10 @@ internal sealed partial class BodyLowerer
               + string.Join(", ", c.Select(x => local.Name + x.ToUpperInvariant())) + ")"
             : null;
 
+    /// <summary>What LINQ is lowered to loops (BodyLowerer.Linq.cs); the advice for anything else follows it.</summary>
+    private const string LinqPrefix =
+        "this version lowers Sum, Average, Max and Min (double) over arrays, Select, Zip and Enumerable.Range to loops, not this; ";
+
     private static string LinqAdvice(IInvocationOperation invocation, string method)
     {
         // The innermost source of a chain (xs in xs.Select(…).Sum()), named where it is a parameter, local or field.
@@ -196,7 +200,7 @@ internal sealed partial class BodyLowerer
                 "Max" or "Min" => "write it out with Math." + method + ", one argument for each of " + names + ": `Math." + method + "(" + arguments + ")`",
                 _ => "write it out with one term for each of " + names + ": `" + terms + "`",
             };
-            return "LINQ is not differentiated in this version; " + written;
+            return LinqPrefix + written;
         }
 
         string loop, count;
@@ -221,7 +225,7 @@ internal sealed partial class BodyLowerer
             "Min" => "write the minimum as a for loop over the array: `double m = double.PositiveInfinity; " + loop + " m = Math.Min(m, …);`",
             _ => "write the computation as a for loop over the array (over several arrays, one index for all): `double s = 0; " + loop + " s += …;`",
         };
-        return "LINQ is not differentiated in this version; " + what;
+        return LinqPrefix + what;
     }
 
     private static string SourceName(IOperation? source) => source switch

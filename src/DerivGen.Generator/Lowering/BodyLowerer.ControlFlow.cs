@@ -435,7 +435,7 @@ internal sealed partial class BodyLowerer
         }
 
         var sections = new List<(IrExpression? Condition, List<IOperation> Body, ISwitchCaseOperation Case)>();
-        IrExpression subject = value is IrParameter or IrConstant or IrLocal ? value : Snapshot("switchValue", value);
+        IrExpression subject = value is IrParameter or IrConstant or IrLocal or IrExternal ? value : Snapshot("switchValue", value);
         foreach (ISwitchCaseOperation section in switchStatement.Cases)
         {
             IrExpression? condition = null;
@@ -481,6 +481,11 @@ internal sealed partial class BodyLowerer
 
             // The default section matches whatever no other section does, wherever it is written.
             sections.Add((isDefault ? null : condition, body, section));
+        }
+
+        if (TryGuardDefault(sections, switchStatement))
+        {
+            return; // reported
         }
 
         var ordered = sections.Where(s => s.Condition is not null).Concat(sections.Where(s => s.Condition is null)).ToList();

@@ -111,6 +111,7 @@ internal sealed partial class BodyLowerer
         var values = new List<IrExpression?>();
         bool ok = true;
         bool dependsOnVariable = false;
+        bool dropsThrowingArm = false;
         foreach (ISwitchExpressionArmOperation arm in switchExpression.Arms)
         {
             IrExpression? condition = LowerPattern(arm.Pattern, subject);
@@ -120,9 +121,18 @@ internal sealed partial class BodyLowerer
                 condition = condition is null || loweredGuard is null ? null : new IrLogical(LogicalOperator.And, condition, loweredGuard);
             }
 
+            if ((arm.Value is IConversionOperation { Operand: IThrowOperation armThrow } ? armThrow : arm.Value) is IThrowOperation guarded
+                && arm == switchExpression.Arms[count - 1] && arm.Pattern is IDiscardPatternOperation && arm.Guard is null && count > 1
+                && TryGuardThrowingArm(switchExpression, guarded, conditions) == true)
+            {
+                // A check run first (BodyLowerer.Throws.cs): where it passes, one of the other arms matches.
+                dropsThrowingArm = true;
+                break;
+            }
+
             IrExpression? value = (arm.Value is IConversionOperation { Operand: IThrowOperation thrown } ? thrown : arm.Value) is IThrowOperation throwing
                 ? Unsupported(throwing, "the arm that throws ('" + Text(throwing) + "')",
-                    "the generated methods cannot throw yet; validate the argument before calling the method, or return double.NaN from this arm")
+                    "the generated methods make a check that throws only at the top of the method, before anything that can throw: check the value there ('if (" + Text(switchExpression.Value) + " is not (…)) throw …;', the patterns of the other arms) and give this arm a value ('_ => double.NaN')")
                 : LowerExpression(arm.Value);
             ok &= condition is not null && value is not null;
             dependsOnVariable |= condition is not null && DependsOnVariable(condition);
@@ -137,6 +147,10 @@ internal sealed partial class BodyLowerer
 
         ISwitchExpressionArmOperation last = switchExpression.Arms[count - 1];
         bool lastAlwaysMatches = (last.Pattern is IDiscardPatternOperation && last.Guard is null) || switchExpression.IsExhaustive;
+        if (dropsThrowingArm)
+        {
+            count--; // the guard threw wherever no other arm matches
+        }
         if (!lastAlwaysMatches)
         {
             return Unsupported(switchExpression, "the switch expression '" + Text(switchExpression) + "', which throws where no arm matches,",

@@ -153,6 +153,10 @@ internal sealed partial class BodyLowerer
                 LowerJump(jump);
                 return false;
 
+            case IConditionalOperation branch when SingleThrow(branch.WhenTrue) is not null:
+                TryLowerThrowingIf(branch); // a check that throws: a guard (BodyLowerer.Throws.cs)
+                return true;
+
             case IConditionalOperation branch when isTopLevel && _returnValue is null && EndsWithReturn(branch.WhenTrue):
                 // if (c) { …; return a; } rest  ≡  if (c) { …; return a; } else { rest }: the value is selected.
                 LowerReturningIf(branch, list.Skip(position + 1));
@@ -165,6 +169,9 @@ internal sealed partial class BodyLowerer
             case ISwitchOperation switchStatement:
                 LowerSwitch(switchStatement);
                 return true;
+
+            case IForLoopOperation loop when TryLowerCheckingLoop(loop):
+                return true; // a loop that only checks: a guard (BodyLowerer.Throws.cs)
 
             case IForLoopOperation loop:
                 LowerFor(loop);
@@ -207,6 +214,8 @@ internal sealed partial class BodyLowerer
     {
         List<IrStatement> outer = _statements;
         _statements = new List<IrStatement>();
+        _nestedDepth++;
+        _outerStatements.Add(outer);
         try
         {
             LowerStatements(statements, isTopLevel);
@@ -214,6 +223,8 @@ internal sealed partial class BodyLowerer
         }
         finally
         {
+            _outerStatements.RemoveAt(_outerStatements.Count - 1);
+            _nestedDepth--;
             _statements = outer;
         }
     }
@@ -320,7 +331,10 @@ internal sealed partial class BodyLowerer
         IrExpression? start = LowerExpression(startValue);
         IrExpression? end = LowerExpression(condition.RightOperand);
         string index = DeclareLocal(declarator.Symbol);
+        _countedLoops.Add(start is null || end is null ? null
+            : new IrFor(index, start, end, condition.OperatorKind == BinaryOperatorKind.LessThanOrEqual, EquatableArray<IrStatement>.Empty));
         LoweredLoop lowered = LowerLoop(loop.Body, ImmutableArray<IOperation>.Empty, null);
+        _countedLoops.RemoveAt(_countedLoops.Count - 1);
         if (start is not null && end is not null)
         {
             AddCountedLoop(new IrFor(index, start, end, condition.OperatorKind == BinaryOperatorKind.LessThanOrEqual, lowered.Body), lowered.Exits);
@@ -604,8 +618,7 @@ internal sealed partial class BodyLowerer
                 break;
 
             case IInvocationOperation { TargetMethod: { IsStatic: true, Name: var helperName, ContainingType: { } thrower } } when helperName.StartsWith("ThrowIf", StringComparison.Ordinal) && IsException(thrower):
-                Unsupported(expression, $"the throw helper '{thrower.Name}.{helperName}'",
-                    "the generated methods cannot throw yet; check the arguments before calling the method (the check can stay in a method that calls this one)");
+                LowerThrowHelper((IInvocationOperation)expression);
                 break;
 
             default:
@@ -724,6 +737,9 @@ internal sealed partial class BodyLowerer
 
         switch (operation)
         {
+            case IFieldReferenceOperation tupleField when _boundTuples.Count > 0 && BoundTupleElement(tupleField) is { } tupleElement:
+                return tupleElement; // pair.First of Zip's tuples (BodyLowerer.Linq.cs)
+
             case IParameterReferenceOperation parameter when _boundParameters.TryGetValue(parameter.Parameter.OriginalDefinition, out IrExpression? argument):
                 return argument;
 
@@ -1020,6 +1036,11 @@ internal sealed partial class BodyLowerer
             return refused;
         }
 
+        if (IsEnumerable(target.ContainingType) && TryLowerLinq(invocation, out bool isLinq) is var linq && isLinq)
+        {
+            return linq; // a loop (BodyLowerer.Linq.cs)
+        }
+
         if (target.Name == "GetLength" && invocation.Instance is { } array && DataText(array) is { } arrayText
             && invocation.Arguments.Length == 1 && invocation.Arguments[0].Value.ConstantValue is { HasValue: true, Value: int dimension })
         {
@@ -1243,7 +1264,7 @@ internal sealed partial class BodyLowerer
         ISwitchOperation => "use if/else or the conditional operator instead",
         IBranchOperation => "break, continue and goto are not supported yet; put the condition around the loop body's statements instead",
         ITryOperation => "exceptions cannot be differentiated; validate arguments before calling the method",
-        IThrowOperation => "the generated methods cannot throw yet; check the arguments before calling the method (the check can stay in a method that calls this one)",
+        IThrowOperation => GuardAdvice,
         ILocalFunctionOperation => LocalFunctionAdvice,
         _ => "a differentiable body uses locals, + - * /, and the math functions listed in the README",
     };

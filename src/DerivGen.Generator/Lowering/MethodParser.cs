@@ -314,6 +314,7 @@ internal static class MethodParser
             output is not null, nameLocation, diagnostics);
 
         EquatableArray<IrStatement> body = EquatableArray<IrStatement>.Empty;
+        EquatableArray<IrGuard> guards = EquatableArray<IrGuard>.Empty;
         if (syntax.Body is null && syntax.ExpressionBody is null)
         {
             diagnostics.Add(DiagnosticInfo.Create(DiagnosticDescriptors.UnsupportedConstruct, nameLocation,
@@ -335,6 +336,7 @@ internal static class MethodParser
                     .SelectMany(p => StructLayout.VariableComponents(p) ?? new[] { Identifiers.Escape(p.Name) }), StringComparer.Ordinal), helpers, diagnostics,
                     cancellationToken, output);
                 body = lowerer.Lower(bodyOperation);
+                guards = lowerer.Guards.ToEquatableArray();
                 if (output is not null)
                 {
                     CheckOutputsUnconditional(body, lowerer.OutputLocations, insideBranch: false, diagnostics);
@@ -376,7 +378,8 @@ internal static class MethodParser
             Body: body,
             OutputName: output is null ? null : Identifiers.Escape(output.Name),
             HasSinCos: helpers.Shared.HasSinCos(semanticModel.Compilation, HasSinCosOf),
-            GenericConstraints: genericConstraints);
+            GenericConstraints: genericConstraints,
+            Guards: guards);
     }
 
     /// <summary>

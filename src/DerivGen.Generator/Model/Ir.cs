@@ -138,3 +138,14 @@ internal sealed record IrFor(string Index, IrExpression Start, IrExpression End,
 /// loop is guarded by a branch condition, which is folded into <paramref name="Condition"/>.
 /// </summary>
 internal sealed record IrWhile(EquatableArray<IrStatement> Setup, IrExpression Condition, EquatableArray<IrStatement> Body) : IrStatement;
+
+/// <summary>
+/// A check the user's method makes before it computes anything that could throw (<c>if (c) throw new X(…);</c>, a
+/// <c>ThrowIf…</c> helper, a switch's throwing default, LINQ's empty-sequence or negative-count check), re-emitted
+/// at the start of every generated method, before the span checks and before anything is written, in the user's
+/// order. <paramref name="Condition"/> (null: always run <paramref name="Statement"/>) and <paramref name="Statement"/>
+/// are C# text that reads only the method's parameters, constants and data, which the generated methods take under the
+/// same names. Lowering accepts a check only where the user's method cannot have thrown before it, so the generated
+/// methods throw exactly where the method does (Lowering/BodyLowerer.Throws.cs states the rule).
+/// </summary>
+internal sealed record IrGuard(string? Condition, string Statement) : IrStatement;

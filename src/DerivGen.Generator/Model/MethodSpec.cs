@@ -27,6 +27,7 @@ namespace DerivGen.Generator.Model;
 /// <param name="HasSinCos">Whether the compilation has Math.SinCos and MathF.SinCos (one call for the sine and cosine of one argument).</param>
 /// <param name="GenericConstraints">For a method generic over T (<see cref="ScalarType.Generic"/>), the constraints of T as the
 /// generated methods declare them (<c>global::System.Numerics.IFloatingPointIeee754&lt;T&gt;</c>); null for any other method.</param>
+/// <param name="Guards">The method's checks that throw, in its order, run first by every generated method (see <see cref="IrGuard"/>).</param>
 internal sealed record MethodSpec(
     string HintName,
     string? Namespace,
@@ -44,7 +45,8 @@ internal sealed record MethodSpec(
     bool IsPairMethod = false,
     string? OutputName = null,
     bool HasSinCos = false,
-    string? GenericConstraints = null)
+    string? GenericConstraints = null,
+    EquatableArray<IrGuard> Guards = default)
 {
     /// <summary>Whether this is a method with a span of outputs, whose Jacobian is generated.</summary>
     public bool HasOutputs => OutputName is not null;

@@ -227,8 +227,12 @@ public sealed class DiagnosticTests
     public Task DG0001SwitchExpressionArmThatThrows() => VerifyAsync(Usings + """
         public static partial class C
         {
+            // A throwing last arm is a check run first: accepted where nothing before it can throw, refused after a read.
             [Differentiate]
-            public static double F(double x, int k) => k switch { 0 => x, _ => {|DG0001:throw new ArgumentOutOfRangeException(nameof(k))|} };
+            public static double F(double x, int k) => k switch { 0 => x, _ => throw new ArgumentOutOfRangeException(nameof(k)) };
+
+            [Differentiate(nameof(x))]
+            public static double G(double x, int k, double[] d) => d[0] * (k switch { 0 => x, _ => {|DG0001:throw new ArgumentOutOfRangeException(nameof(k))|} });
         }
         """);
 
@@ -245,12 +249,36 @@ public sealed class DiagnosticTests
     public Task DG0001ThrowHelperGuard() => VerifyAsync(Usings + """
         public static partial class C
         {
+            // Checks are accepted first (before anything that can throw) and refused after a data read, in a loop that
+            // also computes, in a branch, and in a local function.
             [Differentiate(nameof(x))]
             public static double F(double x, double[] t)
             {
-                {|DG0001:ArgumentNullException.ThrowIfNull(t)|};
+                ArgumentNullException.ThrowIfNull(t);
+                if (t.Length == 0) throw new ArgumentException("empty", nameof(t));
+                double first = x * t[0];
                 {|DG0001:ArgumentOutOfRangeException.ThrowIfNegative(x)|};
-                return x * t[0];
+                double s = first;
+                for (int i = 0; i < t.Length; i++)
+                {
+                    if (t[i] < 0) {|DG0001:throw new ArgumentException("negative", nameof(t));|}
+                    s += x * t[i];
+                }
+
+                return s;
+            }
+
+            [Differentiate(nameof(x))]
+            public static double G(double x, double[] t)
+            {
+                double y = x;
+                if (t.Length > 2)
+                {
+                    {|DG0001:ArgumentOutOfRangeException.ThrowIfGreaterThan(x, 10.0)|};
+                    y = 2 * x;
+                }
+
+                return y + {|DG0001:System.Linq.Enumerable.Min(t, v => x * x * v)|}; // after t.Length (null: NullReferenceException first)
             }
         }
         """);

@@ -76,7 +76,7 @@ public sealed class RefusalAdviceTests
             }
             """,
             Call("System.Linq.Enumerable.Sum",
-                "LINQ is not differentiated in this version; write the sum as a for loop over the array: `double s = 0; for (int i = 0; i < xs.Length; i++) s += …;`"));
+                "this version lowers Sum, Average, Max and Min (double) over arrays, Select, Zip and Enumerable.Range to loops, not this; write the sum as a for loop over the array: `double s = 0; for (int i = 0; i < xs.Length; i++) s += …;`"));
 
         using CompiledAssembly asm = await Accepted(Usings + """
             public static partial class Line
@@ -114,17 +114,37 @@ public sealed class RefusalAdviceTests
     }
 
     [Fact]
-    public async Task LinqAverageBecomesAForLoopWithTheHandGradient()
+    public async Task LinqAverageAfterAReadBecomesAForLoopWithTheHandGradient()
     {
-        await RefusedWith(Usings + """
+        // Accepted as written where nothing before it can throw: the generated methods check for an empty source first.
+        using (CompiledAssembly linq = await Accepted(Usings + """
             public static partial class Kelly
             {
                 [Differentiate(nameof(f))]
                 public static double Loss(double f, double[] returns) => -returns.Average(r => Math.Log(1 + f * r));
             }
+            """))
+        {
+            var g1 = new double[1];
+            double[] r1 = { 0.12, -0.08, 0.05, 0.2, -0.15 };
+            linq.Method<Grad1Data1>("Kelly", "LossGradient")(0.4, r1, g1);
+            Check.Close(-r1.Select(r => r / (1 + 0.4 * r)).Average(), g1[0], 1e-13, 1e-15, "gradient of the LINQ mean (plain calculus)");
+        }
+
+        // After a read that can throw, the empty-source check could not run first: refused, with the loop as advice.
+        await RefusedWith(Usings + """
+            public static partial class Kelly
+            {
+                [Differentiate(nameof(f))]
+                public static double Loss(double f, double[] returns)
+                {
+                    double baseline = returns[0];
+                    return -returns.Average(r => Math.Log(1 + f * (r - baseline)));
+                }
+            }
             """,
-            Call("System.Linq.Enumerable.Average",
-                "LINQ is not differentiated in this version; write the mean as a for loop over the array: `double s = 0; for (int i = 0; i < returns.Length; i++) s += …; double mean = s / returns.Length;`"));
+            "DG0001: The call to 'Enumerable.Average' after a statement that can throw (a data read, a division of ints, a call) cannot be differentiated: "
+                + "LINQ throws on an empty source, and the generated methods make that check first, where nothing before it can throw: compute it at the top of the method, over data or parameters, or write the mean as a for loop over the array: `double s = 0; for (int i = 0; i < returns.Length; i++) s += …; double mean = s / returns.Length;`");
 
         using CompiledAssembly asm = await Accepted(Usings + """
             public static partial class Kelly
@@ -132,10 +152,11 @@ public sealed class RefusalAdviceTests
                 [Differentiate(nameof(f))]
                 public static double Loss(double f, double[] returns)
                 {
+                    double baseline = returns[0];
                     double s = 0;
                     for (int i = 0; i < returns.Length; i++)
                     {
-                        s += Math.Log(1 + f * returns[i]);
+                        s += Math.Log(1 + f * (returns[i] - baseline));
                     }
 
                     double mean = s / returns.Length;
@@ -148,28 +169,37 @@ public sealed class RefusalAdviceTests
         var g = new double[1];
         asm.Method<Grad1Data1>("Kelly", "LossGradient")(F, returns, g);
 
-        // Hand derivative (plain calculus): d/df −mean ln(1 + f·r) = −mean r/(1 + f·r).
-        double expected = -returns.Select(r => r / (1 + F * r)).Average();
+        // Hand derivative (plain calculus): d/df −mean ln(1 + f·(r − r0)) = −mean (r − r0)/(1 + f·(r − r0)).
+        double expected = -returns.Select(r => (r - returns[0]) / (1 + F * (r - returns[0]))).Average();
         Check.Close(expected, g[0], 1e-13, 1e-15, "gradient of the mean written as the message says");
     }
 
     [Fact]
     public async Task LinqMaxAndMinOverARangeBecomeForLoops()
     {
-        await RefusedWith(Usings + """
+        // Max as written is accepted; Min over elements that read data is refused (LINQ stops at a NaN, the loop would not).
+        using (CompiledAssembly linq = await Accepted(Usings + """
             public static partial class Peaks
             {
                 [Differentiate(nameof(w))]
                 public static double Highest(double w, double[] xs) => xs.Max(x => w * x * x);
+            }
+            """))
+        {
+            var g1 = new double[1];
+            Assert.Equal(2.0 * 6.25, linq.Method<Grad1Data1>("Peaks", "HighestGradient")(2.0, new[] { 0.5, -2.5, 1.5 }, g1));
+            Assert.Equal(6.25, g1[0]); // the largest w·x² (w > 0) is at x = −2.5: d/dw = x² (plain calculus)
+        }
 
+        await RefusedWith(Usings + """
+            public static partial class Peaks
+            {
                 [Differentiate(nameof(c))]
                 public static double Nearest(double c, double[] xs) => Enumerable.Range(0, xs.Length).Min(i => (xs[i] - c) * (xs[i] - c));
             }
             """,
-            Call("System.Linq.Enumerable.Max",
-                "LINQ is not differentiated in this version; write the maximum as a for loop over the array: `double m = double.NegativeInfinity; for (int i = 0; i < xs.Length; i++) m = Math.Max(m, …);`"),
-            Call("System.Linq.Enumerable.Min",
-                "LINQ is not differentiated in this version; write the minimum as a for loop over the array: `double m = double.PositiveInfinity; for (int i = 0; i < xs.Length; i++) m = Math.Min(m, …);`"));
+            "DG0001: The call to 'Enumerable.Min' over elements that can throw cannot be differentiated: "
+                + "LINQ's Min stops at the first NaN and does not compute the elements after it; write the minimum as a for loop over the array: `double m = double.PositiveInfinity; for (int i = 0; i < xs.Length; i++) m = Math.Min(m, …);`");
 
         using CompiledAssembly asm = await Accepted(Usings + """
             public static partial class Peaks
@@ -206,14 +236,28 @@ public sealed class RefusalAdviceTests
     [Fact]
     public async Task LinqOverAnArrayWrittenInTheCallIsWrittenOutTermByTerm()
     {
-        await RefusedWith(Usings + """
+        // Sum over an array written in the call is lowered; a LINQ method that is not (Aggregate) gets the terms written out.
+        using (CompiledAssembly linq = await Accepted(Usings + """
             public static partial class Penalty
             {
                 [Differentiate]
                 public static double Ridge(double w0, double w1) => new[] { w0, w1 }.Select(v => v * v).Sum();
             }
+            """))
+        {
+            var g1 = new double[2];
+            Assert.Equal(0.0 + 9.0 + 16.0, linq.Method<Grad2>("Penalty", "RidgeGradient")(3.0, 4.0, g1));
+            Assert.Equal(new[] { 6.0, 8.0 }, g1); // ∇(w0² + w1²) = 2w (plain calculus)
+        }
+
+        await RefusedWith(Usings + """
+            public static partial class Penalty
+            {
+                [Differentiate]
+                public static double Ridge(double w0, double w1) => new[] { w0, w1 }.Aggregate(0.0, (s, v) => s + v * v);
+            }
             """,
-            Call("System.Linq.Enumerable.Sum", "LINQ is not differentiated in this version; write the sum out, one term for each of w0, w1: `… + …`"));
+            Call("System.Linq.Enumerable.Aggregate", "this version lowers Sum, Average, Max and Min (double) over arrays, Select, Zip and Enumerable.Range to loops, not this; write it out with one term for each of w0, w1: `… + …`"));
 
         using CompiledAssembly asm = await Accepted(Usings + """
             public static partial class Penalty
@@ -224,6 +268,8 @@ public sealed class RefusalAdviceTests
             """);
         Assert.True(asm.HasMethod("Penalty", "RidgeGradient"));
     }
+
+    private delegate double Grad2(double w0, double w1, Span<double> gradient);
 
     [Fact]
     public async Task OtherLinqCallsBecomeAForLoop()
@@ -236,7 +282,7 @@ public sealed class RefusalAdviceTests
             }
             """,
             Call("System.Linq.Enumerable.Aggregate",
-                "LINQ is not differentiated in this version; write the computation as a for loop over the array (over several arrays, one index for all): `double s = 0; for (int i = 0; i < xs.Length; i++) s += …;`"));
+                "this version lowers Sum, Average, Max and Min (double) over arrays, Select, Zip and Enumerable.Range to loops, not this; write the computation as a for loop over the array (over several arrays, one index for all): `double s = 0; for (int i = 0; i < xs.Length; i++) s += …;`"));
 
         using CompiledAssembly asm = await Accepted(Usings + """
             public static partial class Fold
@@ -849,4 +895,119 @@ public sealed class RefusalAdviceTests
             """);
         Assert.True(asm.HasMethod("Fit", "LossGradient"));
     }
+
+    private const string GuardAdviceText =
+        "checks are kept where nothing before them can throw: put it at the top of the method, before any other loop, branch or data read, as 'if (condition) throw new …(…);' or a ThrowIf… helper on the parameters and data, or, to check each element, as a loop of its own that only checks ('for (int i = 0; i < w.Length; i++) if (w[i] < 0) throw new …(…);')";
+
+    [Fact]
+    public async Task ACheckInsideAComputingLoopMovesToALoopOfItsOwn()
+    {
+        await RefusedWith(Usings + """
+            public static partial class Weighted
+            {
+                [Differentiate(nameof(a))]
+                public static double Loss(double a, double[] w)
+                {
+                    double s = 0;
+                    for (int i = 0; i < w.Length; i++)
+                    {
+                        if (w[i] < 0) throw new ArgumentException("negative weight", nameof(w));
+                        s += w[i] * a * a;
+                    }
+
+                    return s;
+                }
+            }
+            """,
+            "DG0001: The throw statement inside a loop or branch cannot be differentiated: " + GuardAdviceText);
+
+        using CompiledAssembly asm = await Accepted(Usings + """
+            public static partial class Weighted
+            {
+                [Differentiate(nameof(a))]
+                public static double Loss(double a, double[] w)
+                {
+                    for (int i = 0; i < w.Length; i++) if (w[i] < 0) throw new ArgumentException("negative weight", nameof(w));
+                    double s = 0;
+                    for (int i = 0; i < w.Length; i++)
+                    {
+                        s += w[i] * a * a;
+                    }
+
+                    return s;
+                }
+            }
+            """);
+        var g = new[] { double.NaN };
+        var loss = asm.Method<Grad1Data1>("Weighted", "LossGradient");
+        Assert.Equal(1.5 * 9.0, loss(3.0, new[] { 1.0, 0.5 }, g), 1e-12); // f = Σw·a² = 1.5·a² at a = 3
+        Assert.Equal(2 * 1.5 * 3.0, g[0], 1e-12); // f' = 2a·Σw (plain calculus)
+        g[0] = double.NaN;
+        var thrown = Assert.Throws<ArgumentException>(() => loss(3.0, new[] { 1.0, -0.5 }, g));
+        Assert.Equal("w", thrown.ParamName);
+        Assert.StartsWith("negative weight", thrown.Message, StringComparison.Ordinal);
+        Assert.True(double.IsNaN(g[0]));
+    }
+
+    [Fact]
+    public async Task AThrowingSwitchArmBecomesACheckAtTheTop()
+    {
+        await RefusedWith(Usings + """
+            public enum Penalty { Squared, Absolute }
+
+            public static partial class Robust
+            {
+                [Differentiate(nameof(a))]
+                public static double Loss(double a, double[] r, double[] w, Penalty kind)
+                {
+                    double s = 0;
+                    for (int i = 0; i < r.Length; i++)
+                    {
+                        double e = w[i] * (a - r[i]); // w[i] may be out of range: the check cannot go first as it is
+                        s += kind switch
+                        {
+                            Penalty.Squared => e * e,
+                            Penalty.Absolute => Math.Sqrt(e * e + 1e-6),
+                            _ => throw new ArgumentOutOfRangeException(nameof(kind)),
+                        };
+                    }
+
+                    return s;
+                }
+            }
+            """,
+            "DG0001: The arm that throws ('throw new ArgumentOutOfRangeException(nameof(kind))') cannot be differentiated: the generated methods make a check that throws only at the top of the method, before anything that can throw: check the value there ('if (kind is not (…)) throw …;', the patterns of the other arms) and give this arm a value ('_ => double.NaN')");
+
+        // Written as the message says (with an int for the kind, so that the test can call it through a delegate).
+        using CompiledAssembly asm = await Accepted(Usings + """
+            public static partial class Robust
+            {
+                [Differentiate(nameof(a))]
+                public static double Loss(double a, double[] r, int kind)
+                {
+                    if (kind is not (0 or 1)) throw new ArgumentOutOfRangeException(nameof(kind));
+                    double s = 0;
+                    for (int i = 0; i < r.Length; i++)
+                    {
+                        double e = a - r[i];
+                        s += kind switch
+                        {
+                            0 => e * e,
+                            1 => Math.Sqrt(e * e + 1e-6),
+                            _ => double.NaN,
+                        };
+                    }
+
+                    return s;
+                }
+            }
+            """);
+        var g = new double[1];
+        var loss = asm.Method<GradKind>("Robust", "LossGradient");
+        loss(2.0, new[] { 1.0, 4.0 }, 0, g);
+        Assert.Equal(2 * (2.0 - 1.0) + 2 * (2.0 - 4.0), g[0], 1e-12); // d/da Σ (a − r)² = Σ 2(a − r) (plain calculus)
+        Assert.Equal("kind", Assert.Throws<ArgumentOutOfRangeException>(() => loss(2.0, new[] { 1.0 }, 5, g)).ParamName);
+    }
+
+    private delegate double GradKind(double a, double[] r, int kind, Span<double> gradient);
 }

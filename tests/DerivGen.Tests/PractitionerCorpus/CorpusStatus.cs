@@ -8,9 +8,8 @@ internal static class CorpusStatus
 {
     public static readonly Dictionary<string, Observation> Today = new()
     {
-        ["ExpDecayZipSum"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
+        ["ExpDecayZipSum"] = new(Accepted: true, Hessian: true, Diagnostics: new string[]
         {
-            "DG0001: The call to 'System.Linq.Enumerable.Sum' cannot be differentiated: LINQ is not differentiated in this version; write the sum as a for loop over the array: `double s = 0; for (int i = 0; i < Hours.Length; i++) s += …;`",
         }),
         ["LogisticGrowthLocalFunction"] = new(Accepted: true, Hessian: true, Diagnostics: new string[]
         {
@@ -22,9 +21,8 @@ internal static class CorpusStatus
         {
             "DG0001: The call to 'Calibration.Horner' cannot be differentiated: a helper called from a differentiated method must be a static method with a body in this compilation, not generic, return double or float and take double, float, int or bool parameters; 'Horner' takes 'System.ReadOnlySpan<double> c': write its computation inline in this method with double and float locals",
         }),
-        ["RobustLossEnumSwitch"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
+        ["RobustLossEnumSwitch"] = new(Accepted: true, Hessian: true, Diagnostics: new string[]
         {
-            "DG0001: The arm that throws ('throw new ArgumentOutOfRangeException(nameof(kind))') cannot be differentiated: the generated methods cannot throw yet; validate the argument before calling the method, or return double.NaN from this arm",
         }),
         ["TwoLinkReachVector2"] = new(Accepted: true, Hessian: true, Diagnostics: new string[]
         {
@@ -42,10 +40,8 @@ internal static class CorpusStatus
         ["PanTiltAimVector3"] = new(Accepted: true, Hessian: true, Diagnostics: new string[]
         {
         }),
-        ["JointLimitPenaltyGuards"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
+        ["JointLimitPenaltyGuards"] = new(Accepted: true, Hessian: true, Diagnostics: new string[]
         {
-            "DG0001: The throw helper 'ArgumentNullException.ThrowIfNull' cannot be differentiated: the generated methods cannot throw yet; check the arguments before calling the method (the check can stay in a method that calls this one)",
-            "DG0001: The throw helper 'ArgumentOutOfRangeException.ThrowIfNotEqual' cannot be differentiated: the generated methods cannot throw yet; check the arguments before calling the method (the check can stay in a method that calls this one)",
             "DG0007: 'q[i] switch { … }' is not differentiable everywhere: an arm's condition depends on a differentiation variable, so the derivative is that of the arm taken and jumps where the arm changes",
         }),
         ["ProjectileRk4Drag"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
@@ -81,17 +77,15 @@ internal static class CorpusStatus
         ["SpringMassRecordStruct"] = new(Accepted: true, Hessian: true, Diagnostics: new string[]
         {
         }),
-        ["BallisticRangeFiniteGuard"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
+        ["BallisticRangeFiniteGuard"] = new(Accepted: true, Hessian: true, Diagnostics: new string[]
         {
-            "DG0007: 'if (!double.IsFinite(speed) || speed <= 0)' is not differentiable everywhere: the condition depends on a differentiation variable, so the derivative is that of the branch taken and jumps where the condition changes",
-            "DG0001: The throw statement cannot be differentiated: the generated methods cannot throw yet; check the arguments before calling the method (the check can stay in a method that calls this one)",
         }),
         ["SoftmaxCrossEntropyLinq"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
         {
             "DG0001: The local 'logits' of type 'double[]?' cannot be differentiated: locals must be double, float, int or bool",
             "DG0001: The assignment 'logits[c] = weights[2 * c] * Features[0] + weights[2 * c ...' cannot be differentiated: only locals of the method can be assigned",
-            "DG0001: The call to 'System.Linq.Enumerable.Max' cannot be differentiated: LINQ is not differentiated in this version; write the maximum as a for loop over the array: `double m = double.NegativeInfinity; for (int i = 0; i < logits.Length; i++) m = Math.Max(m, …);`",
-            "DG0001: The call to 'System.Linq.Enumerable.Sum' cannot be differentiated: LINQ is not differentiated in this version; write the sum as a for loop over the array: `double s = 0; for (int i = 0; i < logits.Length; i++) s += …;`",
+            "DG0001: The call to 'System.Linq.Enumerable.Max' cannot be differentiated: this version lowers Sum, Average, Max and Min (double) over arrays, Select, Zip and Enumerable.Range to loops, not this; write the maximum as a for loop over the array: `double m = double.NegativeInfinity; for (int i = 0; i < logits.Length; i++) m = Math.Max(m, …);`",
+            "DG0001: The call to 'System.Linq.Enumerable.Sum' cannot be differentiated: this version lowers Sum, Average, Max and Min (double) over arrays, Select, Zip and Enumerable.Range to loops, not this; write the sum as a for loop over the array: `double s = 0; for (int i = 0; i < logits.Length; i++) s += …;`",
             "DG0001: The element access 'logits[Label]' cannot be differentiated: read elements of double, float or int arrays and spans that are parameters (not variables), fields of this instance or static readonly fields",
         }),
         ["LogisticRegressionTupleHelper"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
@@ -105,13 +99,11 @@ internal static class CorpusStatus
             "DG0001: The element access 'hidden[0]' cannot be differentiated: read elements of double, float or int arrays and spans that are parameters (not variables), fields of this instance or static readonly fields",
             "DG0001: The element access 'hidden[1]' cannot be differentiated: read elements of double, float or int arrays and spans that are parameters (not variables), fields of this instance or static readonly fields",
         }),
-        ["RidgeEnumerableRangeAverage"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
+        ["RidgeEnumerableRangeAverage"] = new(Accepted: true, Hessian: true, Diagnostics: new string[]
         {
-            "DG0001: The call to 'System.Linq.Enumerable.Average' cannot be differentiated: LINQ is not differentiated in this version; write the mean as a for loop over the array: `double s = 0; for (int i = 0; i < Size.Length; i++) s += …; double mean = s / Size.Length;`",
         }),
-        ["ActivationEnumSwitchThrow"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
+        ["ActivationEnumSwitchThrow"] = new(Accepted: true, Hessian: true, Diagnostics: new string[]
         {
-            "DG0001: The throw statement cannot be differentiated: the generated methods cannot throw yet; check the arguments before calling the method (the check can stay in a method that calls this one)",
         }),
         ["QuadraticHorizonLocalArray"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
         {
@@ -140,10 +132,8 @@ internal static class CorpusStatus
         {
             "DG0007: 'u switch { … }' is not differentiable everywhere: an arm's condition depends on a differentiation variable, so the derivative is that of the arm taken and jumps where the arm changes",
         }),
-        ["NormalLikelihoodLinqGuard"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
+        ["NormalLikelihoodLinqGuard"] = new(Accepted: true, Hessian: true, Diagnostics: new string[]
         {
-            "DG0001: The throw helper 'ArgumentOutOfRangeException.ThrowIfNegativeOrZero' cannot be differentiated: the generated methods cannot throw yet; check the arguments before calling the method (the check can stay in a method that calls this one)",
-            "DG0001: The call to 'System.Linq.Enumerable.Sum' cannot be differentiated: LINQ is not differentiated in this version; write the sum as a for loop over the array: `double s = 0; for (int i = 0; i < Sample.Length; i++) s += …;`",
         }),
         ["PoissonRegressionInstanceHelper"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
         {
@@ -158,25 +148,20 @@ internal static class CorpusStatus
         ["Ar1RangesZip"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
         {
             "DG0001: The local 'ys' of type 'double[]' cannot be differentiated: locals must be double, float, int or bool",
-            "DG0001: The call to 'System.Linq.Enumerable.Sum' cannot be differentiated: LINQ is not differentiated in this version; write the sum as a for loop over the array: `double s = 0; for (int i = 0; i < xs.Length; i++) s += …;`",
+            "DG0001: The call to 'System.Linq.Enumerable.Sum' cannot be differentiated: this version lowers Sum, Average, Max and Min (double) over arrays, Select, Zip and Enumerable.Range to loops, not this; write the sum as a for loop over the array: `double s = 0; for (int i = 0; i < xs.Length; i++) s += …;`",
         }),
         ["MeanVarianceQuadraticForm"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
         {
             "DG0001: The call to 'Portfolio.QuadraticForm' cannot be differentiated: a helper called from a differentiated method must be a static method with a body in this compilation, not generic, return double or float and take double, float, int or bool parameters; 'QuadraticForm' takes 'double[*,*] m': write its computation inline in this method with double and float locals",
         }),
-        ["KellyFractionSelectAverage"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
+        ["KellyFractionSelectAverage"] = new(Accepted: true, Hessian: true, Diagnostics: new string[]
         {
-            "DG0001: The call to 'System.Linq.Enumerable.Average' cannot be differentiated: LINQ is not differentiated in this version; write the mean as a for loop over the array: `double s = 0; for (int i = 0; i < Returns.Length; i++) s += …; double mean = s / Returns.Length;`",
         }),
         ["BachelierQuotesRecordStruct"] = new(Accepted: true, Hessian: true, Diagnostics: new string[]
         {
         }),
-        ["TrackingErrorThrowHelpers"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
+        ["TrackingErrorThrowHelpers"] = new(Accepted: true, Hessian: true, Diagnostics: new string[]
         {
-            "DG0001: The throw helper 'ArgumentNullException.ThrowIfNull' cannot be differentiated: the generated methods cannot throw yet; check the arguments before calling the method (the check can stay in a method that calls this one)",
-            "DG0001: The throw helper 'ArgumentNullException.ThrowIfNull' cannot be differentiated: the generated methods cannot throw yet; check the arguments before calling the method (the check can stay in a method that calls this one)",
-            "DG0001: The throw statement cannot be differentiated: the generated methods cannot throw yet; check the arguments before calling the method (the check can stay in a method that calls this one)",
-            "DG0001: The call to 'System.Linq.Enumerable.Sum' cannot be differentiated: LINQ is not differentiated in this version; write the sum as a for loop over the array: `double s = 0; for (int i = 0; i < w.Length; i++) s += …;`",
         }),
         ["SineFitSpanSlice"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
         {
@@ -221,9 +206,8 @@ internal static class CorpusStatus
         {
             "DG0007: 'Vector4.Min' is not differentiable everywhere: at a tie the derivative of the first argument is used (per component, as MathF.Min)",
         }),
-        ["ArrheniusZipTuples"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
+        ["ArrheniusZipTuples"] = new(Accepted: true, Hessian: true, Diagnostics: new string[]
         {
-            "DG0001: The call to 'System.Linq.Enumerable.Sum' cannot be differentiated: LINQ is not differentiated in this version; write the sum as a for loop over the array: `double s = 0; for (int i = 0; i < Kelvin.Length; i++) s += …;`",
         }),
         ["ConsecutiveReactionRk4"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
         {
@@ -255,14 +239,12 @@ internal static class CorpusStatus
             "DG0007: 'side == Side.Inside ? … : …' is not differentiable everywhere: the condition depends on a differentiation variable, so the derivative is that of the branch taken and jumps where the condition changes",
             "DG0007: 'Math.Abs' is not differentiable everywhere: its derivative at 0 is taken as 0",
         }),
-        ["PathEndClearanceMin"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
+        ["PathEndClearanceMin"] = new(Accepted: true, Hessian: true, Diagnostics: new string[]
         {
-            "DG0001: The call to 'System.Linq.Enumerable.Min' cannot be differentiated: LINQ is not differentiated in this version; write the minimum as a for loop over the array: `double m = double.PositiveInfinity; for (int i = 0; i < ObstacleX.Length; i++) m = Math.Min(m, …);`",
+            "DG0007: 'Enumerable.Min' is not differentiable everywhere: the derivative is that of the element selected (the first of equal ones) and jumps where another element takes over",
         }),
-        ["LogisticRangeSumSelectPenalty"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
+        ["LogisticRangeSumSelectPenalty"] = new(Accepted: true, Hessian: true, Diagnostics: new string[]
         {
-            "DG0001: The call to 'System.Linq.Enumerable.Sum' cannot be differentiated: LINQ is not differentiated in this version; write the sum as a for loop over the array: `double s = 0; for (int i = 0; i < Y.Length; i++) s += …;`",
-            "DG0001: The call to 'System.Linq.Enumerable.Sum' cannot be differentiated: LINQ is not differentiated in this version; write the sum out, one term for each of w0, w1: `… + …`",
         }),
         ["SpectralUnmixingArrayHelper"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
         {
