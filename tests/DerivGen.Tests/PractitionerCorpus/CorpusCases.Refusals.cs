@@ -37,7 +37,7 @@ internal static partial class CorpusCases
         ["BallisticRangeFiniteGuard"] = (new[] { "throw statement" }, null, NoEdit),
         ["SoftmaxCrossEntropyLinq"] = (new[] { "logits", "System.Linq.Enumerable.Max" }, null, NoEdit),
         ["LogisticRegressionTupleHelper"] = (new[] { "deconstruction", "Predict" }, null, NoEdit),
-        ["TinyNetworkGenericActivation"] = (new[] { "hidden" }, null, NoEdit),
+        ["TinyNetworkGenericActivation"] = (new[] { "TinyNet.Activation" }, null, NoEdit),
         ["RidgeEnumerableRangeAverage"] = (new[] { "System.Linq.Enumerable.Average" }, null, NoEdit),
         ["ActivationEnumSwitchThrow"] = (new[] { "throw statement" }, null, NoEdit),
         ["QuadraticHorizonLocalArray"] = (new[] { "double[]" }, null, NoEdit),
@@ -51,7 +51,7 @@ internal static partial class CorpusCases
         ["WeibullGenericMathHelper"] = (new[] { "BearingLife.LogPdf" }, null,
             // The advice works: LogPdf written inline with double locals (T's functions as System.Math's) is accepted.
             new[] { ("nll -= LogPdf(h, shape, scale);", "double z = h / scale;\n            nll -= Math.Log(shape / scale) + (shape - 1) * Math.Log(z) - Math.Pow(z, shape);") }),
-        ["Ar1RangesZip"] = (new[] { "'ys'", "System.Linq.Enumerable.Sum" }, null, NoEdit),
+        ["Ar1RangesZip"] = (new[] { "System.Linq.Enumerable.Sum" }, null, NoEdit),
         ["MeanVarianceQuadraticForm"] = (new[] { "Portfolio.QuadraticForm" }, null,
             // The advice works: the quadratic form written inline as a double loop is accepted.
             new[] { ("0.5 * riskAversion * QuadraticForm(Sigma, weights)", "0.5 * riskAversion * risk"), ("double budget =", "double risk = 0;\n        for (int i = 0; i < weights.Length; i++)\n        {\n            for (int j = 0; j < weights.Length; j++)\n            {\n                risk += weights[i] * Sigma[i, j] * weights[j];\n            }\n        }\n\n        double budget =") }),
@@ -60,12 +60,9 @@ internal static partial class CorpusCases
             "the message asks for 'a one-dimensional array or span of data (not a variable), with the element's own type' — Quotes is exactly that; the obstacle (the element is a struct) is not named, so there is nothing to change",
             NoEdit),
         ["TrackingErrorThrowHelpers"] = (new[] { "ThrowIfNull", "throw statement", "System.Linq.Enumerable.Sum" }, null, NoEdit),
-        ["SineFitSpanSlice"] = (new[] { "System.ReadOnlySpan<double>", "window" },
-            "'only static properties of double, float or int type are read as constants' for window.Length cannot apply: Length is the span's own instance property",
-            NoEdit),
-        ["FirEqualizerStackalloc"] = (new[] { "System.Span<double>", "output" },
-            "'only static properties of double, float or int type are read as constants' for output.Length cannot apply: Length is the span's own instance property",
-            NoEdit),
+        ["FirEqualizerStackalloc"] = (new[] { "output", "Input.Length" }, null,
+            // The advice followed: a constant length, and the loop that writes the elements given constant bounds (then unrolled).
+            new[] { ("stackalloc double[Input.Length]", "stackalloc double[8]"), ("for (int n = 0; n < Input.Length; n++)", "for (int n = 0; n < 8; n++)") }),
                 ["CircleFitVector2"] = (new[] { "System.Numerics.Vector2", "foreach (Vector2 p in Points)" },
             "the message asks for 'a one-dimensional array or span of data (not a variable), with the element's own type' — Points is exactly that; the obstacle (Vector2 elements) is not named",
             NoEdit),
@@ -90,9 +87,17 @@ internal static partial class CorpusCases
             }),
         ["PathEndClearanceMin"] = (new[] { "System.Linq.Enumerable.Min" }, null, NoEdit),
         ["LogisticRangeSumSelectPenalty"] = (new[] { "System.Linq.Enumerable.Sum" }, null, NoEdit),
-        ["SpectralUnmixingArrayHelper"] = (new[] { "Unmixing.Dot" },
-            "the message says to write Dot inline; its first argument is a row of a jagged array (Absorptivity[k]), which a differentiated body cannot read, so the rewrite needs more than the message says (checked on the edited source)",
-            new[] { ("double r = Dot(Absorptivity[k], concentration) - Measured[k];", "double dot = 0;\n            for (int j = 0; j < concentration.Length; j++)\n            {\n                dot += Absorptivity[k][j] * concentration[j];\n            }\n\n            double r = dot - Measured[k];") }),
+        ["SpectralUnmixingArrayHelper"] = (new[] { "Absorptivity[k]", "jagged" }, null,
+            // The advice followed: the absorptivities as a 2-D array, passed with the row index.
+            new[]
+            {
+                ("public static readonly double[][] Absorptivity =\n    {\n        new[] { 1.2, 0.1 },\n        new[] { 0.8, 0.5 },\n        new[] { 0.3, 1.1 },\n        new[] { 0.1, 0.9 },\n    };",
+                    "public static readonly double[,] Absorptivity = { { 1.2, 0.1 }, { 0.8, 0.5 }, { 0.3, 1.1 }, { 0.1, 0.9 } };"),
+                ("private static double Dot(double[] a, double[] b)", "private static double Dot(double[,] a, int row, double[] b)"),
+                ("for (int i = 0; i < a.Length; i++)", "for (int i = 0; i < b.Length; i++)"),
+                ("s += a[i] * b[i];", "s += a[row, i] * b[i];"),
+                ("Dot(Absorptivity[k], concentration)", "Dot(Absorptivity, k, concentration)"),
+            }),
     };
 
     private static (string, string)[] NoEdit => Array.Empty<(string, string)>();

@@ -18,9 +18,8 @@ internal static class CorpusStatus
         ["GaussianPeakHelper"] = new(Accepted: true, Hessian: true, Diagnostics: new string[]
         {
         }),
-        ["PolynomialHornerSpanHelper"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
+        ["PolynomialHornerSpanHelper"] = new(Accepted: true, Hessian: true, Diagnostics: new string[]
         {
-            "DG0001: The call to 'Calibration.Horner' cannot be differentiated: a helper called from a differentiated method must be a static method with a body in this compilation, not generic, return double or float and take double, float, int or bool parameters; 'Horner' takes 'System.ReadOnlySpan<double> c': write its computation inline in this method with double and float locals",
         }),
         ["RobustLossEnumSwitch"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
         {
@@ -32,19 +31,15 @@ internal static class CorpusStatus
             "DG0001: The local 'tip' of type 'System.Numerics.Vector2' cannot be differentiated: locals must be double, float, int or bool; System.Numerics vectors are not differentiated in this version: keep its components in double or float locals (tipX, tipY)",
             "DG0001: The call to 'System.Numerics.Vector2.DistanceSquared' cannot be differentiated: System.Numerics vectors are not differentiated in this version; work on the components as double or float scalars (pass x, y as separate parameters, keep them in separate locals) and write Vector2.DistanceSquared as `double dx = ax - bx, dy = ay - by; … dx * dx + dy * dy`",
         }),
-        ["ThreeLinkStackalloc"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
+        ["ThreeLinkStackalloc"] = new(Accepted: true, Hessian: true, Diagnostics: new string[]
         {
-            "DG0001: The local 'cumulative' of type 'System.Span<double>' cannot be differentiated: locals must be double, float, int or bool",
-            "DG0001: The assignment 'cumulative[j] = angle' cannot be differentiated: only locals of the method can be assigned",
-            "DG0001: The element access 'cumulative[j]' cannot be differentiated: read elements of double, float or int arrays and spans that are parameters (not variables), fields of this instance or static readonly fields",
-            "DG0001: The element access 'cumulative[j]' cannot be differentiated: read elements of double, float or int arrays and spans that are parameters (not variables), fields of this instance or static readonly fields",
         }),
         ["SerialChainPoseStruct"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
         {
             "DG0001: The local 'p' of type 'Corpus.SerialChainPoseStruct.Pose' cannot be differentiated: locals must be double, float, int or bool",
-            "DG0001: The call to 'SerialChain.Advance' cannot be differentiated: a helper called from a differentiated method must be a static method with a body in this compilation, not generic, return double or float and take double, float, int or bool parameters; 'Advance' returns 'Corpus.SerialChainPoseStruct.Pose': write its computation inline in this method with double and float locals",
-            "DG0001: The call to 'SerialChain.Advance' cannot be differentiated: a helper called from a differentiated method must be a static method with a body in this compilation, not generic, return double or float and take double, float, int or bool parameters; 'Advance' returns 'Corpus.SerialChainPoseStruct.Pose': write its computation inline in this method with double and float locals",
-            "DG0001: The call to 'SerialChain.Advance' cannot be differentiated: a helper called from a differentiated method must be a static method with a body in this compilation, not generic, return double or float and take double, float, int or bool parameters; 'Advance' returns 'Corpus.SerialChainPoseStruct.Pose': write its computation inline in this method with double and float locals",
+            "DG0001: The call to 'SerialChain.Advance' cannot be differentiated: inlined methods take double, float, int or bool parameters by value or 'in', or one-dimensional arrays or spans of them, or double[,]/float[,]/int[,] data, return one of those scalar types, a tuple of them or nothing, are not generic or recursive, and do not assign what they capture; 'Advance' returns 'Corpus.SerialChainPoseStruct.Pose': write its computation in this method with double and float locals, or pass and return those",
+            "DG0001: The call to 'SerialChain.Advance' cannot be differentiated: inlined methods take double, float, int or bool parameters by value or 'in', or one-dimensional arrays or spans of them, or double[,]/float[,]/int[,] data, return one of those scalar types, a tuple of them or nothing, are not generic or recursive, and do not assign what they capture; 'Advance' returns 'Corpus.SerialChainPoseStruct.Pose': write its computation in this method with double and float locals, or pass and return those",
+            "DG0001: The call to 'SerialChain.Advance' cannot be differentiated: inlined methods take double, float, int or bool parameters by value or 'in', or one-dimensional arrays or spans of them, or double[,]/float[,]/int[,] data, return one of those scalar types, a tuple of them or nothing, are not generic or recursive, and do not assign what they capture; 'Advance' returns 'Corpus.SerialChainPoseStruct.Pose': write its computation in this method with double and float locals, or pass and return those",
             "DG0001: The property 'X' cannot be differentiated: only static properties of double, float or int type are read as constants",
             "DG0001: The property 'Y' cannot be differentiated: only static properties of double, float or int type are read as constants",
             "DG0001: The property 'Heading' cannot be differentiated: only static properties of double, float or int type are read as constants",
@@ -63,29 +58,8 @@ internal static class CorpusStatus
             "DG0001: The throw helper 'ArgumentOutOfRangeException.ThrowIfNotEqual' cannot be differentiated: the generated methods cannot throw yet; check the arguments before calling the method (the check can stay in a method that calls this one)",
             "DG0007: 'q[i] switch { … }' is not differentiable everywhere: an arm's condition depends on a differentiation variable, so the derivative is that of the arm taken and jumps where the arm changes",
         }),
-        ["ProjectileRk4Drag"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
+        ["ProjectileRk4Drag"] = new(Accepted: true, Hessian: true, Diagnostics: new string[]
         {
-            "DG0001: The local 's' of type 'System.Span<double>' cannot be differentiated: locals must be double, float, int or bool",
-            "DG0001: The assignment 's[0] = 0' cannot be differentiated: only locals of the method can be assigned",
-            "DG0001: The assignment 's[1] = 0' cannot be differentiated: only locals of the method can be assigned",
-            "DG0001: The assignment 's[2] = speed * Math.Cos(elevation)' cannot be differentiated: only locals of the method can be assigned",
-            "DG0001: The assignment 's[3] = speed * Math.Sin(elevation)' cannot be differentiated: only locals of the method can be assigned",
-            "DG0001: The local 'k1' of type 'System.Span<double>' cannot be differentiated: locals must be double, float, int or bool",
-            "DG0001: The local 'k2' of type 'System.Span<double>' cannot be differentiated: locals must be double, float, int or bool",
-            "DG0001: The local 'k3' of type 'System.Span<double>' cannot be differentiated: locals must be double, float, int or bool",
-            "DG0001: The local 'k4' of type 'System.Span<double>' cannot be differentiated: locals must be double, float, int or bool",
-            "DG0001: The local 'tmp' of type 'System.Span<double>' cannot be differentiated: locals must be double, float, int or bool",
-            "DG0001: The statement 'Rhs(s, drag, k1)' cannot be differentiated: a differentiable body only declares and assigns locals and returns a value",
-            "DG0001: The assignment 'tmp[j] = s[j] + 0.5 * Dt * k1[j]' cannot be differentiated: only locals of the method can be assigned",
-            "DG0001: The statement 'Rhs(tmp, drag, k2)' cannot be differentiated: a differentiable body only declares and assigns locals and returns a value",
-            "DG0001: The assignment 'tmp[j] = s[j] + 0.5 * Dt * k2[j]' cannot be differentiated: only locals of the method can be assigned",
-            "DG0001: The statement 'Rhs(tmp, drag, k3)' cannot be differentiated: a differentiable body only declares and assigns locals and returns a value",
-            "DG0001: The assignment 'tmp[j] = s[j] + Dt * k3[j]' cannot be differentiated: only locals of the method can be assigned",
-            "DG0001: The statement 'Rhs(tmp, drag, k4)' cannot be differentiated: a differentiable body only declares and assigns locals and returns a value",
-            "DG0001: The assignment 's[j] += Dt / 6 * (k1[j] + 2 * k2[j] + 2 * k3[j] + k4[j])' cannot be differentiated: only locals of the method can be assigned",
-            "DG0001: The element access 's[0]' cannot be differentiated: read elements of double, float or int arrays and spans that are parameters (not variables), fields of this instance or static readonly fields",
-            "DG0001: The element access 's[1]' cannot be differentiated: read elements of double, float or int arrays and spans that are parameters (not variables), fields of this instance or static readonly fields",
-            "DG0001: The element access 's[1]' cannot be differentiated: read elements of double, float or int arrays and spans that are parameters (not variables), fields of this instance or static readonly fields",
         }),
         ["PendulumLocalFunction"] = new(Accepted: true, Hessian: true, Diagnostics: new string[]
         {
@@ -106,7 +80,7 @@ internal static class CorpusStatus
         ["SpringMassRecordStruct"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
         {
             "DG0001: The local 'state' of type 'Corpus.SpringMassRecordStruct.State' cannot be differentiated: locals must be double, float, int or bool",
-            "DG0001: The call to 'Suspension.Step' cannot be differentiated: a helper called from a differentiated method must be a static method with a body in this compilation, not generic, return double or float and take double, float, int or bool parameters; 'Step' returns 'Corpus.SpringMassRecordStruct.State': write its computation inline in this method with double and float locals",
+            "DG0001: The call to 'Suspension.Step' cannot be differentiated: inlined methods take double, float, int or bool parameters by value or 'in', or one-dimensional arrays or spans of them, or double[,]/float[,]/int[,] data, return one of those scalar types, a tuple of them or nothing, are not generic or recursive, and do not assign what they capture; 'Step' returns 'Corpus.SpringMassRecordStruct.State': write its computation in this method with double and float locals, or pass and return those",
             "DG0001: The property 'Position' cannot be differentiated: only static properties of double, float or int type are read as constants",
             "DG0001: The property 'Position' cannot be differentiated: only static properties of double, float or int type are read as constants",
         }),
@@ -117,22 +91,16 @@ internal static class CorpusStatus
         }),
         ["SoftmaxCrossEntropyLinq"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
         {
-            "DG0001: The local 'logits' of type 'double[]?' cannot be differentiated: locals must be double, float, int or bool",
-            "DG0001: The assignment 'logits[c] = weights[2 * c] * Features[0] + weights[2 * c ...' cannot be differentiated: only locals of the method can be assigned",
             "DG0001: The call to 'System.Linq.Enumerable.Max' cannot be differentiated: LINQ is not differentiated in this version; write the maximum as a for loop over the array: `double m = double.NegativeInfinity; for (int i = 0; i < logits.Length; i++) m = Math.Max(m, …);`",
             "DG0001: The call to 'System.Linq.Enumerable.Sum' cannot be differentiated: LINQ is not differentiated in this version; write the sum as a for loop over the array: `double s = 0; for (int i = 0; i < logits.Length; i++) s += …;`",
-            "DG0001: The element access 'logits[Label]' cannot be differentiated: read elements of double, float or int arrays and spans that are parameters (not variables), fields of this instance or static readonly fields",
         }),
-        ["LogisticRegressionTupleHelper"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
+        ["LogisticRegressionTupleHelper"] = new(Accepted: true, Hessian: true, Diagnostics: new string[]
         {
-            "DG0001: The deconstruction 'var (p, _) = Predict(w, bias, X.AsSpan().Slice(i * D, D))' cannot be differentiated: deconstruct a tuple literal of values into locals: var (a, b) = (x * y, x + y);",
         }),
         ["TinyNetworkGenericActivation"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
         {
-            "DG0001: The local 'hidden' of type 'double[]?' cannot be differentiated: locals must be double, float, int or bool",
-            "DG0001: The assignment 'hidden[h] = Activation(parameters[2 * h] * Inputs[n, 0] +...' cannot be differentiated: only locals of the method can be assigned",
-            "DG0001: The element access 'hidden[0]' cannot be differentiated: read elements of double, float or int arrays and spans that are parameters (not variables), fields of this instance or static readonly fields",
-            "DG0001: The element access 'hidden[1]' cannot be differentiated: read elements of double, float or int arrays and spans that are parameters (not variables), fields of this instance or static readonly fields",
+            "DG0001: The call to 'TinyNet.Activation' cannot be differentiated: a helper called from a differentiated method must be a static method with a body in this compilation, not generic, return double or float and take double, float, int or bool parameters; 'Activation' is generic: write its computation inline in this method with double and float locals",
+            "DG0001: The call to 'TinyNet.Activation' cannot be differentiated: a helper called from a differentiated method must be a static method with a body in this compilation, not generic, return double or float and take double, float, int or bool parameters; 'Activation' is generic: write its computation inline in this method with double and float locals",
         }),
         ["RidgeEnumerableRangeAverage"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
         {
@@ -142,28 +110,14 @@ internal static class CorpusStatus
         {
             "DG0001: The throw statement cannot be differentiated: the generated methods cannot throw yet; check the arguments before calling the method (the check can stay in a method that calls this one)",
         }),
-        ["QuadraticHorizonLocalArray"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
+        ["QuadraticHorizonLocalArray"] = new(Accepted: true, Hessian: true, Diagnostics: new string[]
         {
-            "DG0001: The local 'x' of type 'double[]' cannot be differentiated: locals must be double, float, int or bool",
-            "DG0001: The element access 'x[0]' cannot be differentiated: read elements of double, float or int arrays and spans that are parameters (not variables), fields of this instance or static readonly fields",
-            "DG0001: The element access 'x[0]' cannot be differentiated: read elements of double, float or int arrays and spans that are parameters (not variables), fields of this instance or static readonly fields",
-            "DG0001: The element access 'x[1]' cannot be differentiated: read elements of double, float or int arrays and spans that are parameters (not variables), fields of this instance or static readonly fields",
-            "DG0001: The element access 'x[1]' cannot be differentiated: read elements of double, float or int arrays and spans that are parameters (not variables), fields of this instance or static readonly fields",
-            "DG0001: The element access 'x[0]' cannot be differentiated: read elements of double, float or int arrays and spans that are parameters (not variables), fields of this instance or static readonly fields",
-            "DG0001: The element access 'x[1]' cannot be differentiated: read elements of double, float or int arrays and spans that are parameters (not variables), fields of this instance or static readonly fields",
-            "DG0001: The element access 'x[1]' cannot be differentiated: read elements of double, float or int arrays and spans that are parameters (not variables), fields of this instance or static readonly fields",
-            "DG0001: The assignment 'x[0] = p' cannot be differentiated: only locals of the method can be assigned",
-            "DG0001: The assignment 'x[1] = v' cannot be differentiated: only locals of the method can be assigned",
-            "DG0001: The element access 'x[0]' cannot be differentiated: read elements of double, float or int arrays and spans that are parameters (not variables), fields of this instance or static readonly fields",
-            "DG0001: The element access 'x[0]' cannot be differentiated: read elements of double, float or int arrays and spans that are parameters (not variables), fields of this instance or static readonly fields",
-            "DG0001: The element access 'x[1]' cannot be differentiated: read elements of double, float or int arrays and spans that are parameters (not variables), fields of this instance or static readonly fields",
-            "DG0001: The element access 'x[1]' cannot be differentiated: read elements of double, float or int arrays and spans that are parameters (not variables), fields of this instance or static readonly fields",
         }),
         ["PlantStructInstanceHelper"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
         {
-            "DG0001: The call to 'Corpus.PlantStructInstanceHelper.FirstOrderPlant.Next' cannot be differentiated: only the functions of System.Math, System.MathF, double and float listed in the README, and other [Differentiate] methods, can be called; 'Next' is called on another object than this one, so marking it [Differentiate] would not help: write its computation inline in this method with double and float locals",
-            "DG0001: The call to 'Corpus.PlantStructInstanceHelper.FirstOrderPlant.Next' cannot be differentiated: only the functions of System.Math, System.MathF, double and float listed in the README, and other [Differentiate] methods, can be called; 'Next' is called on another object than this one, so marking it [Differentiate] would not help: write its computation inline in this method with double and float locals",
-            "DG0001: The call to 'Corpus.PlantStructInstanceHelper.FirstOrderPlant.Next' cannot be differentiated: only the functions of System.Math, System.MathF, double and float listed in the README, and other [Differentiate] methods, can be called; 'Next' is called on another object than this one, so marking it [Differentiate] would not help: write its computation inline in this method with double and float locals",
+            "DG0001: The call to 'FirstOrderPlant.Next' cannot be differentiated: 'Next' is called on another object than this one; make it a static method that takes what it reads as parameters: a static method is inlined (or called as a helper)",
+            "DG0001: The call to 'FirstOrderPlant.Next' cannot be differentiated: 'Next' is called on another object than this one; make it a static method that takes what it reads as parameters: a static method is inlined (or called as a helper)",
+            "DG0001: The call to 'FirstOrderPlant.Next' cannot be differentiated: 'Next' is called on another object than this one; make it a static method that takes what it reads as parameters: a static method is inlined (or called as a helper)",
         }),
         ["PiTuningStaticLocalFunction"] = new(Accepted: true, Hessian: true, Diagnostics: new string[]
         {
@@ -177,9 +131,8 @@ internal static class CorpusStatus
             "DG0001: The throw helper 'ArgumentOutOfRangeException.ThrowIfNegativeOrZero' cannot be differentiated: the generated methods cannot throw yet; check the arguments before calling the method (the check can stay in a method that calls this one)",
             "DG0001: The call to 'System.Linq.Enumerable.Sum' cannot be differentiated: LINQ is not differentiated in this version; write the sum as a for loop over the array: `double s = 0; for (int i = 0; i < Sample.Length; i++) s += …;`",
         }),
-        ["PoissonRegressionInstanceHelper"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
+        ["PoissonRegressionInstanceHelper"] = new(Accepted: true, Hessian: true, Diagnostics: new string[]
         {
-            "DG0001: The call to 'Corpus.PoissonRegressionInstanceHelper.DefectModel.Rate' cannot be differentiated: only the functions of System.Math, System.MathF, double and float listed in the README, and other [Differentiate] methods, can be called; mark the method [Differentiate] to differentiate through it",
         }),
         ["WeibullGenericMathHelper"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
         {
@@ -190,12 +143,10 @@ internal static class CorpusStatus
         }),
         ["Ar1RangesZip"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
         {
-            "DG0001: The local 'ys' of type 'double[]' cannot be differentiated: locals must be double, float, int or bool",
             "DG0001: The call to 'System.Linq.Enumerable.Sum' cannot be differentiated: LINQ is not differentiated in this version; write the sum as a for loop over the array: `double s = 0; for (int i = 0; i < xs.Length; i++) s += …;`",
         }),
-        ["MeanVarianceQuadraticForm"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
+        ["MeanVarianceQuadraticForm"] = new(Accepted: true, Hessian: true, Diagnostics: new string[]
         {
-            "DG0001: The call to 'Portfolio.QuadraticForm' cannot be differentiated: a helper called from a differentiated method must be a static method with a body in this compilation, not generic, return double or float and take double, float, int or bool parameters; 'QuadraticForm' takes 'double[*,*] m': write its computation inline in this method with double and float locals",
         }),
         ["KellyFractionSelectAverage"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
         {
@@ -212,20 +163,12 @@ internal static class CorpusStatus
             "DG0001: The throw statement cannot be differentiated: the generated methods cannot throw yet; check the arguments before calling the method (the check can stay in a method that calls this one)",
             "DG0001: The call to 'System.Linq.Enumerable.Sum' cannot be differentiated: LINQ is not differentiated in this version; write the sum as a for loop over the array: `double s = 0; for (int i = 0; i < w.Length; i++) s += …;`",
         }),
-        ["SineFitSpanSlice"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
+        ["SineFitSpanSlice"] = new(Accepted: true, Hessian: true, Diagnostics: new string[]
         {
-            "DG0001: The local 'window' of type 'System.ReadOnlySpan<double>' cannot be differentiated: locals must be double, float, int or bool",
-            "DG0001: The property 'Length' cannot be differentiated: only static properties of double, float or int type are read as constants",
-            "DG0001: The element access 'window[n]' cannot be differentiated: read elements of double, float or int arrays and spans that are parameters (not variables), fields of this instance or static readonly fields",
         }),
         ["FirEqualizerStackalloc"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
         {
-            "DG0001: The local 'output' of type 'System.Span<double>' cannot be differentiated: locals must be double, float, int or bool",
-            "DG0001: The assignment 'output[n] = acc' cannot be differentiated: only locals of the method can be assigned",
-            "DG0001: The property 'Length' cannot be differentiated: only static properties of double, float or int type are read as constants",
-            "DG0001: The element access 'output[n]' cannot be differentiated: read elements of double, float or int arrays and spans that are parameters (not variables), fields of this instance or static readonly fields",
-            "DG0001: The element access 'output[n]' cannot be differentiated: read elements of double, float or int arrays and spans that are parameters (not variables), fields of this instance or static readonly fields",
-            "DG0001: The property 'Length' cannot be differentiated: only static properties of double, float or int type are read as constants",
+            "DG0001: The local array 'output' of length 'Input.Length' cannot be differentiated: its length is not a compile-time constant, and local arrays indexed at run time are not in this version; give it a constant length of at most 64 (a literal or a const, e.g. new double[4]) and index it with constants or with the index of a for loop with constant bounds",
         }),
         ["RingDownStaticLocalFunction"] = new(Accepted: true, Hessian: true, Diagnostics: new string[]
         {
@@ -250,7 +193,7 @@ internal static class CorpusStatus
             "DG0001: The property 'Length' cannot be differentiated: only static properties of double, float or int type are read as constants",
             "DG0001: The local 'a' of type 'Corpus.MeshSmoothingMutableStruct.Vertex' cannot be differentiated: locals must be double, float, int or bool",
             "DG0001: The local 'b' of type 'Corpus.MeshSmoothingMutableStruct.Vertex' cannot be differentiated: locals must be double, float, int or bool",
-            "DG0001: The call to 'MeshSmoothing.SignedArea' cannot be differentiated: a helper called from a differentiated method must be a static method with a body in this compilation, not generic, return double or float and take double, float, int or bool parameters; 'SignedArea' takes 'Corpus.MeshSmoothingMutableStruct.Vertex a': write its computation inline in this method with double and float locals",
+            "DG0001: The call to 'MeshSmoothing.SignedArea' cannot be differentiated: inlined methods take double, float, int or bool parameters by value or 'in', or one-dimensional arrays or spans of them, or double[,]/float[,]/int[,] data, return one of those scalar types, a tuple of them or nothing, are not generic or recursive, and do not assign what they capture; 'SignedArea' takes 'Corpus.MeshSmoothingMutableStruct.Vertex a': write its computation in this method with double and float locals, or pass and return those",
             "DG0001: The field 'X' cannot be differentiated: instance fields come in a later version; pass the value as a parameter",
             "DG0001: The field 'X' cannot be differentiated: instance fields come in a later version; pass the value as a parameter",
             "DG0001: The field 'Y' cannot be differentiated: instance fields come in a later version; pass the value as a parameter",
@@ -282,23 +225,8 @@ internal static class CorpusStatus
         {
             "DG0001: The call to 'System.Linq.Enumerable.Sum' cannot be differentiated: LINQ is not differentiated in this version; write the sum as a for loop over the array: `double s = 0; for (int i = 0; i < Kelvin.Length; i++) s += …;`",
         }),
-        ["ConsecutiveReactionRk4"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
+        ["ConsecutiveReactionRk4"] = new(Accepted: true, Hessian: true, Diagnostics: new string[]
         {
-            "DG0001: The local 'c' of type 'double[]' cannot be differentiated: locals must be double, float, int or bool",
-            "DG0001: The local 's1' of type 'double[]' cannot be differentiated: locals must be double, float, int or bool",
-            "DG0001: The local 's2' of type 'double[]' cannot be differentiated: locals must be double, float, int or bool",
-            "DG0001: The local 's3' of type 'double[]' cannot be differentiated: locals must be double, float, int or bool",
-            "DG0001: The local 's4' of type 'double[]' cannot be differentiated: locals must be double, float, int or bool",
-            "DG0001: The local 'tmp' of type 'double[]' cannot be differentiated: locals must be double, float, int or bool",
-            "DG0001: The statement 'Rhs(c, k1, k2, s1)' cannot be differentiated: a differentiable body only declares and assigns locals and returns a value",
-            "DG0001: The assignment 'tmp[j] = c[j] + 0.5 * H * s1[j]' cannot be differentiated: only locals of the method can be assigned",
-            "DG0001: The statement 'Rhs(tmp, k1, k2, s2)' cannot be differentiated: a differentiable body only declares and assigns locals and returns a value",
-            "DG0001: The assignment 'tmp[j] = c[j] + 0.5 * H * s2[j]' cannot be differentiated: only locals of the method can be assigned",
-            "DG0001: The statement 'Rhs(tmp, k1, k2, s3)' cannot be differentiated: a differentiable body only declares and assigns locals and returns a value",
-            "DG0001: The assignment 'tmp[j] = c[j] + H * s3[j]' cannot be differentiated: only locals of the method can be assigned",
-            "DG0001: The statement 'Rhs(tmp, k1, k2, s4)' cannot be differentiated: a differentiable body only declares and assigns locals and returns a value",
-            "DG0001: The assignment 'c[j] += H / 6 * (s1[j] + 2 * s2[j] + 2 * s3[j] + s4[j])' cannot be differentiated: only locals of the method can be assigned",
-            "DG0001: The element access 'c[1]' cannot be differentiated: read elements of double, float or int arrays and spans that are parameters (not variables), fields of this instance or static readonly fields",
         }),
         ["TitrationGenericLoss"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
         {
@@ -327,7 +255,7 @@ internal static class CorpusStatus
         }),
         ["SpectralUnmixingArrayHelper"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
         {
-            "DG0001: The call to 'Unmixing.Dot' cannot be differentiated: a helper called from a differentiated method must be a static method with a body in this compilation, not generic, return double or float and take double, float, int or bool parameters; 'Dot' takes 'double[] a': write its computation inline in this method with double and float locals",
+            "DG0001: The argument 'Absorptivity[k]' for the parameter 'a' of 'Dot' cannot be differentiated: jagged arrays are not read in this version; keep the data in a 2-D array (double[,]) and pass it with the row index, reading m[row, j] in the method",
         }),
     };
 }
