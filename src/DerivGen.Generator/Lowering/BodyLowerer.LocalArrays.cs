@@ -246,7 +246,9 @@ internal sealed partial class BodyLowerer
     /// What an expression of array or span type stands for: a local array or a bound parameter, a view of one
     /// (AsSpan, Slice), or — with <paramref name="includeData"/> — data or a vector variable. Null otherwise.
     /// </summary>
-    private ArrayBinding? ResolveArray(IOperation operation, bool includeData)
+    /// <remarks>With <paramref name="lower"/> false nothing is lowered or emitted (a question about the code, not a use of
+    /// it): a slice of data then has a placeholder offset and length.</remarks>
+    private ArrayBinding? ResolveArray(IOperation operation, bool includeData, bool lower = true)
     {
         operation = Unwrap(operation);
         switch (operation)
@@ -256,7 +258,7 @@ internal sealed partial class BodyLowerer
             case IParameterReferenceOperation parameter when _arrays.TryGetValue(parameter.Parameter.OriginalDefinition, out ArrayBinding? binding):
                 return binding;
             case IInvocationOperation { TargetMethod.Name: "AsSpan" or "AsMemory" or "Slice" } invocation:
-                return ResolveSlice(invocation);
+                return ResolveSlice(invocation, lower);
         }
 
         if (includeData && operation.Type is { } type && ArrayShape(type) is { } shape && DataText(operation) is { } text)
@@ -275,14 +277,14 @@ internal sealed partial class BodyLowerer
     }
 
     /// <summary><c>a.AsSpan()</c>, <c>a.AsSpan(start[, length])</c>, <c>s.Slice(start[, length])</c> of a local array or of data.</summary>
-    private ArrayBinding? ResolveSlice(IInvocationOperation invocation)
+    private ArrayBinding? ResolveSlice(IInvocationOperation invocation, bool lower)
     {
         IMethodSymbol method = invocation.TargetMethod;
         bool isExtension = method.IsExtensionMethod || (method.IsStatic && invocation.Instance is null);
         IOperation? source = isExtension ? invocation.Arguments.FirstOrDefault()?.Value : invocation.Instance;
         IArgumentOperation[] rest = invocation.Arguments.Skip(isExtension ? 1 : 0).ToArray();
         if (source is null || rest.Length > 2 || rest.Any(a => a.Value.Type?.SpecialType != SpecialType.System_Int32)
-            || ResolveArray(source, includeData: true) is not { } whole)
+            || ResolveArray(source, includeData: true, lower) is not { } whole)
         {
             return null;
         }
@@ -303,6 +305,11 @@ internal sealed partial class BodyLowerer
         if (rest.Length == 0)
         {
             return view;
+        }
+
+        if (!lower)
+        {
+            return view.Rank != 1 ? null : new DataView(view.Name, view.Type, view.Text, new IrConstant(0, ScalarType.Int32), new IrExternal(view.Text + ".Length", ScalarType.Int32), 1);
         }
 
         if (view.Rank != 1 || LowerExpression(rest[0].Value) is not { } offset)
@@ -734,7 +741,7 @@ internal sealed partial class BodyLowerer
     private bool IsLocalArray(IOperation instance, IOperation body)
     {
         IOperation operation = Unwrap(instance);
-        if (ResolveArray(operation, includeData: false) is { } binding)
+        if (ResolveArray(operation, includeData: false, lower: false) is { } binding)
         {
             return binding is LocalArray;
         }
@@ -747,7 +754,7 @@ internal sealed partial class BodyLowerer
     private bool TryUnrollForEach(IForEachLoopOperation loop)
     {
         IOperation collection = loop.Collection is IConversionOperation conversion ? conversion.Operand : loop.Collection;
-        if (ResolveArray(collection, includeData: false) is not LocalArray array || loop.Locals.Length != 1 || ValueTypeOf(loop.Locals[0].Type) is not { } type)
+        if (ResolveArray(collection, includeData: false, lower: false) is not LocalArray array || loop.Locals.Length != 1 || ValueTypeOf(loop.Locals[0].Type) is not { } type)
         {
             return false;
         }
@@ -787,7 +794,7 @@ internal sealed partial class BodyLowerer
                 return ConstantIntOf(parenthesized.Operand);
             case IConversionOperation { Conversion.IsIdentity: true } conversion:
                 return ConstantIntOf(conversion.Operand);
-            case IPropertyReferenceOperation { Property.Name: "Length", Instance: { } instance } when ResolveArray(instance, includeData: false) is { } binding:
+            case IPropertyReferenceOperation { Property.Name: "Length", Instance: { } instance } when ResolveArray(instance, includeData: false, lower: false) is { } binding:
                 return ConstantInt(binding.Length);
             case IUnaryOperation { OperatorKind: UnaryOperatorKind.Minus, OperatorMethod: null } minus when ConstantIntOf(minus.Operand) is int operand:
                 return unchecked(-operand);

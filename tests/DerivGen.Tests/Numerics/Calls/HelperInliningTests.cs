@@ -50,6 +50,19 @@ public sealed class HelperInliningFixture : CompiledFixture
             [Differentiate]
             public static double Above(double x, double y) => FirstAbove(Levels, 1.0, x) + FirstAbove(Levels, 5.0, y) * x;
 
+            // The same helper called in a loop: its result and flag are assigned before its own loop in every iteration.
+            [Differentiate]
+            public static double AboveInALoop(double x)
+            {
+                double s = 0;
+                for (int r = 0; r < 2; r++)
+                {
+                    s += FirstAbove(Levels, 1.0 + r, x);
+                }
+
+                return s;
+            }
+
             // A local function with an early return under a condition on the variable (a branch, no loop after it).
             [Differentiate]
             public static double Clip(double x)
@@ -190,7 +203,7 @@ public sealed class HelperInliningTests : IClassFixture<HelperInliningFixture>
     [Fact]
     public void OnlyTheCalledHelperGetsAFileOfItsOwn() =>
         Assert.Equal(
-            new[] { "Inl.Above.g.cs", "Inl.Clip.g.cs", "Inl.Form.g.cs", "Inl.LocalLoop.g.cs", "Inl.Mixed.g.cs", "Inl.Poly.g.cs", "Inl.Spread.g.cs", "Inl.Sq.g.cs", "InlModel.Instance.g.cs" },
+            new[] { "Inl.Above.g.cs", "Inl.AboveInALoop.g.cs", "Inl.Clip.g.cs", "Inl.Form.g.cs", "Inl.LocalLoop.g.cs", "Inl.Mixed.g.cs", "Inl.Poly.g.cs", "Inl.Spread.g.cs", "Inl.Sq.g.cs", "InlModel.Instance.g.cs" },
             _fixture.Run.HintNames);
 
     [Theory]
@@ -213,6 +226,15 @@ public sealed class HelperInliningTests : IClassFixture<HelperInliningFixture>
     {
         // The first level above 1 is 1.7; none is above 5: f = 1.7x² − yx. ∂x = 3.4x − y, ∂y = −x; H = [[3.4, −1], [−1, 0]].
         Verify.At(Probe.Load(_fixture.Assembly, "Inl", "Above", 2), new[] { x, y }, new[] { (3.4 * x) - y, -x }, new[] { 3.4, -1, -1, 0 }, "Above");
+    }
+
+    [Theory]
+    [InlineData(0.6)]
+    [InlineData(-1.9)]
+    public void HelperWithAReturnInALoopCalledInALoop(double x)
+    {
+        // Thresholds 1 and 2 find the levels 1.7 and 2.4: f = (1.7 + 2.4) x², f' = 8.2x, f'' = 8.2.
+        Verify.At(Probe.Load(_fixture.Assembly, "Inl", "AboveInALoop", 1), new[] { x }, new[] { 8.2 * x }, new[] { 8.2 }, "AboveInALoop", closedFormAbsolute: 1e-13);
     }
 
     [Theory]
