@@ -538,6 +538,27 @@ internal sealed partial class BodyLowerer
         }
     }
 
+    /// <summary><c>H(…).Name</c> of an inlined method returning a tuple: the call inlined, that element taken.</summary>
+    private IrExpression? LowerTupleElementOfCall(IInvocationOperation call, IFieldSymbol element)
+    {
+        if (call.TargetMethod.ReturnType is not INamedTypeSymbol { IsTupleType: true } tuple || TupleElementTypes(tuple) is null)
+        {
+            return Unsupported(call, "the call to " + DisplayName(call.TargetMethod), "return a tuple of double, float, int or bool values");
+        }
+
+        IFieldSymbol wanted = element.CorrespondingTupleField ?? element;
+        int index = -1;
+        for (int i = 0; i < tuple.TupleElements.Length; i++)
+        {
+            if (SymbolEqualityComparer.Default.Equals(tuple.TupleElements[i].CorrespondingTupleField ?? tuple.TupleElements[i], wanted))
+            {
+                index = i;
+            }
+        }
+
+        return index >= 0 && InlineCall(call, call.TargetMethod) is { } values && index < values.Count ? values[index] : null;
+    }
+
     private static bool InsideNestedFunction(IOperation operation, IOperation root) =>
         Ancestors(operation, root).Any(a => a is ILocalFunctionOperation or IAnonymousFunctionOperation);
 

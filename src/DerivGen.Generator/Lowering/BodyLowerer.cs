@@ -850,6 +850,10 @@ internal sealed partial class BodyLowerer
             case IUnaryOperation { OperatorKind: UnaryOperatorKind.Not, OperatorMethod: null } not:
                 return LowerExpression(not.Operand) is { } negatedCondition ? new IrLogical(LogicalOperator.Not, negatedCondition, null) : null;
 
+            case IFieldReferenceOperation { Instance: IInvocationOperation tupleCall, Field.ContainingType.IsTupleType: true } tupleElement
+                when IsInlined(tupleCall.TargetMethod):
+                return LowerTupleElementOfCall(tupleCall, tupleElement.Field); // H(…).Item2 of an inlined method
+
             case IFieldReferenceOperation field:
                 return Unsupported(operation, $"the field '{field.Field.Name}'",
                     field.Field.IsStatic ? "only const and static readonly fields are read as constants"

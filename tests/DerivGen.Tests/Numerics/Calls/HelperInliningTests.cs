@@ -106,6 +106,10 @@ public sealed class HelperInliningFixture : CompiledFixture
                 return scale * q + s + 0 * (s2 + q2) + s2 * 0.25;
             }
 
+            // One element of a tuple result read at the call.
+            [Differentiate]
+            public static double TupleElement(double x) => Moments(Levels, x).Sum * x;
+
             // A 2-D array and a span of the variables (a local array, so both loops are unrolled).
             private static double Quadratic(double[,] m, ReadOnlySpan<double> w)
             {
@@ -203,7 +207,7 @@ public sealed class HelperInliningTests : IClassFixture<HelperInliningFixture>
     [Fact]
     public void OnlyTheCalledHelperGetsAFileOfItsOwn() =>
         Assert.Equal(
-            new[] { "Inl.Above.g.cs", "Inl.AboveInALoop.g.cs", "Inl.Clip.g.cs", "Inl.Form.g.cs", "Inl.LocalLoop.g.cs", "Inl.Mixed.g.cs", "Inl.Poly.g.cs", "Inl.Spread.g.cs", "Inl.Sq.g.cs", "InlModel.Instance.g.cs" },
+            new[] { "Inl.Above.g.cs", "Inl.AboveInALoop.g.cs", "Inl.Clip.g.cs", "Inl.Form.g.cs", "Inl.LocalLoop.g.cs", "Inl.Mixed.g.cs", "Inl.Poly.g.cs", "Inl.Spread.g.cs", "Inl.Sq.g.cs", "Inl.TupleElement.g.cs", "InlModel.Instance.g.cs" },
             _fixture.Run.HintNames);
 
     [Theory]
@@ -271,6 +275,22 @@ public sealed class HelperInliningTests : IClassFixture<HelperInliningFixture>
         double[] gradient = { (-2 * scale * s) - n, q - (0.25 * Coeffs.Length) };
         double[] hessian = { 2 * scale * n, -2 * s, -2 * s, 0 };
         Verify.At(Probe.Load(_fixture.Assembly, "Inl", "Spread", 2), new[] { shift, scale }, gradient, hessian, "Spread", closedFormAbsolute: 1e-13);
+    }
+
+    [Theory]
+    [InlineData(0.45)]
+    [InlineData(-1.2)]
+    public void TupleElementReadAtTheCall(double x)
+    {
+        // x Σ(v − x) = x Σv − n x²: f' = Σv − 2n x, f'' = −2n.
+        double sum = 0;
+        foreach (double v in Levels)
+        {
+            sum += v;
+        }
+
+        int n = Levels.Length;
+        Verify.At(Probe.Load(_fixture.Assembly, "Inl", "TupleElement", 1), new[] { x }, new[] { sum - (2 * n * x) }, new[] { -2.0 * n }, "TupleElement", closedFormAbsolute: 1e-13);
     }
 
     [Theory]
