@@ -334,6 +334,7 @@ internal sealed partial class BodyLowerer
         var localNames = new Dictionary<ILocalSymbol, string>(_localNames, SymbolEqualityComparer.Default);
         var usedLocalNames = new HashSet<string>(_usedLocalNames, StringComparer.Ordinal);
 
+        _loopNesting++;
         _loop = new LoopExits();
         LowerIteration(body, step);
         _diagnostics.RemoveRange(diagnosticCount, _diagnostics.Count - diagnosticCount);
@@ -343,6 +344,7 @@ internal sealed partial class BodyLowerer
         var exits = new LoopExits();
         _loop = exits;
         EquatableArray<IrStatement> lowered = LowerIteration(body, step);
+        _loopNesting--;
         _loop = outer;
         _jumps = jumps;
         if (exits.ExitsByReturn)
@@ -363,14 +365,14 @@ internal sealed partial class BodyLowerer
     /// </summary>
     private void RefuseUpdateBeforeNestedLoop(IOperation body)
     {
-        foreach (IOperation nested in body.Descendants().Where(o => o is ILoopOperation))
+        foreach (IOperation nested in body.Descendants().Where(o => o is ILoopOperation && !(o is IForLoopOperation counted && UnrollPlan(counted) is not null)))
         {
             var assignedInside = new HashSet<ILocalSymbol>(AssignedLocals(nested), SymbolEqualityComparer.Default);
             ILocalSymbol? clash = body.Descendants()
                 .Where(o => o.Syntax.SpanStart < nested.Syntax.SpanStart && !nested.Syntax.Span.Contains(o.Syntax.Span))
                 .SelectMany(AssignedLocalsOf)
                 .FirstOrDefault(local => assignedInside.Contains(local)
-                    && local.Type.SpecialType is SpecialType.System_Double or SpecialType.System_Single
+                    && (local.Type.SpecialType is SpecialType.System_Double or SpecialType.System_Single || ArrayShape(local.Type)?.Element is ScalarType.Double or ScalarType.Single)
                     && !local.DeclaringSyntaxReferences.Any(r => body.Syntax.Span.Contains(r.Span)));
             if (clash is not null)
             {
@@ -394,6 +396,10 @@ internal sealed partial class BodyLowerer
         if (target is ILocalReferenceOperation reference)
         {
             yield return reference.Local;
+        }
+        else if (target is not null && ElementAccess(target) is { Instance: var array } && Unwrap(array) is ILocalReferenceOperation arrayLocal)
+        {
+            yield return arrayLocal.Local; // an element of a local array
         }
         else if (target is ITupleOperation tuple)
         {

@@ -130,6 +130,10 @@ internal sealed partial class BodyLowerer
                 LowerExpressionStatement(expression);
                 return true;
 
+            case IReturnOperation inlinedReturn when _inline is not null:
+                LowerInlinedReturn(inlinedReturn, isFinal: isTopLevel && position == list.Count - 1);
+                return false;
+
             case IReturnOperation { ReturnedValue: { } value } when _returnValue is not null:
                 LowerFlaggedReturn(statement, value, isFinal: isTopLevel && position == list.Count - 1);
                 return false;
@@ -157,7 +161,7 @@ internal sealed partial class BodyLowerer
                 TryLowerThrowingIf(branch); // a check that throws: a guard (BodyLowerer.Throws.cs)
                 return true;
 
-            case IConditionalOperation branch when isTopLevel && _returnValue is null && EndsWithReturn(branch.WhenTrue):
+            case IConditionalOperation branch when isTopLevel && _returnValue is null && _inline is null && EndsWithReturn(branch.WhenTrue):
                 // if (c) { …; return a; } rest  ≡  if (c) { …; return a; } else { rest }: the value is selected.
                 LowerReturningIf(branch, list.Skip(position + 1));
                 return false;
@@ -193,7 +197,7 @@ internal sealed partial class BodyLowerer
                 return true;
 
             case ILocalFunctionOperation:
-                return true; // inlined at each call (BodyLowerer.LocalFunctions.cs)
+                return true; // inlined at each call (BodyLowerer.Inlining.cs)
 
             default:
                 Unsupported(statement, DescribeStatement(statement), HintFor(statement));
@@ -232,6 +236,12 @@ internal sealed partial class BodyLowerer
     private void LowerIf(IConditionalOperation branch)
     {
         IrExpression? condition = LowerCondition(branch.Condition);
+        if (_constantLocals.Count > 0 && condition is not null && ConstantBool(condition) is bool taken)
+        {
+            _statements.AddRange(LowerNested(taken ? branch.WhenTrue : branch.WhenFalse)); // decided in an unrolled copy
+            return;
+        }
+
         bool dependsOnVariable = condition is not null && DependsOnVariable(condition);
         _variableBranchDepth += dependsOnVariable ? 1 : 0;
         EquatableArray<IrStatement> whenTrue = LowerNested(branch.WhenTrue);
@@ -310,6 +320,11 @@ internal sealed partial class BodyLowerer
 
     private void LowerFor(IForLoopOperation loop)
     {
+        if (TryUnroll(loop))
+        {
+            return; // it indexes a local array with its index (BodyLowerer.LocalArrays.cs)
+        }
+
         // for (int i = start; i < end; i++), bounds ints (so they cannot depend on a variable), i not assigned in the
         // body: a counted loop. Any other for loop is its while loop: init; while (condition) { body; step; }.
         IVariableDeclaratorOperation? declarator = loop.Before.Length == 1
@@ -350,6 +365,11 @@ internal sealed partial class BodyLowerer
         if (TryLowerStructForEach(loop))
         {
             return; // BodyLowerer.Structs.cs
+        }
+
+        if (TryUnrollForEach(loop))
+        {
+            return;
         }
 
         IOperation collection = loop.Collection is IConversionOperation conversion ? conversion.Operand : loop.Collection;
@@ -431,6 +451,12 @@ internal sealed partial class BodyLowerer
         // A tuple literal with an element that is a bare name gets inferred element names, and Roslyn wraps it in a
         // tuple conversion; the elements are still the literal's (each is converted to its local's type below).
         IOperation tuple = deconstruction.Value is IConversionOperation { Operand: ITupleOperation literal } ? literal : deconstruction.Value;
+        if (target is ITupleOperation inlinedTargets && tuple is IInvocationOperation call && IsInlined(call.TargetMethod))
+        {
+            LowerInlinedDeconstruction(inlinedTargets, call);
+            return;
+        }
+
         if (target is not ITupleOperation targets || tuple is not ITupleOperation values
             || targets.Elements.Length != values.Elements.Length)
         {
@@ -524,6 +550,12 @@ internal sealed partial class BodyLowerer
     private void LowerDeclarator(IVariableDeclaratorOperation declarator)
     {
         ILocalSymbol local = declarator.Symbol;
+        if (ArrayShape(local.Type) is { } shape)
+        {
+            DeclareArray(declarator, shape);
+            return;
+        }
+
         ScalarType? type = ValueTypeOf(local.Type);
         if (type is null && TryLowerStructDeclarator(declarator))
         {
@@ -553,8 +585,17 @@ internal sealed partial class BodyLowerer
             return; // BodyLowerer.Structs.cs
         }
 
+        if (TryLowerArrayStatement(expression))
+        {
+            return;
+        }
+
         switch (expression)
         {
+            case IInvocationOperation call when IsInlined(call.TargetMethod):
+                InlineCall(call, call.TargetMethod); // a method that writes into a span, or whose value is not used
+                break;
+
             case IDeconstructionAssignmentOperation deconstruction:
                 LowerDeconstruction(deconstruction);
                 break;
@@ -735,6 +776,11 @@ internal sealed partial class BodyLowerer
             return throughStruct; // BodyLowerer.Structs.cs
         }
 
+        if (operation is IPropertyReferenceOperation or IArrayElementReferenceOperation or IImplicitIndexerReferenceOperation && IsRefusedArrayUse(operation))
+        {
+            return null; // a local array whose declaration was refused
+        }
+
         switch (operation)
         {
             case IFieldReferenceOperation tupleField when _boundTuples.Count > 0 && BoundTupleElement(tupleField) is { } tupleElement:
@@ -756,6 +802,15 @@ internal sealed partial class BodyLowerer
 
                 return Unsupported(operation, $"the use of parameter '{parameter.Parameter.Name}' of type '{parameter.Parameter.Type.ToDisplayString()}'",
                     "arrays, spans and other types come in a later version; pass double, float or int values");
+
+            case ILocalReferenceOperation constantIndex when _constantLocals.TryGetValue(constantIndex.Local, out int unrolled):
+                return new IrConstant(unrolled, ScalarType.Int32);
+
+            case ILocalReferenceOperation arrayLocal when _arrays.TryGetValue(arrayLocal.Local, out ArrayBinding? wholeArray):
+                return RefuseArrayUse(operation, wholeArray);
+
+            case ILocalReferenceOperation refusedArray when _refusedArrays.Contains(refusedArray.Local):
+                return null; // its declaration was refused
 
             case ILocalReferenceOperation local:
                 if (ValueTypeOf(local.Local.Type) is { } localType)
@@ -812,6 +867,9 @@ internal sealed partial class BodyLowerer
                 when IsSpan(fromEndInstance.Type):
                 return LowerElement(fromEnd, fromEndInstance, new[] { fromEnd.Argument });
 
+            case IPropertyReferenceOperation { Property.Name: "Length", Instance: { } bound } when BoundArrayOf(bound) is { } boundArray:
+                return boundArray.Length;
+
             case IPropertyReferenceOperation { Property.Name: "Length", Instance: { } outputs } when IsOutput(outputs):
                 return new IrExternal(Identifiers.Escape(_output!.Name) + ".Length", ScalarType.Int32);
 
@@ -821,6 +879,11 @@ internal sealed partial class BodyLowerer
             case IConditionalOperation { WhenFalse: not null } conditional when conditional.Type is { } conditionalType && ValueTypeOf(conditionalType) is { } resultType:
             {
                 IrExpression? condition = LowerCondition(conditional.Condition, isConditionalOperator: true);
+                if (_constantLocals.Count > 0 && condition is not null && ConstantBool(condition) is bool taken)
+                {
+                    return LowerExpression(taken ? conditional.WhenTrue : conditional.WhenFalse); // decided in an unrolled copy
+                }
+
                 IrExpression? whenTrue = LowerExpression(conditional.WhenTrue);
                 IrExpression? whenFalse = LowerExpression(conditional.WhenFalse);
                 return condition is null || whenTrue is null || whenFalse is null ? null : new IrConditional(condition, whenTrue, whenFalse, resultType);
@@ -828,6 +891,10 @@ internal sealed partial class BodyLowerer
 
             case IUnaryOperation { OperatorKind: UnaryOperatorKind.Not, OperatorMethod: null } not:
                 return LowerExpression(not.Operand) is { } negatedCondition ? new IrLogical(LogicalOperator.Not, negatedCondition, null) : null;
+
+            case IFieldReferenceOperation { Instance: IInvocationOperation tupleCall, Field.ContainingType.IsTupleType: true } tupleElement
+                when IsInlined(tupleCall.TargetMethod):
+                return LowerTupleElementOfCall(tupleCall, tupleElement.Field); // H(…).Item2 of an inlined method
 
             case IFieldReferenceOperation field:
                 return Unsupported(operation, $"the field '{field.Field.Name}'",
@@ -897,6 +964,11 @@ internal sealed partial class BodyLowerer
     /// <summary>An element of data read with int indices (which, being ints, cannot depend on a variable).</summary>
     private IrExpression? LowerElement(IOperation element, IOperation data, IReadOnlyList<IOperation> indices)
     {
+        if (BoundArrayOf(data) is { } bound)
+        {
+            return LowerBoundElement(element, bound, indices);
+        }
+
         if (IsOutput(data))
         {
             return Unsupported(element, $"reading the output '{Text(element)}'", "outputs are written, never read back; keep the value in a local and read that");
@@ -905,7 +977,7 @@ internal sealed partial class BodyLowerer
         if (IsRangeOrSlice(data))
         {
             return Unsupported(element, $"the range '{Text(data)}'",
-                "ranges and Slice are not supported in this version; index the data itself, e.g. t[i + 1] for t[1..][i], or t[^1] for its last element");
+                "ranges are not supported in this version; take a view with Slice(start, length) or AsSpan(start, length), or index the data itself, e.g. t[i + 1] for t[1..][i], or t[^1] for its last element");
         }
 
         if (DataText(data) is not { } text || element.Type is null || ScalarTypeOf(element.Type) is not (ScalarType.Double or ScalarType.Single or ScalarType.Int32 or ScalarType.Generic) || indices.Count == 0)
@@ -954,6 +1026,9 @@ internal sealed partial class BodyLowerer
     /// <summary>The C# text naming data (an array or span that is not a variable), or null when it is not data.</summary>
     private string? DataText(IOperation data) => data switch
     {
+        ILocalReferenceOperation local => _arrays.TryGetValue(local.Local, out ArrayBinding? view) && view is DataView { Offset: null } whole ? whole.Text : null,
+        IParameterReferenceOperation parameter when _arrays.TryGetValue(parameter.Parameter.OriginalDefinition, out ArrayBinding? view) =>
+            view is DataView { Offset: null } whole ? whole.Text : null,   // an array or span parameter of an inlined method
         IParameterReferenceOperation parameter when IsData(parameter.Parameter.Type) && !IsOutput(parameter) =>
             Identifiers.Escape(parameter.Parameter.Name),   // data, or a vector of variables (then its elements are variables)
         IFieldReferenceOperation { Instance: IInstanceReferenceOperation, Field: var field } when IsData(field.Type) => "this." + Identifiers.Escape(field.Name),
@@ -1022,7 +1097,7 @@ internal sealed partial class BodyLowerer
 
         if (target.MethodKind == MethodKind.LocalFunction)
         {
-            return LowerLocalFunctionCall(invocation, target);
+            return LowerInlinedCallExpression(invocation, target);
         }
 
         IrExpression? generic = TryLowerGenericCall(invocation, out bool isGeneric);
@@ -1054,11 +1129,20 @@ internal sealed partial class BodyLowerer
             return LowerUserCall(invocation, target, attribute);
         }
 
-        if (target.IsStatic && target.DeclaringSyntaxReferences.Length == 1 && target.ContainingType?.SpecialType == SpecialType.None
+        if (target.DeclaringSyntaxReferences.Length == 1 && target.ContainingType?.SpecialType == SpecialType.None
             && MathTypeHost(target.ContainingType) is null
             && SymbolEqualityComparer.Default.Equals(target.ContainingAssembly, _helpers.Compilation.Assembly))
         {
-            return LowerHelperCall(invocation, target);
+            // The rule, which helpers are called and which are inlined: BodyLowerer.Inlining.cs, IsCalledHelper.
+            if (IsCalledHelper(target))
+            {
+                return LowerHelperCall(invocation, target);
+            }
+
+            if (target.MethodKind == MethodKind.Ordinary)
+            {
+                return LowerInlinedCallExpression(invocation, target);
+            }
         }
 
         MathHost? host = target.ContainingType?.SpecialType switch

@@ -336,10 +336,10 @@ public sealed class ControlFlowDiagnosticTests
         """);
 
     [Fact]
-    public Task DG0001CallToAnInstanceMethodThatIsNotMarkedInsideALoop() => VerifyAsync(Usings + """
+    public Task DG0001CallToAVirtualMethodInsideALoop() => VerifyAsync(Usings + """
         public partial class C
         {
-            private double Square(double v) => v * v;
+            protected virtual double Square(double v) => v * v;
 
             [Differentiate(nameof(x))]
             public double F(double x, double[] t)

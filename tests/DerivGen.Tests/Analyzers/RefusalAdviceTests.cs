@@ -539,8 +539,8 @@ public sealed class RefusalAdviceTests
     [Fact]
     public async Task LocalFunctionsThatCannotBeInlinedAreRefusedAtTheCall()
     {
-        const string Rule = "inlined local functions take double, float, int or bool parameters by value, return one of those types, are not generic or recursive, do not assign what they capture, and have an expression body or a block of local declarations and assignments ending in one return";
-        const string Statements = "loops, branches and early returns inside a local function are not inlined in this version (the conditional operator ?: is); write its statements in the method, or make it a static method of this type with double, float, int or bool parameters (a helper, differentiated through)";
+        const string Rule = "inlined methods take double, float, int or bool parameters by value or 'in', or one-dimensional arrays or spans of them, or double[,]/float[,]/int[,] data, return one of those scalar types, a tuple of them or nothing, are not generic or recursive, and do not assign what they capture";
+        const string Rewrite = ": write its computation in this method with double and float locals, or pass and return those";
         await RefusedWith(Usings + """
             public static partial class Odd
             {
@@ -549,23 +549,6 @@ public sealed class RefusalAdviceTests
                 {
                     double Power(double u, int n) => n == 0 ? 1 : u * Power(u, n - 1);
                     return Power(x, 3);
-                }
-
-                [Differentiate]
-                public static double Looping(double x)
-                {
-                    double Sum(double u)
-                    {
-                        double s = 0;
-                        for (int i = 0; i < 3; i++)
-                        {
-                            s += u * i;
-                        }
-
-                        return s;
-                    }
-
-                    return Sum(x);
                 }
 
                 [Differentiate]
@@ -617,9 +600,8 @@ public sealed class RefusalAdviceTests
             }
             """,
             "DG0001: The recursive call of the local function 'Power' cannot be differentiated: a local function is inlined at each call, so it cannot call itself; write the recursion as a loop in the method",
-            "DG0001: The call of the local function 'Sum', whose body has a loop cannot be differentiated: " + Statements,
-            "DG0001: The call of the local function 'Twice' cannot be differentiated: " + Rule,
-            "DG0001: The call of the local function 'First' cannot be differentiated: " + Rule,
+            "DG0001: The call of the local function 'Twice' cannot be differentiated: " + Rule + "; 'Twice' takes 'ref double u'" + Rewrite,
+            "DG0001: The call of the local function 'First' cannot be differentiated: " + Rule + "; 'First' is generic" + Rewrite,
             "DG0001: The call of the local function 'Add', which assigns the captured local 'total' cannot be differentiated: let it return the new value and assign that at the call ('total = Add(…);')",
             "DG0001: The call of the local function 'Sq' in an arm of the conditional operator cannot be differentiated: its statements would run where the expression is not evaluated; call it before, into a local ('double v = Sq(…);'), and use the local",
             "DG0001: The call of the local function 'Count' in the condition or step of a loop cannot be differentiated: its statements would run where the expression is not evaluated; call it before, into a local ('int v = Count(…);'), and use the local");
@@ -639,20 +621,6 @@ public sealed class RefusalAdviceTests
 
                     return p;
                 }
-
-                private static double Sum(double u)
-                {
-                    double s = 0;
-                    for (int i = 0; i < 3; i++)
-                    {
-                        s += u * i;
-                    }
-
-                    return s;
-                }
-
-                [Differentiate]
-                public static double Looping(double x) => Sum(x);
 
                 [Differentiate]
                 public static double ByRef(double x)
@@ -704,7 +672,7 @@ public sealed class RefusalAdviceTests
     }
 
     [Fact]
-    public async Task MethodsThatCannotBeMarkedUsefullyAreInlined()
+    public async Task MethodsOfAnotherObjectAreRefusedAndTheStaticRewriteIsInlined()
     {
         await RefusedWith(Usings + """
             public sealed class Plant
@@ -720,6 +688,22 @@ public sealed class RefusalAdviceTests
 
                 [Differentiate]
                 public double Cost(double u) => _plant.Next(u) * u;
+            }
+            """,
+            Call("Plant.Next", "'Next' is called on another object than this one; make it a static method that takes what it reads as parameters: a static method is inlined (or called as a helper)"));
+
+        // Rewritten as the message says: Next static, taking the gain (Plant is not partial, so Next is inlined); a helper
+        // over arrays (Dot) is inlined too.
+        using CompiledAssembly asm = await Accepted(Usings + """
+            public sealed class Plant
+            {
+                public static double Next(double gain, double u) => gain * u;
+            }
+
+            public partial class Control
+            {
+                [Differentiate(nameof(u))]
+                public double Cost(double u, double gain) => Plant.Next(gain, u) * u;
 
                 [Differentiate(nameof(w))]
                 public static double Squared(double[] w, double[] x) => Dot(w, x) * Dot(w, x);
@@ -731,33 +715,15 @@ public sealed class RefusalAdviceTests
                     return s;
                 }
             }
-            """,
-            Call("Plant.Next", Callables + "; 'Next' is called on another object than this one, so marking it [Differentiate] would not help: write its computation inline in this method with double and float locals"),
-            "DG0001: The call to 'Control.Dot' cannot be differentiated: a helper called from a differentiated method must be a static method with a body in this compilation, not generic, return double or float and take double, float, int or bool parameters; 'Dot' takes 'double[] a': write its computation inline in this method with double and float locals",
-            "DG0001: The call to 'Control.Dot' cannot be differentiated: a helper called from a differentiated method must be a static method with a body in this compilation, not generic, return double or float and take double, float, int or bool parameters; 'Dot' takes 'double[] a': write its computation inline in this method with double and float locals");
-
-        using CompiledAssembly asm = await Accepted(Usings + """
-            public partial class Control
-            {
-                [Differentiate(nameof(u))]
-                public double Cost(double u, double gain) => gain * u * u;
-
-                [Differentiate(nameof(w))]
-                public static double Squared(double[] w, double[] x)
-                {
-                    double s = 0;
-                    for (int i = 0; i < w.Length; i++) s += w[i] * x[i];
-                    return s * s;
-                }
-            }
             """);
         Assert.True(asm.HasMethod("Control", "CostGradient") && asm.HasMethod("Control", "SquaredGradient"));
+        Assert.False(asm.HasMethod("Control", "DotGradient"));
     }
 
     [Fact]
-    public async Task AMarkableInstanceMethodStillGetsTheMarkAdviceAndMarkedIsAccepted()
+    public async Task AnUnmarkedInstanceMethodOfThisObjectIsInlinedAndAMarkedOneIsCalled()
     {
-        await RefusedWith(Usings + """
+        using (CompiledAssembly inlined = await Accepted(Usings + """
             public partial class Model
             {
                 private double Rate(double b) => Math.Exp(b);
@@ -765,8 +731,11 @@ public sealed class RefusalAdviceTests
                 [Differentiate]
                 public double Loss(double b) => Rate(b) - b;
             }
-            """,
-            Call("Model.Rate", Callables + "; mark the method [Differentiate] to differentiate through it"));
+            """))
+        {
+            Assert.True(inlined.HasMethod("Model", "LossGradient"));
+            Assert.False(inlined.HasMethod("Model", "RateGradient"));
+        }
 
         using CompiledAssembly asm = await Accepted(Usings + """
             public partial class Model
@@ -1010,4 +979,253 @@ public sealed class RefusalAdviceTests
     }
 
     private delegate double GradKind(double a, double[] r, int kind, Span<double> gradient);
+
+    [Fact]
+    public async Task LocalArrayAndInliningRefusalsAndTheirRewrites()
+    {
+        const string RunTime = "local arrays indexed at run time are not in this version";
+        await RefusedWith(Usings + """
+            public static class Tables
+            {
+                private static readonly double[] W = { 1.0, 2.0 };
+
+                internal static double Weighted(double x)
+                {
+                    double s = 0;
+                    for (int i = 0; i < W.Length; i++) s += W[i] * x;
+                    return s;
+                }
+            }
+
+            public partial class Arrays
+            {
+                public static readonly double[][] Rows = { new[] { 1.0, 2.0 } };
+
+                [Differentiate(nameof(x))]
+                public static double Length(double x, int n)
+                {
+                    double[] a = new double[n];
+                    a[0] = x;
+                    return a[0];
+                }
+
+                [Differentiate(nameof(x))]
+                public static double Index(double x, int n)
+                {
+                    double[] a = { 1.0, 2.0, 3.0 };
+                    double s = 0;
+                    for (int i = 0; i < n; i++)
+                    {
+                        s += a[i] * x;
+                    }
+
+                    return s;
+                }
+
+                [Differentiate(nameof(x))]
+                public static double Jagged(double x) => Dot(Rows[0], x);
+
+                private static double Dot(double[] r, double x) => r[0] * x + r[1];
+
+                [Differentiate(nameof(x))]
+                public static double WritesData(double x, double[] t)
+                {
+                    Scale(t, x);
+                    return x * t[0];
+                }
+
+                private static void Scale(Span<double> v, double f) => v[0] = f;
+
+                [Differentiate(nameof(x))]
+                public static double Sum(double x, int n)
+                {
+                    Span<double> d = stackalloc double[1];
+                    Accumulate(d, x, n);
+                    return d[0];
+                }
+
+                private static void Accumulate(Span<double> d, double x, int n)
+                {
+                    for (int k = 0; k < n; k++)
+                    {
+                        d[0] += x;
+                    }
+                }
+
+                [Differentiate(nameof(x))]
+                public static double Jump(double x, double[] t)
+                {
+                    double[] a = new double[3];
+                    for (int j = 0; j < 3; j++)
+                    {
+                        if (t[j] < 0) break;
+                        a[j] = x * t[j];
+                    }
+
+                    return a[0] + a[1] + a[2];
+                }
+
+                [Differentiate(nameof(x))]
+                public static double Outside(double x)
+                {
+                    double[] a = { x, 2 * x, 3 * x };
+                    return a[3];
+                }
+
+                [Differentiate(nameof(x))]
+                public static double TooLong(double x)
+                {
+                    double[] a = new double[65];
+                    a[0] = x;
+                    return a[0];
+                }
+
+                [Differentiate(nameof(x))]
+                public static double Reassigned(double x)
+                {
+                    double[] a = { x };
+                    a = new double[] { 2 * x };
+                    return a[0];
+                }
+
+                [Differentiate(nameof(x))]
+                public static double Private(double x) => Tables.Weighted(x);
+
+                protected virtual double V(double u) => u * u;
+
+                [Differentiate(nameof(x))]
+                public double Virtual(double x) => V(x);
+            }
+            """,
+            "DG0001: The local array 'a' of length 'n' cannot be differentiated: its length is not a compile-time constant, and " + RunTime + "; give it a constant length of at most 64 (a literal or a const, e.g. new double[4]) and index it with constants or with the index of a for loop with constant bounds",
+            "DG0001: The element 'a[i]' of the local array 'a' cannot be differentiated: its index is not a compile-time constant, and " + RunTime + "; index it with constants (a[0], a[1]) or with the index of a for loop whose bounds are constants, e.g. for (int j = 0; j < 3; j++), which is unrolled",
+            "DG0001: The argument 'Rows[0]' for the parameter 'r' of 'Dot' cannot be differentiated: jagged arrays are not read in this version; keep the data in a 2-D array (double[,]) and pass it with the row index, reading m[row, j] in the method",
+            "DG0001: The write 'v[0] = f' into 't' cannot be differentiated: it is data or a variable of the caller, which cannot be written; pass a local array (Span<double> d = stackalloc double[n]) to write into, and read from that",
+            "DG0001: The write 'd[0] += x' inside a loop of the inlined 'Accumulate' cannot be differentiated: writing the caller's local array 'd' in a loop that is not unrolled is not in this version; give the loop constant bounds, or sum into a local and write the element after the loop",
+            "DG0001: The jump 'break;' in a loop that is unrolled cannot be differentiated: the loop is unrolled because it indexes a local array with its index, and break, continue and return inside it are not in this version; select the values with if/else instead",
+            "DG0001: The element 'a[3]' (index 3) of the local array 'a' cannot be differentiated: it is outside the array of length 3, where C# throws IndexOutOfRangeException; index within 0..2",
+            "DG0001: The local array 'a' of 65 elements cannot be differentiated: local arrays of at most 64 elements are replaced by scalars, and longer ones are not in this version; split it into arrays of at most 64 elements, or keep running sums in double locals",
+            "DG0001: The assignment of the local array 'a' cannot be differentiated: a local array is created once, where it is declared; assign its elements, or declare another local array",
+            "DG0001: The call to 'Tables.Weighted' cannot be differentiated: it reads 'W', which the generated methods of 'Arrays' cannot access; make 'W' internal, or pass its value as an argument",
+            "DG0001: The call to 'Arrays.V' cannot be differentiated: which override runs is decided at run time, so it cannot be inlined; make 'V' a non-virtual method (no virtual, abstract or override) or a static method: such a method is inlined");
+
+        // Each rewritten as its message says.
+        using CompiledAssembly asm = await Accepted(Usings + """
+            public static class Tables
+            {
+                internal static readonly double[] W = { 1.0, 2.0 };
+
+                internal static double Weighted(double x)
+                {
+                    double s = 0;
+                    for (int i = 0; i < W.Length; i++) s += W[i] * x;
+                    return s;
+                }
+            }
+
+            public partial class Arrays
+            {
+                public static readonly double[,] Rows = { { 1.0, 2.0 } };
+
+                [Differentiate(nameof(x))]
+                public static double Length(double x, int n)
+                {
+                    double[] a = new double[4];
+                    a[0] = x;
+                    return a[0];
+                }
+
+                [Differentiate(nameof(x))]
+                public static double Index(double x, int n)
+                {
+                    double[] a = { 1.0, 2.0, 3.0 };
+                    double s = 0;
+                    for (int i = 0; i < 3; i++)
+                    {
+                        s += a[i] * x;
+                    }
+
+                    return s;
+                }
+
+                [Differentiate(nameof(x))]
+                public static double Jagged(double x) => Dot(Rows, 0, x);
+
+                private static double Dot(double[,] m, int row, double x) => m[row, 0] * x + m[row, 1];
+
+                [Differentiate(nameof(x))]
+                public static double WritesData(double x, double[] t)
+                {
+                    Span<double> v = stackalloc double[1];
+                    Scale(v, x);
+                    return x * t[0] + v[0];
+                }
+
+                private static void Scale(Span<double> v, double f) => v[0] = f;
+
+                [Differentiate(nameof(x))]
+                public static double Sum(double x, int n)
+                {
+                    Span<double> d = stackalloc double[1];
+                    Accumulate(d, x, n);
+                    return d[0];
+                }
+
+                private static void Accumulate(Span<double> d, double x, int n)
+                {
+                    double s = 0;
+                    for (int k = 0; k < n; k++)
+                    {
+                        s += x;
+                    }
+
+                    d[0] = s;
+                }
+
+                [Differentiate(nameof(x))]
+                public static double Jump(double x, double[] t)
+                {
+                    double[] a = new double[3];
+                    for (int j = 0; j < 3; j++)
+                    {
+                        a[j] = t[j] < 0 ? 0 : x * t[j];
+                    }
+
+                    return a[0] + a[1] + a[2];
+                }
+
+                [Differentiate(nameof(x))]
+                public static double Outside(double x)
+                {
+                    double[] a = { x, 2 * x, 3 * x };
+                    return a[2];
+                }
+
+                [Differentiate(nameof(x))]
+                public static double TooLong(double x)
+                {
+                    double[] a = new double[64];
+                    a[0] = x;
+                    return a[0];
+                }
+
+                [Differentiate(nameof(x))]
+                public static double Reassigned(double x)
+                {
+                    double[] a = { x };
+                    double[] b = { 2 * x };
+                    return a[0] + b[0];
+                }
+
+                [Differentiate(nameof(x))]
+                public static double Private(double x) => Tables.Weighted(x);
+
+                protected double V(double u) => u * u;
+
+                [Differentiate(nameof(x))]
+                public double Virtual(double x) => V(x);
+            }
+            """);
+        Assert.True(asm.HasMethod("Arrays", "SumGradient") && asm.HasMethod("Arrays", "JumpGradient") && asm.HasMethod("Arrays", "VirtualGradient"));
+    }
 }

@@ -106,7 +106,8 @@ internal static class Check
     public static void HessianMatchesOracle(Func<double[], double> f, double[] x, ReadOnlySpan<double> hessian, string what)
     {
         double[] reference = NumericalHessian(f, x);
-        double scale = MaxAbs(reference);
+        // The differences' rounding error grows with |f| (about ε·|f|/h², common practice), so the floor does too.
+        double scale = Math.Max(MaxAbs(reference), Math.Abs(f(x)));
         Close(reference, hessian, FiniteDifferenceHessianRelative, FiniteDifferenceHessianRelative * Math.Max(1, scale), $"{what} Hessian vs MathNet NumericalHessian");
     }
 

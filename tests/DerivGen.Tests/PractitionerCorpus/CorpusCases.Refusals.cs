@@ -28,7 +28,7 @@ internal static partial class CorpusCases
         ["BallisticRangeFiniteGuard"] = (new[] { "throw statement" }, null, NoEdit),
         ["SoftmaxCrossEntropyLinq"] = (new[] { "logits", "System.Linq.Enumerable.Max" }, null, NoEdit),
         ["LogisticRegressionTupleHelper"] = (new[] { "deconstruction", "Predict" }, null, NoEdit),
-        ["TinyNetworkGenericActivation"] = (new[] { "hidden" }, null, NoEdit),
+        ["TinyNetworkGenericActivation"] = (new[] { "TinyNet.Activation" }, null, NoEdit),
         ["RidgeEnumerableRangeAverage"] = (new[] { "System.Linq.Enumerable.Average" }, null, NoEdit),
         ["ActivationEnumSwitchThrow"] = (new[] { "throw statement" }, null, NoEdit),
         ["QuadraticHorizonLocalArray"] = (new[] { "double[]" }, null, NoEdit),
@@ -36,18 +36,17 @@ internal static partial class CorpusCases
         // The advice works here: with Rate marked [Differentiate] the loss is accepted (checked on the edited source).
         ["PoissonRegressionInstanceHelper"] = (new[] { "DefectModel.Rate" }, null,
             new[] { ("private double Rate(", "[Differentiate] private double Rate(") }),
-        ["Ar1RangesZip"] = (new[] { "'ys'", "System.Linq.Enumerable.Sum" }, null, NoEdit),
+        ["Ar1RangesZip"] = (new[] { "System.Linq.Enumerable.Sum" },
+            "the advice's loop reads xs.Length, but the sources are the ranges ys[1..] and ys[..^1] zipped: the loop it needs runs over ys from index 1 (ranges as LINQ sources are not lowered)",
+            NoEdit),
         ["MeanVarianceQuadraticForm"] = (new[] { "Portfolio.QuadraticForm" }, null,
             // The advice works: the quadratic form written inline as a double loop is accepted.
             new[] { ("0.5 * riskAversion * QuadraticForm(Sigma, weights)", "0.5 * riskAversion * risk"), ("double budget =", "double risk = 0;\n        for (int i = 0; i < weights.Length; i++)\n        {\n            for (int j = 0; j < weights.Length; j++)\n            {\n                risk += weights[i] * Sigma[i, j] * weights[j];\n            }\n        }\n\n        double budget =") }),
         ["KellyFractionSelectAverage"] = (new[] { "System.Linq.Enumerable.Average" }, null, NoEdit),
         ["TrackingErrorThrowHelpers"] = (new[] { "ThrowIfNull", "throw statement", "System.Linq.Enumerable.Sum" }, null, NoEdit),
-        ["SineFitSpanSlice"] = (new[] { "System.ReadOnlySpan<double>", "window" },
-            "'only static properties of double, float or int type are read as constants' for window.Length cannot apply: Length is the span's own instance property",
-            NoEdit),
-        ["FirEqualizerStackalloc"] = (new[] { "System.Span<double>", "output" },
-            "'only static properties of double, float or int type are read as constants' for output.Length cannot apply: Length is the span's own instance property",
-            NoEdit),
+        ["FirEqualizerStackalloc"] = (new[] { "output", "Input.Length" }, null,
+            // The advice followed: a constant length, and the loop that writes the elements given constant bounds (then unrolled).
+            new[] { ("stackalloc double[Input.Length]", "stackalloc double[8]"), ("for (int n = 0; n < Input.Length; n++)", "for (int n = 0; n < 8; n++)") }),
         ["MeshSmoothingMutableStruct"] = (new[] { "remainder", "Ring.Length" },
             "the message names no rewrite for the remainder (i + 1) % n (the Vertex struct, its constructor and the 'in Vertex' helper are accepted since struct values are taken apart; only the remainder is left)",
             NoEdit),
@@ -55,9 +54,17 @@ internal static partial class CorpusCases
         ["ConsecutiveReactionRk4"] = (new[] { "double[]", "Rhs(c, k1, k2, s1)" }, null, NoEdit),
         ["PathEndClearanceMin"] = (new[] { "System.Linq.Enumerable.Min" }, null, NoEdit),
         ["LogisticRangeSumSelectPenalty"] = (new[] { "System.Linq.Enumerable.Sum" }, null, NoEdit),
-        ["SpectralUnmixingArrayHelper"] = (new[] { "Unmixing.Dot" },
-            "the message says to write Dot inline; its first argument is a row of a jagged array (Absorptivity[k]), which a differentiated body cannot read, so the rewrite needs more than the message says (checked on the edited source)",
-            new[] { ("double r = Dot(Absorptivity[k], concentration) - Measured[k];", "double dot = 0;\n            for (int j = 0; j < concentration.Length; j++)\n            {\n                dot += Absorptivity[k][j] * concentration[j];\n            }\n\n            double r = dot - Measured[k];") }),
+        ["SpectralUnmixingArrayHelper"] = (new[] { "Absorptivity[k]", "jagged" }, null,
+            // The advice followed: the absorptivities as a 2-D array, passed with the row index.
+            new[]
+            {
+                ("public static readonly double[][] Absorptivity =\n    {\n        new[] { 1.2, 0.1 },\n        new[] { 0.8, 0.5 },\n        new[] { 0.3, 1.1 },\n        new[] { 0.1, 0.9 },\n    };",
+                    "public static readonly double[,] Absorptivity = { { 1.2, 0.1 }, { 0.8, 0.5 }, { 0.3, 1.1 }, { 0.1, 0.9 } };"),
+                ("private static double Dot(double[] a, double[] b)", "private static double Dot(double[,] a, int row, double[] b)"),
+                ("for (int i = 0; i < a.Length; i++)", "for (int i = 0; i < b.Length; i++)"),
+                ("s += a[i] * b[i];", "s += a[row, i] * b[i];"),
+                ("Dot(Absorptivity[k], concentration)", "Dot(Absorptivity, k, concentration)"),
+            }),
     };
 
     private static (string, string)[] NoEdit => Array.Empty<(string, string)>();

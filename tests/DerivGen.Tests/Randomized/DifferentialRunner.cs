@@ -44,6 +44,11 @@ internal sealed class BatchOutcome
 
     public int VectorVariantsRefused { get; set; }
 
+    /// <summary>Variants with the body in an inlined helper or local function that were generated and checked, and those refused.</summary>
+    public int InlinedVariants { get; set; }
+
+    public int InlinedVariantsRefused { get; set; }
+
     /// <summary>Gradient or Hessian entries compared with MathNet's finite differences.</summary>
     public int OracleEntries { get; set; }
 
@@ -123,7 +128,7 @@ internal static class DifferentialRunner
     {
         var failures = new List<CaseFailure>();
         string[] units = cases.Select((c, i) => (c, i)).Chunk(64)
-            .Select(chunk => RandomCase.Unit(chunk.Select(p => p.c.MethodSource(MethodName(p.i)) + "\n" + p.c.VectorVariantSource(MethodName(p.i) + VectorSuffix)
+            .Select(chunk => RandomCase.Unit(chunk.Select(p => p.c.MethodSource(MethodName(p.i)) + "\n" + p.c.VectorVariantSource(MethodName(p.i) + VectorSuffix) + "\n" + p.c.InlinedVariantsSource(MethodName(p.i))
                 + (p.c.OutputVariantSource(MethodName(p.i) + OutputSuffix) is { } variant ? "\n" + variant : ""))))
             .ToArray();
         CSharpCompilation input = CSharpCompilation.Create(
@@ -265,7 +270,7 @@ internal static class DifferentialRunner
         }
 
         string digits = fileName.Substring(prefix.Length, fileName.Length - prefix.Length - ".g.cs".Length);
-        foreach (string suffix in new[] { OutputSuffix, VectorSuffix })
+        foreach (string suffix in new[] { OutputSuffix, VectorSuffix, "Inl", "Loc" })
         {
             if (digits.EndsWith(suffix, StringComparison.Ordinal))
             {
@@ -305,6 +310,29 @@ internal static class DifferentialRunner
         {
             outcome.VectorVariantsRefused++;
         }
+        // The variants with the body inlined (a helper taking d as a span, a local function): where generated (a body
+        // inlined is refused where a jump's flag would decide a loop), the same checks against the same reference.
+        foreach (string suffix in new[] { "Inl", "Loc" })
+        {
+            if (!assembly.HasMethod(TypeName, name + suffix + "Gradient"))
+            {
+                outcome.InlinedVariantsRefused++;
+                continue;
+            }
+
+            outcome.InlinedVariants++;
+            RandomValue fi = assembly.Method<RandomValue>(TypeName, name + suffix);
+            RandomGradient gi = assembly.Method<RandomGradient>(TypeName, name + suffix + "Gradient");
+            RandomHessian? hi = c.Hessian ? assembly.Method<RandomHessian>(TypeName, name + suffix + "Hessian") : null;
+            foreach (CasePoint point in c.Points)
+            {
+                if (CheckAt(point, fi, gi, hi, null, c, outcome) is { } inlinedProblem)
+                {
+                    return "at " + point + ", the variant " + name + suffix + " (body inlined):\n" + inlinedProblem;
+                }
+            }
+        }
+
         if (!c.Hessian && assembly.HasMethod(TypeName, name + "Hessian"))
         {
             return "Hessian = false, yet MHessian was generated";

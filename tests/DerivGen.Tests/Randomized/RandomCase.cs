@@ -151,6 +151,29 @@ internal sealed class RandomCase
         return sb.ToString();
     }
 
+    /// <summary>
+    /// The variants with the body inlined: moved into a private static helper that takes d as a
+    /// <c>ReadOnlySpan&lt;double&gt;</c> (suffix Inl; inlined at the call, since it takes a span), and into a capturing
+    /// local function without parameters (suffix Loc). Their derivatives are checked against the same reference.
+    /// </summary>
+    public string InlinedVariantsSource(string name)
+    {
+        string attribute = Attribute(NamesAllVariables ? Array.Empty<string>() : Variables, Hessian);
+        const string Parameters = "(double x0, double x1, double x2, double c0, double c1, int k, double[] d)";
+        var sb = new StringBuilder();
+        sb.Append("    ").Append(attribute).Append('\n');
+        sb.Append("    public static double ").Append(name).Append("Inl").Append(Parameters).Append(" =>\n        ")
+            .Append(name).Append("InlBody(x0, x1, x2, c0, c1, k, d);\n\n");
+        sb.Append("    private static double ").Append(name).Append("InlBody(double x0, double x1, double x2, double c0, double c1, int k, ReadOnlySpan<double> d)\n    {\n");
+        Printer.Print(sb, Body, 2);
+        sb.Append("    }\n\n");
+        sb.Append("    ").Append(attribute).Append('\n');
+        sb.Append("    public static double ").Append(name).Append("Loc").Append(Parameters).Append("\n    {\n        double Body()\n        {\n");
+        Printer.Print(sb, Body, 3);
+        sb.Append("        }\n\n        return Body();\n    }\n");
+        return sb.ToString();
+    }
+
     /// <summary>A complete compilation unit holding <paramref name="methods"/> in <c>Rnd.R</c>.</summary>
     public static string Unit(IEnumerable<string> methods)
     {
@@ -167,5 +190,5 @@ internal sealed class RandomCase
 
     /// <summary>What a failure report shows: the method (as a complete, compilable unit) and the point.</summary>
     public string Describe(string name = "M") =>
-        $"// seed {Seed}; {Family}; variables ({string.Join(", ", Variables)}); at\n//   {string.Join("\n//   ", Points.Select(p => p.ToString()))}\n" + Unit(new[] { MethodSource(name), VectorVariantSource(name + "Vec") }.Concat(OutputVariantSource(name + "Out") is { } variant ? new[] { variant } : Array.Empty<string>()));
+        $"// seed {Seed}; {Family}; variables ({string.Join(", ", Variables)}); at\n//   {string.Join("\n//   ", Points.Select(p => p.ToString()))}\n" + Unit(new[] { MethodSource(name), VectorVariantSource(name + "Vec"), InlinedVariantsSource(name) }.Concat(OutputVariantSource(name + "Out") is { } variant ? new[] { variant } : Array.Empty<string>()));
 }
