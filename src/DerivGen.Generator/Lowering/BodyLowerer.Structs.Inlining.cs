@@ -309,7 +309,13 @@ internal sealed partial class BodyLowerer
                     {
                         if (statement is not IReturnOperation { ReturnedValue: null })
                         {
-                            Refuse(creation, name + ", whose body has '" + Text(statement) + "'", advice);
+                            string what = statement switch
+                            {
+                                ILoopOperation => "a loop",
+                                IConditionalOperation or ISwitchOperation => "a branch",
+                                _ => "the statement '" + Text(statement) + "'",
+                            };
+                            Refuse(creation, name + ", whose body has " + what, advice);
                             return null;
                         }
 
