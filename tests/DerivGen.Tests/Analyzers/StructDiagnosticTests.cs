@@ -139,6 +139,25 @@ public sealed class StructDiagnosticTests
         """);
 
     [Fact]
+    public Task DG0001ScalarLocalFunctionAssigningACapturedStructField() => VerifyAsync(Usings + """
+        public static partial class C
+        {
+            [Differentiate]
+            public static float F(float x)
+            {
+                var v = new Vector2(x, 1f);
+                float Bump()
+                {
+                    {|DG0001:v.X += 1f|};
+                    return v.X;
+                }
+
+                return v.X + Bump();
+            }
+        }
+        """);
+
+    [Fact]
     public Task DG0001StructWithExplicitLayout() => VerifyAsync(Usings + """
         [System.Runtime.InteropServices.StructLayout(System.Runtime.InteropServices.LayoutKind.Explicit)]
         public struct Union
