@@ -84,6 +84,13 @@ internal sealed partial class BodyLowerer
             }
         }
 
+        if (target.MethodKind == MethodKind.LocalFunction && AssignedCapture(body, target) is { } captured)
+        {
+            // Its statements are placed before the expression that calls it, which may read the local before the call.
+            return Refuse(site, "the call to " + name + ", which assigns the captured local '" + captured.Name + "'",
+                "let it return the new value and assign that at the call ('" + captured.Name + " = " + target.Name + "(…);')");
+        }
+
         RecordSymbolReads(target);
         int diagnosticsBefore = _diagnostics.Count;
         var bound = new List<IParameterSymbol>();
@@ -130,6 +137,31 @@ internal sealed partial class BodyLowerer
 
     /// <summary>Struct parameters of a constructor being inlined, bound to their arguments' values.</summary>
     private readonly Dictionary<IParameterSymbol, StructValue> _boundStructValues = new(SymbolEqualityComparer.Default);
+
+    /// <summary>A local of the enclosing method that a local function assigns (directly or through a field), or null.</summary>
+    private static ILocalSymbol? AssignedCapture(IOperation body, IMethodSymbol function)
+    {
+        foreach (IOperation operation in body.Descendants())
+        {
+            IOperation? assigned = operation switch
+            {
+                IAssignmentOperation assignment => assignment.Target,
+                IIncrementOrDecrementOperation increment => increment.Target,
+                _ => null,
+            };
+            while (assigned is IMemberReferenceOperation { Instance: { } instance })
+            {
+                assigned = instance; // v.X = … assigns v
+            }
+
+            if (assigned is ILocalReferenceOperation { Local: var local } && !SymbolEqualityComparer.Default.Equals(local.ContainingSymbol, function.OriginalDefinition))
+            {
+                return local;
+            }
+        }
+
+        return null;
+    }
 
     /// <summary>Evaluates an argument once, into fresh locals bound to the parameter; with <paramref name="direct"/>
     /// (a constructor, whose body only assigns fields: nothing is hoisted before the expression) the parameter is bound
@@ -309,7 +341,13 @@ internal sealed partial class BodyLowerer
                     {
                         if (statement is not IReturnOperation { ReturnedValue: null })
                         {
-                            Refuse(creation, name + ", whose body has '" + Text(statement) + "'", advice);
+                            string what = statement switch
+                            {
+                                ILoopOperation => "a loop",
+                                IConditionalOperation or ISwitchOperation => "a branch",
+                                _ => "the statement '" + Text(statement) + "'",
+                            };
+                            Refuse(creation, name + ", whose body has " + what, advice);
                             return null;
                         }
 

@@ -158,6 +158,14 @@ internal sealed partial class BodyLowerer
     /// <summary>Assignments to struct locals and to their components. False when the statement is none of those.</summary>
     private bool TryLowerStructStatement(IOperation expression)
     {
+        if (CapturedStructWrite(expression) is { } captured)
+        {
+            // An inlined local function's statements run before the expression that calls it, which may read the local first.
+            Unsupported(expression, $"the assignment to '{captured.Name}', captured by the local function '{_inlining[_inlining.Count - 1].Name}'",
+                "let it return the new value and assign that at the call ('" + captured.Name + " = " + _inlining[_inlining.Count - 1].Name + "(…);')");
+            return true;
+        }
+
         switch (expression)
         {
             case ISimpleAssignmentOperation { Target: ILocalReferenceOperation or IParameterReferenceOperation } assignment
@@ -202,6 +210,31 @@ internal sealed partial class BodyLowerer
             default:
                 return false;
         }
+    }
+
+    /// <summary>The struct local of the method that a statement of an inlined local function writes, or null.</summary>
+    private ILocalSymbol? CapturedStructWrite(IOperation expression)
+    {
+        if (_inlining.Count == 0)
+        {
+            return null;
+        }
+
+        IOperation? target = expression switch
+        {
+            IAssignmentOperation assignment => assignment.Target,
+            IIncrementOrDecrementOperation increment => increment.Target,
+            _ => null,
+        };
+        while (target is IMemberReferenceOperation { Instance: { } instance })
+        {
+            target = instance;
+        }
+
+        return target is ILocalReferenceOperation { Local: var local } && LayoutOf(local.Type) is not null
+            && !SymbolEqualityComparer.Default.Equals(local.ContainingSymbol, _inlining[_inlining.Count - 1].OriginalDefinition)
+            ? local
+            : null;
     }
 
     /// <summary>The IR locals of a struct local (or of a struct parameter bound by an inlined call).</summary>

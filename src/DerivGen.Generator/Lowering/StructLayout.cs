@@ -152,6 +152,13 @@ internal sealed class StructLayout
             return null;
         }
 
+        if (named.GetAttributes().Any(a => a.AttributeClass?.Name == "StructLayoutAttribute" && a.ConstructorArguments.Length == 1
+                && a.ConstructorArguments[0].Value is int kind && kind == 2 /* LayoutKind.Explicit */))
+        {
+            problem = "the struct '" + named.ToDisplayString() + "' has an explicit layout, whose fields may overlap (writing one would change another)";
+            return null;
+        }
+
         if (depth > 8)
         {
             problem = "the struct '" + named.ToDisplayString() + "' nests structs more than 8 deep";

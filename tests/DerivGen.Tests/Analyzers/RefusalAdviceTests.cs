@@ -455,6 +455,113 @@ public sealed class RefusalAdviceTests
     }
 
     [Fact]
+    public async Task PrivateStructFieldsBecomeInternal()
+    {
+        const string Refused = """
+            public struct Gain
+            {
+                private double _k;
+
+                public Gain(double k) => _k = k;
+
+                public double K => _k;
+            }
+
+            public static partial class Amp
+            {
+                [Differentiate(nameof(x))]
+                public static double Out(double x, Gain g) => g.K * x * x;
+            }
+            """;
+        await RefusedWith(Usings + Refused,
+            "DG0001: The 'Gain' value 'g', whose fields are not all accessible from 'Amp' cannot be differentiated: "
+            + "the generated methods read its fields; make them (or their properties) internal or public, or pass the values as double or float parameters");
+
+        using CompiledAssembly asm = await Accepted(Usings + Refused.Replace("private double _k;", "internal double _k;"));
+        Assert.True(asm.HasMethod("Amp", "OutGradient"));
+    }
+
+    [Fact]
+    public async Task StructByRefBecomesIn()
+    {
+        const string Refused = """
+            public static partial class Plane
+            {
+                [Differentiate(nameof(x))]
+                public static float Height(float x, ref Vector2 slope) => x * slope.X + slope.Y;
+            }
+            """;
+        await RefusedWith(Usings + Refused, "DG0001: The ref struct parameter 'slope' cannot be differentiated: pass it by value or as 'in'");
+        using CompiledAssembly asm = await Accepted(Usings + Refused.Replace("ref Vector2", "in Vector2"));
+        Assert.True(asm.HasMethod("Plane", "HeightGradient"));
+    }
+
+    [Fact]
+    public async Task ConstructorWithABranchBecomesAnObjectInitializer()
+    {
+        const string Declarations = """
+            public struct Rate
+            {
+                public double Value;
+
+                public Rate(double value)
+                {
+                    if (value < 0)
+                    {
+                        value = 0;
+                    }
+
+                    Value = value;
+                }
+            }
+
+            public static partial class Decay
+            {
+                [Differentiate(nameof(k))]
+                public static double Remaining(double k, double t)
+                {
+                    var r = new Rate(k);
+                    return Math.Exp(-r.Value * t);
+                }
+            }
+            """;
+        await RefusedWith(Usings + Declarations,
+            "DG0001: The constructor 'new Rate(k)', whose body has a branch cannot be differentiated: "
+            + "a struct's constructor is inlined when it only assigns fields or properties from its parameters (X = x;); otherwise build the value with an object initializer (new T { X = x })");
+
+        using CompiledAssembly asm = await Accepted(Usings + Declarations.Replace("var r = new Rate(k);", "var r = new Rate { Value = k < 0 ? 0 : k };"));
+        var g = new double[1];
+        asm.Method<Grad1Data0>("Decay", "RemainingGradient")(0.5, 2.0, g);
+        Assert.Equal(-2.0 * Math.Exp(-1.0), g[0], 15); // plain calculus: d/dk e^(−k t) = −t e^(−k t)
+    }
+
+    [Fact]
+    public async Task ForEachOverASpanOfStructsBecomesAnArray()
+    {
+        const string Refused = """
+            public static partial class Fit
+            {
+                [Differentiate(nameof(a))]
+                public static float Loss(float a, ReadOnlySpan<Vector2> points)
+                {
+                    float s = 0f;
+                    foreach (Vector2 p in points)
+                    {
+                        s += (a * p.X - p.Y) * (a * p.X - p.Y);
+                    }
+
+                    return s;
+                }
+            }
+            """;
+        await RefusedWith(Usings + Refused,
+            "DG0001: The foreach loop 'foreach (Vector2 p in points)' cannot be differentiated: "
+            + "foreach over structs works over a one-dimensional array of them that is a parameter, a field of this instance or a static readonly field");
+        using CompiledAssembly asm = await Accepted(Usings + Refused.Replace("ReadOnlySpan<Vector2> points", "Vector2[] points"));
+        Assert.True(asm.HasMethod("Fit", "LossGradient"));
+    }
+
+    [Fact]
     public async Task StructVariableWithAnIntFieldSplitsIntoParameters()
     {
         await RefusedWith(Usings + """

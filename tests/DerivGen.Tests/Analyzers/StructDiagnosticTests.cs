@@ -120,6 +120,64 @@ public sealed class StructDiagnosticTests
     });
 
     [Fact]
+    public Task DG0001LocalFunctionAssigningACapturedStruct() => VerifyAsync(Usings + """
+        public static partial class C
+        {
+            [Differentiate]
+            public static float F(float x)
+            {
+                var v = new Vector2(x, 1f);
+                Vector2 Bump(Vector2 a)
+                {
+                    v.X += 1f;
+                    return a * 2f;
+                }
+
+                return v.X + {|DG0001:Bump(v)|}.Y;
+            }
+        }
+        """);
+
+    [Fact]
+    public Task DG0001ScalarLocalFunctionAssigningACapturedStructField() => VerifyAsync(Usings + """
+        public static partial class C
+        {
+            [Differentiate]
+            public static float F(float x)
+            {
+                var v = new Vector2(x, 1f);
+                float Bump()
+                {
+                    {|DG0001:v.X += 1f|};
+                    return v.X;
+                }
+
+                return v.X + Bump();
+            }
+        }
+        """);
+
+    [Fact]
+    public Task DG0001StructWithExplicitLayout() => VerifyAsync(Usings + """
+        [System.Runtime.InteropServices.StructLayout(System.Runtime.InteropServices.LayoutKind.Explicit)]
+        public struct Union
+        {
+            [System.Runtime.InteropServices.FieldOffset(0)] public double A;
+            [System.Runtime.InteropServices.FieldOffset(0)] public double B;
+        }
+
+        public static partial class C
+        {
+            [Differentiate]
+            public static double F(double x)
+            {
+                Union {|DG0001:u = new Union { A = x }|};
+                return u.B * x;
+            }
+        }
+        """);
+
+    [Fact]
     public Task DG0001StructWithAnArrayField() => VerifyAsync(Usings + """
         public struct Series
         {

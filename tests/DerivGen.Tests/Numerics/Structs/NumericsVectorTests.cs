@@ -87,6 +87,14 @@ public sealed class NumericsVectorFixture : UserCodeFixture
             public static double MixedAtGradient(float x, float y, float z, Span<double> g) => MixedGradient(new Vector3(x, y, z), g);
 
             public static double MixedAtHessian(float x, float y, float z, Span<double> g, Span<double> h) => MixedHessian(new Vector3(x, y, z), g, h);
+
+            // A Vector3 variable beside a vector of variables: slots p.X, p.Y, p.Z, then w[0], w[1] (the Hessian comes
+            // from the pair method).
+            [Differentiate(nameof(p), nameof(w))]
+            public static double WithVector(Vector3 p, double[] w) => p.X * w[0] + (double)p.Y * p.Z * w[1] + w[0] * w[1];
+
+            public static double WithVectorAtHessian(float x, float y, float z, double[] w, Span<double> g, Span<double> h) =>
+                WithVectorHessian(new Vector3(x, y, z), w, g, h);
         }
         """;
 
@@ -172,6 +180,26 @@ public sealed class NumericsVectorTests : IClassFixture<NumericsVectorFixture>
     }
 
     [Fact]
+    public void Vector3VariableBesideAVectorOfVariables()
+    {
+        // f = x·w₀ + y·z·w₁ + w₀·w₁ (plain calculus), slots (x, y, z, w₀, w₁).
+        float x = 0.5f, y = -1.5f, z = 2.25f;
+        double w0 = 0.75, w1 = -2.0;
+        var g = new double[5];
+        var h = new double[25];
+        _fixture.Assembly.Method<HVec>("Geo", "WithVectorAtHessian")(x, y, z, new[] { w0, w1 }, g, h);
+        Check.Close(new[] { w0, z * w1, y * w1, x + w1, (double)y * z + w0 }, g, 1e-15, 1e-15, "gradient");
+        Check.Close(new double[]
+        {
+            0, 0, 0, 1, 0,
+            0, 0, w1, 0, z,
+            0, w1, 0, 0, y,
+            1, 0, 0, 0, 1,
+            0, z, y, 1, 0,
+        }, h, 1e-15, 1e-15, "Hessian");
+    }
+
+    [Fact]
     public void All3GradientMatchesFiniteDifferences()
     {
         // The gradient of the value with every operation, against MathNet's central differences in double of the
@@ -217,6 +245,8 @@ public sealed class NumericsVectorTests : IClassFixture<NumericsVectorFixture>
 
         Check.SameBits(0f, Vector3.Dot(new Vector3(-1f, 1f, -1f), new Vector3(0f, -0f, 0f)), "three −0 products sum to +0");
     }
+
+    private delegate double HVec(float x, float y, float z, double[] w, Span<double> g, Span<double> h);
 
     private delegate float F3f(float x, float y, float z);
 
