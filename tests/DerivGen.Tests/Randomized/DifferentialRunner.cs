@@ -44,6 +44,10 @@ internal sealed class BatchOutcome
 
     public int VectorVariantsRefused { get; set; }
 
+    /// <summary>Generated gradients that go through their loops in reverse (a record and a reverse sweep) rather than
+    /// with forward running derivatives (Differentiation/LoopReverse; the rule is ReverseLoopPolicy).</summary>
+    public int ReverseLoopGradients { get; set; }
+
     /// <summary>Gradient or Hessian entries compared with MathNet's finite differences.</summary>
     public int OracleEntries { get; set; }
 
@@ -171,6 +175,7 @@ internal static class DifferentialRunner
             }
         }
 
+        outcome.ReverseLoopGradients += byHint.Values.Count(g => g.SourceText.ToString().Contains("// Reverse sweep:", StringComparison.Ordinal));
         for (int i = 0; i < cases.Count; i++)
         {
             string hint = TypeName + "." + MethodName(i) + ".g.cs";

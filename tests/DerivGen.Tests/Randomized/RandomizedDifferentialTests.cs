@@ -87,6 +87,7 @@ public sealed class RandomizedDifferentialTests
             total.JacobianRows += outcome.JacobianRows;
             total.VectorVariants += outcome.VectorVariants;
             total.VectorVariantsRefused += outcome.VectorVariantsRefused;
+            total.ReverseLoopGradients += outcome.ReverseLoopGradients;
             total.OracleEntries += outcome.OracleEntries;
             total.OracleInconclusive += outcome.OracleInconclusive;
             total.WorstReferenceRatio = Math.Max(total.WorstReferenceRatio, outcome.WorstReferenceRatio);
@@ -118,7 +119,7 @@ public sealed class RandomizedDifferentialTests
         string replay = $"DERIVGEN_SEED={runSeed}";
         _output.WriteLine($"{family}: seed {runSeed} ({replay} replays this run); {outcome.Checked} of {count} methods checked at {outcome.Points} points "
             + $"({outcome.JacobianRows} Jacobian rows of variants with outputs; {outcome.VectorVariants} variants with d as a vector variable checked, "
-            + $"{outcome.VectorVariantsRefused} refused), "
+            + $"{outcome.VectorVariantsRefused} refused; {outcome.ReverseLoopGradients} gradients through loops in reverse), "
             + $"{outcome.Failures.Count} failed; {outcome.OracleEntries} entries compared with finite differences, "
             + $"{outcome.OracleInconclusive} inconclusive; worst |generated - reference| / tolerance = {outcome.WorstReferenceRatio:G3}; "
             + $"largest generated file {outcome.LargestGeneratedFile} characters (case {outcome.LargestGeneratedSeed}); "

@@ -1,0 +1,234 @@
+using System;
+using System.Collections.Generic;
+using System.Linq;
+using DerivGen.Generator.Differentiation;
+using DerivGen.Generator.Differentiation.LoopReverse;
+using DerivGen.Generator.Model;
+using DerivGen.Generator.Symbolic;
+
+namespace DerivGen.Generator.Emit;
+
+/// <summary>The gradient through loops in reverse (<see cref="ReverseGradient"/>): the records the value code keeps,
+/// and the reverse sweep after it. Prints the plan; decides nothing.</summary>
+internal sealed partial class MethodBodyWriter
+{
+    private const string Pool = "global::System.Buffers.ArrayPool<double>.Shared";
+    private ReverseGradient? _reverse;
+    private readonly Stack<(IndentedWriter.Scope Try, string Rented)> _openRecords = new();
+
+    /// <summary>Before a recorded loop: its number of iterations and the buffer of its record (stack or pool), then a
+    /// <c>try</c> whose <c>finally</c> (written at the end of the method) returns a rented buffer.</summary>
+    private void OpenRecord(LoopSegment loop)
+    {
+        if (_reverse is null || !_reverse.Tapes.TryGetValue(loop, out TapeRecord? tape))
+        {
+            return;
+        }
+
+        string count = _context.Name(tape.Count), buffer = _context.Name(tape.Buffer), rented = _context.Name(tape.Rented);
+        int m = tape.Recorded.Count;
+        string size = m == 1 ? count : Text.Count(m) + " * " + count;
+        string span = loop.Start!.IsZero && !loop.Inclusive ? _code.Write(loop.End!)
+            : Text.Parenthesized(_code.Write(loop.End!)) + " - " + Text.Parenthesized(_code.Write(loop.Start!)) + (loop.Inclusive ? " + 1" : string.Empty);
+        _writer.Line("// The record for the reverse sweep: " + string.Join(", ", tape.Recorded.Select(s => Identifiers.Unescape(s.Name)))
+            + " at the start of every iteration (on the stack up to " + Text.Count(ReverseGradient.StackLimit) + " values, else pooled).");
+        _writer.Line("int " + count + " = global::System.Math.Max(0, " + span + ");");
+        _writer.Line("double[]? " + rented + " = null;");
+        _writer.Line("global::System.Span<double> " + buffer + " = " + size + " <= " + Text.Count(ReverseGradient.StackLimit) + " ? stackalloc double[" + size + "] : ("
+            + rented + " = " + Pool + ".Rent(" + size + "));");
+        for (int j = 0; j < m; j++)
+        {
+            _writer.Line("global::System.Span<double> " + _context.Name(tape.Slice[tape.Recorded[j]]) + " = " + buffer + ".Slice(" + (j == 0 ? "0" : (j == 1 ? count : Text.Count(j) + " * " + count))
+                + ", " + count + ");");
+        }
+
+        _openRecords.Push((_writer.Block("try"), rented));
+    }
+
+    /// <summary>The offset of iteration i in a record: i − start.</summary>
+    private string RecordIndex(LoopSegment loop) =>
+        loop.Start!.IsZero ? loop.Index! : loop.Index + " - " + Text.Parenthesized(_code.Write(loop.Start!));
+
+    /// <summary>At the top of an iteration: the recorded locals' values.</summary>
+    private void WriteRecordWrites(LoopSegment loop)
+    {
+        if (_reverse is null || !_reverse.Tapes.TryGetValue(loop, out TapeRecord? tape))
+        {
+            return;
+        }
+
+        string at = RecordIndex(loop);
+        foreach (LoopState state in tape.Recorded)
+        {
+            string value = state.Type == ScalarType.Boolean ? state.Name + " ? 1.0 : 0.0" : state.Name;
+            _writer.Line(_context.Name(tape.Slice[state]) + "[" + at + "] = " + value + ";");
+        }
+    }
+
+    /// <summary>After a loop: copies of carried values the reverse sweep reads after a later loop has changed them.</summary>
+    private void WriteReverseSnapshots(LoopSegment loop)
+    {
+        if (_reverse is null || !_reverse.SnapshotsAfter.TryGetValue(loop, out List<(Node Leaf, string Id)>? copies))
+        {
+            return;
+        }
+
+        foreach ((Node leaf, string id) in copies)
+        {
+            _writer.Line(ExpressionWriter.TypeKeyword(leaf.Type) + " " + _context.Name(id) + " = " + leaf.Text + "; // read by the reverse sweep after a later loop changes it");
+        }
+
+        _writer.Blank();
+    }
+
+    /// <summary>The reverse sweep, the gradient entries, the return, and the <c>finally</c> blocks of the records.</summary>
+    private void WriteReverseSweep()
+    {
+        ReverseGradient reverse = _reverse!;
+        _writer.Blank();
+        _writer.Line("// Reverse sweep: adjoints (…Bar) from the value back to the variables.");
+        for (int v = 0; v < _program.Vectors.Length; v++)
+        {
+            _writer.Line(_context.GradientName + ".Slice(" + _context.VectorOffset[v] + ", " + Length(v) + ").Clear(); // ∂" + _context.BareName + "/∂"
+                + Identifiers.Unescape(_program.Vectors[v]) + "[…], accumulated below");
+        }
+
+        for (int i = 0; i < reverse.Blocks.Count; i++)
+        {
+            WriteAdjointBlock(reverse.Blocks[i]);
+            if (i == 0)
+            {
+                foreach ((string id, ScalarType type) in reverse.ZeroAdjoints)
+                {
+                    _writer.Line(ExpressionWriter.TypeKeyword(type) + " " + _context.Name(id) + " = " + Literals.CSharp(0, type) + ";");
+                }
+            }
+        }
+
+        _writer.Blank();
+        for (int k = 0; k < _program.Variables.Length; k++)
+        {
+            string value = reverse.ScalarAdjoints[k] is { } id ? _context.Name(id) : Literals.CSharp(0, _context.Spec.ReturnType);
+            _writer.Line(_context.GradientName + "[" + _context.ScalarOffset[k] + "] = " + value + "; // " + _context.PartialName(k));
+        }
+
+        _writer.Line();
+        _writer.Line("return " + _code.Write(_program.Value) + ";");
+        while (_openRecords.Count > 0)
+        {
+            (IndentedWriter.Scope scope, string rented) = _openRecords.Pop();
+            scope.Dispose();
+            using (_writer.Block("finally"))
+            {
+                using (_writer.Block("if (" + rented + " != null)"))
+                {
+                    _writer.Line(Pool + ".Return(" + rented + ");");
+                }
+            }
+        }
+    }
+
+    private void WriteAdjointBlock(AdjointBlock block)
+    {
+        if (block.Temporaries.Count == 0 && block.Accumulations.Count == 0 && block.Terms.Count == 0 && block.Assignments.Count == 0)
+        {
+            return;
+        }
+
+        ReverseGradient reverse = _reverse!;
+        var names = new Dictionary<Node, string>();
+        TapeRecord? tape = block.Loop is { } recorded && reverse.Tapes.TryGetValue(recorded, out TapeRecord? t) ? t : null;
+        if (tape is not null)
+        {
+            foreach (LoopState state in tape.Recorded)
+            {
+                names[state.Current] = _context.Name(tape.Restored[state]);
+            }
+        }
+
+        string? Name(Node node) =>
+            names.TryGetValue(node, out string? name) ? name
+            : reverse.SnapshotOf.TryGetValue(node, out string? copy) ? _context.Name(copy)
+            : reverse.ForwardNamed.Contains(node) ? NameOf(node)
+            : _context.LeafName(node);
+        var code = new ExpressionWriter(Name, formula: false);
+
+        _writer.Blank();
+        _writer.Line("// The adjoint of " + block.Label + ".");
+        IndentedWriter.Scope? body = null;
+        if (block.Loop is { } loop)
+        {
+            string start = _code.Write(loop.Start!), end = _code.Write(loop.End!);
+            body = _writer.Block("for (int " + loop.Index + " = " + (loop.Inclusive ? end : Text.Parenthesized(end) + " - 1") + "; " + loop.Index + " >= " + start + "; " + loop.Index + "--)");
+            if (tape is not null)
+            {
+                string at = RecordIndex(loop);
+                foreach (LoopState state in tape.Recorded)
+                {
+                    string read = _context.Name(tape.Slice[state]) + "[" + at + "]";
+                    read = state.Type switch
+                    {
+                        ScalarType.Boolean => read + " != 0.0",
+                        ScalarType.Double => read,
+                        _ => "(" + ExpressionWriter.TypeKeyword(state.Type) + ")" + read,
+                    };
+                    _writer.Line(ExpressionWriter.TypeKeyword(state.Type) + " " + names[state.Current] + " = " + read + ";");
+                }
+            }
+        }
+
+        foreach (Node node in block.Temporaries)
+        {
+            string name = _scope.Fresh(node, Name);
+            _writer.Line(ExpressionWriter.TypeKeyword(node.Type) + " " + name + " = " + new ExpressionWriter(x => x == node ? _context.LeafName(x) : Name(x), formula: false).Write(node) + ";");
+            names[node] = name;
+        }
+
+        foreach (Accumulation accumulation in block.Accumulations)
+        {
+            string target = _context.Name(accumulation.Target);
+            _writer.Line(accumulation.Declares
+                ? ExpressionWriter.TypeKeyword(accumulation.Type) + " " + target + " = " + code.Write(accumulation.Value) + ";"
+                : target + " += " + code.Write(accumulation.Value) + ";");
+        }
+
+        foreach (VectorTerm term in block.Terms)
+        {
+            string offset = _context.VectorOffset[term.Vector] == "0" ? string.Empty : _context.VectorOffset[term.Vector] + " + ";
+            string index = code.Write(term.Index!);
+            string update = _context.GradientName + "[" + offset + index + "] += " + code.Write(term.Coefficient) + ";";
+            if (term.Element is { } read && !block.ReadAlways.Contains(read))
+            {
+                // Read only under a condition: where it is not read the contribution is 0, but the index may be out of range.
+                using (_writer.Block(InRange(index, term.Vector)))
+                {
+                    _writer.Line(update);
+                }
+            }
+            else
+            {
+                _writer.Line(update);
+            }
+        }
+
+        var copies = new List<string>();
+        foreach (AdjointAssignment assignment in block.Assignments.Where(a => a.ThroughLocal))
+        {
+            string next = _scope.Fresh(Identifiers.Unescape(_context.Name(assignment.Target)) + "Next");
+            _writer.Line(ExpressionWriter.TypeKeyword(assignment.Type) + " " + next + " = " + code.Write(assignment.Value) + ";");
+            copies.Add(_context.Name(assignment.Target) + " = " + next + ";");
+        }
+
+        foreach (AdjointAssignment assignment in block.Assignments.Where(a => !a.ThroughLocal))
+        {
+            _writer.Line(_context.Name(assignment.Target) + " = " + code.Write(assignment.Value) + ";");
+        }
+
+        foreach (string copy in copies)
+        {
+            _writer.Line(copy);
+        }
+
+        body?.Dispose();
+    }
+}
