@@ -27,29 +27,62 @@ internal sealed partial class MethodBodyWriter
 
         string count = _context.Name(tape.Count), buffer = _context.Name(tape.Buffer), rented = _context.Name(tape.Rented);
         int m = tape.Recorded.Count;
-        string size = m == 1 ? count : Text.Count(m) + " * " + count;
-        string span = loop.Start!.IsZero && !loop.Inclusive ? _code.Write(loop.End!)
-            : Text.Parenthesized(_code.Write(loop.End!)) + " - " + Text.Parenthesized(_code.Write(loop.Start!)) + (loop.Inclusive ? " + 1" : string.Empty);
-        _writer.Line("// The record for the reverse sweep: " + string.Join(", ", tape.Recorded.Select(s => Identifiers.Unescape(s.Name)))
-            + " at the start of every iteration (on the stack up to " + Text.Count(ReverseGradient.StackLimit) + " values, else pooled).");
-        _writer.Line("int " + count + " = global::System.Math.Max(0, " + span + ");");
-        _writer.Line("double[]? " + rented + " = null;");
-        _writer.Line("global::System.Span<double> " + buffer + " = " + size + " <= " + Text.Count(ReverseGradient.StackLimit) + " ? stackalloc double[" + size + "] : ("
-            + rented + " = " + Pool + ".Rent(" + size + "));");
-        for (int j = 0; j < m; j++)
+        string limit = Text.Count(ReverseGradient.StackLimit);
+        string names = string.Join(", ", tape.Recorded.Select(s => Identifiers.Unescape(s.Name)));
+        if (tape.IsGrowable)
         {
-            _writer.Line("global::System.Span<double> " + _context.Name(tape.Slice[tape.Recorded[j]]) + " = " + buffer + ".Slice(" + (j == 0 ? "0" : (j == 1 ? count : Text.Count(j) + " * " + count))
-                + ", " + count + ");");
+            _writer.Line(m == 0
+                ? "// The number of iterations, for the reverse sweep."
+                : "// The record for the reverse sweep: " + names + " at the start of every iteration, " + Text.Count(m) + " values per iteration (on the stack for the first "
+                    + limit + " values, then pooled, twice as long whenever full).");
+            _writer.Line("int " + count + " = 0;");
+            if (m == 0)
+            {
+                return;
+            }
+
+            _writer.Line("double[]? " + rented + " = null;");
+            _writer.Line("global::System.Span<double> " + buffer + " = stackalloc double[" + limit + "];");
+        }
+        else
+        {
+            string size = m == 1 ? count : Text.Count(m) + " * " + count;
+            string span = loop.Start!.IsZero && !loop.Inclusive ? _code.Write(loop.End!)
+                : Text.Parenthesized(_code.Write(loop.End!)) + " - " + Text.Parenthesized(_code.Write(loop.Start!)) + (loop.Inclusive ? " + 1" : string.Empty);
+            _writer.Line("// The record for the reverse sweep: " + names + " at the start of every iteration (on the stack up to " + limit + " values, else pooled).");
+            _writer.Line("int " + count + " = global::System.Math.Max(0, " + span + ");");
+            _writer.Line("double[]? " + rented + " = null;");
+            _writer.Line("global::System.Span<double> " + buffer + " = " + size + " <= " + limit + " ? stackalloc double[" + size + "] : ("
+                + rented + " = " + Pool + ".Rent(" + size + "));");
+            for (int j = 0; j < m; j++)
+            {
+                _writer.Line("global::System.Span<double> " + _context.Name(tape.Slice[tape.Recorded[j]]) + " = " + buffer + ".Slice(" + (j == 0 ? "0" : (j == 1 ? count : Text.Count(j) + " * " + count))
+                    + ", " + count + ");");
+            }
         }
 
         _openRecords.Push((_writer.Block("try"), rented));
     }
 
-    /// <summary>The offset of iteration i in a record: i − start.</summary>
+    /// <summary>Where iteration <paramref name="at"/> keeps recorded local number <paramref name="j"/>.</summary>
+    private string RecordElement(TapeRecord tape, LoopState state, string at)
+    {
+        if (!tape.IsGrowable)
+        {
+            return _context.Name(tape.Slice[state]) + "[" + at + "]";
+        }
+
+        int m = tape.Recorded.Count, j = tape.Recorded.IndexOf(state);
+        string start = m == 1 ? at : Text.Count(m) + " * " + at;
+        return _context.Name(tape.Buffer) + "[" + (j == 0 ? start : start + " + " + Text.Count(j)) + "]";
+    }
+
+    /// <summary>The offset of iteration i in a counted loop's record: i − start.</summary>
     private string RecordIndex(LoopSegment loop) =>
         loop.Start!.IsZero ? loop.Index! : loop.Index + " - " + Text.Parenthesized(_code.Write(loop.Start!));
 
-    /// <summary>At the top of an iteration: the recorded locals' values.</summary>
+    /// <summary>At the top of an iteration: the recorded locals' values (a full growable record moves to a pooled array
+    /// twice as long first), and a while loop's count.</summary>
     private void WriteRecordWrites(LoopSegment loop)
     {
         if (_reverse is null || !_reverse.Tapes.TryGetValue(loop, out TapeRecord? tape))
@@ -57,11 +90,35 @@ internal sealed partial class MethodBodyWriter
             return;
         }
 
-        string at = RecordIndex(loop);
+        int m = tape.Recorded.Count;
+        string count = _context.Name(tape.Count);
+        if (tape.IsGrowable && m > 0)
+        {
+            string buffer = _context.Name(tape.Buffer), rented = _context.Name(tape.Rented), grown = _context.Name(tape.Grown!);
+            using (_writer.Block("if (" + (m == 1 ? count : Text.Count(m) + " * " + count) + " + " + Text.Count(m) + " > " + buffer + ".Length)"))
+            {
+                _writer.Line("double[] " + grown + " = " + Pool + ".Rent(2 * " + buffer + ".Length);");
+                _writer.Line(buffer + ".CopyTo(" + grown + ");");
+                using (_writer.Block("if (" + rented + " != null)"))
+                {
+                    _writer.Line(Pool + ".Return(" + rented + ");");
+                }
+
+                _writer.Line(rented + " = " + grown + ";");
+                _writer.Line(buffer + " = " + grown + ";");
+            }
+        }
+
+        string at = tape.IsGrowable ? count : RecordIndex(loop);
         foreach (LoopState state in tape.Recorded)
         {
             string value = state.Type == ScalarType.Boolean ? state.Name + " ? 1.0 : 0.0" : state.Name;
-            _writer.Line(_context.Name(tape.Slice[state]) + "[" + at + "] = " + value + ";");
+            _writer.Line(RecordElement(tape, state, at) + " = " + value + ";");
+        }
+
+        if (tape.IsGrowable)
+        {
+            _writer.Line(count + "++;");
         }
     }
 
@@ -130,7 +187,7 @@ internal sealed partial class MethodBodyWriter
 
     private void WriteAdjointBlock(AdjointBlock block)
     {
-        if (block.Temporaries.Count == 0 && block.Accumulations.Count == 0 && block.Terms.Count == 0 && block.Assignments.Count == 0)
+        if (ReverseGradient.IsEmpty(block))
         {
             return;
         }
@@ -158,22 +215,29 @@ internal sealed partial class MethodBodyWriter
         IndentedWriter.Scope? body = null;
         if (block.Loop is { } loop)
         {
-            string start = _code.Write(loop.Start!), end = _code.Write(loop.End!);
-            body = _writer.Block("for (int " + loop.Index + " = " + (loop.Inclusive ? end : Text.Parenthesized(end) + " - 1") + "; " + loop.Index + " >= " + start + "; " + loop.Index + "--)");
-            if (tape is not null)
+            string at;
+            if (loop.Index is null)
             {
-                string at = RecordIndex(loop);
-                foreach (LoopState state in tape.Recorded)
+                at = _context.Name(tape!.Step!);
+                body = _writer.Block("for (int " + at + " = " + _context.Name(tape.Count) + " - 1; " + at + " >= 0; " + at + "--)");
+            }
+            else
+            {
+                string start = _code.Write(loop.Start!), end = _code.Write(loop.End!);
+                body = _writer.Block("for (int " + loop.Index + " = " + (loop.Inclusive ? end : Text.Parenthesized(end) + " - 1") + "; " + loop.Index + " >= " + start + "; " + loop.Index + "--)");
+                at = RecordIndex(loop);
+            }
+
+            foreach (LoopState state in tape?.Recorded ?? new List<LoopState>())
+            {
+                string read = RecordElement(tape!, state, at);
+                read = state.Type switch
                 {
-                    string read = _context.Name(tape.Slice[state]) + "[" + at + "]";
-                    read = state.Type switch
-                    {
-                        ScalarType.Boolean => read + " != 0.0",
-                        ScalarType.Double => read,
-                        _ => "(" + ExpressionWriter.TypeKeyword(state.Type) + ")" + read,
-                    };
-                    _writer.Line(ExpressionWriter.TypeKeyword(state.Type) + " " + names[state.Current] + " = " + read + ";");
-                }
+                    ScalarType.Boolean => read + " != 0.0",
+                    ScalarType.Double => read,
+                    _ => "(" + ExpressionWriter.TypeKeyword(state.Type) + ")" + read,
+                };
+                _writer.Line(ExpressionWriter.TypeKeyword(state.Type) + " " + names[state.Current] + " = " + read + ";");
             }
         }
 

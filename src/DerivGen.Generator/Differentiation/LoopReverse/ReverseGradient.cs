@@ -18,13 +18,20 @@ internal sealed class TapeRecord
     {
         Loop = loop;
         Recorded = recorded;
-        string stem = loop.Index ?? "loop";
-        Count = ids.New(stem + "Count");
+        Count = ids.New(loop.Index is { } index ? Identifiers.Unescape(index) + "Count" : "steps");
         Buffer = ids.New("tape");
         Rented = ids.New("tapeRented");
-        foreach (LoopState state in recorded)
+        if (IsGrowable)
         {
-            Slice[state] = ids.New(Identifiers.Unescape(state.Name) + "Tape");
+            Step = ids.New("step");
+            Grown = ids.New("grown");
+        }
+        else
+        {
+            foreach (LoopState state in recorded)
+            {
+                Slice[state] = ids.New(Identifiers.Unescape(state.Name) + "Tape");
+            }
         }
 
         foreach (LoopState state in recorded)
@@ -38,8 +45,19 @@ internal sealed class TapeRecord
     /// <summary>The carried locals recorded (every one the reverse iteration reads, of any type), in the loop's order.</summary>
     public List<LoopState> Recorded { get; }
 
-    /// <summary>The number of iterations, computed before the loop from its bounds.</summary>
+    /// <summary>The number of iterations: for a counted loop, computed before it from its bounds; for a while loop,
+    /// counted by the loop itself as it records.</summary>
     public string Count { get; }
+
+    /// <summary>A while loop (its trip count is known only when it ends): the record starts on the stack with
+    /// <see cref="ReverseGradient.StackLimit"/> elements and moves to a pooled array twice as long whenever it is full;
+    /// the locals of iteration s are at <c>m·s + j</c>. A counted loop gets one slice per local instead.</summary>
+    public bool IsGrowable => Loop.Condition is not null;
+
+    /// <summary>For a growable record: the reverse loop's counter, and the array a full record moves to.</summary>
+    public string? Step { get; }
+
+    public string? Grown { get; }
 
     /// <summary>The buffer (a span) and the rented array behind it, if any.</summary>
     public string Buffer { get; }
@@ -198,6 +216,7 @@ internal sealed class ReverseGradient
         }
 
         HashSet<Node> topAlways = Evaluation.Unconditional(topRoots);
+        var recordedOf = new Dictionary<LoopSegment, List<LoopState>>();
 
         // The code after the last loop: the value's adjoint is 1.
         bool IsFinalLeaf(Node node) => loopOf.TryGetValue(node, out var of) && of.State.Final == node;
@@ -223,7 +242,7 @@ internal sealed class ReverseGradient
             bool IsIterationBoundary(Node node) => loopOf.TryGetValue(node, out var of) && (of.State.Current == node ? of.Loop == loop : of.State.Final == node);
             AdjointResult iteration = AdjointSweep.Run(b, active.Select(s => (s.Next, adjointOf[s].Leaf)).ToList(), n, returnType, IsIterationBoundary);
             HashSet<Node> always = Evaluation.Unconditional(loop.States.Select(s => s.Next));
-            var block = new AdjointBlock(loop) { Label = "the loop over " + loop.Index + ", its iterations backwards", ReadAlways = always };
+            var block = new AdjointBlock(loop) { Label = Describe(loop) + ", its iterations backwards", ReadAlways = always };
             AddBlock(block, iteration, always, declares: false);
             var assignments = active.Select(s => (State: s, Value: iteration.Boundary.TryGetValue(s.Current, out Node? adjoint) ? b.Convert(adjoint, s.Type) : b.Zero(s.Type))).ToList();
             assignments.RemoveAll(a => a.Value == adjointOf[a.State].Leaf); // unchanged by an iteration (an accumulator's adjoint)
@@ -238,18 +257,24 @@ internal sealed class ReverseGradient
 
             // The record: every carried local of the loop whose value at the start of an iteration the block reads.
             HashSet<Node> read = Graph.Reachable(BlockRoots(block));
-            List<LoopState> recorded = loop.States.Where(s => read.Contains(s.Current)).ToList();
-            if (recorded.Count > 0)
-            {
-                Tapes[loop] = new TapeRecord(loop, recorded, ids);
-            }
+            recordedOf[loop] = loop.States.Where(s => read.Contains(s.Current)).ToList();
 
             // The code before the loop: the start values' adjoints are the carried locals' adjoints after the reverse loop.
             AdjointResult inputs = AdjointSweep.Run(b, active.Select(s => (s.Initial, adjointOf[s].Leaf)).ToList(), n, returnType, IsFinalLeaf);
-            AddBlock(new AdjointBlock(null) { Label = "the start values of the loop over " + loop.Index, ReadAlways = topAlways }, inputs, topAlways, declares: false);
+            AddBlock(new AdjointBlock(null) { Label = "the start values of " + Describe(loop), ReadAlways = topAlways }, inputs, topAlways, declares: false);
         }
 
         ScalarAdjoints = scalarIds;
+        foreach (LoopSegment loop in loops)
+        {
+            // A loop gets a record when its reverse iterations read a carried local, or when it is a while loop (whose
+            // record also counts its iterations).
+            if (recordedOf[loop].Count > 0 || (loop.Condition is not null && Blocks.Any(block => block.Loop == loop && !IsEmpty(block))))
+            {
+                Tapes[loop] = new TapeRecord(loop, recordedOf[loop], ids);
+            }
+        }
+
         FindSnapshots(loops);
 
         void AddBlock(AdjointBlock block, AdjointResult result, HashSet<Node> always, bool declares)
@@ -281,6 +306,10 @@ internal sealed class ReverseGradient
             Blocks.Add(block);
         }
     }
+
+    /// <summary>Whether a block writes nothing (no adjoint reaches its piece).</summary>
+    public static bool IsEmpty(AdjointBlock block) =>
+        block.Temporaries.Count == 0 && block.Accumulations.Count == 0 && block.Terms.Count == 0 && block.Assignments.Count == 0;
 
     private static IEnumerable<Node> BlockRoots(AdjointBlock block) =>
         block.Accumulations.Select(a => a.Value).Concat(block.Assignments.Select(a => a.Value)).Concat(ProgramReads.TermNodes(block.Terms));
@@ -381,7 +410,7 @@ internal sealed class ReverseGradient
                 bool carriedLater = loops.Skip(l + 1).Any(later => later.States.Any(s => s.Name == state.Name));
                 if (carriedLater && read.Contains(state.Final))
                 {
-                    string id = Program.Locals.New(Identifiers.Unescape(state.Name) + "After" + Capital(loops[l].Index ?? "loop"));
+                    string id = Program.Locals.New(Identifiers.Unescape(state.Name) + "After" + Capital(Identifiers.Unescape(loops[l].Index ?? "Loop")));
                     SnapshotOf[state.Final] = id;
                     if (!SnapshotsAfter.TryGetValue(loops[l], out List<(Node, string)>? list))
                     {
@@ -393,6 +422,8 @@ internal sealed class ReverseGradient
             }
         }
     }
+
+    private static string Describe(LoopSegment loop) => loop.Index is { } index ? "the loop over " + Identifiers.Unescape(index) : "the while loop";
 
     private static string Capital(string name) => name.Length == 0 ? name : char.ToUpperInvariant(name[0]) + name.Substring(1);
 }

@@ -48,8 +48,8 @@ internal static class ReverseLoopPolicy
 
     /// <summary>
     /// Whether the reverse sweep handles every loop of the method (part 2 of the rule): a method returning its value
-    /// (no span of outputs); loops that are <c>for</c> loops with bounds fixed before they start, not nested and not
-    /// inside a branch; no call of another generated method or helper anywhere (their partials come from buffers the
+    /// (no span of outputs); loops not nested and not inside a branch (<c>for</c> loops with bounds fixed before they
+    /// start, and while loops — what <c>break</c>, <c>continue</c> and an early <c>return</c> in a loop are lowered to); no call of another generated method or helper anywhere (their partials come from buffers the
     /// forward code fills once per call).
     /// </summary>
     public static bool Supports(MethodSpec spec, DerivativeProgram value)
@@ -61,7 +61,7 @@ internal static class ReverseLoopPolicy
 
         foreach (LoopSegment loop in value.Loops)
         {
-            if (loop.Parent is not null || loop.Children.Count > 0 || loop.Condition is not null || loop.Index is null)
+            if (loop.Parent is not null || loop.Children.Count > 0)
             {
                 return false;
             }
