@@ -20,7 +20,32 @@ internal sealed partial class MethodBodyWriter
     /// <c>try</c> whose <c>finally</c> (written at the end of the method) returns a rented buffer.</summary>
     private void OpenRecord(LoopSegment loop)
     {
-        if (_reverse is null || !_reverse.Tapes.TryGetValue(loop, out TapeRecord? tape))
+        if (_reverse is null)
+        {
+            return;
+        }
+
+        if (loop.Parent is null)
+        {
+            // The stacks of the loops nested in this one live as long as the whole nest.
+            foreach (LoopSegment nested in loop.Children)
+            {
+                if (_reverse.Tapes.TryGetValue(nested, out TapeRecord? stack))
+                {
+                    string stackBuffer = _context.Name(stack.Buffer), stackRented = _context.Name(stack.Rented);
+                    _writer.Line("// The record of " + (nested.Index is { } index ? "the loop over " + Identifiers.Unescape(index) : "the while loop") + " nested in it, a stack: "
+                        + (stack.Recorded.Count == 0 ? string.Empty : string.Join(", ", stack.Recorded.Select(s => Identifiers.Unescape(s.Name))) + " at the start of every iteration, then ")
+                        + (stack.Footer.Count == 0 ? string.Empty : string.Join(", ", stack.Footer.Select(s => Identifiers.Unescape(s.Name))) + " after the loop and ")
+                        + "its number of iterations (on the stack for the first " + Text.Count(ReverseGradient.StackLimit) + " values, then pooled, twice as long whenever full).");
+                    _writer.Line("int " + _context.Name(stack.Top!) + " = 0;");
+                    _writer.Line("double[]? " + stackRented + " = null;");
+                    _writer.Line("global::System.Span<double> " + stackBuffer + " = stackalloc double[" + Text.Count(ReverseGradient.StackLimit) + "];");
+                    _openRecords.Push((_writer.Block("try"), stackRented));
+                }
+            }
+        }
+
+        if (!_reverse.Tapes.TryGetValue(loop, out TapeRecord? tape))
         {
             return;
         }
@@ -29,6 +54,12 @@ internal sealed partial class MethodBodyWriter
         int m = tape.Recorded.Count;
         string limit = Text.Count(ReverseGradient.StackLimit);
         string names = string.Join(", ", tape.Recorded.Select(s => Identifiers.Unescape(s.Name)));
+        if (tape.IsStack)
+        {
+            _writer.Line("int " + count + " = 0;");
+            return;
+        }
+
         if (tape.IsGrowable)
         {
             _writer.Line(m == 0
@@ -92,6 +123,13 @@ internal sealed partial class MethodBodyWriter
 
         int m = tape.Recorded.Count;
         string count = _context.Name(tape.Count);
+        if (tape.IsStack)
+        {
+            Push(tape, tape.Recorded.Select(s => s.Type == ScalarType.Boolean ? s.Name + " ? 1.0 : 0.0" : s.Name).ToList());
+            _writer.Line(count + "++;");
+            return;
+        }
+
         if (tape.IsGrowable && m > 0)
         {
             string buffer = _context.Name(tape.Buffer), rented = _context.Name(tape.Rented), grown = _context.Name(tape.Grown!);
@@ -125,6 +163,12 @@ internal sealed partial class MethodBodyWriter
     /// <summary>After a loop: copies of carried values the reverse sweep reads after a later loop has changed them.</summary>
     private void WriteReverseSnapshots(LoopSegment loop)
     {
+        if (_reverse is not null && _reverse.Tapes.TryGetValue(loop, out TapeRecord? tape) && tape.IsStack)
+        {
+            // After a nested loop: its values after it, then its number of iterations, for this iteration of the loop around it.
+            Push(tape, tape.Footer.Select(s => s.Type == ScalarType.Boolean ? s.Name + " ? 1.0 : 0.0" : s.Name).Concat(new[] { _context.Name(tape.Count) }).ToList());
+        }
+
         if (_reverse is null || !_reverse.SnapshotsAfter.TryGetValue(loop, out List<(Node Leaf, string Id)>? copies))
         {
             return;
@@ -137,6 +181,59 @@ internal sealed partial class MethodBodyWriter
 
         _writer.Blank();
     }
+
+    /// <summary>Pushes values onto a nested loop's stack, moving it to a pooled array twice as long first if it is full.</summary>
+    private void Push(TapeRecord tape, List<string> values)
+    {
+        if (values.Count == 0)
+        {
+            return;
+        }
+
+        string buffer = _context.Name(tape.Buffer), rented = _context.Name(tape.Rented), grown = _context.Name(tape.Grown!), top = _context.Name(tape.Top!);
+        using (_writer.Block("if (" + top + " + " + Text.Count(values.Count) + " > " + buffer + ".Length)"))
+        {
+            _writer.Line("double[] " + grown + " = " + Pool + ".Rent(2 * " + buffer + ".Length);");
+            _writer.Line(buffer + ".CopyTo(" + grown + ");");
+            using (_writer.Block("if (" + rented + " != null)"))
+            {
+                _writer.Line(Pool + ".Return(" + rented + ");");
+            }
+
+            _writer.Line(rented + " = " + grown + ";");
+            _writer.Line(buffer + " = " + grown + ";");
+        }
+
+        for (int j = 0; j < values.Count; j++)
+        {
+            _writer.Line(buffer + "[" + (j == 0 ? top : top + " + " + Text.Count(j)) + "] = " + values[j] + ";");
+        }
+
+        _writer.Line(top + " += " + Text.Count(values.Count) + ";");
+    }
+
+    /// <summary>Pops values pushed by <see cref="Push"/> (in the order pushed) into new locals.</summary>
+    private void Pop(TapeRecord tape, List<(string Name, ScalarType Type)> locals)
+    {
+        if (locals.Count == 0)
+        {
+            return;
+        }
+
+        string buffer = _context.Name(tape.Buffer), top = _context.Name(tape.Top!);
+        _writer.Line(top + " -= " + Text.Count(locals.Count) + ";");
+        for (int j = 0; j < locals.Count; j++)
+        {
+            _writer.Line(ExpressionWriter.TypeKeyword(locals[j].Type) + " " + locals[j].Name + " = " + Restore(buffer + "[" + (j == 0 ? top : top + " + " + Text.Count(j)) + "]", locals[j].Type) + ";");
+        }
+    }
+
+    private static string Restore(string read, ScalarType type) => type switch
+    {
+        ScalarType.Boolean => read + " != 0.0",
+        ScalarType.Double => read,
+        _ => "(" + ExpressionWriter.TypeKeyword(type) + ")" + read,
+    };
 
     /// <summary>The reverse sweep, the gradient entries, the return, and the <c>finally</c> blocks of the records.</summary>
     private void WriteReverseSweep()
@@ -152,7 +249,7 @@ internal sealed partial class MethodBodyWriter
 
         for (int i = 0; i < reverse.Blocks.Count; i++)
         {
-            WriteAdjointBlock(reverse.Blocks[i]);
+            WriteAdjointBlock(reverse.Blocks[i], new Dictionary<Node, string>());
             if (i == 0)
             {
                 foreach ((string id, ScalarType type) in reverse.ZeroAdjoints)
@@ -185,7 +282,7 @@ internal sealed partial class MethodBodyWriter
         }
     }
 
-    private void WriteAdjointBlock(AdjointBlock block)
+    private void WriteAdjointBlock(AdjointBlock block, Dictionary<Node, string> outer)
     {
         if (ReverseGradient.IsEmpty(block))
         {
@@ -193,7 +290,7 @@ internal sealed partial class MethodBodyWriter
         }
 
         ReverseGradient reverse = _reverse!;
-        var names = new Dictionary<Node, string>();
+        var names = new Dictionary<Node, string>(outer); // what enclosing blocks restored or computed is in scope here
         TapeRecord? tape = block.Loop is { } recorded && reverse.Tapes.TryGetValue(recorded, out TapeRecord? t) ? t : null;
         if (tape is not null)
         {
@@ -215,29 +312,61 @@ internal sealed partial class MethodBodyWriter
         IndentedWriter.Scope? body = null;
         if (block.Loop is { } loop)
         {
-            string at;
-            if (loop.Index is null)
+            if (tape is { IsStack: true })
             {
-                at = _context.Name(tape!.Step!);
-                body = _writer.Block("for (int " + at + " = " + _context.Name(tape.Count) + " - 1; " + at + " >= 0; " + at + "--)");
+                string countIn = _context.Name(tape.CountIn!);
+                if (loop.Index is null)
+                {
+                    string step = _context.Name(tape.Step!);
+                    body = _writer.Block("for (int " + step + " = " + countIn + " - 1; " + step + " >= 0; " + step + "--)");
+                }
+                else
+                {
+                    string start = code.Write(loop.Start!);
+                    body = _writer.Block("for (int " + loop.Index + " = " + Text.Parenthesized(start) + " + " + countIn + " - 1; " + loop.Index + " >= " + start + "; " + loop.Index + "--)");
+                }
+
+                Pop(tape, tape.Recorded.Select(s => (names[s.Current], s.Type)).ToList());
             }
             else
             {
-                string start = _code.Write(loop.Start!), end = _code.Write(loop.End!);
-                body = _writer.Block("for (int " + loop.Index + " = " + (loop.Inclusive ? end : Text.Parenthesized(end) + " - 1") + "; " + loop.Index + " >= " + start + "; " + loop.Index + "--)");
-                at = RecordIndex(loop);
+                string at;
+                if (loop.Index is null)
+                {
+                    at = _context.Name(tape!.Step!);
+                    body = _writer.Block("for (int " + at + " = " + _context.Name(tape.Count) + " - 1; " + at + " >= 0; " + at + "--)");
+                }
+                else
+                {
+                    string start = code.Write(loop.Start!), end = code.Write(loop.End!);
+                    body = _writer.Block("for (int " + loop.Index + " = " + (loop.Inclusive ? end : Text.Parenthesized(end) + " - 1") + "; " + loop.Index + " >= " + start + "; " + loop.Index + "--)");
+                    at = RecordIndex(loop);
+                }
+
+                foreach (LoopState state in tape?.Recorded ?? new List<LoopState>())
+                {
+                    _writer.Line(ExpressionWriter.TypeKeyword(state.Type) + " " + names[state.Current] + " = " + Restore(RecordElement(tape!, state, at), state.Type) + ";");
+                }
             }
 
-            foreach (LoopState state in tape?.Recorded ?? new List<LoopState>())
+            // The nested loops' values after them and their counts for this iteration, from the top of their stacks.
+            foreach (LoopSegment nested in loop.Children)
             {
-                string read = RecordElement(tape!, state, at);
-                read = state.Type switch
+                if (reverse.Tapes.TryGetValue(nested, out TapeRecord? stack))
                 {
-                    ScalarType.Boolean => read + " != 0.0",
-                    ScalarType.Double => read,
-                    _ => "(" + ExpressionWriter.TypeKeyword(state.Type) + ")" + read,
-                };
-                _writer.Line(ExpressionWriter.TypeKeyword(state.Type) + " " + names[state.Current] + " = " + read + ";");
+                    var popped = stack.Footer.Select(s => (_context.Name(stack.After[s]), s.Type)).ToList();
+                    popped.Add((_context.Name(stack.CountIn!), ScalarType.Int32));
+                    Pop(stack, popped);
+                    foreach (LoopState state in stack.Footer)
+                    {
+                        names[state.Final] = _context.Name(stack.After[state]);
+                    }
+                }
+            }
+
+            foreach ((string id, ScalarType type) in block.InnerZeros)
+            {
+                _writer.Line(ExpressionWriter.TypeKeyword(type) + " " + _context.Name(id) + " = " + Literals.CSharp(0, type) + ";");
             }
         }
 
@@ -291,6 +420,20 @@ internal sealed partial class MethodBodyWriter
         foreach (string copy in copies)
         {
             _writer.Line(copy);
+        }
+
+        foreach (AdjointBlock inner in block.Inner)
+        {
+            WriteAdjointBlock(inner, names);
+        }
+
+        if (block.Copies.Count > 0)
+        {
+            _writer.Blank();
+            foreach ((string target, string source) in block.Copies)
+            {
+                _writer.Line(_context.Name(target) + " = " + _context.Name(source) + ";");
+            }
         }
 
         body?.Dispose();

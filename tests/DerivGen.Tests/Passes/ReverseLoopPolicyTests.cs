@@ -118,21 +118,24 @@ public sealed class ReverseLoopPolicyTests
     }
 
     [Fact]
-    public void ANestedLoopKeepsForwardRunningDerivatives()
+    public void ALoopNestedTwoDeepKeepsForwardRunningDerivatives()
     {
         const string source = """
             [Differentiate(nameof(w), Hessian = false)]
             public static double M(double[] w)
             {
                 double x = 1, s = 0;
-                for (int i = 0; i < 3; i++)
+                for (int h = 0; h < 2; h++)
                 {
-                    for (int j = 0; j < w.Length; j++)
+                    for (int i = 0; i < 3; i++)
                     {
-                        x = x * (1 + 0.1 * w[j]);
-                    }
+                        for (int j = 0; j < w.Length; j++)
+                        {
+                            x = x * (1 + 0.1 * w[j]);
+                        }
 
-                    s += x;
+                        s += x;
+                    }
                 }
 
                 return s;
@@ -165,6 +168,20 @@ public sealed class ReverseLoopPolicyTests
         DerivativeProgram program = Program(source, "M");
         Assert.True(ReverseLoopPolicy.PrefersReverse(program));
         Assert.Null(program.Reverse);
+    }
+
+    [Theory]
+    [InlineData("Discounted", true)]
+    [InlineData("Product", true)]
+    [InlineData("Huber", false)]
+    [InlineData("Carried", false)]
+    [InlineData("NotLast", false)]
+    public void InnerRecurrencesOfTheReplayFixtureGoReverse(string method, bool reverse)
+    {
+        // An inner loop whose carried local is multiplied each step (z = 0.9 z + …, z += z·…) would update a span of n
+        // elements in every inner iteration; sums over the inner loop (replayed, or read once per sample) stay forward.
+        MethodSpec spec = PassHarness.SpecInSource(DerivGen.Tests.Passes.InnerLoopReplayFixture.Source, method);
+        Assert.Equal(reverse, DerivativeProgram.Create(spec with { EmitHessian = false }, default).Reverse is not null);
     }
 
     [Fact]

@@ -14,14 +14,30 @@ namespace DerivGen.Generator.Differentiation.LoopReverse;
 /// </summary>
 internal sealed class TapeRecord
 {
-    public TapeRecord(LoopSegment loop, List<LoopState> recorded, DerivativeLocals ids)
+    public TapeRecord(LoopSegment loop, List<LoopState> recorded, List<LoopState> footer, DerivativeLocals ids)
     {
         Loop = loop;
         Recorded = recorded;
+        Footer = footer;
         Count = ids.New(loop.Index is { } index ? Identifiers.Unescape(index) + "Count" : "steps");
         Buffer = ids.New("tape");
         Rented = ids.New("tapeRented");
-        if (IsGrowable)
+        if (IsStack)
+        {
+            Grown = ids.New("grown");
+            Top = ids.New("top");
+            CountIn = ids.New(ids.Hint(Count) + "In");
+            if (loop.Index is null)
+            {
+                Step = ids.New("step");
+            }
+
+            foreach (LoopState state in footer)
+            {
+                After[state] = ids.New(Identifiers.Unescape(state.Name) + "Out");
+            }
+        }
+        else if (IsGrowable)
         {
             Step = ids.New("step");
             Grown = ids.New("grown");
@@ -52,7 +68,22 @@ internal sealed class TapeRecord
     /// <summary>A while loop (its trip count is known only when it ends): the record starts on the stack with
     /// <see cref="ReverseGradient.StackLimit"/> elements and moves to a pooled array twice as long whenever it is full;
     /// the locals of iteration s are at <c>m·s + j</c>. A counted loop gets one slice per local instead.</summary>
-    public bool IsGrowable => Loop.Condition is not null;
+    public bool IsGrowable => Loop.Condition is not null || Loop.Parent is not null;
+
+    /// <summary>A loop nested in another: its record is a stack (declared before the outermost loop) that every
+    /// iteration pushes its start values onto and, after the loop, its values after it and its count
+    /// (<see cref="Footer"/>); the reverse sweep pops them in the opposite order.</summary>
+    public bool IsStack => Loop.Parent is not null;
+
+    /// <summary>For a nested loop: its carried locals whose values after it the reverse sweep reads, pushed after the loop.</summary>
+    public List<LoopState> Footer { get; }
+
+    /// <summary>For a nested loop: the stack's top (in values), the count popped back, and the values after it popped back.</summary>
+    public string? Top { get; }
+
+    public string? CountIn { get; }
+
+    public Dictionary<LoopState, string> After { get; } = new();
 
     /// <summary>For a growable record: the reverse loop's counter, and the array a full record moves to.</summary>
     public string? Step { get; }
@@ -105,6 +136,15 @@ internal sealed class AdjointBlock
     public HashSet<Node> ReadAlways { get; set; } = new();
 
     public List<AdjointAssignment> Assignments { get; } = new();
+
+    /// <summary>For an iteration of a loop with loops nested in it: the adjoints set to 0 at the start of every iteration
+    /// (the …BarIn collecting the start values' adjoints, and the nested loops' own), the pieces after the block's own
+    /// (each nested loop backwards and the code before it, from the last), and the copies <c>xBar = xBarIn</c> at the end.</summary>
+    public List<(string Id, ScalarType Type)> InnerZeros { get; } = new();
+
+    public List<AdjointBlock> Inner { get; } = new();
+
+    public List<(string Target, string Source)> Copies { get; } = new();
 }
 
 /// <summary>
@@ -188,10 +228,12 @@ internal sealed class ReverseGradient
         IReadOnlyList<LoopSegment> loops = program.TopLevelLoops;
         CollectForwardNamed();
 
-        // The adjoint locals: one per active carried local of each loop, one per scalar variable.
+        // The adjoint locals: one per active carried local of each loop (and, for a loop with loops nested in it, one more
+        // collecting the adjoint of its value at the start of an iteration), one per scalar variable.
         var adjointOf = new Dictionary<LoopState, (string Id, Node Leaf)>();
+        var adjointInOf = new Dictionary<LoopState, string>();
         var loopOf = new Dictionary<Node, (LoopSegment Loop, LoopState State)>();
-        foreach (LoopSegment loop in loops)
+        foreach (LoopSegment loop in program.Loops)
         {
             foreach (LoopState state in loop.States)
             {
@@ -200,9 +242,12 @@ internal sealed class ReverseGradient
                     string id = ids.New(Identifiers.Unescape(state.Name) + "Bar");
                     adjointOf[state] = (id, b.StageLeaf(id, state.Type, reverseStage, isActive: false));
                     loopOf[state.Final] = (loop, state);
+                    loopOf[state.Current] = (loop, state);
+                    if (loop.Children.Count > 0)
+                    {
+                        adjointInOf[state] = ids.New(Identifiers.Unescape(state.Name) + "BarIn");
+                    }
                 }
-
-                loopOf[state.Current] = (loop, state);
             }
         }
 
@@ -217,12 +262,16 @@ internal sealed class ReverseGradient
 
         HashSet<Node> topAlways = Evaluation.Unconditional(topRoots);
         var recordedOf = new Dictionary<LoopSegment, List<LoopState>>();
+        var footerOf = new Dictionary<LoopSegment, List<LoopState>>();
+
+        // Every piece stops at the values carried by loops: at the start of an iteration, and after a loop.
+        bool IsBoundary(Node node) => loopOf.ContainsKey(node);
 
         // The code after the last loop: the value's adjoint is 1.
-        bool IsFinalLeaf(Node node) => loopOf.TryGetValue(node, out var of) && of.State.Final == node;
-        AdjointResult tail = AdjointSweep.Run(b, new[] { (program.Value, b.One(returnType)) }, n, returnType, IsFinalLeaf);
-        AddBlock(new AdjointBlock(null) { Label = "the code after the last loop", ReadAlways = topAlways }, tail, topAlways, declares: true);
-        foreach ((string id, ScalarType type) in adjointOf.Values.Select(a => (a.Id, a.Leaf.Type)).Concat(scalarIds.Select(id => (id!, returnType))))
+        AdjointResult tail = AdjointSweep.Run(b, new[] { (program.Value, b.One(returnType)) }, n, returnType, IsBoundary);
+        Blocks.Add(Fill(new AdjointBlock(null) { Label = "the code after the last loop", ReadAlways = topAlways }, tail, topAlways, declares: true));
+        foreach ((string id, ScalarType type) in loops.SelectMany(l => l.States).Where(adjointOf.ContainsKey).Select(s => (adjointOf[s].Id, s.Type))
+            .Concat(scalarIds.Select(id => (id!, returnType))))
         {
             if (!declared.Contains(id))
             {
@@ -235,57 +284,105 @@ internal sealed class ReverseGradient
         {
             cancellationToken.ThrowIfCancellationRequested();
             LoopSegment loop = loops[l];
-            List<LoopState> active = loop.States.Where(s => s.IsActive).ToList();
-
-            // One iteration backwards: seeds are the adjoints of the carried locals' new values; it stops at their values
-            // at the start of the iteration (their new adjoints) and at values carried out of earlier loops.
-            bool IsIterationBoundary(Node node) => loopOf.TryGetValue(node, out var of) && (of.State.Current == node ? of.Loop == loop : of.State.Final == node);
-            AdjointResult iteration = AdjointSweep.Run(b, active.Select(s => (s.Next, adjointOf[s].Leaf)).ToList(), n, returnType, IsIterationBoundary);
-            HashSet<Node> always = Evaluation.Unconditional(loop.States.Select(s => s.Next));
-            var block = new AdjointBlock(loop) { Label = Describe(loop) + ", its iterations backwards", ReadAlways = always };
-            AddBlock(block, iteration, always, declares: false);
-            var assignments = active.Select(s => (State: s, Value: iteration.Boundary.TryGetValue(s.Current, out Node? adjoint) ? b.Convert(adjoint, s.Type) : b.Zero(s.Type))).ToList();
-            assignments.RemoveAll(a => a.Value == adjointOf[a.State].Leaf); // unchanged by an iteration (an accumulator's adjoint)
-            foreach ((LoopState state, Node adjointValue) in assignments)
-            {
-                Node leaf = adjointOf[state].Leaf;
-                bool readByOther = assignments.Any(a => a.State != state && Graph.Reachable(new[] { a.Value }).Contains(leaf));
-                block.Assignments.Add(new AdjointAssignment(adjointOf[state].Id, state.Type, adjointValue, readByOther));
-            }
-
-            ChooseTemporaries(block, always);
-
-            // The record: every carried local of the loop whose value at the start of an iteration the block reads.
-            HashSet<Node> read = Graph.Reachable(BlockRoots(block));
-            recordedOf[loop] = loop.States.Where(s => read.Contains(s.Current)).ToList();
-
-            // The code before the loop: the start values' adjoints are the carried locals' adjoints after the reverse loop.
-            AdjointResult inputs = AdjointSweep.Run(b, active.Select(s => (s.Initial, adjointOf[s].Leaf)).ToList(), n, returnType, IsFinalLeaf);
-            AddBlock(new AdjointBlock(null) { Label = "the start values of " + Describe(loop), ReadAlways = topAlways }, inputs, topAlways, declares: false);
+            Blocks.Add(Iteration(loop));
+            Blocks.Add(StartValues(loop, topAlways));
         }
 
         ScalarAdjoints = scalarIds;
-        foreach (LoopSegment loop in loops)
+        foreach (LoopSegment loop in program.Loops)
         {
-            // A loop gets a record when its reverse iterations read a carried local, or when it is a while loop (whose
-            // record also counts its iterations).
-            if (recordedOf[loop].Count > 0 || (loop.Condition is not null && Blocks.Any(block => block.Loop == loop && !IsEmpty(block))))
+            // A loop gets a record when its reverse iterations read a carried local, when it is a while loop (whose
+            // record also counts its iterations), and always when it is nested (its record keeps its count and its
+            // values after it, per iteration of the loop around it).
+            if (recordedOf.TryGetValue(loop, out List<LoopState>? recorded)
+                && (recorded.Count > 0 || loop.Parent is not null || (loop.Condition is not null && Blocks.Any(block => block.Loop == loop && !IsEmpty(block)))))
             {
-                Tapes[loop] = new TapeRecord(loop, recordedOf[loop], ids);
+                Tapes[loop] = new TapeRecord(loop, recorded, footerOf.TryGetValue(loop, out List<LoopState>? footer) ? footer : new List<LoopState>(), ids);
             }
         }
 
         FindSnapshots(loops);
 
-        void AddBlock(AdjointBlock block, AdjointResult result, HashSet<Node> always, bool declares)
+        // One iteration of a loop backwards: seeds are the adjoints of the carried locals' new values. For a loop without
+        // nested loops, one piece, whose adjoints at the start values become the new adjoints; for one with nested
+        // loops, the code after the last nested loop, then each nested loop backwards with the code before it, the
+        // adjoints at the start values collected in …BarIn locals.
+        AdjointBlock Iteration(LoopSegment loop)
+        {
+            List<LoopState> active = loop.States.Where(s => s.IsActive).ToList();
+            AdjointResult iteration = AdjointSweep.Run(b, active.Select(s => (s.Next, adjointOf[s].Leaf)).ToList(), n, returnType, IsBoundary);
+            var alwaysRoots = loop.States.Select(s => s.Next).Concat(loop.Children.SelectMany(c => ProgramReads.Header(c).Concat(c.States.Select(s => s.Initial))));
+            HashSet<Node> always = Evaluation.Unconditional(alwaysRoots);
+            var block = new AdjointBlock(loop) { Label = Describe(loop) + ", its iterations backwards", ReadAlways = always };
+            Fill(block, iteration, always, declares: false);
+            if (loop.Children.Count == 0)
+            {
+                var assignments = active.Select(s => (State: s, Value: iteration.Boundary.TryGetValue(s.Current, out Node? adjoint) ? b.Convert(adjoint, s.Type) : b.Zero(s.Type))).ToList();
+                assignments.RemoveAll(a => a.Value == adjointOf[a.State].Leaf); // unchanged by an iteration (an accumulator's adjoint)
+                foreach ((LoopState state, Node adjointValue) in assignments)
+                {
+                    Node leaf = adjointOf[state].Leaf;
+                    bool readByOther = assignments.Any(a => a.State != state && Graph.Reachable(new[] { a.Value }).Contains(leaf));
+                    block.Assignments.Add(new AdjointAssignment(adjointOf[state].Id, state.Type, adjointValue, readByOther));
+                }
+            }
+            else
+            {
+                foreach (LoopState state in active)
+                {
+                    block.InnerZeros.Add((adjointInOf[state], state.Type));
+                    block.Copies.Add((adjointOf[state].Id, adjointInOf[state]));
+                }
+
+                foreach (LoopState state in loop.Children.SelectMany(c => c.States).Where(s => s.IsActive))
+                {
+                    block.InnerZeros.Add((adjointOf[state].Id, state.Type));
+                }
+
+                for (int c = loop.Children.Count - 1; c >= 0; c--)
+                {
+                    block.Inner.Add(Iteration(loop.Children[c]));
+                    block.Inner.Add(StartValues(loop.Children[c], always));
+                }
+            }
+
+            ChooseTemporaries(block, always);
+
+            // The record: every carried local of the loop whose value at the start of an iteration the block reads; for a
+            // nested loop, also its values after it that the loop around it reads backwards.
+            HashSet<Node> read = Graph.Reachable(AllRoots(block));
+            recordedOf[loop] = loop.States.Where(s => read.Contains(s.Current)).ToList();
+            foreach (LoopSegment child in loop.Children)
+            {
+                footerOf[child] = child.States.Where(s => read.Contains(s.Final)).ToList();
+            }
+
+            return block;
+        }
+
+        // The code before a loop (down to the values carried by earlier loops): the start values' adjoints are the carried
+        // locals' adjoints after the loop ran backwards.
+        AdjointBlock StartValues(LoopSegment loop, HashSet<Node> always)
+        {
+            List<LoopState> active = loop.States.Where(s => s.IsActive).ToList();
+            AdjointResult inputs = AdjointSweep.Run(b, active.Select(s => (s.Initial, adjointOf[s].Leaf)).ToList(), n, returnType, IsBoundary);
+            return Fill(new AdjointBlock(null) { Label = "the start values of " + Describe(loop), ReadAlways = always }, inputs, always, declares: false);
+        }
+
+        AdjointBlock Fill(AdjointBlock block, AdjointResult result, HashSet<Node> always, bool declares)
         {
             foreach (KeyValuePair<Node, Node> pair in result.Boundary.OrderBy(p => p.Key.Id))
             {
-                (LoopSegment _, LoopState state) = loopOf[pair.Key];
+                (LoopSegment of, LoopState state) = loopOf[pair.Key];
                 if (pair.Key == state.Final)
                 {
                     string id = adjointOf[state].Id;
                     block.Accumulations.Add(new Accumulation(id, state.Type, b.Convert(pair.Value, state.Type), declares && declared.Add(id)));
+                }
+                else if (of != block.Loop || of.Children.Count > 0)
+                {
+                    // The start value of an iteration of a loop around this piece (or of this loop, when it has nested loops).
+                    block.Accumulations.Add(new Accumulation(adjointInOf[state], state.Type, b.Convert(pair.Value, state.Type), Declares: false));
                 }
             }
 
@@ -303,13 +400,15 @@ internal sealed class ReverseGradient
                 ChooseTemporaries(block, always);
             }
 
-            Blocks.Add(block);
+            return block;
         }
     }
 
+    private static IEnumerable<Node> AllRoots(AdjointBlock block) => BlockRoots(block).Concat(block.Inner.SelectMany(AllRoots));
+
     /// <summary>Whether a block writes nothing (no adjoint reaches its piece).</summary>
     public static bool IsEmpty(AdjointBlock block) =>
-        block.Temporaries.Count == 0 && block.Accumulations.Count == 0 && block.Terms.Count == 0 && block.Assignments.Count == 0;
+        block.Temporaries.Count == 0 && block.Accumulations.Count == 0 && block.Terms.Count == 0 && block.Assignments.Count == 0 && block.Inner.All(IsEmpty);
 
     private static IEnumerable<Node> BlockRoots(AdjointBlock block) =>
         block.Accumulations.Select(a => a.Value).Concat(block.Assignments.Select(a => a.Value)).Concat(ProgramReads.TermNodes(block.Terms));
@@ -388,7 +487,7 @@ internal sealed class ReverseGradient
     private void FindSnapshots(IReadOnlyList<LoopSegment> loops)
     {
         var read = new HashSet<Node>();
-        var stack = new Stack<Node>(Blocks.SelectMany(BlockRoots));
+        var stack = new Stack<Node>(Blocks.SelectMany(AllRoots));
         while (stack.Count > 0)
         {
             Node node = stack.Pop();

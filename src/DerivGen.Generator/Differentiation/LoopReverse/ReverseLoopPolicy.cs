@@ -31,14 +31,28 @@ internal static class ReverseLoopPolicy
     public static bool PrefersReverse(DerivativeProgram forward)
     {
         int scalarRunning = 0;
-        foreach (StateDerivatives d in forward.States.Values)
+        Dictionary<string, ReverseReplay> replayed = ReverseReplay.Find(forward); // an inner loop replayed with the adjoint costs no span
+        foreach (LoopSegment loop in forward.Loops)
         {
-            scalarRunning += d.GradientNames.Length;
-            foreach (VectorTerm term in d.NextVector)
+            foreach (LoopState state in loop.States)
             {
-                if (term.SourceSpan is { } span && (span != d.VectorNames[term.Vector] || !term.Coefficient.IsConstant(1)))
+                if (!forward.States.TryGetValue(state, out StateDerivatives? d))
                 {
-                    return true; // a whole span read with a factor, or another local's span: O(n) per iteration
+                    continue;
+                }
+
+                scalarRunning += d.GradientNames.Length;
+                if (loop.Children.Count > 0)
+                {
+                    continue; // a whole span read once per iteration of a loop around loops: the value's nested loops cost as much
+                }
+
+                foreach (VectorTerm term in d.NextVector)
+                {
+                    if (term.SourceSpan is { } span && !replayed.ContainsKey(span) && (span != d.VectorNames[term.Vector] || !term.Coefficient.IsConstant(1)))
+                    {
+                        return true; // a whole span read with a factor, or another local's span: O(n) per iteration
+                    }
                 }
             }
         }
@@ -48,7 +62,7 @@ internal static class ReverseLoopPolicy
 
     /// <summary>
     /// Whether the reverse sweep handles every loop of the method (part 2 of the rule): a method returning its value
-    /// (no span of outputs); loops not nested and not inside a branch (<c>for</c> loops with bounds fixed before they
+    /// (no span of outputs); loops not inside a branch and nested at most one level deep (<c>for</c> loops with bounds fixed before they
     /// start, and while loops — what <c>break</c>, <c>continue</c> and an early <c>return</c> in a loop are lowered to); no call of another generated method or helper anywhere (their partials come from buffers the
     /// forward code fills once per call).
     /// </summary>
@@ -61,7 +75,7 @@ internal static class ReverseLoopPolicy
 
         foreach (LoopSegment loop in value.Loops)
         {
-            if (loop.Parent is not null || loop.Children.Count > 0)
+            if (loop.Parent?.Parent is not null || (loop.Parent is not null && loop.Children.Count > 0))
             {
                 return false;
             }

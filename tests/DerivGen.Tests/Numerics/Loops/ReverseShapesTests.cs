@@ -138,6 +138,38 @@ public sealed class ReverseShapesFixture : CompiledFixture
                 return s;
             }
 
+            // Two loops nested in one, one after the other: the first a while loop (a break), the second reading the
+            // first one's result and the outer loop's index; the outer loop's state is updated from both.
+            [Differentiate(nameof(w), nameof(a), Hessian = false)]
+            public static double NestedTwo(double[] w, double[] d, double a)
+            {
+                double x = a, s = 0;
+                for (int i = 0; i < 3; i++)
+                {
+                    double y = x * 0.5;
+                    for (int j = 0; j < w.Length; j++)
+                    {
+                        if (d[j] < -0.9)
+                        {
+                            break;
+                        }
+
+                        y = y + 0.05 * Math.Sin(y * w[j]);
+                    }
+
+                    double z = 0;
+                    for (int k = i; k < w.Length; k++)
+                    {
+                        z = z * 0.9 + w[k] * y;
+                    }
+
+                    x = x + 0.1 * Math.Tanh(z) * y;
+                    s += x * w[i];
+                }
+
+                return s + x * x;
+            }
+
             // The branches' shape in float.
             [Differentiate(nameof(w), nameof(a), Hessian = false)]
             public static float BranchesSingle(float[] w, float[] d, float a)
@@ -198,7 +230,8 @@ public sealed class ReverseShapesTests : IClassFixture<ReverseShapesFixture>
         { "Window", 3, true }, // no iteration at all: the record is empty and the gradient comes from the code after it
         { "Break", 10, true }, { "Break", 30, true }, { "Break", 600, true },
         { "EarlyReturn", 10, true }, { "EarlyReturn", 30, true }, { "EarlyReturn", 600, true },
-        { "Nested", 3, false }, { "Nested", 12, false },
+        { "Nested", 3, true }, { "Nested", 12, true }, { "Nested", 300, true },
+        { "NestedTwo", 3, true }, { "NestedTwo", 12, true }, { "NestedTwo", 200, true },
     };
 
     [Theory]
