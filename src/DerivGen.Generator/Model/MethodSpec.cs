@@ -23,6 +23,7 @@ namespace DerivGen.Generator.Model;
 /// <paramref name="ReturnType"/> is the span's element type.</param>
 /// <param name="IsHelper">Whether the method is not marked but called from one that is (its derivatives are generated for that call).</param>
 /// <param name="HasSinCos">Whether the compilation has Math.SinCos and MathF.SinCos (one call for the sine and cosine of one argument).</param>
+/// <param name="Loops">The attribute's <c>Loops</c> property: how the gradient goes through loops (Differentiation/LoopReverse/ReverseLoopPolicy).</param>
 internal sealed record MethodSpec(
     string HintName,
     string? Namespace,
@@ -39,10 +40,19 @@ internal sealed record MethodSpec(
     bool IsHelper = false,
     bool IsPairMethod = false,
     string? OutputName = null,
-    bool HasSinCos = false)
+    bool HasSinCos = false,
+    LoopPreference Loops = LoopPreference.Automatic)
 {
     /// <summary>Whether this is a method with a span of outputs, whose Jacobian is generated.</summary>
     public bool HasOutputs => OutputName is not null;
+}
+
+/// <summary>The values of <c>DerivGen.LoopDifferentiation</c>, in the same order.</summary>
+internal enum LoopPreference
+{
+    Automatic = 0,
+    RunningDerivatives = 1,
+    ReverseSweep = 2,
 }
 
 /// <summary>A containing type: its declaration keyword(s) ("class", "record struct", ...) and name with type parameters.</summary>

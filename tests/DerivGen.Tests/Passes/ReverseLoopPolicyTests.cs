@@ -185,6 +185,52 @@ public sealed class ReverseLoopPolicyTests
     }
 
     [Fact]
+    public void TheAttributeOverridesTheRule()
+    {
+        // The horizon would go reverse; RunningDerivatives keeps it forward.
+        string forced = Horizon.Replace("Hessian = false)]", "Hessian = false, Loops = LoopDifferentiation.RunningDerivatives)]");
+        Assert.Null(Program(forced, "M").Reverse);
+
+        // A data fit with two scalar variables would stay forward; ReverseSweep takes it reverse.
+        const string fit = """
+            [Differentiate(nameof(a), nameof(b), Hessian = false, Loops = LoopDifferentiation.ReverseSweep)]
+            public static double M(double a, double b, double[] d)
+            {
+                double x = a;
+                for (int i = 0; i < d.Length; i++)
+                {
+                    x = x * b + d[i];
+                }
+
+                return x;
+            }
+            """;
+        Assert.NotNull(Program(fit, "M").Reverse);
+
+        // A shape the reverse sweep does not handle stays forward even when asked (never a wrong derivative).
+        const string deep = """
+            [Differentiate(nameof(w), Hessian = false, Loops = LoopDifferentiation.ReverseSweep)]
+            public static double M(double[] w)
+            {
+                double x = 1;
+                for (int h = 0; h < 2; h++)
+                {
+                    for (int i = 0; i < 2; i++)
+                    {
+                        for (int j = 0; j < w.Length; j++)
+                        {
+                            x = x * (1 + 0.1 * w[j]);
+                        }
+                    }
+                }
+
+                return x;
+            }
+            """;
+        Assert.Null(Program(deep, "M").Reverse);
+    }
+
+    [Fact]
     public void AWhileLoopGetsAGrowableRecord()
     {
         const string source = """

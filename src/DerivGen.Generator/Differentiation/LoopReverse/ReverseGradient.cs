@@ -201,7 +201,7 @@ internal sealed class ReverseGradient
     /// <summary>The reverse gradient of <paramref name="spec"/>, or null where the rule keeps forward running derivatives.</summary>
     public static ReverseGradient? TryCreate(MethodSpec spec, DerivativeProgram forwardMode, CancellationToken cancellationToken)
     {
-        if (spec.HasOutputs || spec.IsPairMethod || forwardMode.Loops.Count == 0 || !ReverseLoopPolicy.PrefersReverse(forwardMode))
+        if (spec.HasOutputs || spec.IsPairMethod || forwardMode.Loops.Count == 0 || !ReverseLoopPolicy.WantsReverse(spec, forwardMode))
         {
             return null;
         }
@@ -408,7 +408,8 @@ internal sealed class ReverseGradient
 
     /// <summary>Whether a block writes nothing (no adjoint reaches its piece).</summary>
     public static bool IsEmpty(AdjointBlock block) =>
-        block.Temporaries.Count == 0 && block.Accumulations.Count == 0 && block.Terms.Count == 0 && block.Assignments.Count == 0 && block.Inner.All(IsEmpty);
+        block.Temporaries.Count == 0 && block.Accumulations.Count == 0 && block.Terms.Count == 0 && block.Assignments.Count == 0 && block.Copies.Count == 0
+        && block.Inner.All(IsEmpty);
 
     private static IEnumerable<Node> BlockRoots(AdjointBlock block) =>
         block.Accumulations.Select(a => a.Value).Concat(block.Assignments.Select(a => a.Value)).Concat(ProgramReads.TermNodes(block.Terms));

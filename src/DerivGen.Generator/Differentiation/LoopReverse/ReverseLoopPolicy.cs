@@ -18,11 +18,21 @@ namespace DerivGen.Generator.Differentiation.LoopReverse;
 /// (2) every loop of the method is a shape the reverse sweep handles (<see cref="Supports"/>). Otherwise the forward
 /// code is kept exactly as before: sums over data and accumulators of vector reads (factor 1 on their own span,
 /// O(1) per iteration) stay forward, and so does every shape the reverse sweep does not handle yet. The Hessian
-/// method always stays forward.
+/// method always stays forward. <c>[Differentiate(Loops = LoopDifferentiation.RunningDerivatives)]</c> or
+/// <c>ReverseSweep</c> overrides part 1 (<see cref="WantsReverse"/>).
 /// </para>
 /// </summary>
 internal static class ReverseLoopPolicy
 {
+    /// <summary>Whether to try the reverse sweep at all: the attribute's <c>Loops</c> override, else part 1 of the rule
+    /// (<see cref="PrefersReverse"/>). Part 2 (<see cref="Supports"/>) applies either way.</summary>
+    public static bool WantsReverse(MethodSpec spec, DerivativeProgram forward) => spec.Loops switch
+    {
+        LoopPreference.RunningDerivatives => false,
+        LoopPreference.ReverseSweep => true,
+        _ => PrefersReverse(forward),
+    };
+
     /// <summary>Above this many scalar running derivatives (active carried locals × scalar variables, summed over the
     /// loops) the reverse sweep is chosen even without vectors of variables.</summary>
     public const int RunningDerivativeLimit = 64;

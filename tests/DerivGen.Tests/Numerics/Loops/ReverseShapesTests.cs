@@ -170,6 +170,40 @@ public sealed class ReverseShapesFixture : CompiledFixture
                 return s + x * x;
             }
 
+            // A scalar recurrence the rule keeps forward, forced through the reverse sweep by the attribute.
+            [Differentiate(nameof(w), nameof(a), Hessian = false, Loops = LoopDifferentiation.ReverseSweep)]
+            public static double Forced(double[] w, double[] d, double a)
+            {
+                double x = a;
+                for (int i = 0; i < d.Length; i++)
+                {
+                    x = x * a + d[i];
+                }
+
+                return x * x + w[0] * a;
+            }
+
+            // An iteration of a loop with a loop nested in it that overwrites the carried local with a value of the
+            // data alone: the adjoint of x before the loop is 0 (found by the randomised suite, soak, seed
+            // 0v9YXzJTAy-KLDzt2: the reverse iteration was skipped as if it changed nothing).
+            [Differentiate(nameof(w), nameof(a), Hessian = false, Loops = LoopDifferentiation.ReverseSweep)]
+            public static double Overwritten(double[] w, double[] d, double a)
+            {
+                double x = a * w[0];
+                for (int i = 0; i < w.Length; i++)
+                {
+                    double q = 0;
+                    for (int j = 0; j < d.Length; j++)
+                    {
+                        q += d[j];
+                    }
+
+                    x = Math.Floor(q + 0.5);
+                }
+
+                return x + a;
+            }
+
             // The branches' shape in float.
             [Differentiate(nameof(w), nameof(a), Hessian = false)]
             public static float BranchesSingle(float[] w, float[] d, float a)
@@ -227,6 +261,8 @@ public sealed class ReverseShapesTests : IClassFixture<ReverseShapesFixture>
         { "InSequence", 1, true }, { "InSequence", 7, true }, { "InSequence", 40, true },
         { "Branches", 1, true }, { "Branches", 9, true }, { "Branches", 60, true },
         { "Window", 4, true }, { "Window", 5, true }, { "Window", 30, true },
+        { "Forced", 1, true }, { "Forced", 9, true },
+        { "Overwritten", 1, true }, { "Overwritten", 6, true },
         { "Window", 3, true }, // no iteration at all: the record is empty and the gradient comes from the code after it
         { "Break", 10, true }, { "Break", 30, true }, { "Break", 600, true },
         { "EarlyReturn", 10, true }, { "EarlyReturn", 30, true }, { "EarlyReturn", 600, true },
