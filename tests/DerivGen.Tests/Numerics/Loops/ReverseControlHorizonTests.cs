@@ -41,6 +41,21 @@ public sealed class ReverseControlHorizonFixture : CompiledFixture
                 return cost;
             }
 
+            // The same cost with forward running derivatives forced (the choice before the reverse sweep existed).
+            [Differentiate(nameof(u), nameof(target), Hessian = false, Loops = LoopDifferentiation.RunningDerivatives)]
+            public static double CostRunning(double[] u, double x0, double v0, double dt, double target, double rho)
+            {
+                double x = x0, v = v0, cost = 0;
+                for (int t = 0; t < u.Length; t++)
+                {
+                    v = v + dt * (-x * x * x + u[t]);
+                    x = x + dt * v;
+                    cost += (x - target) * (x - target) + rho * u[t] * u[t];
+                }
+
+                return cost;
+            }
+
             [Differentiate(nameof(u), nameof(target), Hessian = false)]
             public static float CostSingle(float[] u, float x0, float v0, float dt, float target, float rho)
             {
@@ -174,6 +189,24 @@ public sealed class ReverseControlHorizonTests : IClassFixture<ReverseControlHor
         point[steps] = Target;
         HorizonValue f = Value;
         Check.GradientMatchesOracle(p => f(p[..steps], X0, V0, Dt, p[steps], Rho), point, gradient, $"T = {steps}");
+    }
+
+    [Theory]
+    [InlineData(10)]
+    [InlineData(200)]
+    public void ForwardRunningDerivativesAgree(int steps)
+    {
+        // Two independent routes through the same loop: running derivatives carried forward (forced by the attribute)
+        // and the reverse sweep; both against the adjoint recurrence by hand above.
+        double[] u = Controls(steps);
+        var reverse = new double[steps + 1];
+        var forward = new double[steps + 1];
+        Gradient(u, X0, V0, Dt, Target, Rho, reverse);
+        _fixture.Assembly.Method<HorizonGradient>("Horizons", "CostRunningGradient")(u, X0, V0, Dt, Target, Rho, forward);
+        Assert.DoesNotContain("// Reverse sweep:", _fixture.Run.Source("Horizons.CostRunning.g.cs"), StringComparison.Ordinal);
+        (double _, double[] expected) = ByHand(u, X0, V0, Dt, Target, Rho);
+        Check.Close(expected, forward, Check.ClosedFormRelative, 1e-15 * steps, $"T = {steps}: forward running derivatives vs the adjoint recurrence by hand");
+        Check.Close(forward, reverse, Check.ClosedFormRelative, 1e-15 * steps, $"T = {steps}: reverse sweep vs forward running derivatives");
     }
 
     [Fact]
