@@ -62,6 +62,12 @@ internal sealed class BatchOutcome
 
     /// <summary>Largest |generated − reference| / tolerance seen (how close the suite runs to its tolerance).</summary>
     public double WorstReferenceRatio { get; set; }
+
+    /// <summary>Where the worst ratio was seen: the case's seed and the derivative compared.</summary>
+    public string WorstReferenceWhere { get; set; } = "";
+
+    /// <summary>The seed of the case being checked.</summary>
+    public string CurrentSeed { get; set; } = "";
 }
 
 /// <summary>
@@ -242,6 +248,7 @@ internal static class DifferentialRunner
             {
                 // A stack overflow ends the test host before any report: the case being run is on record in a file.
                 File.WriteAllText(CurrentCaseFile, "DERIVGEN_CASE=" + cases[i].Seed + " (" + MethodName(i) + ")\n");
+                outcome.CurrentSeed = cases[i].Seed;
                 reason = CheckOne(assembly, MethodName(i), cases[i], outcome);
             }
             catch (Exception e)
@@ -426,7 +433,11 @@ internal static class DifferentialRunner
             bool ok = actual[i] == expected[i] || difference <= allowed;
             if (allowed > 0 && double.IsFinite(difference))
             {
-                outcome.WorstReferenceRatio = Math.Max(outcome.WorstReferenceRatio, difference / allowed);
+                if (difference / allowed > outcome.WorstReferenceRatio)
+                {
+                    outcome.WorstReferenceRatio = difference / allowed;
+                    outcome.WorstReferenceWhere = what + "[" + i + "] of case " + outcome.CurrentSeed;
+                }
             }
 
             if (!ok)

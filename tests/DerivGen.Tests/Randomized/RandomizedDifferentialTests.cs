@@ -90,7 +90,11 @@ public sealed class RandomizedDifferentialTests
             total.ReverseLoopGradients += outcome.ReverseLoopGradients;
             total.OracleEntries += outcome.OracleEntries;
             total.OracleInconclusive += outcome.OracleInconclusive;
-            total.WorstReferenceRatio = Math.Max(total.WorstReferenceRatio, outcome.WorstReferenceRatio);
+            if (outcome.WorstReferenceRatio > total.WorstReferenceRatio)
+            {
+                total.WorstReferenceRatio = outcome.WorstReferenceRatio;
+                total.WorstReferenceWhere = outcome.WorstReferenceWhere;
+            }
             if (outcome.LargestGeneratedFile > total.LargestGeneratedFile)
             {
                 total.LargestGeneratedFile = outcome.LargestGeneratedFile;
@@ -121,7 +125,7 @@ public sealed class RandomizedDifferentialTests
             + $"({outcome.JacobianRows} Jacobian rows of variants with outputs; {outcome.VectorVariants} variants with d as a vector variable checked, "
             + $"{outcome.VectorVariantsRefused} refused; {outcome.ReverseLoopGradients} gradients through loops in reverse), "
             + $"{outcome.Failures.Count} failed; {outcome.OracleEntries} entries compared with finite differences, "
-            + $"{outcome.OracleInconclusive} inconclusive; worst |generated - reference| / tolerance = {outcome.WorstReferenceRatio:G3}; "
+            + $"{outcome.OracleInconclusive} inconclusive; worst |generated - reference| / tolerance = {outcome.WorstReferenceRatio:G3} ({outcome.WorstReferenceWhere}); "
             + $"largest generated file {outcome.LargestGeneratedFile} characters (case {outcome.LargestGeneratedSeed}); "
             + $"{elapsed.TotalSeconds:F1} s");
 
