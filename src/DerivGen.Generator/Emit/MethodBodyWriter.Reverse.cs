@@ -282,6 +282,72 @@ internal sealed partial class MethodBodyWriter
         }
     }
 
+    /// <summary>The header of a loop's reverse iteration, then the values it reads back: the loop's start values from its
+    /// record, the nested loops' values after them and their counts from their stacks, and the adjoints set to 0.</summary>
+    private IndentedWriter.Scope OpenReverseIteration(AdjointBlock block, LoopSegment loop, TapeRecord? tape, Dictionary<Node, string> names, ExpressionWriter code)
+    {
+        ReverseGradient reverse = _reverse!;
+        IndentedWriter.Scope body;
+        if (tape is { IsStack: true })
+        {
+            string countIn = _context.Name(tape.CountIn!);
+            if (loop.Index is null)
+            {
+                string step = _context.Name(tape.Step!);
+                body = _writer.Block("for (int " + step + " = " + countIn + " - 1; " + step + " >= 0; " + step + "--)");
+            }
+            else
+            {
+                string start = code.Write(loop.Start!);
+                body = _writer.Block("for (int " + loop.Index + " = " + Text.Parenthesized(start) + " + " + countIn + " - 1; " + loop.Index + " >= " + start + "; " + loop.Index + "--)");
+            }
+
+            Pop(tape, tape.Recorded.Select(s => (names[s.Current], s.Type)).ToList());
+        }
+        else
+        {
+            string at;
+            if (loop.Index is null)
+            {
+                at = _context.Name(tape!.Step!);
+                body = _writer.Block("for (int " + at + " = " + _context.Name(tape.Count) + " - 1; " + at + " >= 0; " + at + "--)");
+            }
+            else
+            {
+                string start = code.Write(loop.Start!), end = code.Write(loop.End!);
+                body = _writer.Block("for (int " + loop.Index + " = " + (loop.Inclusive ? end : Text.Parenthesized(end) + " - 1") + "; " + loop.Index + " >= " + start + "; " + loop.Index + "--)");
+                at = RecordIndex(loop);
+            }
+
+            foreach (LoopState state in tape?.Recorded ?? new List<LoopState>())
+            {
+                _writer.Line(ExpressionWriter.TypeKeyword(state.Type) + " " + names[state.Current] + " = " + Restore(RecordElement(tape!, state, at), state.Type) + ";");
+            }
+        }
+
+        // The nested loops' values after them and their counts for this iteration, from the top of their stacks.
+        foreach (LoopSegment nested in loop.Children)
+        {
+            if (reverse.Tapes.TryGetValue(nested, out TapeRecord? stack))
+            {
+                var popped = stack.Footer.Select(s => (_context.Name(stack.After[s]), s.Type)).ToList();
+                popped.Add((_context.Name(stack.CountIn!), ScalarType.Int32));
+                Pop(stack, popped);
+                foreach (LoopState state in stack.Footer)
+                {
+                    names[state.Final] = _context.Name(stack.After[state]);
+                }
+            }
+        }
+
+        foreach ((string id, ScalarType type) in block.InnerZeros)
+        {
+            _writer.Line(ExpressionWriter.TypeKeyword(type) + " " + _context.Name(id) + " = " + Literals.CSharp(0, type) + ";");
+        }
+
+        return body;
+    }
+
     private void WriteAdjointBlock(AdjointBlock block, Dictionary<Node, string> outer)
     {
         if (ReverseGradient.IsEmpty(block))
@@ -312,62 +378,7 @@ internal sealed partial class MethodBodyWriter
         IndentedWriter.Scope? body = null;
         if (block.Loop is { } loop)
         {
-            if (tape is { IsStack: true })
-            {
-                string countIn = _context.Name(tape.CountIn!);
-                if (loop.Index is null)
-                {
-                    string step = _context.Name(tape.Step!);
-                    body = _writer.Block("for (int " + step + " = " + countIn + " - 1; " + step + " >= 0; " + step + "--)");
-                }
-                else
-                {
-                    string start = code.Write(loop.Start!);
-                    body = _writer.Block("for (int " + loop.Index + " = " + Text.Parenthesized(start) + " + " + countIn + " - 1; " + loop.Index + " >= " + start + "; " + loop.Index + "--)");
-                }
-
-                Pop(tape, tape.Recorded.Select(s => (names[s.Current], s.Type)).ToList());
-            }
-            else
-            {
-                string at;
-                if (loop.Index is null)
-                {
-                    at = _context.Name(tape!.Step!);
-                    body = _writer.Block("for (int " + at + " = " + _context.Name(tape.Count) + " - 1; " + at + " >= 0; " + at + "--)");
-                }
-                else
-                {
-                    string start = code.Write(loop.Start!), end = code.Write(loop.End!);
-                    body = _writer.Block("for (int " + loop.Index + " = " + (loop.Inclusive ? end : Text.Parenthesized(end) + " - 1") + "; " + loop.Index + " >= " + start + "; " + loop.Index + "--)");
-                    at = RecordIndex(loop);
-                }
-
-                foreach (LoopState state in tape?.Recorded ?? new List<LoopState>())
-                {
-                    _writer.Line(ExpressionWriter.TypeKeyword(state.Type) + " " + names[state.Current] + " = " + Restore(RecordElement(tape!, state, at), state.Type) + ";");
-                }
-            }
-
-            // The nested loops' values after them and their counts for this iteration, from the top of their stacks.
-            foreach (LoopSegment nested in loop.Children)
-            {
-                if (reverse.Tapes.TryGetValue(nested, out TapeRecord? stack))
-                {
-                    var popped = stack.Footer.Select(s => (_context.Name(stack.After[s]), s.Type)).ToList();
-                    popped.Add((_context.Name(stack.CountIn!), ScalarType.Int32));
-                    Pop(stack, popped);
-                    foreach (LoopState state in stack.Footer)
-                    {
-                        names[state.Final] = _context.Name(stack.After[state]);
-                    }
-                }
-            }
-
-            foreach ((string id, ScalarType type) in block.InnerZeros)
-            {
-                _writer.Line(ExpressionWriter.TypeKeyword(type) + " " + _context.Name(id) + " = " + Literals.CSharp(0, type) + ";");
-            }
+            body = OpenReverseIteration(block, loop, tape, names, code);
         }
 
         foreach (Node node in block.Temporaries)

@@ -163,6 +163,18 @@ internal sealed class ReverseGradient
     /// <summary>Records of up to this many doubles live on the stack (2 KB), longer ones in pooled memory.</summary>
     public const int StackLimit = 256;
 
+    // The state of Build (the adjoint locals by carried local, what each leaf stands for, what is declared and recorded).
+    private ExpressionBuilder _b = null!;
+    private int _n;
+    private ScalarType _returnType;
+    private Dictionary<LoopState, (string Id, Node Leaf)> _adjointOf = null!;
+    private Dictionary<LoopState, string> _adjointInOf = null!;
+    private Dictionary<Node, (LoopSegment Loop, LoopState State)> _loopOf = null!;
+    private string?[] _scalarIds = null!;
+    private HashSet<string> _declared = null!;
+    private Dictionary<LoopSegment, List<LoopState>> _recordedOf = null!;
+    private Dictionary<LoopSegment, List<LoopState>> _footerOf = null!;
+
     private ReverseGradient(DerivativeProgram program, MethodPlan forward)
     {
         Program = program;
@@ -221,18 +233,19 @@ internal sealed class ReverseGradient
     private void Build(ScalarType returnType, CancellationToken cancellationToken)
     {
         DerivativeProgram program = Program;
-        ExpressionBuilder b = program.Builder;
+        _b = program.Builder;
+        _returnType = returnType;
         DerivativeLocals ids = program.Locals;
-        int n = program.Variables.Length;
+        _n = program.Variables.Length;
         int reverseStage = program.FinalStage + 1;
         IReadOnlyList<LoopSegment> loops = program.TopLevelLoops;
         CollectForwardNamed();
 
         // The adjoint locals: one per active carried local of each loop (and, for a loop with loops nested in it, one more
         // collecting the adjoint of its value at the start of an iteration), one per scalar variable.
-        var adjointOf = new Dictionary<LoopState, (string Id, Node Leaf)>();
-        var adjointInOf = new Dictionary<LoopState, string>();
-        var loopOf = new Dictionary<Node, (LoopSegment Loop, LoopState State)>();
+        _adjointOf = new Dictionary<LoopState, (string Id, Node Leaf)>();
+        _adjointInOf = new Dictionary<LoopState, string>();
+        _loopOf = new Dictionary<Node, (LoopSegment Loop, LoopState State)>();
         foreach (LoopSegment loop in program.Loops)
         {
             foreach (LoopState state in loop.States)
@@ -240,19 +253,19 @@ internal sealed class ReverseGradient
                 if (state.IsActive)
                 {
                     string id = ids.New(Identifiers.Unescape(state.Name) + "Bar");
-                    adjointOf[state] = (id, b.StageLeaf(id, state.Type, reverseStage, isActive: false));
-                    loopOf[state.Final] = (loop, state);
-                    loopOf[state.Current] = (loop, state);
+                    _adjointOf[state] = (id, _b.StageLeaf(id, state.Type, reverseStage, isActive: false));
+                    _loopOf[state.Final] = (loop, state);
+                    _loopOf[state.Current] = (loop, state);
                     if (loop.Children.Count > 0)
                     {
-                        adjointInOf[state] = ids.New(Identifiers.Unescape(state.Name) + "BarIn");
+                        _adjointInOf[state] = ids.New(Identifiers.Unescape(state.Name) + "BarIn");
                     }
                 }
             }
         }
 
-        string?[] scalarIds = program.Variables.Select(v => (string?)ids.New(Identifiers.Unescape(v) + "Bar")).ToArray();
-        var declared = new HashSet<string>(StringComparer.Ordinal);
+        _scalarIds = program.Variables.Select(v => (string?)ids.New(Identifiers.Unescape(v) + "Bar")).ToArray();
+        _declared = new HashSet<string>(StringComparer.Ordinal);
         var topRoots = new List<Node> { program.Value };
         foreach (LoopSegment loop in loops)
         {
@@ -261,22 +274,19 @@ internal sealed class ReverseGradient
         }
 
         HashSet<Node> topAlways = Evaluation.Unconditional(topRoots);
-        var recordedOf = new Dictionary<LoopSegment, List<LoopState>>();
-        var footerOf = new Dictionary<LoopSegment, List<LoopState>>();
-
-        // Every piece stops at the values carried by loops: at the start of an iteration, and after a loop.
-        bool IsBoundary(Node node) => loopOf.ContainsKey(node);
+        _recordedOf = new Dictionary<LoopSegment, List<LoopState>>();
+        _footerOf = new Dictionary<LoopSegment, List<LoopState>>();
 
         // The code after the last loop: the value's adjoint is 1.
-        AdjointResult tail = AdjointSweep.Run(b, new[] { (program.Value, b.One(returnType)) }, n, returnType, IsBoundary);
+        AdjointResult tail = AdjointSweep.Run(_b, new[] { (program.Value, _b.One(_returnType)) }, _n, _returnType, IsBoundary);
         Blocks.Add(Fill(new AdjointBlock(null) { Label = "the code after the last loop", ReadAlways = topAlways }, tail, topAlways, declares: true));
-        foreach ((string id, ScalarType type) in loops.SelectMany(l => l.States).Where(adjointOf.ContainsKey).Select(s => (adjointOf[s].Id, s.Type))
-            .Concat(scalarIds.Select(id => (id!, returnType))))
+        foreach ((string id, ScalarType type) in loops.SelectMany(l => l.States).Where(_adjointOf.ContainsKey).Select(s => (_adjointOf[s].Id, s.Type))
+            .Concat(_scalarIds.Select(id => (id!, _returnType))))
         {
-            if (!declared.Contains(id))
+            if (!_declared.Contains(id))
             {
                 ZeroAdjoints.Add((id, type));
-                declared.Add(id);
+                _declared.Add(id);
             }
         }
 
@@ -288,120 +298,123 @@ internal sealed class ReverseGradient
             Blocks.Add(StartValues(loop, topAlways));
         }
 
-        ScalarAdjoints = scalarIds;
+        ScalarAdjoints = _scalarIds;
         foreach (LoopSegment loop in program.Loops)
         {
             // A loop gets a record when its reverse iterations read a carried local, when it is a while loop (whose
             // record also counts its iterations), and always when it is nested (its record keeps its count and its
             // values after it, per iteration of the loop around it).
-            if (recordedOf.TryGetValue(loop, out List<LoopState>? recorded)
+            if (_recordedOf.TryGetValue(loop, out List<LoopState>? recorded)
                 && (recorded.Count > 0 || loop.Parent is not null || (loop.Condition is not null && Blocks.Any(block => block.Loop == loop && !IsEmpty(block)))))
             {
-                Tapes[loop] = new TapeRecord(loop, recorded, footerOf.TryGetValue(loop, out List<LoopState>? footer) ? footer : new List<LoopState>(), ids);
+                Tapes[loop] = new TapeRecord(loop, recorded, _footerOf.TryGetValue(loop, out List<LoopState>? footer) ? footer : new List<LoopState>(), ids);
             }
         }
 
         FindSnapshots(loops);
+    }
 
-        // One iteration of a loop backwards: seeds are the adjoints of the carried locals' new values. For a loop without
-        // nested loops, one piece, whose adjoints at the start values become the new adjoints; for one with nested
-        // loops, the code after the last nested loop, then each nested loop backwards with the code before it, the
-        // adjoints at the start values collected in …BarIn locals.
-        AdjointBlock Iteration(LoopSegment loop)
+    // Every piece stops at the values carried by loops: at the start of an iteration, and after a loop.
+    private bool IsBoundary(Node node) => _loopOf.ContainsKey(node);
+
+    // One iteration of a loop backwards: seeds are the adjoints of the carried locals' new values. For a loop without
+    // nested loops, one piece, whose adjoints at the start values become the new adjoints; for one with nested
+    // loops, the code after the last nested loop, then each nested loop backwards with the code before it, the
+    // adjoints at the start values collected in …BarIn locals.
+    private AdjointBlock Iteration(LoopSegment loop)
+    {
+        List<LoopState> active = loop.States.Where(s => s.IsActive).ToList();
+        AdjointResult iteration = AdjointSweep.Run(_b, active.Select(s => (s.Next, _adjointOf[s].Leaf)).ToList(), _n, _returnType, IsBoundary);
+        var alwaysRoots = loop.States.Select(s => s.Next).Concat(loop.Children.SelectMany(c => ProgramReads.Header(c).Concat(c.States.Select(s => s.Initial))));
+        HashSet<Node> always = Evaluation.Unconditional(alwaysRoots);
+        var block = new AdjointBlock(loop) { Label = Describe(loop) + ", its iterations backwards", ReadAlways = always };
+        Fill(block, iteration, always, declares: false);
+        if (loop.Children.Count == 0)
         {
-            List<LoopState> active = loop.States.Where(s => s.IsActive).ToList();
-            AdjointResult iteration = AdjointSweep.Run(b, active.Select(s => (s.Next, adjointOf[s].Leaf)).ToList(), n, returnType, IsBoundary);
-            var alwaysRoots = loop.States.Select(s => s.Next).Concat(loop.Children.SelectMany(c => ProgramReads.Header(c).Concat(c.States.Select(s => s.Initial))));
-            HashSet<Node> always = Evaluation.Unconditional(alwaysRoots);
-            var block = new AdjointBlock(loop) { Label = Describe(loop) + ", its iterations backwards", ReadAlways = always };
-            Fill(block, iteration, always, declares: false);
-            if (loop.Children.Count == 0)
+            var assignments = active.Select(s => (State: s, Value: iteration.Boundary.TryGetValue(s.Current, out Node? adjoint) ? _b.Convert(adjoint, s.Type) : _b.Zero(s.Type))).ToList();
+            assignments.RemoveAll(a => a.Value == _adjointOf[a.State].Leaf); // unchanged by an iteration (an accumulator's adjoint)
+            foreach ((LoopState state, Node adjointValue) in assignments)
             {
-                var assignments = active.Select(s => (State: s, Value: iteration.Boundary.TryGetValue(s.Current, out Node? adjoint) ? b.Convert(adjoint, s.Type) : b.Zero(s.Type))).ToList();
-                assignments.RemoveAll(a => a.Value == adjointOf[a.State].Leaf); // unchanged by an iteration (an accumulator's adjoint)
-                foreach ((LoopState state, Node adjointValue) in assignments)
-                {
-                    Node leaf = adjointOf[state].Leaf;
-                    bool readByOther = assignments.Any(a => a.State != state && Graph.Reachable(new[] { a.Value }).Contains(leaf));
-                    block.Assignments.Add(new AdjointAssignment(adjointOf[state].Id, state.Type, adjointValue, readByOther));
-                }
+                Node leaf = _adjointOf[state].Leaf;
+                bool readByOther = assignments.Any(a => a.State != state && Graph.Reachable(new[] { a.Value }).Contains(leaf));
+                block.Assignments.Add(new AdjointAssignment(_adjointOf[state].Id, state.Type, adjointValue, readByOther));
             }
-            else
+        }
+        else
+        {
+            foreach (LoopState state in active)
             {
-                foreach (LoopState state in active)
-                {
-                    block.InnerZeros.Add((adjointInOf[state], state.Type));
-                    block.Copies.Add((adjointOf[state].Id, adjointInOf[state]));
-                }
-
-                foreach (LoopState state in loop.Children.SelectMany(c => c.States).Where(s => s.IsActive))
-                {
-                    block.InnerZeros.Add((adjointOf[state].Id, state.Type));
-                }
-
-                for (int c = loop.Children.Count - 1; c >= 0; c--)
-                {
-                    block.Inner.Add(Iteration(loop.Children[c]));
-                    block.Inner.Add(StartValues(loop.Children[c], always));
-                }
+                block.InnerZeros.Add((_adjointInOf[state], state.Type));
+                block.Copies.Add((_adjointOf[state].Id, _adjointInOf[state]));
             }
 
+            foreach (LoopState state in loop.Children.SelectMany(c => c.States).Where(s => s.IsActive))
+            {
+                block.InnerZeros.Add((_adjointOf[state].Id, state.Type));
+            }
+
+            for (int c = loop.Children.Count - 1; c >= 0; c--)
+            {
+                block.Inner.Add(Iteration(loop.Children[c]));
+                block.Inner.Add(StartValues(loop.Children[c], always));
+            }
+        }
+
+        ChooseTemporaries(block, always);
+
+        // The record: every carried local of the loop whose value at the start of an iteration the block reads; for a
+        // nested loop, also its values after it that the loop around it reads backwards.
+        HashSet<Node> read = Graph.Reachable(AllRoots(block));
+        _recordedOf[loop] = loop.States.Where(s => read.Contains(s.Current)).ToList();
+        foreach (LoopSegment child in loop.Children)
+        {
+            _footerOf[child] = child.States.Where(s => read.Contains(s.Final)).ToList();
+        }
+
+        return block;
+    }
+
+    // The code before a loop (down to the values carried by earlier loops): the start values' adjoints are the carried
+    // locals' adjoints after the loop ran backwards.
+    private AdjointBlock StartValues(LoopSegment loop, HashSet<Node> always)
+    {
+        List<LoopState> active = loop.States.Where(s => s.IsActive).ToList();
+        AdjointResult inputs = AdjointSweep.Run(_b, active.Select(s => (s.Initial, _adjointOf[s].Leaf)).ToList(), _n, _returnType, IsBoundary);
+        return Fill(new AdjointBlock(null) { Label = "the start values of " + Describe(loop), ReadAlways = always }, inputs, always, declares: false);
+    }
+
+    private AdjointBlock Fill(AdjointBlock block, AdjointResult result, HashSet<Node> always, bool declares)
+    {
+        foreach (KeyValuePair<Node, Node> pair in result.Boundary.OrderBy(p => p.Key.Id))
+        {
+            (LoopSegment of, LoopState state) = _loopOf[pair.Key];
+            if (pair.Key == state.Final)
+            {
+                string id = _adjointOf[state].Id;
+                block.Accumulations.Add(new Accumulation(id, state.Type, _b.Convert(pair.Value, state.Type), declares && _declared.Add(id)));
+            }
+            else if (of != block.Loop || of.Children.Count > 0)
+            {
+                // The start value of an iteration of a loop around this piece (or of this loop, when it has nested loops).
+                block.Accumulations.Add(new Accumulation(_adjointInOf[state], state.Type, _b.Convert(pair.Value, state.Type), Declares: false));
+            }
+        }
+
+        for (int k = 0; k < _n; k++)
+        {
+            if (!result.Gradient[k].IsZero)
+            {
+                block.Accumulations.Add(new Accumulation(_scalarIds[k]!, _returnType, result.Gradient[k], declares && _declared.Add(_scalarIds[k]!)));
+            }
+        }
+
+        block.Terms.AddRange(result.VectorTerms);
+        if (block.Loop is null)
+        {
             ChooseTemporaries(block, always);
-
-            // The record: every carried local of the loop whose value at the start of an iteration the block reads; for a
-            // nested loop, also its values after it that the loop around it reads backwards.
-            HashSet<Node> read = Graph.Reachable(AllRoots(block));
-            recordedOf[loop] = loop.States.Where(s => read.Contains(s.Current)).ToList();
-            foreach (LoopSegment child in loop.Children)
-            {
-                footerOf[child] = child.States.Where(s => read.Contains(s.Final)).ToList();
-            }
-
-            return block;
         }
 
-        // The code before a loop (down to the values carried by earlier loops): the start values' adjoints are the carried
-        // locals' adjoints after the loop ran backwards.
-        AdjointBlock StartValues(LoopSegment loop, HashSet<Node> always)
-        {
-            List<LoopState> active = loop.States.Where(s => s.IsActive).ToList();
-            AdjointResult inputs = AdjointSweep.Run(b, active.Select(s => (s.Initial, adjointOf[s].Leaf)).ToList(), n, returnType, IsBoundary);
-            return Fill(new AdjointBlock(null) { Label = "the start values of " + Describe(loop), ReadAlways = always }, inputs, always, declares: false);
-        }
-
-        AdjointBlock Fill(AdjointBlock block, AdjointResult result, HashSet<Node> always, bool declares)
-        {
-            foreach (KeyValuePair<Node, Node> pair in result.Boundary.OrderBy(p => p.Key.Id))
-            {
-                (LoopSegment of, LoopState state) = loopOf[pair.Key];
-                if (pair.Key == state.Final)
-                {
-                    string id = adjointOf[state].Id;
-                    block.Accumulations.Add(new Accumulation(id, state.Type, b.Convert(pair.Value, state.Type), declares && declared.Add(id)));
-                }
-                else if (of != block.Loop || of.Children.Count > 0)
-                {
-                    // The start value of an iteration of a loop around this piece (or of this loop, when it has nested loops).
-                    block.Accumulations.Add(new Accumulation(adjointInOf[state], state.Type, b.Convert(pair.Value, state.Type), Declares: false));
-                }
-            }
-
-            for (int k = 0; k < n; k++)
-            {
-                if (!result.Gradient[k].IsZero)
-                {
-                    block.Accumulations.Add(new Accumulation(scalarIds[k]!, returnType, result.Gradient[k], declares && declared.Add(scalarIds[k]!)));
-                }
-            }
-
-            block.Terms.AddRange(result.VectorTerms);
-            if (block.Loop is null)
-            {
-                ChooseTemporaries(block, always);
-            }
-
-            return block;
-        }
+        return block;
     }
 
     private static IEnumerable<Node> AllRoots(AdjointBlock block) => BlockRoots(block).Concat(block.Inner.SelectMany(AllRoots));
