@@ -34,4 +34,27 @@ public sealed class DifferentiateAttribute : Attribute
 
     /// <summary>Whether to generate the Hessian method as well as the gradient method. Defaults to <see langword="true"/>.</summary>
     public bool Hessian { get; set; } = true;
+
+    /// <summary>
+    /// How the gradient method goes through loops: <see cref="LoopDifferentiation.Automatic"/> (the default) lets the
+    /// generator choose by its documented rule; the other values force one way where the loops' shape allows it.
+    /// </summary>
+    public LoopDifferentiation Loops { get; set; } = LoopDifferentiation.Automatic;
+}
+
+/// <summary>How a generated gradient method differentiates through the method's loops (README: "How loops and branches
+/// are differentiated").</summary>
+public enum LoopDifferentiation
+{
+    /// <summary>The generator's rule: a reverse sweep where a state carried by a loop is driven by a vector of
+    /// variables (or very many scalar running derivatives would be needed), running derivatives otherwise.</summary>
+    Automatic = 0,
+
+    /// <summary>Running derivatives carried forward through every loop (no record, cost grows with the number of
+    /// variables per iteration).</summary>
+    RunningDerivatives = 1,
+
+    /// <summary>A reverse sweep over a record of the loops' iterations wherever the shape of the loops allows it
+    /// (cost a small multiple of the value; memory one value per recorded local and iteration).</summary>
+    ReverseSweep = 2,
 }

@@ -125,6 +125,49 @@ internal sealed class DerivativeProgram
     /// <summary>Names of the locals that hold loop-carried values (their running derivatives are named by Emit).</summary>
     public IEnumerable<string> StateNames => Loops.SelectMany(l => l.States).Select(s => s.Name);
 
+    /// <summary>The gradient method through the loops in reverse (<see cref="LoopReverse.ReverseGradient"/>), or null where
+    /// forward running derivatives are kept (<see cref="LoopReverse.ReverseLoopPolicy"/>).</summary>
+    public LoopReverse.ReverseGradient? Reverse { get; private set; }
+
+    /// <summary>
+    /// The program of the value alone: the graph exactly as <see cref="Create"/> builds it (carried locals that do not
+    /// depend on the variables built inactive), no running derivatives, a zero gradient. The reverse gradient
+    /// schedules its value code from it and builds its adjoint code in its builder.
+    /// </summary>
+    public static DerivativeProgram ValueOnly(MethodSpec spec, System.Threading.CancellationToken cancellationToken)
+    {
+        var builder = new ExpressionBuilder(cancellationToken);
+        string[] variables = spec.Parameters.Where(p => p.IsVariable && !p.IsVector).Select(p => p.Name).ToArray();
+        string[] vectors = spec.Parameters.Where(p => p.IsVector).Select(p => p.Name).ToArray();
+        var vectorIndex = new Dictionary<string, int>(StringComparer.Ordinal);
+        for (int v = 0; v < vectors.Length; v++)
+        {
+            vectorIndex[vectors[v]] = v;
+        }
+
+        var index = new Dictionary<string, int>(StringComparer.Ordinal);
+        for (int i = 0; i < variables.Length; i++)
+        {
+            index[variables[i]] = i;
+        }
+
+        ProgramGraph graph = ProgramGraph.Build(builder, spec, index, vectorIndex);
+        HashSet<string> passive = ProgramGraph.PassiveStates(graph);
+        if (passive.Count > 0)
+        {
+            var passiveBuilder = new ExpressionBuilder(cancellationToken);
+            ProgramGraph passiveGraph = ProgramGraph.Build(passiveBuilder, spec, index, vectorIndex, passive);
+            if (passiveGraph.ArePassive(passive))
+            {
+                builder = passiveBuilder;
+                graph = passiveGraph;
+            }
+        }
+
+        Node[] zero = variables.Select(_ => builder.Zero(spec.ReturnType)).ToArray();
+        return new DerivativeProgram(builder, graph, zero, null, variables, new Dictionary<LoopState, StateDerivatives>(), vectors, new List<VectorTerm>(), new DerivativeLocals());
+    }
+
     /// <summary>The Differentiate stage: IR → value DAG → gradient by reverse sweeps → Hessian by tangent sweeps.</summary>
     public static DerivativeProgram Create(MethodSpec spec, System.Threading.CancellationToken cancellationToken)
     {
@@ -258,7 +301,11 @@ internal sealed class DerivativeProgram
         Node[][]? hessian = spec.EmitHessian ? SecondOrder(builder, spec.ReturnType, n, gradient, states, leafGradient, leafHessian, gradientLeafOf, cancellationToken) : null;
 
         // Mixed float/double code can give a derivative of the wider type; the spans hold the method's own type.
-        return new DerivativeProgram(builder, graph, Typed(gradient, spec.ReturnType), hessian, variables, states, vectors, vectorGradient, locals);
+        var program = new DerivativeProgram(builder, graph, Typed(gradient, spec.ReturnType), hessian, variables, states, vectors, vectorGradient, locals);
+
+        // The gradient method goes through the loops in reverse where the rule says so (LoopReverse/ReverseLoopPolicy).
+        program.Reverse = LoopReverse.ReverseGradient.TryCreate(spec, program, cancellationToken);
+        return program;
 
         Node[] Typed(Node[] nodes, ScalarType type) => nodes.Select(g => builder.Convert(g, type)).ToArray();
     }

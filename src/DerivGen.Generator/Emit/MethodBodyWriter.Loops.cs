@@ -68,6 +68,7 @@ internal sealed partial class MethodBodyWriter
         WriteVectorClears(loop);
         WriteVectorUpdates(loop, before: true);
         WriteStart(loop);
+        OpenRecord(loop);
 
         // A while loop's condition is written in its header, inline: only what is computed before the loop is read
         // from locals, so nothing of the body runs before the condition is tested, as in the user's code.
@@ -76,6 +77,7 @@ internal sealed partial class MethodBodyWriter
             : "for (int " + loop.Index + " = " + _code.Write(loop.Start!) + "; " + loop.Index + (loop.Inclusive ? " <= " : " < ") + _code.Write(loop.End!) + "; " + loop.Index + "++)";
         using (_writer.Block(header))
         {
+            WriteRecordWrites(loop);
             WriteTemporaries(loop.InsideStage);
             foreach (LoopSegment nested in loop.Children)
             {
@@ -89,6 +91,7 @@ internal sealed partial class MethodBodyWriter
         }
 
         _writer.Blank();
+        WriteReverseSnapshots(loop);
         if (_plan.Factored.TryGetValue(loop, out List<(string Target, Node Factor)>? factors) && factors.Count > 0)
         {
             _writer.Line("// The constant factor of every term of these sums, applied once:");

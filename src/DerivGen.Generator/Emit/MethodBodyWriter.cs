@@ -39,6 +39,14 @@ internal sealed partial class MethodBodyWriter
 
     public static void Write(IndentedWriter writer, EmitContext context, bool withHessian, string thrower)
     {
+        if (!withHessian && context.Program.Reverse is { } reverse)
+        {
+            // The loops go reverse (Differentiation/LoopReverse): the value code of a program without running
+            // derivatives, recording its loops, then the reverse sweep. Its names are those of that program.
+            new MethodBodyWriter(writer, new EmitContext(context.Spec, reverse.Program), reverse.Forward, thrower) { _reverse = reverse }.WriteBody();
+            return;
+        }
+
         MethodPlan plan = MethodPlan.Create(context.Program, withHessian, context.Spec.HasSinCos, context.Spec.HasOutputs);
         new MethodBodyWriter(writer, context, plan, thrower).WriteBody();
     }
@@ -81,6 +89,12 @@ internal sealed partial class MethodBodyWriter
         foreach (LoopSegment loop in _program.TopLevelLoops)
         {
             WriteLoop(loop);
+        }
+
+        if (_reverse is not null)
+        {
+            WriteReverseSweep();
+            return;
         }
 
         if (_plan.Results.Count == 0)

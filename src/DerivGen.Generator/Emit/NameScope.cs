@@ -126,6 +126,12 @@ internal sealed class NameScope
     /// <summary>The start of an output's Jacobian row.</summary>
     public string Row() => _names.Claim("row");
 
+    /// <summary>A fresh name for a local of the reverse sweep (<c>…Next</c> of an adjoint).</summary>
+    public string Fresh(string hint) => _names.Claim(hint);
+
+    /// <summary>A fresh name for a temporary of the reverse sweep, descriptive where the node's shape allows.</summary>
+    public string Fresh(Node node, Func<Node, string?> nameOf) => _names.For(node, _context.Program.Names, nameOf);
+
     /// <summary>The adjoint of a carried local whose span is replayed.</summary>
     public string Adjoint(string state) => _names.Claim(Identifiers.Unescape(state) + "Adjoint");
 }

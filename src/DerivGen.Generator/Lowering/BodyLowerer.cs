@@ -755,7 +755,10 @@ internal sealed partial class BodyLowerer
         _depth++;
         try
         {
-            return LowerExpressionCore(operation);
+            // Binary operators are what nests deepest (a long sum): they skip LowerExpressionCore, whose frame is large, so
+            // that a 1 MB compiler thread lowers a few hundred levels (Robustness/HostileInputTests). A constant still goes
+            // through it, to be folded.
+            return operation is IBinaryOperation binary && !operation.ConstantValue.HasValue ? LowerBinary(binary) : LowerExpressionCore(operation);
         }
         finally
         {

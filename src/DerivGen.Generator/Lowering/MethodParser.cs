@@ -108,6 +108,7 @@ internal static class MethodParser
             bool emitHessian = HasHessian(attribute);
             HashSet<string> variables = SelectVariables(method, attribute, diagnostics, syntax.Identifier.GetLocation(), cancellationToken);
             MethodSpec? spec = LowerCore(method, syntax, emitHessian, variables, semanticModel, helpers, diagnostics, cancellationToken);
+            spec = spec is null ? null : spec with { Loops = LoopsOf(attribute) };
             bool hasErrors = diagnostics.Any(d => d.IsError);
             if (hasErrors && HasCompileError(syntax, semanticModel, cancellationToken))
             {
@@ -586,6 +587,10 @@ internal static class MethodParser
 
         return method.Parameters.Where(p => names.Count == 0 ? IsDefaultVariable(p) : names.Contains(p.Name) && IsFloatingPoint(p.Type)).ToList();
     }
+
+    /// <summary>The attribute's <c>Loops</c> property (Automatic when absent or out of range).</summary>
+    private static LoopPreference LoopsOf(AttributeData attribute) =>
+        attribute.NamedArguments.FirstOrDefault(a => a.Key == "Loops").Value.Value is int value && value is >= 0 and <= 2 ? (LoopPreference)value : LoopPreference.Automatic;
 
     /// <summary>Whether a [Differentiate] method generates its Hessian method.</summary>
     internal static bool HasHessian(AttributeData attribute) =>

@@ -28,6 +28,7 @@ namespace DerivGen.Generator.Model;
 /// <param name="GenericConstraints">For a method generic over T (<see cref="ScalarType.Generic"/>), the constraints of T as the
 /// generated methods declare them (<c>global::System.Numerics.IFloatingPointIeee754&lt;T&gt;</c>); null for any other method.</param>
 /// <param name="Guards">The method's checks that throw, in its order, run first by every generated method (see <see cref="IrGuard"/>).</param>
+/// <param name="Loops">The attribute's <c>Loops</c> property: how the gradient goes through loops (Differentiation/LoopReverse/ReverseLoopPolicy).</param>
 internal sealed record MethodSpec(
     string HintName,
     string? Namespace,
@@ -46,13 +47,22 @@ internal sealed record MethodSpec(
     string? OutputName = null,
     bool HasSinCos = false,
     string? GenericConstraints = null,
-    EquatableArray<IrGuard> Guards = default)
+    EquatableArray<IrGuard> Guards = default,
+    LoopPreference Loops = LoopPreference.Automatic)
 {
     /// <summary>Whether this is a method with a span of outputs, whose Jacobian is generated.</summary>
     public bool HasOutputs => OutputName is not null;
 
     /// <summary>Whether the method is generic over T, and so are its generated methods.</summary>
     public bool IsGeneric => GenericConstraints is not null;
+}
+
+/// <summary>The values of <c>DerivGen.LoopDifferentiation</c>, in the same order.</summary>
+internal enum LoopPreference
+{
+    Automatic = 0,
+    RunningDerivatives = 1,
+    ReverseSweep = 2,
 }
 
 /// <summary>A containing type: its declaration keyword(s) ("class", "record struct", ...) and name with type parameters.</summary>

@@ -49,6 +49,10 @@ internal sealed class BatchOutcome
 
     public int InlinedVariantsRefused { get; set; }
 
+    /// <summary>Generated gradients that go through their loops in reverse (a record and a reverse sweep) rather than
+    /// with forward running derivatives (Differentiation/LoopReverse; the rule is ReverseLoopPolicy).</summary>
+    public int ReverseLoopGradients { get; set; }
+
     /// <summary>Gradient or Hessian entries compared with MathNet's finite differences.</summary>
     public int OracleEntries { get; set; }
 
@@ -63,6 +67,12 @@ internal sealed class BatchOutcome
 
     /// <summary>Largest |generated − reference| / tolerance seen (how close the suite runs to its tolerance).</summary>
     public double WorstReferenceRatio { get; set; }
+
+    /// <summary>Where the worst ratio was seen: the case's seed and the derivative compared.</summary>
+    public string WorstReferenceWhere { get; set; } = "";
+
+    /// <summary>The seed of the case being checked.</summary>
+    public string CurrentSeed { get; set; } = "";
 }
 
 /// <summary>
@@ -176,6 +186,7 @@ internal static class DifferentialRunner
             }
         }
 
+        outcome.ReverseLoopGradients += byHint.Values.Count(g => g.SourceText.ToString().Contains("// Reverse sweep:", StringComparison.Ordinal));
         for (int i = 0; i < cases.Count; i++)
         {
             string hint = TypeName + "." + MethodName(i) + ".g.cs";
@@ -242,6 +253,7 @@ internal static class DifferentialRunner
             {
                 // A stack overflow ends the test host before any report: the case being run is on record in a file.
                 File.WriteAllText(CurrentCaseFile, "DERIVGEN_CASE=" + cases[i].Seed + " (" + MethodName(i) + ")\n");
+                outcome.CurrentSeed = cases[i].Seed;
                 reason = CheckOne(assembly, MethodName(i), cases[i], outcome);
             }
             catch (Exception e)
@@ -449,7 +461,11 @@ internal static class DifferentialRunner
             bool ok = actual[i] == expected[i] || difference <= allowed;
             if (allowed > 0 && double.IsFinite(difference))
             {
-                outcome.WorstReferenceRatio = Math.Max(outcome.WorstReferenceRatio, difference / allowed);
+                if (difference / allowed > outcome.WorstReferenceRatio)
+                {
+                    outcome.WorstReferenceRatio = difference / allowed;
+                    outcome.WorstReferenceWhere = what + "[" + i + "] of case " + outcome.CurrentSeed;
+                }
             }
 
             if (!ok)

@@ -89,9 +89,14 @@ public sealed class RandomizedDifferentialTests
             total.VectorVariantsRefused += outcome.VectorVariantsRefused;
             total.InlinedVariants += outcome.InlinedVariants;
             total.InlinedVariantsRefused += outcome.InlinedVariantsRefused;
+            total.ReverseLoopGradients += outcome.ReverseLoopGradients;
             total.OracleEntries += outcome.OracleEntries;
             total.OracleInconclusive += outcome.OracleInconclusive;
-            total.WorstReferenceRatio = Math.Max(total.WorstReferenceRatio, outcome.WorstReferenceRatio);
+            if (outcome.WorstReferenceRatio > total.WorstReferenceRatio)
+            {
+                total.WorstReferenceRatio = outcome.WorstReferenceRatio;
+                total.WorstReferenceWhere = outcome.WorstReferenceWhere;
+            }
             if (outcome.LargestGeneratedFile > total.LargestGeneratedFile)
             {
                 total.LargestGeneratedFile = outcome.LargestGeneratedFile;
@@ -120,9 +125,9 @@ public sealed class RandomizedDifferentialTests
         string replay = $"DERIVGEN_SEED={runSeed}";
         _output.WriteLine($"{family}: seed {runSeed} ({replay} replays this run); {outcome.Checked} of {count} methods checked at {outcome.Points} points "
             + $"({outcome.JacobianRows} Jacobian rows of variants with outputs; {outcome.VectorVariants} variants with d as a vector variable checked, "
-            + $"{outcome.VectorVariantsRefused} refused; {outcome.InlinedVariants} variants with the body in an inlined helper or local function checked, {outcome.InlinedVariantsRefused} refused), "
+            + $"{outcome.VectorVariantsRefused} refused; {outcome.InlinedVariants} variants with the body in an inlined helper or local function checked, {outcome.InlinedVariantsRefused} refused; {outcome.ReverseLoopGradients} gradients through loops in reverse), "
             + $"{outcome.Failures.Count} failed; {outcome.OracleEntries} entries compared with finite differences, "
-            + $"{outcome.OracleInconclusive} inconclusive; worst |generated - reference| / tolerance = {outcome.WorstReferenceRatio:G3}; "
+            + $"{outcome.OracleInconclusive} inconclusive; worst |generated - reference| / tolerance = {outcome.WorstReferenceRatio:G3} ({outcome.WorstReferenceWhere}); "
             + $"largest generated file {outcome.LargestGeneratedFile} characters (case {outcome.LargestGeneratedSeed}); "
             + $"{elapsed.TotalSeconds:F1} s");
 
