@@ -112,7 +112,9 @@ public sealed class DerivativeGenerator : IIncrementalGenerator
             bool pairwise = spec.EmitHessian && spec.Parameters.Any(p => p.IsVector);
             DerivativeProgram program = DerivativeProgram.Create(pairwise ? spec with { EmitHessian = false } : spec, cancellationToken);
             PairHessian? pairs = pairwise ? PairHessian.Create(spec, cancellationToken) : null;
-            return new GeneratedFile(spec.HintName, DerivativeEmitter.Emit(spec, program, pairs));
+            // The Hessian–vector product: its own program (the direction as data), where HessianVectorProgram supports it.
+            DerivativeProgram? hessianVector = HessianVectorProgram.Supports(spec, program) ? DerivativeProgram.CreateHessianVector(spec, cancellationToken) : null;
+            return new GeneratedFile(spec.HintName, DerivativeEmitter.Emit(spec, program, pairs, hessianVector));
         }
         catch (OperationCanceledException)
         {

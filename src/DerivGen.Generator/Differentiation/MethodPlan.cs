@@ -162,6 +162,11 @@ internal sealed partial class MethodPlan
             Roots.AddRange(program.Hessian!.SelectMany(row => row).Select(h => (h, finalStage)));
         }
 
+        if (program.Product is { } product)
+        {
+            Roots.AddRange(product.Select(p => (p, finalStage)));
+        }
+
         // A method with outputs: each write needs its index, its value and its Jacobian row where it is written.
         foreach (OutputWrite output in program.Outputs)
         {
@@ -205,6 +210,6 @@ internal sealed partial class MethodPlan
             }
         }
 
-        Roots.AddRange(ProgramReads.TermNodes(program.VectorGradient).Select(node => (node, program.FinalStage)));
+        Roots.AddRange(ProgramReads.TermNodes(program.ResultTerms).Select(node => (node, program.FinalStage)));
     }
 }

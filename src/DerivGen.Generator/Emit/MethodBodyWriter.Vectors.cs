@@ -98,6 +98,11 @@ internal sealed partial class MethodBodyWriter
     private void WriteReplay(string target, string at, VectorTerm term, ReverseReplay reversal)
     {
         LoopSegment loop = reversal.Loop;
+        if (reversal.InitialTerms.Count == 0 && reversal.LoopTerms.Count == 0)
+        {
+            return; // the span is zero (a carried tangent that is linear in the vector, for one): nothing to add
+        }
+
         string adjoint;
         if (term.Coefficient.IsLeaf || NameOf(term.Coefficient) is not null)
         {
@@ -218,7 +223,8 @@ internal sealed partial class MethodBodyWriter
         bool hessianStarted = false;
         foreach (ResultStatement statement in _plan.Results)
         {
-            if (_plan.WithHessian && !hessianStarted && statement.Kind is ResultKind.HessianEntry or ResultKind.Return)
+            if ((_plan.WithHessian || _program.Product is not null) && !hessianStarted
+                && statement.Kind is ResultKind.HessianEntry or ResultKind.VectorProduct or ResultKind.ProductEntry or ResultKind.Return)
             {
                 _writer.Line();
                 hessianStarted = true;
@@ -238,6 +244,16 @@ internal sealed partial class MethodBodyWriter
                     break;
                 case ResultKind.GradientEntry:
                     _writer.Line(_context.GradientName + "[" + _context.ScalarOffset[statement.Row] + "] = " + _code.Write(statement.Value!) + "; // " + _context.PartialName(statement.Row));
+                    break;
+                case ResultKind.VectorProduct:
+                    string productOffset = _context.VectorOffset[v] == "0" ? string.Empty : _context.VectorOffset[v];
+                    _writer.Line(_context.ProductName + ".Slice(" + _context.VectorOffset[v] + ", " + Length(v) + ").Clear(); // (H·" + _context.DirectionName
+                        + ") for " + Identifiers.Unescape(_program.Vectors[v]) + "[…]");
+                    AddTerms(_context.ProductName, productOffset, statement.Terms!, null);
+                    break;
+                case ResultKind.ProductEntry:
+                    _writer.Line(_context.ProductName + "[" + _context.ScalarOffset[statement.Row] + "] = " + _code.Write(statement.Value!) + "; // (H·" + _context.DirectionName
+                        + ") for " + Identifiers.Unescape(_program.Variables[statement.Row]));
                     break;
                 case ResultKind.HessianEntry:
                     int i = statement.Row, j = statement.Column;
