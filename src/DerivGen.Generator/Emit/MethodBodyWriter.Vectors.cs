@@ -35,6 +35,9 @@ internal sealed partial class MethodBodyWriter
             _writer.Line(span.GradientSlice is int slice
                 ? "global::System.Span<" + ExpressionWriter.TypeKeyword(_context.Spec.ReturnType) + "> " + name + " = "
                     + _context.GradientName + ".Slice(" + _context.VectorOffset[slice] + ", " + Length(slice) + "); // accumulated in place"
+                : span.ProductSlice is int productSlice
+                ? "global::System.Span<" + ExpressionWriter.TypeKeyword(_context.Spec.ReturnType) + "> " + name + " = "
+                    + _context.ProductName + ".Slice(" + _context.VectorOffset[productSlice] + ", " + Length(productSlice) + "); // accumulated in place"
                 : StackOrHeapSpan(name, Length(span.Vector), _context.Spec.ReturnType));
         }
 
@@ -224,7 +227,7 @@ internal sealed partial class MethodBodyWriter
         foreach (ResultStatement statement in _plan.Results)
         {
             if ((_plan.WithHessian || _program.Product is not null) && !hessianStarted
-                && statement.Kind is ResultKind.HessianEntry or ResultKind.VectorProduct or ResultKind.ProductEntry or ResultKind.Return)
+                && statement.Kind is ResultKind.HessianEntry or ResultKind.VectorProduct or ResultKind.VectorProductInPlace or ResultKind.ProductEntry or ResultKind.Return)
             {
                 _writer.Line();
                 hessianStarted = true;
@@ -250,6 +253,10 @@ internal sealed partial class MethodBodyWriter
                     _writer.Line(_context.ProductName + ".Slice(" + _context.VectorOffset[v] + ", " + Length(v) + ").Clear(); // (H·" + _context.DirectionName
                         + ") for " + Identifiers.Unescape(_program.Vectors[v]) + "[…]");
                     AddTerms(_context.ProductName, productOffset, statement.Terms!, null);
+                    break;
+                case ResultKind.VectorProductInPlace:
+                    _writer.Line("// (H·" + _context.DirectionName + ") for " + Identifiers.Unescape(_program.Vectors[v]) + "[…] is " + _context.Name(statement.Span!)
+                        + ", already in " + _context.ProductName + ".");
                     break;
                 case ResultKind.ProductEntry:
                     _writer.Line(_context.ProductName + "[" + _context.ScalarOffset[statement.Row] + "] = " + _code.Write(statement.Value!) + "; // (H·" + _context.DirectionName

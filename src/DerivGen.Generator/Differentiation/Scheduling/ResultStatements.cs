@@ -24,6 +24,10 @@ internal enum ResultKind
     /// Hessian–vector product method, <see cref="HessianVectorProgram"/>).</summary>
     VectorProduct,
 
+    /// <summary>Nothing to write: the vector's slice of the product already holds the span <see cref="ResultStatement.Span"/>
+    /// (<see cref="InPlaceAccumulation.InProduct"/>).</summary>
+    VectorProductInPlace,
+
     /// <summary><c>product[slot of Row] = Value</c>.</summary>
     ProductEntry,
 
@@ -123,7 +127,9 @@ internal static class ResultStatements
         {
             for (int v = 0; v < program.Vectors.Length; v++)
             {
-                results.Add(new ResultStatement(ResultKind.VectorProduct, Row: v, Terms: program.ProductVector.Where(t => t.Vector == v).ToList()));
+                results.Add(plan.InProduct.FirstOrDefault(p => p.Value == v).Key is { } span
+                    ? new ResultStatement(ResultKind.VectorProductInPlace, Row: v, Span: span)
+                    : new ResultStatement(ResultKind.VectorProduct, Row: v, Terms: program.ProductVector.Where(t => t.Vector == v).ToList()));
             }
 
             for (int i = 0; i < product.Length; i++)
