@@ -15,7 +15,7 @@ namespace DerivGen.Generator.Emit;
 /// </summary>
 internal static class DerivativeEmitter
 {
-    public static string Emit(MethodSpec spec, DerivativeProgram program, PairHessian? pairs = null, DerivativeProgram? hessianVector = null)
+    public static string Emit(MethodSpec spec, DerivativeProgram program, PairHessian? pairs = null, DerivativeProgram? hessianVector = null, bool hessianFromProducts = false)
     {
         var context = new EmitContext(spec, program);
         var writer = new IndentedWriter();
@@ -51,6 +51,11 @@ internal static class DerivativeEmitter
             PairedHessianWriter.Write(writer, context, pairs);
             writer.Line();
             WriteMethod(writer, new EmitContext(pairs.Spec, pairs.Program), withHessian: true);
+        }
+        else if (hessianFromProducts)
+        {
+            writer.Line();
+            ProductHessianWriter.Write(writer, context);
         }
 
         if (hessianVector is not null)

@@ -100,6 +100,29 @@ internal static class SignatureWriter
             new[] { context.GradientName, context.HessianName });
     }
 
+    /// <summary>Docs, attributes and signature of MHessian of a method with vector variables assembled from
+    /// MHessianVectorProduct (<see cref="ProductHessianWriter"/>); returns the scope of the body.</summary>
+    public static IndentedWriter.Scope ProductHessianMethod(IndentedWriter writer, EmitContext context)
+    {
+        MethodSpec spec = context.Spec;
+        string variableList = VariableList(spec);
+        writer.Line("/// <summary>");
+        writer.Line("/// Computes <see cref=\"" + Text.Xml(spec.Cref) + "\"/> and its gradient and Hessian with respect to (" + Text.Xml(variableList) + ").");
+        writer.Line("/// </summary>");
+        writer.Line("/// <remarks>");
+        writer.Line("/// Column by column: column j is <see cref=\"" + Text.Xml(GeneratedNames.HessianVectorMethod(context.BareName)) + "\"/> along the unit direction e_j,");
+        writer.Line("/// so n products of a small constant times the gradient's cost each; the upper triangle is copied from the lower one.");
+        writer.Line("/// </remarks>");
+        Parameters(writer, spec, _ => null);
+        writer.Line("/// <param name=\"" + context.GradientName + "\">Receives ∂f/∂v for v = " + Text.Xml(variableList) + ", in that order; needs at least "
+            + Text.Xml(context.GradientLength) + " elements.</param>");
+        writer.Line("/// <param name=\"" + context.HessianName + "\">Receives the Hessian, row-major (exactly symmetric); needs at least ("
+            + Text.Xml(context.GradientLength) + ")² elements.</param>");
+        Ending(writer, returns: true, inline: false);
+        return Signature(writer, context, ExpressionWriter.TypeKeyword(spec.ReturnType), GeneratedNames.HessianMethod(context.BareName),
+            new[] { context.GradientName, context.HessianName });
+    }
+
     /// <summary>Docs, attributes and signature of MHessianVectorProduct (<see cref="Differentiation.HessianVectorProgram"/>);
     /// returns the scope of the body.</summary>
     public static IndentedWriter.Scope HessianVectorMethod(IndentedWriter writer, EmitContext context, bool inline)
