@@ -20,7 +20,9 @@ internal static class DeadDerivatives
     {
         // The vector spans' updates are not StateUpdates: what their terms read is live (a carried tangent of
         // HessianVectorProgram read only by the update of its own span, for one).
-        IEnumerable<Node> spanTerms = program.States.Values.SelectMany(d => ProgramReads.TermNodes(d.InitialVector).Concat(ProgramReads.TermNodes(d.NextVector)));
+        // The same for the results' vector terms (the gradient's and a product's: 2·sDot·dS_dW[k]).
+        IEnumerable<Node> spanTerms = program.States.Values.SelectMany(d => ProgramReads.TermNodes(d.InitialVector).Concat(ProgramReads.TermNodes(d.NextVector)))
+            .Concat(ProgramReads.TermNodes(program.ResultTerms));
         var live = new HashSet<string>(ProgramReads.LocalsReachable(roots.Concat(program.Loops.SelectMany(ProgramReads.Header)).Concat(spanTerms)), StringComparer.Ordinal);
         List<StateUpdate> derivativeUpdates = initial.Values.Concat(next.Values).SelectMany(u => u).Where(u => u.IsDerivative).ToList();
         for (bool grew = true; grew;)
