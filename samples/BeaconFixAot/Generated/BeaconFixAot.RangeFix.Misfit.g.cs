@@ -223,5 +223,89 @@ namespace BeaconFixAot
             static void ThrowSpanTooShort(string name, long length, string what) =>
                 throw new global::System.ArgumentException("The span must hold at least " + length + (length == 1 ? " element (" : " elements (") + what + ").", name);
         }
+
+        /// <summary>
+        /// Computes <see cref="Misfit(double, double, double, global::System.ReadOnlySpan{double}, global::System.ReadOnlySpan{double}, global::System.ReadOnlySpan{double})"/>, its gradient and the product of its Hessian with direction, with respect to (x, y, bias), without forming the Hessian.
+        /// </summary>
+        /// <remarks>
+        /// One tangent sweep along direction gives the directional derivative ∇f·direction (each loop-carried local carries its own tangent, …Dot);
+        /// the product is the gradient of that derivative, taken like the gradient itself, so the cost is a small constant
+        /// times <see cref="MisfitGradient"/> whatever the number of variables.
+        /// The product equals the Hessian of <see cref="MisfitHessian"/> times direction up to rounding (the sums are grouped differently).
+        /// </remarks>
+        /// <param name="x">A differentiation variable.</param>
+        /// <param name="y">A differentiation variable.</param>
+        /// <param name="bias">A differentiation variable.</param>
+        /// <param name="beaconX">Passed to the method unchanged; held constant.</param>
+        /// <param name="beaconY">Passed to the method unchanged; held constant.</param>
+        /// <param name="range">Passed to the method unchanged; held constant.</param>
+        /// <param name="direction">The direction d, one entry per variable (x, y, bias, in that order); needs at least 3 elements. Not written.</param>
+        /// <param name="gradient">Receives ∂f/∂v for v = x, y, bias, in that order; needs at least 3 elements.</param>
+        /// <param name="product">Receives the Hessian times d, in the same order; needs at least 3 elements.</param>
+        /// <returns>The value of the method at these arguments, bit-for-bit.</returns>
+        /// <exception cref="global::System.ArgumentException">A span is shorter than stated.</exception>
+        [global::System.CodeDom.Compiler.GeneratedCode("DerivGen", "0.1.0")]
+        public static double MisfitHessianVectorProduct(double x, double y, double bias, global::System.ReadOnlySpan<double> beaconX, global::System.ReadOnlySpan<double> beaconY, global::System.ReadOnlySpan<double> range, global::System.ReadOnlySpan<double> direction, global::System.Span<double> gradient, global::System.Span<double> product)
+        {
+            if (direction.Length < 3)
+            {
+                ThrowSpanTooShort(nameof(direction), 3, "one per variable: x, y, bias");
+            }
+
+            if (gradient.Length < 3)
+            {
+                ThrowSpanTooShort(nameof(gradient), 3, "one per variable: x, y, bias");
+            }
+
+            if (product.Length < 3)
+            {
+                ThrowSpanTooShort(nameof(product), 3, "one per variable: x, y, bias");
+            }
+
+            double sum = 0.0;
+            double dSum_dX = 0.0;
+            double dSum_dY = 0.0;
+            double dSum_dBias = 0.0;
+            double dSumDot_dX = 0.0;
+            double dSumDot_dY = 0.0;
+            double dSumDot_dBias = 0.0;
+            for (int i = 0; i < range.Length; i++)
+            {
+                double dx = x - beaconX[i];
+                double dy = y - beaconY[i];
+                double sqrt = global::System.Math.Sqrt(dx * dx + dy * dy);
+                double residual = sqrt + bias - range[i];
+                double t1 = (2.0 * (dx * direction[0]) + 2.0 * (dy * direction[1])) / sqrt;
+                double t2 = 0.5 * t1 + direction[2];
+                double t3 = residual / sqrt;
+                double t4 = (2.0 * t2 - residual * (t1 / sqrt)) / sqrt;
+                sum += residual * residual;
+                dSum_dX += t3 * dx;
+                dSum_dY += t3 * dy;
+                dSum_dBias += residual;
+                dSumDot_dX += 2.0 * (t3 * direction[0]) + t4 * dx;
+                dSumDot_dY += 2.0 * (t3 * direction[1]) + t4 * dy;
+                dSumDot_dBias += t2;
+            }
+
+            // The constant factor of every term of these sums, applied once:
+            dSum_dX *= 2.0;
+            dSum_dY *= 2.0;
+            dSum_dBias *= 2.0;
+            dSumDot_dBias *= 2.0;
+
+            gradient[0] = dSum_dX; // ∂Misfit/∂x
+            gradient[1] = dSum_dY; // ∂Misfit/∂y
+            gradient[2] = dSum_dBias; // ∂Misfit/∂bias
+
+            product[0] = dSumDot_dX; // (H·direction) for x
+            product[1] = dSumDot_dY; // (H·direction) for y
+            product[2] = dSumDot_dBias; // (H·direction) for bias
+
+            return sum;
+
+            static void ThrowSpanTooShort(string name, long length, string what) =>
+                throw new global::System.ArgumentException("The span must hold at least " + length + (length == 1 ? " element (" : " elements (") + what + ").", name);
+        }
     }
 }

@@ -168,8 +168,28 @@ internal sealed class DerivativeProgram
         return new DerivativeProgram(builder, graph, zero, null, variables, new Dictionary<LoopState, StateDerivatives>(), vectors, new List<VectorTerm>(), new DerivativeLocals());
     }
 
+    /// <summary>H·d for the scalar variables (<see cref="HessianVectorProgram"/>); null unless this is the program of a product method.</summary>
+    public Node[]? Product { get; private set; }
+
+    /// <summary>The contributions to H·d for the vectors of variables (empty unless this is a product method's program).</summary>
+    public List<VectorTerm> ProductVector { get; } = new();
+
+    /// <summary>The names of the direction and product spans of a product method (null otherwise).</summary>
+    public string? DirectionName { get; private set; }
+
+    public string? ProductName { get; private set; }
+
+    /// <summary>The vector terms written into the results: the gradient's, and the product's for a product method.</summary>
+    public IEnumerable<VectorTerm> ResultTerms => VectorGradient.Concat(ProductVector);
+
     /// <summary>The Differentiate stage: IR → value DAG → gradient by reverse sweeps → Hessian by tangent sweeps.</summary>
-    public static DerivativeProgram Create(MethodSpec spec, System.Threading.CancellationToken cancellationToken)
+    public static DerivativeProgram Create(MethodSpec spec, System.Threading.CancellationToken cancellationToken) => Create(spec, hessianVector: false, cancellationToken);
+
+    /// <summary>The program of the Hessian–vector product method (<see cref="HessianVectorProgram"/>): value, gradient and
+    /// H·d with the direction d as data, no Hessian.</summary>
+    public static DerivativeProgram CreateHessianVector(MethodSpec spec, System.Threading.CancellationToken cancellationToken) => Create(spec, hessianVector: true, cancellationToken);
+
+    private static DerivativeProgram Create(MethodSpec spec, bool hessianVector, System.Threading.CancellationToken cancellationToken)
     {
         var builder = new ExpressionBuilder(cancellationToken);
         string[] variables = spec.Parameters.Where(p => p.IsVariable && !p.IsVector).SelectMany(p => p.ScalarVariables).ToArray();
@@ -206,6 +226,10 @@ internal sealed class DerivativeProgram
 
         // The running derivatives by symbolic id, with their name hints (Emit's NameScope allocates the names).
         var locals = new DerivativeLocals();
+        (string Direction, string Product) spanNames = hessianVector ? HessianVectorProgram.SpanNames(spec) : default;
+        HessianVectorProgram? product = hessianVector ? HessianVectorProgram.Augment(builder, graph, spec, locals, spanNames.Direction) : null;
+        bool withHessian = spec.EmitHessian && !hessianVector;
+        string Hint(string name) => Capital(DerivativeLocals.IsId(name) ? locals.Hint(name) : name);
         var states = new Dictionary<LoopState, StateDerivatives>();
         var leafGradient = new Dictionary<Node, Node[]>();
         var leafHessian = new Dictionary<Node, Node[][]>();
@@ -221,19 +245,19 @@ internal sealed class DerivativeProgram
                 // A local carried through several loops keeps the same running-derivative locals in all of them.
                 if (!gradientNamesOf.TryGetValue(state.Name, out string[]? names))
                 {
-                    names = variables.Select(v => locals.New("d" + Capital(state.Name) + "_d" + Capital(v))).ToArray();
+                    names = variables.Select(v => locals.New("d" + Hint(state.Name) + "_d" + Capital(v))).ToArray();
                     gradientNamesOf[state.Name] = names;
                 }
 
                 var derivatives = new StateDerivatives(state, names,
                     names.Select(name => builder.StageLeaf(name, state.Type, loop.InsideStage, isActive: true)).ToArray(),
                     names.Select(name => builder.StageLeaf(name, state.Type, loop.AfterStage, isActive: true)).ToArray());
-                if (spec.EmitHessian)
+                if (withHessian)
                 {
                     if (!hessianNamesOf.TryGetValue(state.Name, out string[][]? hessianNames))
                     {
                         hessianNames = Enumerable.Range(0, n).Select(k => Enumerable.Range(0, k + 1).Select(j =>
-                            locals.New("d2" + Capital(state.Name) + "_d" + Capital(variables[k]) + (j == k ? "2" : "d" + Capital(variables[j])))).ToArray()).ToArray();
+                            locals.New("d2" + Hint(state.Name) + "_d" + Capital(variables[k]) + (j == k ? "2" : "d" + Capital(variables[j])))).ToArray()).ToArray();
                         hessianNamesOf[state.Name] = hessianNames;
                     }
 
@@ -253,7 +277,7 @@ internal sealed class DerivativeProgram
                 {
                     if (!vectorNamesOf.TryGetValue(state.Name, out string[]? spans))
                     {
-                        spans = vectors.Select(w => locals.New("d" + Capital(state.Name) + "_d" + Capital(w))).ToArray();
+                        spans = vectors.Select(w => locals.New("d" + Hint(state.Name) + "_d" + Capital(w))).ToArray();
                         vectorNamesOf[state.Name] = spans;
                     }
 
@@ -297,14 +321,30 @@ internal sealed class DerivativeProgram
             output.Row = Typed(ReverseSweep.Gradient(builder, output.Value, n, KnownGradient, output.VectorRow, KnownVectorGradient), spec.ReturnType);
         }
 
+        // The product H·d: the gradient of ḟ = ∇f·d, through the same running derivatives (HessianVectorProgram).
+        var productVector = new List<VectorTerm>();
+        Node[]? productEntries = product is null ? null
+            : Typed(ReverseSweep.Gradient(builder, product.ValueTangent, n, KnownGradient, productVector, KnownVectorGradient), spec.ReturnType);
+
         // Second order: one tangent sweep per variable over every first-order expression (forward over reverse).
-        Node[][]? hessian = spec.EmitHessian ? SecondOrder(builder, spec.ReturnType, n, gradient, states, leafGradient, leafHessian, gradientLeafOf, cancellationToken) : null;
+        Node[][]? hessian = withHessian ? SecondOrder(builder, spec.ReturnType, n, gradient, states, leafGradient, leafHessian, gradientLeafOf, cancellationToken) : null;
 
         // Mixed float/double code can give a derivative of the wider type; the spans hold the method's own type.
         var program = new DerivativeProgram(builder, graph, Typed(gradient, spec.ReturnType), hessian, variables, states, vectors, vectorGradient, locals);
+        if (productEntries is not null)
+        {
+            program.Product = productEntries;
+            program.ProductVector.AddRange(productVector);
+            program.DirectionName = spanNames.Direction;
+            program.ProductName = spanNames.Product;
+        }
+        else
+        {
+            // The gradient method goes through the loops in reverse where the rule says so (LoopReverse/ReverseLoopPolicy);
+            // a product method keeps the forward running derivatives its tangents are carried by.
+            program.Reverse = LoopReverse.ReverseGradient.TryCreate(spec, program, cancellationToken);
+        }
 
-        // The gradient method goes through the loops in reverse where the rule says so (LoopReverse/ReverseLoopPolicy).
-        program.Reverse = LoopReverse.ReverseGradient.TryCreate(spec, program, cancellationToken);
         return program;
 
         Node[] Typed(Node[] nodes, ScalarType type) => nodes.Select(g => builder.Convert(g, type)).ToArray();

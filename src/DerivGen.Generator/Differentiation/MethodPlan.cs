@@ -57,6 +57,9 @@ internal sealed partial class MethodPlan
     /// <summary>The spans (by id) accumulated in a slice of the gradient, with the vector of the slice.</summary>
     public Dictionary<string, int> InGradient { get; private set; } = new(StringComparer.Ordinal);
 
+    /// <summary>The spans (by id) accumulated in a slice of the product (a Hessian–vector product method), with the vector of the slice.</summary>
+    public Dictionary<string, int> InProduct { get; private set; } = new(StringComparer.Ordinal);
+
     /// <summary>The spans (by id) assigned once per element by their loop, with the stride.</summary>
     public Dictionary<string, int> SingleWrite { get; private set; } = new(StringComparer.Ordinal);
 
@@ -141,6 +144,7 @@ internal sealed partial class MethodPlan
         StateAssignments.Schedule(plan);
         plan.Locals = LocalStatements.Schedule(plan);
         plan.InGradient = InPlaceAccumulation.InGradient(program, plan.SpanSnapshotOf);
+        plan.InProduct = InPlaceAccumulation.InProduct(program, plan.SpanSnapshotOf, plan.InGradient.Keys);
         plan.SingleWrite = InPlaceAccumulation.SingleWrite(program, plan.Replayed, plan.SpanSnapshotOf);
         SpanStatements.Schedule(plan);
         plan.Outputs = ResultStatements.Outputs(plan);
@@ -160,6 +164,11 @@ internal sealed partial class MethodPlan
         if (WithHessian)
         {
             Roots.AddRange(program.Hessian!.SelectMany(row => row).Select(h => (h, finalStage)));
+        }
+
+        if (program.Product is { } product)
+        {
+            Roots.AddRange(product.Select(p => (p, finalStage)));
         }
 
         // A method with outputs: each write needs its index, its value and its Jacobian row where it is written.
@@ -205,6 +214,6 @@ internal sealed partial class MethodPlan
             }
         }
 
-        Roots.AddRange(ProgramReads.TermNodes(program.VectorGradient).Select(node => (node, program.FinalStage)));
+        Roots.AddRange(ProgramReads.TermNodes(program.ResultTerms).Select(node => (node, program.FinalStage)));
     }
 }

@@ -169,6 +169,14 @@ internal sealed class ProgramGraph
     /// their offsets: Emit prints them.</summary>
     public IReadOnlyDictionary<Node, SlotOffset> SlotOffsets => _slotOffsets;
 
+    /// <summary>The int leaf standing for a slot offset (see <see cref="SlotOffset.LeafKey"/>), recorded in <see cref="SlotOffsets"/>.</summary>
+    public Node SlotLeaf(SlotOffset offset)
+    {
+        Node leaf = _builder.External(offset.LeafKey, ScalarType.Int32);
+        _slotOffsets[leaf] = offset;
+        return leaf;
+    }
+
     /// <summary>
     /// Builds the graph. <paramref name="passive"/> names loop-carried locals (by <see cref="StateKey"/>) known not to
     /// depend on the variables (see <see cref="PassiveStates"/>): their leaves are built inactive, so they get no
@@ -488,12 +496,7 @@ internal sealed class ProgramGraph
             case IrExternal external:
                 return b.External(external.Text, external.Type);
             case IrSlotOffset slot:
-            {
-                var offset = new SlotOffset(slot.Constant, slot.VectorsBefore.ToArray());
-                Node leaf = b.External(offset.LeafKey, ScalarType.Int32);
-                _slotOffsets[leaf] = offset;
-                return leaf;
-            }
+                return SlotLeaf(new SlotOffset(slot.Constant, slot.VectorsBefore.ToArray()));
 
             case IrNegate negate:
             {

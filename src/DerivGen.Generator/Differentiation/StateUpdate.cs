@@ -20,7 +20,8 @@ internal readonly record struct StateUpdate(string Target, ScalarType Type, Node
         var updates = new List<StateUpdate>();
         foreach (LoopState state in loop.States)
         {
-            updates.Add(new StateUpdate(state.Name, state.Type, before ? state.Initial : state.Next));
+            // A carried tangent (HessianVectorProgram; its name is an id) is derivative code: dropped when nothing reads it.
+            updates.Add(new StateUpdate(state.Name, state.Type, before ? state.Initial : state.Next, IsDerivative: DerivativeLocals.IsId(state.Name)));
             if (!program.States.TryGetValue(state, out StateDerivatives? d))
             {
                 continue;

@@ -15,7 +15,15 @@ namespace DerivGen.Generator.Differentiation;
 /// </summary>
 internal static class TangentSweep
 {
-    public static Dictionary<Node, Node> Derivatives(ExpressionBuilder b, IReadOnlyList<Node> roots, int variable, Func<Node, Node?>? leafTangent = null)
+    public static Dictionary<Node, Node> Derivatives(ExpressionBuilder b, IReadOnlyList<Node> roots, int variable, Func<Node, Node?>? leafTangent = null) =>
+        Derivatives(b, roots, node => node.VariableIndex >= 0 ? (node.VariableIndex == variable ? b.One(node.Type) : b.Zero(node.Type)) : null, leafTangent);
+
+    /// <summary>
+    /// The same sweep along an arbitrary direction: <paramref name="seed"/> gives the tangent of each variable and of each
+    /// element of a vector of variables (a Hessian column seeds 1 on one variable; a Hessian–vector product seeds the
+    /// direction's entry on every variable, see <see cref="HessianVectorProgram"/>). It returns null for any other node.
+    /// </summary>
+    public static Dictionary<Node, Node> Derivatives(ExpressionBuilder b, IReadOnlyList<Node> roots, Func<Node, Node?> seed, Func<Node, Node?>? leafTangent = null)
     {
         var tangents = new Dictionary<Node, Node>();
         foreach (Node node in Graph.Reachable(roots).OrderBy(n => n.Id))
@@ -26,9 +34,9 @@ internal static class TangentSweep
                 continue;
             }
 
-            if (node.VariableIndex >= 0)
+            if (seed(node) is { } seeded)
             {
-                tangents[node] = node.VariableIndex == variable ? b.One(node.Type) : b.Zero(node.Type);
+                tangents[node] = seeded;
                 continue;
             }
 

@@ -15,7 +15,7 @@ namespace DerivGen.Generator.Emit;
 /// </summary>
 internal static class DerivativeEmitter
 {
-    public static string Emit(MethodSpec spec, DerivativeProgram program, PairHessian? pairs = null)
+    public static string Emit(MethodSpec spec, DerivativeProgram program, PairHessian? pairs = null, DerivativeProgram? hessianVector = null, bool hessianFromProducts = false)
     {
         var context = new EmitContext(spec, program);
         var writer = new IndentedWriter();
@@ -51,6 +51,17 @@ internal static class DerivativeEmitter
             PairedHessianWriter.Write(writer, context, pairs);
             writer.Line();
             WriteMethod(writer, new EmitContext(pairs.Spec, pairs.Program), withHessian: true);
+        }
+        else if (hessianFromProducts)
+        {
+            writer.Line();
+            ProductHessianWriter.Write(writer, context);
+        }
+
+        if (hessianVector is not null)
+        {
+            writer.Line();
+            WriteHessianVectorMethod(writer, new EmitContext(spec, hessianVector));
         }
 
         for (int i = scopes.Count - 1; i >= 0; i--)
@@ -110,6 +121,22 @@ internal static class DerivativeEmitter
         }
     }
 
+    /// <summary>MHessianVectorProduct (<see cref="HessianVectorProgram"/>): the three span checks, then the body.</summary>
+    private static void WriteHessianVectorMethod(IndentedWriter writer, EmitContext context)
+    {
+        string variableList = SignatureWriter.VariableList(context.Spec);
+        using (SignatureWriter.HessianVectorMethod(writer, context, IsSmallStraightLine(context.Program, withHessian: false)))
+        {
+            string thrower = context.ThrowerName;
+            MethodBodyWriter.WriteGuards(writer, context.Spec);
+            SignatureWriter.LengthCheck(writer, context.DirectionName, context.GradientLength, "one per variable: " + variableList, thrower);
+            SignatureWriter.LengthCheck(writer, context.GradientName, context.GradientLength, "one per variable: " + variableList, thrower);
+            SignatureWriter.LengthCheck(writer, context.ProductName, context.GradientLength, "one per variable: " + variableList, thrower);
+            MethodBodyWriter.Write(writer, context, withHessian: false, thrower);
+            SignatureWriter.Thrower(writer, thrower);
+        }
+    }
+
     /// <summary>Operations (not leaves) a method may compute and still be marked for inlining.</summary>
     internal const int InlineOperationLimit = 16;
 
@@ -131,6 +158,8 @@ internal static class DerivativeEmitter
         {
             roots.AddRange(program.Hessian!.SelectMany(row => row));
         }
+
+        roots.AddRange(program.Product ?? Array.Empty<Node>());
 
         HashSet<Node> reachable = Graph.Reachable(roots);
         return !reachable.Any(node => node.Kind is NodeKind.UserCall or NodeKind.CallPartial or NodeKind.CallSecondPartial)

@@ -24,6 +24,7 @@ internal sealed class EmitContext
         HessianName = names.Claim(GeneratedNames.HessianParameter);
         JacobianName = names.Claim(GeneratedNames.JacobianParameter);
         ThrowerName = names.Claim("ThrowSpanTooShort");
+        (DirectionName, ProductName) = HessianVectorProgram.SpanNames(spec);
 
         // Where each variable's derivatives go in the gradient span: declaration order, a vector taking v.Length slots.
         SlotLayout layout = SlotLayout.Of(spec);
@@ -70,6 +71,11 @@ internal sealed class EmitContext
     public string HessianName { get; }
 
     public string JacobianName { get; }
+
+    /// <summary>The direction and product spans of the Hessian–vector product method (<see cref="HessianVectorProgram.SpanNames"/>).</summary>
+    public string DirectionName { get; }
+
+    public string ProductName { get; }
 
     public string PartialName(int i) => "∂" + BareName + "/∂" + Identifiers.Unescape(Program.Variables[i]);
 

@@ -35,6 +35,9 @@ internal sealed partial class MethodBodyWriter
             _writer.Line(span.GradientSlice is int slice
                 ? "global::System.Span<" + ExpressionWriter.TypeKeyword(_context.Spec.ReturnType) + "> " + name + " = "
                     + _context.GradientName + ".Slice(" + _context.VectorOffset[slice] + ", " + Length(slice) + "); // accumulated in place"
+                : span.ProductSlice is int productSlice
+                ? "global::System.Span<" + ExpressionWriter.TypeKeyword(_context.Spec.ReturnType) + "> " + name + " = "
+                    + _context.ProductName + ".Slice(" + _context.VectorOffset[productSlice] + ", " + Length(productSlice) + "); // accumulated in place"
                 : StackOrHeapSpan(name, Length(span.Vector), _context.Spec.ReturnType));
         }
 
@@ -98,6 +101,11 @@ internal sealed partial class MethodBodyWriter
     private void WriteReplay(string target, string at, VectorTerm term, ReverseReplay reversal)
     {
         LoopSegment loop = reversal.Loop;
+        if (reversal.InitialTerms.Count == 0 && reversal.LoopTerms.Count == 0)
+        {
+            return; // the span is zero (a carried tangent that is linear in the vector, for one): nothing to add
+        }
+
         string adjoint;
         if (term.Coefficient.IsLeaf || NameOf(term.Coefficient) is not null)
         {
@@ -218,7 +226,8 @@ internal sealed partial class MethodBodyWriter
         bool hessianStarted = false;
         foreach (ResultStatement statement in _plan.Results)
         {
-            if (_plan.WithHessian && !hessianStarted && statement.Kind is ResultKind.HessianEntry or ResultKind.Return)
+            if ((_plan.WithHessian || _program.Product is not null) && !hessianStarted
+                && statement.Kind is ResultKind.HessianEntry or ResultKind.VectorProduct or ResultKind.VectorProductInPlace or ResultKind.ProductEntry or ResultKind.Return)
             {
                 _writer.Line();
                 hessianStarted = true;
@@ -238,6 +247,20 @@ internal sealed partial class MethodBodyWriter
                     break;
                 case ResultKind.GradientEntry:
                     _writer.Line(_context.GradientName + "[" + _context.ScalarOffset[statement.Row] + "] = " + _code.Write(statement.Value!) + "; // " + _context.PartialName(statement.Row));
+                    break;
+                case ResultKind.VectorProduct:
+                    string productOffset = _context.VectorOffset[v] == "0" ? string.Empty : _context.VectorOffset[v];
+                    _writer.Line(_context.ProductName + ".Slice(" + _context.VectorOffset[v] + ", " + Length(v) + ").Clear(); // (H·" + _context.DirectionName
+                        + ") for " + Identifiers.Unescape(_program.Vectors[v]) + "[…]");
+                    AddTerms(_context.ProductName, productOffset, statement.Terms!, null);
+                    break;
+                case ResultKind.VectorProductInPlace:
+                    _writer.Line("// (H·" + _context.DirectionName + ") for " + Identifiers.Unescape(_program.Vectors[v]) + "[…] is " + _context.Name(statement.Span!)
+                        + ", already in " + _context.ProductName + ".");
+                    break;
+                case ResultKind.ProductEntry:
+                    _writer.Line(_context.ProductName + "[" + _context.ScalarOffset[statement.Row] + "] = " + _code.Write(statement.Value!) + "; // (H·" + _context.DirectionName
+                        + ") for " + Identifiers.Unescape(_program.Variables[statement.Row]));
                     break;
                 case ResultKind.HessianEntry:
                     int i = statement.Row, j = statement.Column;

@@ -34,6 +34,7 @@ internal sealed class NameScope
         List<Node> temporaries = plan.Temporaries;
         var reserved = context.Spec.Parameters.Select(p => p.Name)
             .Concat(new[] { context.GradientName, context.HessianName, context.JacobianName, thrower })
+            .Concat(program.Product is null ? Array.Empty<string>() : new[] { context.DirectionName, context.ProductName })
             .Concat(program.StateNames)
             .Concat(context.DerivativeNames.Values)
             .Concat(program.Loops.Where(l => l.Index is not null).Select(l => l.Index!));
@@ -133,5 +134,5 @@ internal sealed class NameScope
     public string Fresh(Node node, Func<Node, string?> nameOf) => _names.For(node, _context.Program.Names, nameOf);
 
     /// <summary>The adjoint of a carried local whose span is replayed.</summary>
-    public string Adjoint(string state) => _names.Claim(Identifiers.Unescape(state) + "Adjoint");
+    public string Adjoint(string state) => _names.Claim(Identifiers.Unescape(_context.Name(state)) + "Adjoint");
 }

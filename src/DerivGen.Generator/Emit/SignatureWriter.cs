@@ -100,6 +100,59 @@ internal static class SignatureWriter
             new[] { context.GradientName, context.HessianName });
     }
 
+    /// <summary>Docs, attributes and signature of MHessian of a method with vector variables assembled from
+    /// MHessianVectorProduct (<see cref="ProductHessianWriter"/>); returns the scope of the body.</summary>
+    public static IndentedWriter.Scope ProductHessianMethod(IndentedWriter writer, EmitContext context)
+    {
+        MethodSpec spec = context.Spec;
+        string variableList = VariableList(spec);
+        writer.Line("/// <summary>");
+        writer.Line("/// Computes <see cref=\"" + Text.Xml(spec.Cref) + "\"/> and its gradient and Hessian with respect to (" + Text.Xml(variableList) + ").");
+        writer.Line("/// </summary>");
+        writer.Line("/// <remarks>");
+        writer.Line("/// Column by column: column j is <see cref=\"" + Text.Xml(GeneratedNames.HessianVectorMethod(context.BareName)) + "\"/> along the unit direction e_j,");
+        writer.Line("/// so n products of a small constant times the gradient's cost each; the upper triangle is copied from the lower one.");
+        writer.Line("/// </remarks>");
+        Parameters(writer, spec, _ => null);
+        writer.Line("/// <param name=\"" + context.GradientName + "\">Receives ∂f/∂v for v = " + Text.Xml(variableList) + ", in that order; needs at least "
+            + Text.Xml(context.GradientLength) + " elements.</param>");
+        writer.Line("/// <param name=\"" + context.HessianName + "\">Receives the Hessian, row-major (exactly symmetric); needs at least ("
+            + Text.Xml(context.GradientLength) + ")² elements.</param>");
+        Ending(writer, returns: true, inline: false);
+        return Signature(writer, context, ExpressionWriter.TypeKeyword(spec.ReturnType), GeneratedNames.HessianMethod(context.BareName),
+            new[] { context.GradientName, context.HessianName });
+    }
+
+    /// <summary>Docs, attributes and signature of MHessianVectorProduct (<see cref="Differentiation.HessianVectorProgram"/>);
+    /// returns the scope of the body.</summary>
+    public static IndentedWriter.Scope HessianVectorMethod(IndentedWriter writer, EmitContext context, bool inline)
+    {
+        MethodSpec spec = context.Spec;
+        string variableList = Text.Xml(VariableList(spec));
+        string length = Text.Xml(context.GradientLength);
+        string elements = context.GradientLength == "1" ? " element." : " elements.";
+        writer.Line("/// <summary>");
+        writer.Line("/// Computes <see cref=\"" + Text.Xml(spec.Cref) + "\"/>, its gradient and the product of its Hessian with " + context.DirectionName
+            + ", with respect to (" + variableList + "), without forming the Hessian.");
+        writer.Line("/// </summary>");
+        writer.Line("/// <remarks>");
+        writer.Line("/// One tangent sweep along " + context.DirectionName + " gives the directional derivative ∇f·" + context.DirectionName
+            + " (each loop-carried local carries its own tangent, …Dot);");
+        writer.Line("/// the product is the gradient of that derivative, taken like the gradient itself, so the cost is a small constant");
+        writer.Line("/// times <see cref=\"" + Text.Xml(GeneratedNames.GradientMethod(context.BareName)) + "\"/> whatever the number of variables.");
+        writer.Line("/// The product equals the Hessian of <see cref=\"" + Text.Xml(GeneratedNames.HessianMethod(context.BareName)) + "\"/> times "
+            + context.DirectionName + " up to rounding (the sums are grouped differently).");
+        writer.Line("/// </remarks>");
+        Parameters(writer, spec, _ => null);
+        writer.Line("/// <param name=\"" + context.DirectionName + "\">The direction d, one entry per variable (" + variableList + ", in that order); needs at least "
+            + length + elements + " Not written.</param>");
+        writer.Line("/// <param name=\"" + context.GradientName + "\">Receives ∂f/∂v for v = " + variableList + ", in that order; needs at least " + length + elements + "</param>");
+        writer.Line("/// <param name=\"" + context.ProductName + "\">Receives the Hessian times d, in the same order; needs at least " + length + elements + "</param>");
+        Ending(writer, returns: true, inline);
+        return Signature(writer, context, ExpressionWriter.TypeKeyword(spec.ReturnType), GeneratedNames.HessianVectorMethod(context.BareName),
+            new[] { context.GradientName, context.ProductName }, readOnlyFirst: context.DirectionName);
+    }
+
     /// <summary>One param tag per parameter of the user's method; <paramref name="special"/> may describe one otherwise.</summary>
     private static void Parameters(IndentedWriter writer, MethodSpec spec, System.Func<ParameterSpec, string?> special)
     {
@@ -126,11 +179,17 @@ internal static class SignatureWriter
     }
 
     /// <summary>The user's parameters, then the spans; the method is static when the user's is.</summary>
-    private static IndentedWriter.Scope Signature(IndentedWriter writer, EmitContext context, string returnType, string name, IEnumerable<string> spans)
+    private static IndentedWriter.Scope Signature(IndentedWriter writer, EmitContext context, string returnType, string name, IEnumerable<string> spans,
+        string? readOnlyFirst = null)
     {
         MethodSpec spec = context.Spec;
         string type = ExpressionWriter.TypeKeyword(spec.ReturnType);
         var parameters = spec.Parameters.Select(p => p.Modifiers + p.TypeName + " " + p.Name).ToList();
+        if (readOnlyFirst is not null)
+        {
+            parameters.Add("global::System.ReadOnlySpan<" + type + "> " + readOnlyFirst);
+        }
+
         parameters.AddRange(spans.Select(span => "global::System.Span<" + type + "> " + span));
         string modifiers = spec.Accessibility + (spec.IsStatic ? " static " : " ");
         return spec.GenericConstraints is { } constraints

@@ -6,7 +6,7 @@ namespace DerivGen.Generator.Model;
 
 /// <summary>
 /// The one place for the names DerivGen gives what it generates: the members added next to a <c>[Differentiate]</c>
-/// method <c>M</c> (<c>MGradient</c>, <c>MHessian</c>, <c>MJacobian</c>, <c>MPairHessian</c>), the parameters and
+/// method <c>M</c> (<c>MGradient</c>, <c>MHessian</c>, <c>MHessianVectorProduct</c>, <c>MJacobian</c>, <c>MPairHessian</c>), the parameters and
 /// locals those members declare, and the tool name and version stamped on them with <c>[GeneratedCode]</c>.
 /// </summary>
 /// <remarks>
@@ -25,6 +25,9 @@ internal static class GeneratedNames
     /// <summary>Suffix of the Hessian method: <c>Loss</c> generates <c>LossHessian</c>.</summary>
     public const string HessianSuffix = "Hessian";
 
+    /// <summary>Suffix of the Hessian–vector product method: <c>Loss</c> generates <c>LossHessianVectorProduct</c>.</summary>
+    public const string HessianVectorSuffix = "HessianVectorProduct";
+
     /// <summary>Suffix of the Jacobian method of a method with outputs: <c>Residuals</c> generates <c>ResidualsJacobian</c>.</summary>
     public const string JacobianSuffix = "Jacobian";
 
@@ -37,6 +40,12 @@ internal static class GeneratedNames
 
     /// <summary>The span parameter that receives the Hessian.</summary>
     public const string HessianParameter = "hessian";
+
+    /// <summary>The span parameter holding the direction of a Hessian–vector product.</summary>
+    public const string DirectionParameter = "direction";
+
+    /// <summary>The span parameter that receives the Hessian–vector product.</summary>
+    public const string ProductParameter = "product";
 
     /// <summary>The span parameter that receives the Jacobian of a method with outputs.</summary>
     public const string JacobianParameter = "jacobian";
@@ -56,6 +65,8 @@ internal static class GeneratedNames
 
     public static string HessianMethod(string name) => name + HessianSuffix;
 
+    public static string HessianVectorMethod(string name) => name + HessianVectorSuffix;
+
     public static string JacobianMethod(string name) => name + JacobianSuffix;
 
     /// <summary>The name of the pair method of <paramref name="name"/> (see <see cref="PairSuffix"/>).</summary>
@@ -66,7 +77,8 @@ internal static class GeneratedNames
     /// <summary>
     /// Every member generated for the method <paramref name="name"/>, in the order the generated file declares them:
     /// <c>MJacobian</c> for a method with outputs (it has no Hessian), otherwise <c>MGradient</c>, then <c>MHessian</c>
-    /// when the Hessian is generated, then <c>MPairHessian</c> when that Hessian goes through the pair method.
+    /// when the Hessian is generated, then <c>MPairHessian</c> when that Hessian goes through the pair method, then
+    /// <c>MHessianVectorProduct</c> when the Hessian is generated.
     /// </summary>
     public static IReadOnlyList<string> AllFor(string name, bool hasOutputs, bool hessian, bool pairHessian)
     {
@@ -79,6 +91,11 @@ internal static class GeneratedNames
         if (pairHessian)
         {
             names.Add(PairHessianMethod(name));
+        }
+
+        if (hessian)
+        {
+            names.Add(HessianVectorMethod(name)); // reserved even where it is not generated (a method calling another)
         }
 
         return names;

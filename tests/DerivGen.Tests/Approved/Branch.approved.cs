@@ -106,5 +106,56 @@ namespace Samples.Robust
             static void ThrowSpanTooShort(string name, long length, string what) =>
                 throw new global::System.ArgumentException("The span must hold at least " + length + (length == 1 ? " element (" : " elements (") + what + ").", name);
         }
+
+        /// <summary>
+        /// Computes <see cref="Huber(double, double)"/>, its gradient and the product of its Hessian with direction, with respect to (r), without forming the Hessian.
+        /// </summary>
+        /// <remarks>
+        /// One tangent sweep along direction gives the directional derivative ∇f·direction (each loop-carried local carries its own tangent, …Dot);
+        /// the product is the gradient of that derivative, taken like the gradient itself, so the cost is a small constant
+        /// times <see cref="HuberGradient"/> whatever the number of variables.
+        /// The product equals the Hessian of <see cref="HuberHessian"/> times direction up to rounding (the sums are grouped differently).
+        /// </remarks>
+        /// <param name="r">A differentiation variable.</param>
+        /// <param name="delta">Passed to the method unchanged; held constant.</param>
+        /// <param name="direction">The direction d, one entry per variable (r, in that order); needs at least 1 element. Not written.</param>
+        /// <param name="gradient">Receives ∂f/∂v for v = r, in that order; needs at least 1 element.</param>
+        /// <param name="product">Receives the Hessian times d, in the same order; needs at least 1 element.</param>
+        /// <returns>The value of the method at these arguments, bit-for-bit.</returns>
+        /// <exception cref="global::System.ArgumentException">A span is shorter than stated.</exception>
+        [global::System.CodeDom.Compiler.GeneratedCode("DerivGen", "0.1.0")]
+        [global::System.Runtime.CompilerServices.MethodImpl(global::System.Runtime.CompilerServices.MethodImplOptions.AggressiveInlining)]
+        public static double HuberHessianVectorProduct(double r, double delta, global::System.ReadOnlySpan<double> direction, global::System.Span<double> gradient, global::System.Span<double> product)
+        {
+            if (direction.Length < 1)
+            {
+                ThrowSpanTooShort(nameof(direction), 1, "one per variable: r");
+            }
+
+            if (gradient.Length < 1)
+            {
+                ThrowSpanTooShort(nameof(gradient), 1, "one per variable: r");
+            }
+
+            if (product.Length < 1)
+            {
+                ThrowSpanTooShort(nameof(product), 1, "one per variable: r");
+            }
+
+            double absR = global::System.Math.Abs(r);
+            bool condition = absR <= delta;
+            double loss = 0.5 * r * r;
+            double loss2 = delta * (absR - 0.5 * delta);
+            double value = condition ? loss : loss2;
+
+            gradient[0] = condition ? r : delta * (r > 0.0 ? 1.0 : r < 0.0 ? -1.0 : 0.0); // ∂Huber/∂r
+
+            product[0] = condition ? direction[0] : 0.0; // (H·direction) for r
+
+            return value;
+
+            static void ThrowSpanTooShort(string name, long length, string what) =>
+                throw new global::System.ArgumentException("The span must hold at least " + length + (length == 1 ? " element (" : " elements (") + what + ").", name);
+        }
     }
 }

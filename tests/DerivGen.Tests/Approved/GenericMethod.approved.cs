@@ -191,5 +191,85 @@ namespace Samples.Chemistry
             static void ThrowSpanTooShort(string name, long length, string what) =>
                 throw new global::System.ArgumentException("The span must hold at least " + length + (length == 1 ? " element (" : " elements (") + what + ").", name);
         }
+
+        /// <summary>
+        /// Computes <see cref="Loss{T}(T, T)"/>, its gradient and the product of its Hessian with direction, with respect to (pKa, hill), without forming the Hessian.
+        /// </summary>
+        /// <remarks>
+        /// One tangent sweep along direction gives the directional derivative ∇f·direction (each loop-carried local carries its own tangent, …Dot);
+        /// the product is the gradient of that derivative, taken like the gradient itself, so the cost is a small constant
+        /// times <see cref="LossGradient"/> whatever the number of variables.
+        /// The product equals the Hessian of <see cref="LossHessian"/> times direction up to rounding (the sums are grouped differently).
+        /// </remarks>
+        /// <param name="pKa">A differentiation variable.</param>
+        /// <param name="hill">A differentiation variable.</param>
+        /// <param name="direction">The direction d, one entry per variable (pKa, hill, in that order); needs at least 2 elements. Not written.</param>
+        /// <param name="gradient">Receives ∂f/∂v for v = pKa, hill, in that order; needs at least 2 elements.</param>
+        /// <param name="product">Receives the Hessian times d, in the same order; needs at least 2 elements.</param>
+        /// <returns>The value of the method at these arguments, bit-for-bit.</returns>
+        /// <exception cref="global::System.ArgumentException">A span is shorter than stated.</exception>
+        [global::System.CodeDom.Compiler.GeneratedCode("DerivGen", "0.1.0")]
+        public static T LossHessianVectorProduct<T>(T pKa, T hill, global::System.ReadOnlySpan<T> direction, global::System.Span<T> gradient, global::System.Span<T> product)
+            where T : global::System.Numerics.IFloatingPointIeee754<T>
+        {
+            if (direction.Length < 2)
+            {
+                ThrowSpanTooShort(nameof(direction), 2, "one per variable: pKa, hill");
+            }
+
+            if (gradient.Length < 2)
+            {
+                ThrowSpanTooShort(nameof(gradient), 2, "one per variable: pKa, hill");
+            }
+
+            if (product.Length < 2)
+            {
+                ThrowSpanTooShort(nameof(product), 2, "one per variable: pKa, hill");
+            }
+
+            T log = T.Log(T.CreateTruncating(10));
+            T sum = T.Zero;
+            T dSum_dPKa = T.Zero;
+            T dSum_dHill = T.Zero;
+            T dSumDot_dPKa = T.Zero;
+            T dSumDot_dHill = T.Zero;
+            for (int i = 0; i < global::Samples.Chemistry.Titration.PH.Length; i++)
+            {
+                T ph = T.CreateTruncating(global::Samples.Chemistry.Titration.PH[i]);
+                T t1 = pKa - ph;
+                T pow = T.Pow(T.CreateTruncating(10), hill * t1);
+                T t2 = T.One + pow;
+                T model = T.One / t2;
+                T r = model - T.CreateTruncating(global::Samples.Chemistry.Titration.Fraction[i]);
+                T t3 = t1 * direction[1] + hill * direction[0];
+                T t4 = pow * log;
+                T t5 = t4 * t3;
+                T t6 = model / t2;
+                T t7 = r * t6;
+                T t8 = t7 * t4;
+                T t9 = r * t5;
+                T t10 = (-T.CreateTruncating(2) * (t7 * t3 * log) + (T.CreateTruncating(2) * (t9 * (t6 / t2)) - (-T.CreateTruncating(2) * (t9 / t2) - T.CreateTruncating(2) * (t6 * t5)) * t6)) * t4;
+                sum += r * r;
+                dSum_dPKa += t8 * hill;
+                dSum_dHill += t8 * t1;
+                dSumDot_dPKa += -T.CreateTruncating(2) * (t8 * direction[1]) + t10 * hill;
+                dSumDot_dHill += -T.CreateTruncating(2) * (t8 * direction[0]) + t10 * t1;
+            }
+
+            // The constant factor of every term of these sums, applied once:
+            dSum_dPKa *= -T.CreateTruncating(2);
+            dSum_dHill *= -T.CreateTruncating(2);
+
+            gradient[0] = dSum_dPKa; // ∂Loss/∂pKa
+            gradient[1] = dSum_dHill; // ∂Loss/∂hill
+
+            product[0] = dSumDot_dPKa; // (H·direction) for pKa
+            product[1] = dSumDot_dHill; // (H·direction) for hill
+
+            return sum;
+
+            static void ThrowSpanTooShort(string name, long length, string what) =>
+                throw new global::System.ArgumentException("The span must hold at least " + length + (length == 1 ? " element (" : " elements (") + what + ").", name);
+        }
     }
 }

@@ -138,9 +138,8 @@ namespace Samples.Classification
         /// Computes <see cref="Loss(double, double[], double, double[,], double[])"/> and its gradient and Hessian with respect to (bias, w[…], ridge).
         /// </summary>
         /// <remarks>
-        /// The gradient comes from <see cref="LossGradient"/>. The Hessian entries that involve a vector
-        /// element come one pair of slots at a time from the pair method, which differentiates the method along the two
-        /// slots: n_v(n_v + 1)/2 passes over the method for n_v vector elements.
+        /// Column by column: column j is <see cref="LossHessianVectorProduct"/> along the unit direction e_j,
+        /// so n products of a small constant times the gradient's cost each; the upper triangle is copied from the lower one.
         /// </remarks>
         /// <param name="bias">A differentiation variable.</param>
         /// <param name="w">A differentiation variable.</param>
@@ -165,28 +164,33 @@ namespace Samples.Classification
                 ThrowSpanTooShort(nameof(hessian), n * n, "n × n, row-major");
             }
 
-            double value = LossGradient(bias, w, ridge, x, y, gradient);
-            global::System.Span<double> pairGradient = stackalloc double[4];
-            global::System.Span<double> pairHessian = stackalloc double[16];
-
-            // The scalar variables among themselves (no vector slot shifted).
-            LossPairHessian(bias, w, ridge, x, y, -1, -1, 0, 0, pairGradient, pairHessian);
-            hessian[0] = pairHessian[0];
-            hessian[(w.Length + 1) * n + 0] = hessian[(w.Length + 1)] = pairHessian[4];
-            hessian[(w.Length + 1) * n + (w.Length + 1)] = pairHessian[5];
-
-            for (int i = 0; i < w.Length; i++)
+            if (n == 0)
             {
-                int row = 1 + i;
-                LossPairHessian(bias, w, ridge, x, y, row, row, 0, 0, pairGradient, pairHessian);
-                hessian[row * n + row] = pairHessian[11];
-                hessian[row * n + 0] = hessian[row] = pairHessian[8];
-                hessian[row * n + (w.Length + 1)] = hessian[(w.Length + 1) * n + row] = pairHessian[9];
-                for (int j = i + 1; j < w.Length; j++)
+                return LossGradient(bias, w, ridge, x, y, gradient);
+            }
+
+            global::System.Span<double> unit = n <= 512 ? stackalloc double[n] : new double[n];
+            global::System.Span<double> column = n <= 512 ? stackalloc double[n] : new double[n];
+            unit.Clear();
+            double value = 0.0;
+            // Column j of the Hessian is H·e_j; its entries on and below the diagonal are kept.
+            for (int j = 0; j < n; j++)
+            {
+                unit[j] = 1.0;
+                value = LossHessianVectorProduct(bias, w, ridge, x, y, unit, gradient, column);
+                unit[j] = 0.0;
+                for (int i = j; i < n; i++)
                 {
-                    int column = 1 + j;
-                    LossPairHessian(bias, w, ridge, x, y, row, column, 0, 0, pairGradient, pairHessian);
-                    hessian[row * n + column] = hessian[column * n + row] = pairHessian[11];
+                    hessian[i * n + j] = column[i];
+                }
+            }
+
+            // The upper triangle mirrors the lower one: the Hessian is exactly symmetric.
+            for (int i = 0; i < n; i++)
+            {
+                for (int j = i + 1; j < n; j++)
+                {
+                    hessian[i * n + j] = hessian[j * n + i];
                 }
             }
 
@@ -197,230 +201,141 @@ namespace Samples.Classification
         }
 
         /// <summary>
-        /// <see cref="Loss(double, double[], double, double[,], double[])"/> along two slots of its vector variables, for its Hessian: every element read is
-        /// shifted by tRow at slot row and by tColumn at slot column, so that at tRow = tColumn = 0 the second derivative
-        /// with respect to (tRow, tColumn) is the Hessian entry [row, column], and with respect to (tRow, s) the entry [row, s].
+        /// Computes <see cref="Loss(double, double[], double, double[,], double[])"/>, its gradient and the product of its Hessian with direction, with respect to (bias, w[…], ridge), without forming the Hessian.
         /// </summary>
         /// <remarks>
-        /// <code>
-        /// s = 0
-        /// for i from 0 while below y.Length:
-        ///     z = bias
-        ///     for j from 0 while below w.Length:
-        ///         z ← z + (w[j] + (j + (1) == row ? tRow : 0) + (j + (1) == column ? tColumn : 0))·x[i, j]
-        ///         dZ_dBias ← dZ_dBias   (∂z/∂bias)
-        ///         dZ_dRidge ← dZ_dRidge   (∂z/∂ridge)
-        ///         dZ_dTRow ← (j + (1) == row ? x[i, j] : 0) + dZ_dTRow   (∂z/∂tRow)
-        ///         dZ_dTColumn ← (j + (1) == column ? x[i, j] : 0) + dZ_dTColumn   (∂z/∂tColumn)
-        ///         d2Z_dBias2 ← d2Z_dBias2   (∂²z/∂bias²)
-        ///         d2Z_dRidgedBias ← d2Z_dRidgedBias   (∂²z/∂ridge∂bias)
-        ///         d2Z_dRidge2 ← d2Z_dRidge2   (∂²z/∂ridge²)
-        ///         d2Z_dTRowdBias ← d2Z_dTRowdBias   (∂²z/∂tRow∂bias)
-        ///         d2Z_dTRowdRidge ← d2Z_dTRowdRidge   (∂²z/∂tRow∂ridge)
-        ///         d2Z_dTRow2 ← d2Z_dTRow2   (∂²z/∂tRow²)
-        ///         d2Z_dTColumndBias ← d2Z_dTColumndBias   (∂²z/∂tColumn∂bias)
-        ///         d2Z_dTColumndRidge ← d2Z_dTColumndRidge   (∂²z/∂tColumn∂ridge)
-        ///         d2Z_dTColumndTRow ← d2Z_dTColumndTRow   (∂²z/∂tColumn∂tRow)
-        ///         d2Z_dTColumn2 ← d2Z_dTColumn2   (∂²z/∂tColumn²)
-        ///     s ← s + (ln(1 + exp(-z)) + (1 - y[i])·z)
-        ///     dS_dBias ← (1 - y[i] - exp(-z)/(1 + exp(-z)))·dZ_dBias + dS_dBias   (∂s/∂bias)
-        ///     dS_dRidge ← (1 - y[i] - exp(-z)/(1 + exp(-z)))·dZ_dRidge + dS_dRidge   (∂s/∂ridge)
-        ///     dS_dTRow ← (1 - y[i] - exp(-z)/(1 + exp(-z)))·dZ_dTRow + dS_dTRow   (∂s/∂tRow)
-        ///     dS_dTColumn ← (1 - y[i] - exp(-z)/(1 + exp(-z)))·dZ_dTColumn + dS_dTColumn   (∂s/∂tColumn)
-        ///     d2S_dBias2 ← dZ_dBias·(exp(-z)·dZ_dBias/(1 + exp(-z)) - exp(-z)/(1 + exp(-z))/(1 + exp(-z))·(exp(-z)·dZ_dBias)) + (1 - y[i] - exp(-z)/(1 + exp(-z)))·d2Z_dBias2 + d2S_dBias2   (∂²s/∂bias²)
-        ///     d2S_dRidgedBias ← dZ_dRidge·(exp(-z)·dZ_dBias/(1 + exp(-z)) - exp(-z)/(1 + exp(-z))/(1 + exp(-z))·(exp(-z)·dZ_dBias)) + (1 - y[i] - exp(-z)/(1 + exp(-z)))·d2Z_dRidgedBias + d2S_dRidgedBias   (∂²s/∂ridge∂bias)
-        ///     d2S_dRidge2 ← dZ_dRidge·(exp(-z)·dZ_dRidge/(1 + exp(-z)) - exp(-z)/(1 + exp(-z))/(1 + exp(-z))·(exp(-z)·dZ_dRidge)) + (1 - y[i] - exp(-z)/(1 + exp(-z)))·d2Z_dRidge2 + d2S_dRidge2   (∂²s/∂ridge²)
-        ///     d2S_dTRowdBias ← dZ_dTRow·(exp(-z)·dZ_dBias/(1 + exp(-z)) - exp(-z)/(1 + exp(-z))/(1 + exp(-z))·(exp(-z)·dZ_dBias)) + (1 - y[i] - exp(-z)/(1 + exp(-z)))·d2Z_dTRowdBias + d2S_dTRowdBias   (∂²s/∂tRow∂bias)
-        ///     d2S_dTRowdRidge ← dZ_dTRow·(exp(-z)·dZ_dRidge/(1 + exp(-z)) - exp(-z)/(1 + exp(-z))/(1 + exp(-z))·(exp(-z)·dZ_dRidge)) + (1 - y[i] - exp(-z)/(1 + exp(-z)))·d2Z_dTRowdRidge + d2S_dTRowdRidge   (∂²s/∂tRow∂ridge)
-        ///     d2S_dTRow2 ← dZ_dTRow·(exp(-z)·dZ_dTRow/(1 + exp(-z)) - exp(-z)/(1 + exp(-z))/(1 + exp(-z))·(exp(-z)·dZ_dTRow)) + (1 - y[i] - exp(-z)/(1 + exp(-z)))·d2Z_dTRow2 + d2S_dTRow2   (∂²s/∂tRow²)
-        ///     d2S_dTColumndBias ← dZ_dTColumn·(exp(-z)·dZ_dBias/(1 + exp(-z)) - exp(-z)/(1 + exp(-z))/(1 + exp(-z))·(exp(-z)·dZ_dBias)) + (1 - y[i] - exp(-z)/(1 + exp(-z)))·d2Z_dTColumndBias + d2S_dTColumndBias   (∂²s/∂tColumn∂bias)
-        ///     d2S_dTColumndRidge ← dZ_dTColumn·(exp(-z)·dZ_dRidge/(1 + exp(-z)) - exp(-z)/(1 + exp(-z))/(1 + exp(-z))·(exp(-z)·dZ_dRidge)) + (1 - y[i] - exp(-z)/(1 + exp(-z)))·d2Z_dTColumndRidge + d2S_dTColumndRidge   (∂²s/∂tColumn∂ridge)
-        ///     d2S_dTColumndTRow ← dZ_dTColumn·(exp(-z)·dZ_dTRow/(1 + exp(-z)) - exp(-z)/(1 + exp(-z))/(1 + exp(-z))·(exp(-z)·dZ_dTRow)) + (1 - y[i] - exp(-z)/(1 + exp(-z)))·d2Z_dTColumndTRow + d2S_dTColumndTRow   (∂²s/∂tColumn∂tRow)
-        ///     d2S_dTColumn2 ← dZ_dTColumn·(exp(-z)·dZ_dTColumn/(1 + exp(-z)) - exp(-z)/(1 + exp(-z))/(1 + exp(-z))·(exp(-z)·dZ_dTColumn)) + (1 - y[i] - exp(-z)/(1 + exp(-z)))·d2Z_dTColumn2 + d2S_dTColumn2   (∂²s/∂tColumn²)
-        /// penalty = 0
-        /// for wjIndex from 0 while below w.Length:
-        ///     wj = w[wjIndex] + (wjIndex + (1) == row ? tRow : 0) + (wjIndex + (1) == column ? tColumn : 0)
-        ///     penalty ← penalty + wj·wj
-        ///     dPenalty_dBias ← dPenalty_dBias   (∂penalty/∂bias)
-        ///     dPenalty_dRidge ← dPenalty_dRidge   (∂penalty/∂ridge)
-        ///     dPenalty_dTRow ← dPenalty_dTRow + (wjIndex + (1) == row ? 2·wj : 0)   (∂penalty/∂tRow)
-        ///     dPenalty_dTColumn ← dPenalty_dTColumn + (wjIndex + (1) == column ? 2·wj : 0)   (∂penalty/∂tColumn)
-        ///     d2Penalty_dBias2 ← d2Penalty_dBias2   (∂²penalty/∂bias²)
-        ///     d2Penalty_dRidgedBias ← d2Penalty_dRidgedBias   (∂²penalty/∂ridge∂bias)
-        ///     d2Penalty_dRidge2 ← d2Penalty_dRidge2   (∂²penalty/∂ridge²)
-        ///     d2Penalty_dTRowdBias ← d2Penalty_dTRowdBias   (∂²penalty/∂tRow∂bias)
-        ///     d2Penalty_dTRowdRidge ← d2Penalty_dTRowdRidge   (∂²penalty/∂tRow∂ridge)
-        ///     d2Penalty_dTRow2 ← d2Penalty_dTRow2 + (wjIndex + (1) == row ? 2 : 0)   (∂²penalty/∂tRow²)
-        ///     d2Penalty_dTColumndBias ← d2Penalty_dTColumndBias   (∂²penalty/∂tColumn∂bias)
-        ///     d2Penalty_dTColumndRidge ← d2Penalty_dTColumndRidge   (∂²penalty/∂tColumn∂ridge)
-        ///     d2Penalty_dTColumndTRow ← d2Penalty_dTColumndTRow + (wjIndex + (1) == column ? (wjIndex + (1) == row ? 2 : 0) : 0)   (∂²penalty/∂tColumn∂tRow)
-        ///     d2Penalty_dTColumn2 ← d2Penalty_dTColumn2 + (wjIndex + (1) == column ? 2 : 0)   (∂²penalty/∂tColumn²)
-        /// LossPair = s + 0.5·ridge·ridge·penalty
-        /// 
-        /// ∂LossPair/∂bias = 0.5·ridge·ridge·dPenalty_dBias + dS_dBias
-        /// ∂LossPair/∂ridge = penalty·ridge + 0.5·ridge·ridge·dPenalty_dRidge + dS_dRidge
-        /// ∂LossPair/∂tRow = 0.5·ridge·ridge·dPenalty_dTRow + dS_dTRow
-        /// ∂LossPair/∂tColumn = 0.5·ridge·ridge·dPenalty_dTColumn + dS_dTColumn
-        /// 
-        /// ∂²LossPair/∂bias² = 0.5·ridge·ridge·d2Penalty_dBias2 + d2S_dBias2
-        /// ∂²LossPair/∂ridge∂bias = ridge·dPenalty_dBias + 0.5·ridge·ridge·d2Penalty_dRidgedBias + d2S_dRidgedBias
-        /// ∂²LossPair/∂ridge² = ridge·dPenalty_dRidge + penalty + (dPenalty_dRidge·ridge + 0.5·ridge·ridge·d2Penalty_dRidge2) + d2S_dRidge2
-        /// ∂²LossPair/∂tRow∂bias = 0.5·ridge·ridge·d2Penalty_dTRowdBias + d2S_dTRowdBias
-        /// ∂²LossPair/∂tRow∂ridge = dPenalty_dTRow·ridge + 0.5·ridge·ridge·d2Penalty_dTRowdRidge + d2S_dTRowdRidge
-        /// ∂²LossPair/∂tRow² = 0.5·ridge·ridge·d2Penalty_dTRow2 + d2S_dTRow2
-        /// ∂²LossPair/∂tColumn∂bias = 0.5·ridge·ridge·d2Penalty_dTColumndBias + d2S_dTColumndBias
-        /// ∂²LossPair/∂tColumn∂ridge = dPenalty_dTColumn·ridge + 0.5·ridge·ridge·d2Penalty_dTColumndRidge + d2S_dTColumndRidge
-        /// ∂²LossPair/∂tColumn∂tRow = 0.5·ridge·ridge·d2Penalty_dTColumndTRow + d2S_dTColumndTRow
-        /// ∂²LossPair/∂tColumn² = 0.5·ridge·ridge·d2Penalty_dTColumn2 + d2S_dTColumn2
-        /// </code>
+        /// One tangent sweep along direction gives the directional derivative ∇f·direction (each loop-carried local carries its own tangent, …Dot);
+        /// the product is the gradient of that derivative, taken like the gradient itself, so the cost is a small constant
+        /// times <see cref="LossGradient"/> whatever the number of variables.
+        /// The product equals the Hessian of <see cref="LossHessian"/> times direction up to rounding (the sums are grouped differently).
         /// </remarks>
         /// <param name="bias">A differentiation variable.</param>
-        /// <param name="w">Passed to the method unchanged; held constant.</param>
+        /// <param name="w">A differentiation variable.</param>
         /// <param name="ridge">A differentiation variable.</param>
         /// <param name="x">Passed to the method unchanged; held constant.</param>
         /// <param name="y">Passed to the method unchanged; held constant.</param>
-        /// <param name="row">Passed to the method unchanged; held constant.</param>
-        /// <param name="column">Passed to the method unchanged; held constant.</param>
-        /// <param name="tRow">A differentiation variable.</param>
-        /// <param name="tColumn">A differentiation variable.</param>
-        /// <param name="gradient">Receives ∂f/∂v for v = bias, ridge, tRow, tColumn, in that order; needs at least 4 elements.</param>
-        /// <param name="hessian">Receives the 4×4 Hessian, row-major (exactly symmetric); needs at least 16 elements.</param>
+        /// <param name="direction">The direction d, one entry per variable (bias, w[…], ridge, in that order); needs at least w.Length + 2 elements. Not written.</param>
+        /// <param name="gradient">Receives ∂f/∂v for v = bias, w[…], ridge, in that order; needs at least w.Length + 2 elements.</param>
+        /// <param name="product">Receives the Hessian times d, in the same order; needs at least w.Length + 2 elements.</param>
         /// <returns>The value of the method at these arguments, bit-for-bit.</returns>
         /// <exception cref="global::System.ArgumentException">A span is shorter than stated.</exception>
         [global::System.CodeDom.Compiler.GeneratedCode("DerivGen", "0.1.0")]
-        private static double LossPairHessian(double bias, double[] w, double ridge, double[,] x, double[] y, int row, int column, double tRow, double tColumn, global::System.Span<double> gradient, global::System.Span<double> hessian)
+        public static double LossHessianVectorProduct(double bias, double[] w, double ridge, double[,] x, double[] y, global::System.ReadOnlySpan<double> direction, global::System.Span<double> gradient, global::System.Span<double> product)
         {
-            if (gradient.Length < 4)
+            if (direction.Length < w.Length + 2)
             {
-                ThrowSpanTooShort(nameof(gradient), 4, "one per variable: bias, ridge, tRow, tColumn");
+                ThrowSpanTooShort(nameof(direction), w.Length + 2, "one per variable: bias, w[…], ridge");
             }
 
-            if (hessian.Length < 16)
+            if (gradient.Length < w.Length + 2)
             {
-                ThrowSpanTooShort(nameof(hessian), 16, "4 × 4, row-major");
+                ThrowSpanTooShort(nameof(gradient), w.Length + 2, "one per variable: bias, w[…], ridge");
             }
 
-            double t5 = 0.5 * ridge * ridge;
+            if (product.Length < w.Length + 2)
+            {
+                ThrowSpanTooShort(nameof(product), w.Length + 2, "one per variable: bias, w[…], ridge");
+            }
+
+            global::System.Span<double> dS_dW = w.Length <= 512 ? stackalloc double[w.Length] : new double[w.Length];
+            global::System.Span<double> dSDot_dW = w.Length <= 512 ? stackalloc double[w.Length] : new double[w.Length];
+            global::System.Span<double> dPenalty_dW = w.Length <= 512 ? stackalloc double[w.Length] : new double[w.Length];
+            global::System.Span<double> dPenaltyDot_dW = w.Length <= 512 ? stackalloc double[w.Length] : new double[w.Length];
+            double t3 = 0.5 * ridge * ridge;
+            dS_dW.Clear();
+            dSDot_dW.Clear();
             double s = 0.0;
             double dS_dBias = 0.0;
             double dS_dRidge = 0.0;
-            double dS_dTRow = 0.0;
-            double dS_dTColumn = 0.0;
-            double d2S_dBias2 = 0.0;
-            double d2S_dRidgedBias = 0.0;
-            double d2S_dRidge2 = 0.0;
-            double d2S_dTRowdBias = 0.0;
-            double d2S_dTRowdRidge = 0.0;
-            double d2S_dTRow2 = 0.0;
-            double d2S_dTColumndBias = 0.0;
-            double d2S_dTColumndRidge = 0.0;
-            double d2S_dTColumndTRow = 0.0;
-            double d2S_dTColumn2 = 0.0;
+            double dSDot_dBias = 0.0;
+            double dSDot_dRidge = 0.0;
             for (int i = 0; i < y.Length; i++)
             {
                 double z = bias;
                 double dZ_dBias = 1.0;
                 double dZ_dRidge = 0.0;
-                double dZ_dTRow = 0.0;
-                double dZ_dTColumn = 0.0;
-                double d2Z_dBias2 = 0.0;
-                double d2Z_dRidgedBias = 0.0;
-                double d2Z_dRidge2 = 0.0;
-                double d2Z_dTRowdBias = 0.0;
-                double d2Z_dTRowdRidge = 0.0;
-                double d2Z_dTRow2 = 0.0;
-                double d2Z_dTColumndBias = 0.0;
-                double d2Z_dTColumndRidge = 0.0;
-                double d2Z_dTColumndTRow = 0.0;
-                double d2Z_dTColumn2 = 0.0;
+                double zDot = direction[0];
+                double dZDot_dBias = 0.0;
+                double dZDot_dRidge = 0.0;
                 for (int j = 0; j < w.Length; j++)
                 {
-                    int t1 = j + (1);
-                    bool condition = t1 == row;
-                    bool condition2 = t1 == column;
-                    double t2 = x[i, j];
-                    z += (w[j] + (condition ? tRow : 0.0) + (condition2 ? tColumn : 0.0)) * t2;
-                    dZ_dTRow += condition ? t2 : 0.0;
-                    dZ_dTColumn += condition2 ? t2 : 0.0;
+                    double t1 = x[i, j];
+                    z += w[j] * t1;
+                    zDot += t1 * direction[1 + j];
                 }
 
                 double exp = global::System.Math.Exp(-z);
-                double t3 = 1.0 + exp;
-                double t6 = exp / t3;
-                double t7 = 1.0 - y[i] - t6;
-                double t8 = exp * dZ_dBias;
-                double t9 = t6 / t3;
-                double t10 = t8 / t3 - t9 * t8;
-                double t11 = exp * dZ_dRidge;
-                double t12 = t11 / t3 - t9 * t11;
-                double t13 = exp * dZ_dTRow;
-                double t14 = t13 / t3 - t9 * t13;
-                double t15 = exp * dZ_dTColumn;
-                s += global::System.Math.Log(t3) + (1.0 - y[i]) * z;
-                dS_dBias += t7 * dZ_dBias;
-                dS_dRidge += t7 * dZ_dRidge;
-                dS_dTRow += t7 * dZ_dTRow;
-                dS_dTColumn += t7 * dZ_dTColumn;
-                d2S_dBias2 += dZ_dBias * t10 + t7 * d2Z_dBias2;
-                d2S_dRidgedBias += dZ_dRidge * t10 + t7 * d2Z_dRidgedBias;
-                d2S_dRidge2 += dZ_dRidge * t12 + t7 * d2Z_dRidge2;
-                d2S_dTRowdBias += dZ_dTRow * t10 + t7 * d2Z_dTRowdBias;
-                d2S_dTRowdRidge += dZ_dTRow * t12 + t7 * d2Z_dTRowdRidge;
-                d2S_dTRow2 += dZ_dTRow * t14 + t7 * d2Z_dTRow2;
-                d2S_dTColumndBias += dZ_dTColumn * t10 + t7 * d2Z_dTColumndBias;
-                d2S_dTColumndRidge += dZ_dTColumn * t12 + t7 * d2Z_dTColumndRidge;
-                d2S_dTColumndTRow += dZ_dTColumn * t14 + t7 * d2Z_dTColumndTRow;
-                d2S_dTColumn2 += dZ_dTColumn * (t15 / t3 - t9 * t15) + t7 * d2Z_dTColumn2;
+                double t2 = 1.0 + exp;
+                double t5 = 1.0 - y[i] - exp / t2;
+                double t6 = (exp * zDot / t2 / t2 - zDot / t2) * exp;
+                // dS_dW += t5 · dZ_dW, dZ_dW not stored: the loop over j replayed with the adjoint t5 (reverse mode)
+                for (int j = 0; j < w.Length; j++)
+                {
+                    dS_dW[j] += t5 * x[i, j];
+                }
+                double zAdjoint = -t6;
+                // dSDot_dW += zAdjoint · dZ_dW, dZ_dW not stored: the loop over j replayed with the adjoint zAdjoint (reverse mode)
+                for (int j = 0; j < w.Length; j++)
+                {
+                    dSDot_dW[j] += zAdjoint * x[i, j];
+                }
+                s += global::System.Math.Log(t2) + (1.0 - y[i]) * z;
+                dS_dBias += t5 * dZ_dBias;
+                dS_dRidge += t5 * dZ_dRidge;
+                dSDot_dBias = t5 * dZDot_dBias + dSDot_dBias - t6 * dZ_dBias;
+                dSDot_dRidge = t5 * dZDot_dRidge + dSDot_dRidge - t6 * dZ_dRidge;
             }
 
+            // dPenalty_dW is not cleared: the loop assigns each element exactly once
+            // dPenaltyDot_dW is not cleared: the loop assigns each element exactly once
             double penalty = 0.0;
             double dPenalty_dBias = 0.0;
             double dPenalty_dRidge = 0.0;
-            double dPenalty_dTRow = 0.0;
-            double dPenalty_dTColumn = 0.0;
-            double d2Penalty_dBias2 = 0.0;
-            double d2Penalty_dRidgedBias = 0.0;
-            double d2Penalty_dRidge2 = 0.0;
-            double d2Penalty_dTRowdBias = 0.0;
-            double d2Penalty_dTRowdRidge = 0.0;
-            double d2Penalty_dTRow2 = 0.0;
-            double d2Penalty_dTColumndBias = 0.0;
-            double d2Penalty_dTColumndRidge = 0.0;
-            double d2Penalty_dTColumndTRow = 0.0;
-            double d2Penalty_dTColumn2 = 0.0;
+            double penaltyDot = 0.0;
+            double dPenaltyDot_dBias = 0.0;
+            double dPenaltyDot_dRidge = 0.0;
             for (int wjIndex = 0; wjIndex < w.Length; wjIndex++)
             {
-                int t4 = wjIndex + (1);
-                bool condition3 = t4 == row;
-                bool condition4 = t4 == column;
-                double wj = w[wjIndex] + (condition3 ? tRow : 0.0) + (condition4 ? tColumn : 0.0);
-                double wjAdjoint = 2.0 * wj;
-                double selected = condition3 ? 2.0 : 0.0;
+                double wj = w[wjIndex];
+                double t4 = direction[1 + wjIndex];
+                dPenalty_dW[wjIndex] = 2.0 * wj;
+                dPenaltyDot_dW[wjIndex] = 2.0 * t4;
                 penalty += wj * wj;
-                dPenalty_dTRow += condition3 ? wjAdjoint : 0.0;
-                dPenalty_dTColumn += condition4 ? wjAdjoint : 0.0;
-                d2Penalty_dTRow2 += selected;
-                d2Penalty_dTColumndTRow += condition4 ? selected : 0.0;
-                d2Penalty_dTColumn2 += condition4 ? 2.0 : 0.0;
+                penaltyDot += wj * t4;
             }
 
-            double value = s + t5 * penalty;
+            // The constant factor of every term of these sums, applied once:
+            penaltyDot *= 2.0;
 
-            gradient[0] = t5 * dPenalty_dBias + dS_dBias; // ∂LossPair/∂bias
-            gradient[1] = penalty * ridge + t5 * dPenalty_dRidge + dS_dRidge; // ∂LossPair/∂ridge
-            gradient[2] = t5 * dPenalty_dTRow + dS_dTRow; // ∂LossPair/∂tRow
-            gradient[3] = t5 * dPenalty_dTColumn + dS_dTColumn; // ∂LossPair/∂tColumn
+            double value = s + t3 * penalty;
 
-            hessian[0] = t5 * d2Penalty_dBias2 + d2S_dBias2; // ∂²LossPair/∂bias²
-            hessian[1] = hessian[4] = ridge * dPenalty_dBias + t5 * d2Penalty_dRidgedBias + d2S_dRidgedBias; // ∂²LossPair/∂ridge∂bias
-            hessian[5] = ridge * dPenalty_dRidge + penalty + (dPenalty_dRidge * ridge + t5 * d2Penalty_dRidge2) + d2S_dRidge2; // ∂²LossPair/∂ridge²
-            hessian[2] = hessian[8] = t5 * d2Penalty_dTRowdBias + d2S_dTRowdBias; // ∂²LossPair/∂tRow∂bias
-            hessian[6] = hessian[9] = dPenalty_dTRow * ridge + t5 * d2Penalty_dTRowdRidge + d2S_dTRowdRidge; // ∂²LossPair/∂tRow∂ridge
-            hessian[10] = t5 * d2Penalty_dTRow2 + d2S_dTRow2; // ∂²LossPair/∂tRow²
-            hessian[3] = hessian[12] = t5 * d2Penalty_dTColumndBias + d2S_dTColumndBias; // ∂²LossPair/∂tColumn∂bias
-            hessian[7] = hessian[13] = dPenalty_dTColumn * ridge + t5 * d2Penalty_dTColumndRidge + d2S_dTColumndRidge; // ∂²LossPair/∂tColumn∂ridge
-            hessian[11] = hessian[14] = t5 * d2Penalty_dTColumndTRow + d2S_dTColumndTRow; // ∂²LossPair/∂tColumn∂tRow
-            hessian[15] = t5 * d2Penalty_dTColumn2 + d2S_dTColumn2; // ∂²LossPair/∂tColumn²
+            gradient.Slice(1, w.Length).Clear(); // ∂Loss/∂w[…]
+            for (int k = 0; k < w.Length; k++)
+            {
+                gradient[1 + k] += t3 * dPenalty_dW[k];
+            }
+            for (int k = 0; k < w.Length; k++)
+            {
+                gradient[1 + k] += dS_dW[k];
+            }
+            gradient[0] = t3 * dPenalty_dBias + dS_dBias; // ∂Loss/∂bias
+            gradient[w.Length + 1] = penalty * ridge + t3 * dPenalty_dRidge + dS_dRidge; // ∂Loss/∂ridge
+
+            product.Slice(1, w.Length).Clear(); // (H·direction) for w[…]
+            for (int k = 0; k < w.Length; k++)
+            {
+                product[1 + k] += t3 * dPenaltyDot_dW[k];
+            }
+            for (int k = 0; k < w.Length; k++)
+            {
+                product[1 + k] += dSDot_dW[k];
+            }
+            for (int k = 0; k < w.Length; k++)
+            {
+                product[1 + k] += ridge * direction[(w.Length + 1)] * dPenalty_dW[k];
+            }
+            product[0] = t3 * dPenaltyDot_dBias + dSDot_dBias + ridge * direction[(w.Length + 1)] * dPenalty_dBias; // (H·direction) for bias
+            product[w.Length + 1] = t3 * dPenaltyDot_dRidge + dSDot_dRidge + (penalty * direction[(w.Length + 1)] + penaltyDot * ridge) + ridge * direction[(w.Length + 1)] * dPenalty_dRidge; // (H·direction) for ridge
 
             return value;
 

@@ -7,7 +7,8 @@ namespace DerivGen.Tests.Passes;
 /// <summary>
 /// The pair method of a Hessian over vectors shifts each element read by its slot in the gradient span: a typed slot
 /// offset in its IR (<c>IrSlotOffset</c>), printed by Emit. Here the second vector's slots start after the scalar
-/// and the first vector, a run-time offset, and the Hessian is checked against its closed form.
+/// and the first vector, a run-time offset, and the Hessian is checked against its closed form. The pair method is used
+/// only for a method without MHessianVectorProduct (one that calls another generated method), so Bilinear calls Same.
 /// </summary>
 public sealed class PairOffsetTests
 {
@@ -22,8 +23,11 @@ public sealed class PairOffsetTests
                     f += s * u[i] * v[i];
                 }
 
-                return f;
+                return Same(f);
             }
+
+            [Differentiate]
+            public static double Same(double x) => x;
         """;
 
     private delegate double H(double s, double[] u, double[] v, Span<double> gradient, Span<double> hessian);

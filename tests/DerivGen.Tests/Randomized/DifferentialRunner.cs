@@ -20,6 +20,9 @@ internal delegate double RandomGradient(double x0, double x1, double x2, double 
 
 internal delegate void RandomJacobian(double x0, double x1, double x2, double c0, double c1, int k, double[] d, Span<double> outputs, Span<double> jacobian);
 
+internal delegate double RandomHessianVector(double x0, double x1, double x2, double c0, double c1, int k, double[] d, ReadOnlySpan<double> direction,
+    Span<double> gradient, Span<double> product);
+
 internal delegate double RandomHessian(double x0, double x1, double x2, double c0, double c1, int k, double[] d, Span<double> gradient, Span<double> hessian);
 
 /// <summary>A random case that failed, and why.</summary>
@@ -52,6 +55,12 @@ internal sealed class BatchOutcome
     /// <summary>Generated gradients that go through their loops in reverse (a record and a reverse sweep) rather than
     /// with forward running derivatives (Differentiation/LoopReverse; the rule is ReverseLoopPolicy).</summary>
     public int ReverseLoopGradients { get; set; }
+
+    /// <summary>MHessianVectorProduct calls checked against the reference (two random directions per point), and methods
+    /// with a Hessian for which no product method was generated (those calling another generated method).</summary>
+    public int HessianVectorProducts { get; set; }
+
+    public int HessianVectorProductsNotGenerated { get; set; }
 
     /// <summary>Gradient or Hessian entries compared with MathNet's finite differences.</summary>
     public int OracleEntries { get; set; }
@@ -308,6 +317,12 @@ internal static class DifferentialRunner
         RandomValue f = assembly.Method<RandomValue>(TypeName, name);
         RandomGradient g = assembly.Method<RandomGradient>(TypeName, name + "Gradient");
         RandomHessian? h = c.Hessian ? assembly.Method<RandomHessian>(TypeName, name + "Hessian") : null;
+        RandomHessianVector? hv = c.Hessian && assembly.HasMethod(TypeName, name + "HessianVectorProduct")
+            ? assembly.Method<RandomHessianVector>(TypeName, name + "HessianVectorProduct") : null;
+        if (c.Hessian && hv is null)
+        {
+            outcome.HessianVectorProductsNotGenerated++;
+        }
         RandomJacobian? jacobian = c.HasOutputVariant ? assembly.Method<RandomJacobian>(TypeName, name + OutputSuffix + "Jacobian") : null;
 
         // The variant with d as a vector variable: refused (no generated method) where a variable would decide control
@@ -356,6 +371,11 @@ internal static class DifferentialRunner
             if (CheckAt(point, f, g, h, jacobian, c, outcome) is { } problem)
             {
                 return "at " + point + ":\n" + problem;
+            }
+
+            if (hv is not null && CheckProductAt(point, f, hv, c, outcome) is { } productProblem)
+            {
+                return "at " + point + ", MHessianVectorProduct:\n" + productProblem;
             }
 
             if (vector is not null && CheckVectorVariantAt(point, f, vector, c, outcome) is { } vectorProblem)
@@ -430,6 +450,51 @@ internal static class DifferentialRunner
         }
 
         CompareWithFiniteDifferences(c, p, f, value, gradient, hessian, outcome, problems);
+        return problems.Length == 0 ? null : problems.ToString();
+    }
+
+    /// <summary>MHessianVectorProduct at two random directions: the value bit for bit, the gradient and H·direction against
+    /// the dual-number reference (its Hessian times the direction, the bound Σⱼ (bound + |H|)ᵢⱼ·|directionⱼ|).</summary>
+    private static string? CheckProductAt(CasePoint p, RandomValue f, RandomHessianVector hv, RandomCase c, BatchOutcome outcome)
+    {
+        double[] x = p.Doubles;
+        int n = c.Variables.Length;
+        double value = f(x[0], x[1], x[2], x[3], x[4], p.K, p.Data);
+        Jet reference = new Interpreter(p, c.Variables).Run(c.Body);
+        var random = new Random(unchecked((int)BitConverter.DoubleToInt64Bits(x[0]) ^ (p.K * 7919)));
+        var problems = new StringBuilder();
+        for (int trial = 0; trial < 2; trial++)
+        {
+            var direction = new double[n];
+            for (int j = 0; j < n; j++)
+            {
+                direction[j] = (2 * random.NextDouble()) - 1;
+            }
+
+            var gradient = new double[n];
+            var product = new double[n];
+            double returned = hv(x[0], x[1], x[2], x[3], x[4], p.K, p.Data, direction, gradient, product);
+            if (BitConverter.DoubleToInt64Bits(returned) != BitConverter.DoubleToInt64Bits(value))
+            {
+                return $"MHessianVectorProduct returned {R(returned)}, the method {R(value)} (must be bit-for-bit equal)";
+            }
+
+            var expected = new double[n];
+            var bound = new double[n];
+            for (int i = 0; i < n; i++)
+            {
+                for (int j = 0; j < n; j++)
+                {
+                    expected[i] += reference.Hessian[(i * n) + j] * direction[j];
+                    bound[i] += (reference.HessianBound[(i * n) + j] + Math.Abs(reference.Hessian[(i * n) + j])) * Math.Abs(direction[j]);
+                }
+            }
+
+            outcome.HessianVectorProducts++;
+            CompareWithReference("MHessianVectorProduct gradient", gradient, reference.Gradient, reference.GradientBound, outcome, problems);
+            CompareWithReference("MHessianVectorProduct product", product, expected, bound, outcome, problems);
+        }
+
         return problems.Length == 0 ? null : problems.ToString();
     }
 

@@ -85,6 +85,8 @@ public sealed class RandomizedDifferentialTests
             total.Checked += outcome.Checked;
             total.Points += outcome.Points;
             total.JacobianRows += outcome.JacobianRows;
+            total.HessianVectorProducts += outcome.HessianVectorProducts;
+            total.HessianVectorProductsNotGenerated += outcome.HessianVectorProductsNotGenerated;
             total.VectorVariants += outcome.VectorVariants;
             total.VectorVariantsRefused += outcome.VectorVariantsRefused;
             total.InlinedVariants += outcome.InlinedVariants;
@@ -125,7 +127,8 @@ public sealed class RandomizedDifferentialTests
         string replay = $"DERIVGEN_SEED={runSeed}";
         _output.WriteLine($"{family}: seed {runSeed} ({replay} replays this run); {outcome.Checked} of {count} methods checked at {outcome.Points} points "
             + $"({outcome.JacobianRows} Jacobian rows of variants with outputs; {outcome.VectorVariants} variants with d as a vector variable checked, "
-            + $"{outcome.VectorVariantsRefused} refused; {outcome.InlinedVariants} variants with the body in an inlined helper or local function checked, {outcome.InlinedVariantsRefused} refused; {outcome.ReverseLoopGradients} gradients through loops in reverse), "
+            + $"{outcome.VectorVariantsRefused} refused; {outcome.InlinedVariants} variants with the body in an inlined helper or local function checked, {outcome.InlinedVariantsRefused} refused; {outcome.ReverseLoopGradients} gradients through loops in reverse; {outcome.HessianVectorProducts} Hessian–vector products checked, "
+            + $"{outcome.HessianVectorProductsNotGenerated} methods with a Hessian but no product method), "
             + $"{outcome.Failures.Count} failed; {outcome.OracleEntries} entries compared with finite differences, "
             + $"{outcome.OracleInconclusive} inconclusive; worst |generated - reference| / tolerance = {outcome.WorstReferenceRatio:G3} ({outcome.WorstReferenceWhere}); "
             + $"largest generated file {outcome.LargestGeneratedFile} characters (case {outcome.LargestGeneratedSeed}); "

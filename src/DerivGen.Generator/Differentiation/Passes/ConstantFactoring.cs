@@ -27,7 +27,7 @@ internal static class ConstantFactoring
         var allRoots = roots.Concat(initial.Values.Concat(next.Values).SelectMany(u => u).Select(u => u.Value))
             .Concat(program.Loops.SelectMany(ProgramReads.Header))
             .Concat(program.States.Values.SelectMany(d => ProgramReads.TermNodes(d.InitialVector).Concat(ProgramReads.TermNodes(d.NextVector))))
-            .Concat(ProgramReads.TermNodes(program.VectorGradient))
+            .Concat(ProgramReads.TermNodes(program.ResultTerms))
             .ToList();
         var readers = new Dictionary<Node, int>();
         void Read(Node leaf)

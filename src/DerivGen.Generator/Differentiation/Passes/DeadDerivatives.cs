@@ -18,7 +18,12 @@ internal static class DeadDerivatives
     public static HashSet<string> Apply(DerivativeProgram program, IEnumerable<Node> roots, Dictionary<LoopSegment, List<StateUpdate>> initial,
         Dictionary<LoopSegment, List<StateUpdate>> next, Dictionary<LoopSegment, List<(string Target, Node Factor)>> factored)
     {
-        var live = new HashSet<string>(ProgramReads.LocalsReachable(roots.Concat(program.Loops.SelectMany(ProgramReads.Header))), StringComparer.Ordinal);
+        // The vector spans' updates are not StateUpdates: what their terms read is live (a carried tangent of
+        // HessianVectorProgram read only by the update of its own span, for one).
+        // The same for the results' vector terms (the gradient's and a product's: 2·sDot·dS_dW[k]).
+        IEnumerable<Node> spanTerms = program.States.Values.SelectMany(d => ProgramReads.TermNodes(d.InitialVector).Concat(ProgramReads.TermNodes(d.NextVector)))
+            .Concat(ProgramReads.TermNodes(program.ResultTerms));
+        var live = new HashSet<string>(ProgramReads.LocalsReachable(roots.Concat(program.Loops.SelectMany(ProgramReads.Header)).Concat(spanTerms)), StringComparer.Ordinal);
         List<StateUpdate> derivativeUpdates = initial.Values.Concat(next.Values).SelectMany(u => u).Where(u => u.IsDerivative).ToList();
         for (bool grew = true; grew;)
         {

@@ -70,14 +70,23 @@ internal static class InPlaceAccumulation
     }
 
     /// <summary>The spans accumulated in the gradient itself, each with the vector whose slice it is.</summary>
-    public static Dictionary<string, int> InGradient(DerivativeProgram program, IReadOnlyDictionary<VectorTerm, SpanSnapshot> snapshots)
+    public static Dictionary<string, int> InGradient(DerivativeProgram program, IReadOnlyDictionary<VectorTerm, SpanSnapshot> snapshots) =>
+        InResult(program, program.VectorGradient, snapshots, new HashSet<string>(StringComparer.Ordinal));
+
+    /// <summary>The same for the product of a Hessian–vector product method (<see cref="HessianVectorProgram"/>): the spans
+    /// accumulated in the product itself, other than those already in the gradient.</summary>
+    public static Dictionary<string, int> InProduct(DerivativeProgram program, IReadOnlyDictionary<VectorTerm, SpanSnapshot> snapshots, IEnumerable<string> inGradient) =>
+        InResult(program, program.ProductVector, snapshots, new HashSet<string>(inGradient, StringComparer.Ordinal));
+
+    private static Dictionary<string, int> InResult(DerivativeProgram program, List<VectorTerm> resultTerms, IReadOnlyDictionary<VectorTerm, SpanSnapshot> snapshots,
+        HashSet<string> taken)
     {
         var inGradient = new Dictionary<string, int>(StringComparer.Ordinal);
         for (int v = 0; v < program.Vectors.Length; v++)
         {
-            var terms = program.VectorGradient.Where(t => t.Vector == v).ToList();
+            var terms = resultTerms.Where(t => t.Vector == v).ToList();
             if (terms.Count == 1 && terms[0].Index is null && terms[0].SourceSpan is { } span && terms[0].Coefficient.IsConstant(1)
-                && !snapshots.ContainsKey(terms[0]) && !inGradient.ContainsKey(span))
+                && !snapshots.ContainsKey(terms[0]) && !inGradient.ContainsKey(span) && !taken.Contains(span))
             {
                 inGradient[span] = v;
             }

@@ -76,7 +76,7 @@ internal sealed class ReverseReplay
             }
         }
 
-        readers.AddRange(program.VectorGradient.Select(t => (t, (LoopSegment?)null, (StateDerivatives?)null, false)));
+        readers.AddRange(program.ResultTerms.Select(t => (t, (LoopSegment?)null, (StateDerivatives?)null, false)));
         // A method with outputs: a row that reads a span needs it stored (the row is written where the output is).
         readers.AddRange(program.Outputs.SelectMany(o => o.VectorRow).Select(t => (t, (LoopSegment?)null, (StateDerivatives?)null, false)));
         var spanOwners = program.States.Values.SelectMany(d => d.VectorNames).GroupBy(name => name, StringComparer.Ordinal)

@@ -20,6 +20,17 @@ internal enum ResultKind
     /// <summary><c>hessian[n·Row + Column] = Value</c>, Column ≤ Row, mirrored to <c>hessian[n·Column + Row]</c> below the diagonal.</summary>
     HessianEntry,
 
+    /// <summary>The slice of the product for vector <see cref="ResultStatement.Row"/> cleared, then its terms added (a
+    /// Hessian–vector product method, <see cref="HessianVectorProgram"/>).</summary>
+    VectorProduct,
+
+    /// <summary>Nothing to write: the vector's slice of the product already holds the span <see cref="ResultStatement.Span"/>
+    /// (<see cref="InPlaceAccumulation.InProduct"/>).</summary>
+    VectorProductInPlace,
+
+    /// <summary><c>product[slot of Row] = Value</c>.</summary>
+    ProductEntry,
+
     /// <summary><c>return Value;</c></summary>
     Return,
 }
@@ -50,7 +61,8 @@ internal sealed record OutputStatement(OutputWrite Output, RowStartKind RowStart
     IReadOnlyList<IReadOnlyList<VectorTerm>> VectorRow);
 
 /// <summary>The statements writing a method's results: the outputs with their Jacobian rows where they are written, or
-/// the gradient (vectors' slices, then scalar entries), the Hessian's lower triangle (mirrored) and the return.</summary>
+/// the gradient (vectors' slices, then scalar entries), the Hessian's lower triangle (mirrored) or the Hessian–vector
+/// product (vectors' slices, then scalar entries), and the return.</summary>
 internal static class ResultStatements
 {
     public static Dictionary<int, List<OutputStatement>> Outputs(MethodPlan plan)
@@ -108,6 +120,21 @@ internal static class ResultStatements
                 {
                     results.Add(new ResultStatement(ResultKind.HessianEntry, program.Hessian![i][j], Row: i, Column: j, Mirrored: i != j));
                 }
+            }
+        }
+
+        if (program.Product is { } product)
+        {
+            for (int v = 0; v < program.Vectors.Length; v++)
+            {
+                results.Add(plan.InProduct.FirstOrDefault(p => p.Value == v).Key is { } span
+                    ? new ResultStatement(ResultKind.VectorProductInPlace, Row: v, Span: span)
+                    : new ResultStatement(ResultKind.VectorProduct, Row: v, Terms: program.ProductVector.Where(t => t.Vector == v).ToList()));
+            }
+
+            for (int i = 0; i < product.Length; i++)
+            {
+                results.Add(new ResultStatement(ResultKind.ProductEntry, product[i], Row: i));
             }
         }
 

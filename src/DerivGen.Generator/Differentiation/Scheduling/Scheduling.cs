@@ -186,7 +186,7 @@ internal sealed class Scheduling
             Check(output.VectorRow, output.Stage);
         }
 
-        Check(_program.VectorGradient, _program.FinalStage);
+        Check(_program.ResultTerms, _program.FinalStage);
 
         // Before a loop, the spans are cleared (or scaled, or started) one after another: a start that reads another
         // span of the same loop which is not carried on unchanged there would read it cleared or already started. It

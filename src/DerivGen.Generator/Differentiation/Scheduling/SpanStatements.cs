@@ -33,7 +33,7 @@ internal enum SpanStatementKind
 /// <summary>A span to declare before any loop: a stack or heap buffer of the vector's length, or the slice of the gradient
 /// for <see cref="GradientSlice"/> (<see cref="InPlaceAccumulation.InGradient"/>); with <see cref="IsNext"/>, the buffer
 /// the span's new value is computed in (<see cref="SpanStatementKind.ThroughNext"/>).</summary>
-internal sealed record SpanDeclaration(string Span, int Vector, int? GradientSlice = null, bool IsNext = false);
+internal sealed record SpanDeclaration(string Span, int Vector, int? GradientSlice = null, bool IsNext = false, int? ProductSlice = null);
 
 /// <summary>A copy of the span <see cref="Span"/> (of the vector <see cref="Vector"/>) taken where the carried value
 /// <see cref="Leaf"/> holds (its stage), read by the terms that need that value after a loop has updated the span.</summary>
@@ -62,7 +62,8 @@ internal static class SpanStatements
                 string own = d.VectorNames[v];
                 if (declared.Add(own))
                 {
-                    plan.SpanDeclarations.Add(new SpanDeclaration(own, v, plan.InGradient.TryGetValue(own, out int slice) ? slice : null));
+                    plan.SpanDeclarations.Add(new SpanDeclaration(own, v, plan.InGradient.TryGetValue(own, out int slice) ? slice : null,
+                        ProductSlice: plan.InProduct.TryGetValue(own, out int productSlice) ? productSlice : null));
                 }
 
                 if (!plan.UpdatesInPlace(loop, d, v) && declared.Add(own + "Next"))

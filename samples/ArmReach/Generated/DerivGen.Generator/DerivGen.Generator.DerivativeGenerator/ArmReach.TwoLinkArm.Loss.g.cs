@@ -157,5 +157,71 @@ namespace ArmReach
             static void ThrowSpanTooShort(string name, long length, string what) =>
                 throw new global::System.ArgumentException("The span must hold at least " + length + (length == 1 ? " element (" : " elements (") + what + ").", name);
         }
+
+        /// <summary>
+        /// Computes <see cref="Loss(double, double, double, double, double, double)"/>, its gradient and the product of its Hessian with direction, with respect to (shoulder, elbow), without forming the Hessian.
+        /// </summary>
+        /// <remarks>
+        /// One tangent sweep along direction gives the directional derivative ∇f·direction (each loop-carried local carries its own tangent, …Dot);
+        /// the product is the gradient of that derivative, taken like the gradient itself, so the cost is a small constant
+        /// times <see cref="LossGradient"/> whatever the number of variables.
+        /// The product equals the Hessian of <see cref="LossHessian"/> times direction up to rounding (the sums are grouped differently).
+        /// </remarks>
+        /// <param name="shoulder">A differentiation variable.</param>
+        /// <param name="elbow">A differentiation variable.</param>
+        /// <param name="upperLength">Passed to the method unchanged; held constant.</param>
+        /// <param name="foreLength">Passed to the method unchanged; held constant.</param>
+        /// <param name="targetX">Passed to the method unchanged; held constant.</param>
+        /// <param name="targetY">Passed to the method unchanged; held constant.</param>
+        /// <param name="direction">The direction d, one entry per variable (shoulder, elbow, in that order); needs at least 2 elements. Not written.</param>
+        /// <param name="gradient">Receives ∂f/∂v for v = shoulder, elbow, in that order; needs at least 2 elements.</param>
+        /// <param name="product">Receives the Hessian times d, in the same order; needs at least 2 elements.</param>
+        /// <returns>The value of the method at these arguments, bit-for-bit.</returns>
+        /// <exception cref="global::System.ArgumentException">A span is shorter than stated.</exception>
+        [global::System.CodeDom.Compiler.GeneratedCode("DerivGen", "0.1.0")]
+        public static double LossHessianVectorProduct(double shoulder, double elbow, double upperLength, double foreLength, double targetX, double targetY, global::System.ReadOnlySpan<double> direction, global::System.Span<double> gradient, global::System.Span<double> product)
+        {
+            if (direction.Length < 2)
+            {
+                ThrowSpanTooShort(nameof(direction), 2, "one per variable: shoulder, elbow");
+            }
+
+            if (gradient.Length < 2)
+            {
+                ThrowSpanTooShort(nameof(gradient), 2, "one per variable: shoulder, elbow");
+            }
+
+            if (product.Length < 2)
+            {
+                ThrowSpanTooShort(nameof(product), 2, "one per variable: shoulder, elbow");
+            }
+
+            (double sinShoulder, double cosShoulder) = global::System.Math.SinCos(shoulder);
+            double elbowX = upperLength * cosShoulder;
+            double elbowY = upperLength * sinShoulder;
+            double t1 = shoulder + elbow;
+            (double sinT1, double cosT1) = global::System.Math.SinCos(t1);
+            double tipX = elbowX + foreLength * cosT1;
+            double tipY = elbowY + foreLength * sinT1;
+            double dx = tipX - targetX;
+            double dy = tipY - targetY;
+            double value = dx * dx + dy * dy;
+            double t2 = dy * foreLength;
+            double t3 = dx * foreLength;
+            double t4 = 2.0 * (t2 * cosT1) - 2.0 * (t3 * sinT1);
+            double t5 = dy * upperLength;
+            double t6 = dx * upperLength;
+
+            gradient[0] = t4 + 2.0 * (t5 * cosShoulder) - 2.0 * (t6 * sinShoulder); // ∂Loss/∂shoulder
+            gradient[1] = t4; // ∂Loss/∂elbow
+
+            product[0] = (-2.0 * (t3 * (direction[0] + direction[1])) + 2.0 * ((upperLength * (cosShoulder * direction[0]) + foreLength * (cosT1 * (direction[0] + direction[1]))) * foreLength)) * cosT1 - (2.0 * (t2 * (direction[0] + direction[1])) + 2.0 * ((-(upperLength * (sinShoulder * direction[0])) - foreLength * (sinT1 * (direction[0] + direction[1]))) * foreLength)) * sinT1 + (-2.0 * (t6 * direction[0]) + 2.0 * ((upperLength * (cosShoulder * direction[0]) + foreLength * (cosT1 * (direction[0] + direction[1]))) * upperLength)) * cosShoulder - (2.0 * (t5 * direction[0]) + 2.0 * ((-(upperLength * (sinShoulder * direction[0])) - foreLength * (sinT1 * (direction[0] + direction[1]))) * upperLength)) * sinShoulder; // (H·direction) for shoulder
+            product[1] = (-2.0 * (t3 * (direction[0] + direction[1])) + 2.0 * ((upperLength * (cosShoulder * direction[0]) + foreLength * (cosT1 * (direction[0] + direction[1]))) * foreLength)) * cosT1 - (2.0 * (t2 * (direction[0] + direction[1])) + 2.0 * ((-(upperLength * (sinShoulder * direction[0])) - foreLength * (sinT1 * (direction[0] + direction[1]))) * foreLength)) * sinT1; // (H·direction) for elbow
+
+            return value;
+
+            static void ThrowSpanTooShort(string name, long length, string what) =>
+                throw new global::System.ArgumentException("The span must hold at least " + length + (length == 1 ? " element (" : " elements (") + what + ").", name);
+        }
     }
 }
