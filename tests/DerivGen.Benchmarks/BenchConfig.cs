@@ -40,8 +40,19 @@ internal static class BenchConfig
             return false;
         }
 
+        if (type == nameof(ControlHorizonLargeBenchmark) && method == "GeneratedGradient" && Size(benchmark) > MaxQuadraticHorizon)
+        {
+            return false;
+        }
+
         return !(quick && method == "FdHessian" && SlowFdHessian.Contains(type));
     }
+
+    /// <summary>
+    /// The longest control horizon whose generated gradient BenchmarkDotNet measures: it is O(T²) today (about a
+    /// second per call at 10,000, so a minute or more at 100,000). Above this the report times one call instead.
+    /// </summary>
+    public const int MaxQuadraticHorizon = 10_000;
 
     /// <summary>Why a Hessian row is absent, for the report's notes.</summary>
     public static string ExclusionNote(string type, int n, string method, bool quick)
@@ -51,9 +62,28 @@ internal static class BenchConfig
             return $"Hessian rows run for n ≤ {MaxHessianVariables} only";
         }
 
+        if (type == nameof(ControlHorizonLargeBenchmark) && method == "GeneratedGradient" && n > MaxQuadraticHorizon)
+        {
+            return $"O(T²) today: left out of BenchmarkDotNet above T = {MaxQuadraticHorizon:N0}; one timed call instead";
+        }
+
         return quick && method == "FdHessian" && SlowFdHessian.Contains(type)
             ? "finite-difference Hessian left out of the quick run (seconds per call); run the full report"
             : string.Empty;
+    }
+
+    /// <summary>The size parameter of a loop family's case (T, Steps or Length), 0 for the other classes.</summary>
+    private static int Size(BenchmarkCase benchmark)
+    {
+        foreach (var p in benchmark.Parameters.Items)
+        {
+            if (p.Name is nameof(ControlHorizonCase.T) or nameof(PendulumRk4Benchmark.Steps) or nameof(RecurrentBenchmark.Length))
+            {
+                return Convert.ToInt32(p.Value, CultureInfo.InvariantCulture);
+            }
+        }
+
+        return 0;
     }
 
     /// <summary>The number of variables a case has, read from its parameters (the classes' own conventions).</summary>
