@@ -163,6 +163,13 @@ internal static class ReportCommand
 
     private static string? Chart(IReadOnlyList<Case> cases, string subtitle)
     {
+        string? loops = LoopReport.Chart(cases, subtitle);
+        string? rosenbrock = RosenbrockChart(cases, subtitle);
+        return rosenbrock is null ? loops : loops is null ? rosenbrock : SvgChart.Stack(rosenbrock, loops);
+    }
+
+    private static string? RosenbrockChart(IReadOnlyList<Case> cases, string subtitle)
+    {
         var rosen = cases.Where(c => c.Type == typeof(ExtendedRosenbrockBenchmark)).OrderBy(c => c.N).ToList();
         if (rosen.Count < 2)
         {
