@@ -1,4 +1,5 @@
 using System;
+using System.Collections.Generic;
 using System.Globalization;
 using System.Linq;
 using BenchmarkDotNet.Columns;
@@ -29,9 +30,10 @@ internal static class BenchConfig
     /// </summary>
     private static readonly string[] SlowFdHessian = { nameof(LogisticBenchmark), nameof(TanhNetBenchmark) };
 
-    /// <summary>True if the benchmark case runs: Hessian rows only for n ≤ <see cref="MaxHessianVariables"/>, and in
-    /// quick mode not the slow finite-difference Hessians.</summary>
-    public static bool Include(BenchmarkCase benchmark, bool quick)
+    /// <summary>True if the benchmark case runs: Hessian rows only for n ≤ <see cref="MaxHessianVariables"/>, in quick
+    /// mode not the slow finite-difference Hessians, and not the O(T²) generated gradient of the longest control
+    /// horizon unless <paramref name="allSizes"/> (for code whose gradient is no longer quadratic).</summary>
+    public static bool Include(BenchmarkCase benchmark, bool quick, bool allSizes = false)
     {
         string method = benchmark.Descriptor.WorkloadMethod.Name;
         string type = benchmark.Descriptor.Type.Name;
@@ -40,7 +42,7 @@ internal static class BenchConfig
             return false;
         }
 
-        if (type == nameof(ControlHorizonLargeBenchmark) && method == "GeneratedGradient" && Size(benchmark) > MaxQuadraticHorizon)
+        if (!allSizes && type == nameof(ControlHorizonLargeBenchmark) && method == "GeneratedGradient" && Size(benchmark) > MaxQuadraticHorizon)
         {
             return false;
         }
@@ -114,7 +116,7 @@ internal static class BenchConfig
     /// iteration counts and times. Both time with <see cref="ThreadCpuClock"/> where it is available (Linux), so that
     /// waiting for a shared core is not counted. Both export JSON (read by the report) and CSV.
     /// </summary>
-    public static IConfig Report(bool quick, string artifactsPath, string? glob)
+    public static IConfig Report(bool quick, string artifactsPath, IReadOnlyList<string> globs, bool allSizes)
     {
         Job job = Job.Default.WithToolchain(InProcessEmitToolchain.Instance);
         if (quick)
@@ -140,12 +142,12 @@ internal static class BenchConfig
             .AddColumn(StatisticColumn.Median)
             .AddLogger(ConsoleLogger.Default)
             .AddExporter(JsonExporter.Full, CsvExporter.Default, MarkdownExporter.Console)
-            .AddFilter(new SimpleFilter(b => Include(b, quick)))
+            .AddFilter(new SimpleFilter(b => Include(b, quick, allSizes)))
             .WithArtifactsPath(artifactsPath)
             .WithOptions(ConfigOptions.JoinSummary | ConfigOptions.DisableLogFile);
-        if (glob is not null)
+        if (globs.Count > 0)
         {
-            config = config.AddFilter(new GlobFilter(new[] { glob }));
+            config = config.AddFilter(new GlobFilter(globs.ToArray()));
         }
 
         return config;
