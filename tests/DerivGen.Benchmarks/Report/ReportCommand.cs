@@ -8,12 +8,12 @@ using BenchmarkDotNet.Running;
 namespace DerivGen.Benchmarks.Report;
 
 /// <summary>
-/// <c>report [--quick] [--large] [--all-sizes] [--rounds R] [--filter GLOB] [--from ARTIFACTS_DIR] [--out DIR]</c>: runs the corpus with
+/// <c>report [--quick] [--large] [--all-sizes] [--rounds R] [--filter GLOB] [--from ARTIFACTS_DIR] [--out DIR] [--label TEXT]</c>: runs the corpus with
 /// BenchmarkDotNet R times (rounds; default 2 with --quick, 1 without), unless <c>--from</c> names the artifacts folder
 /// of an earlier run; measures accuracy once per case; and writes RESULTS.md and cost-vs-n.svg into DIR (default:
 /// docs/benchmarks of the repository). <c>--large</c> adds the opt-in control horizon at T = 10,000 and 100,000;
 /// <c>--all-sizes</c> also measures its generated gradient at 100,000 with BenchmarkDotNet (left out by default: O(T²)
-/// today); <c>--filter</c> may be repeated.
+/// today); <c>--filter</c> may be repeated; <c>--label</c> names the code measured (a branch, a merge) in the header.
 /// </summary>
 internal static class ReportCommand
 {
@@ -38,7 +38,7 @@ internal static class ReportCommand
         bool quick = false, large = false, allSizes = false;
         var globs = new List<string>();
         int? rounds = null;
-        string? from = null, outDir = null;
+        string? from = null, outDir = null, label = null;
         for (int i = 0; i < args.Length; i++)
         {
             switch (args[i])
@@ -62,11 +62,14 @@ internal static class ReportCommand
                 case "--from" when i + 1 < args.Length:
                     from = args[++i];
                     break;
+                case "--label" when i + 1 < args.Length:
+                    label = args[++i];
+                    break;
                 case "--out" when i + 1 < args.Length:
                     outDir = args[++i];
                     break;
                 default:
-                    Console.Error.WriteLine($"Unknown argument '{args[i]}'. Usage: report [--quick] [--large] [--all-sizes] [--rounds R] [--filter GLOB] [--from ARTIFACTS_DIR] [--out DIR]");
+                    Console.Error.WriteLine($"Unknown argument '{args[i]}'. Usage: report [--quick] [--large] [--all-sizes] [--rounds R] [--filter GLOB] [--from ARTIFACTS_DIR] [--out DIR] [--label TEXT]");
                     return 2;
             }
         }
@@ -104,7 +107,7 @@ internal static class ReportCommand
         }
 
         Directory.CreateDirectory(outDir);
-        string markdown = ReportWriter.Write(cases, machine, quick, rounds.Value, measured, ChartFile);
+        string markdown = ReportWriter.Write(cases, machine, quick, rounds.Value, measured, ChartFile, label);
         File.WriteAllText(Path.Combine(outDir, "RESULTS.md"), markdown.Replace("\r\n", "\n", StringComparison.Ordinal));
         string runtime = string.Join(" ", machine.Runtime.Split(' ').Take(2));
         string? svg = Chart(cases, string.Create(CultureInfo.InvariantCulture,

@@ -119,12 +119,17 @@ internal static class ReportWriter
 {
     private static readonly CultureInfo Inv = CultureInfo.InvariantCulture;
 
-    public static string Write(IReadOnlyList<Case> cases, Machine machine, bool quick, int rounds, DateTime date, string chartFile)
+    public static string Write(IReadOnlyList<Case> cases, Machine machine, bool quick, int rounds, DateTime date, string chartFile, string? label = null)
     {
         var md = new StringBuilder();
         md.Append("# DerivGen benchmark results\n\n");
         md.Append("<!-- Written by scripts/bench-report.sh (tests/DerivGen.Benchmarks, `report` command). Do not edit by hand. -->\n\n");
         md.Append(Inv, $"- **Date:** {date:yyyy-MM-dd} (UTC)\n");
+        if (label is not null)
+        {
+            md.Append(Inv, $"- **Code:** {label}\n");
+        }
+
         md.Append(Inv, $"- **Machine:** {machine.Processor}; {Cores(machine)}; {machine.Os}\n");
         md.Append(Inv, $"- **Runtime:** {machine.Runtime}; BenchmarkDotNet {machine.BenchmarkDotNet}, MemoryDiagnoser\n");
         md.Append(quick
