@@ -1,4 +1,5 @@
 using System;
+using System.Collections.Generic;
 using System.Globalization;
 using System.Linq;
 using BenchmarkDotNet.Columns;
@@ -29,9 +30,10 @@ internal static class BenchConfig
     /// </summary>
     private static readonly string[] SlowFdHessian = { nameof(LogisticBenchmark), nameof(TanhNetBenchmark) };
 
-    /// <summary>True if the benchmark case runs: Hessian rows only for n ≤ <see cref="MaxHessianVariables"/>, and in
-    /// quick mode not the slow finite-difference Hessians.</summary>
-    public static bool Include(BenchmarkCase benchmark, bool quick)
+    /// <summary>True if the benchmark case runs: Hessian rows only for n ≤ <see cref="MaxHessianVariables"/>, in quick
+    /// mode not the slow finite-difference Hessians, and not the O(T²) generated gradient of the longest control
+    /// horizon unless <paramref name="allSizes"/> (for code whose gradient is no longer quadratic).</summary>
+    public static bool Include(BenchmarkCase benchmark, bool quick, bool allSizes = false)
     {
         string method = benchmark.Descriptor.WorkloadMethod.Name;
         string type = benchmark.Descriptor.Type.Name;
@@ -40,8 +42,19 @@ internal static class BenchConfig
             return false;
         }
 
+        if (!allSizes && type == nameof(ControlHorizonLargeBenchmark) && method == "GeneratedGradient" && Size(benchmark) > MaxQuadraticHorizon)
+        {
+            return false;
+        }
+
         return !(quick && method == "FdHessian" && SlowFdHessian.Contains(type));
     }
+
+    /// <summary>
+    /// The longest control horizon whose generated gradient BenchmarkDotNet measures: it is O(T²) today (about a
+    /// second per call at 10,000, so a minute or more at 100,000). Above this the report times one call instead.
+    /// </summary>
+    public const int MaxQuadraticHorizon = 10_000;
 
     /// <summary>Why a Hessian row is absent, for the report's notes.</summary>
     public static string ExclusionNote(string type, int n, string method, bool quick)
@@ -51,9 +64,28 @@ internal static class BenchConfig
             return $"Hessian rows run for n ≤ {MaxHessianVariables} only";
         }
 
+        if (type == nameof(ControlHorizonLargeBenchmark) && method == "GeneratedGradient" && n > MaxQuadraticHorizon)
+        {
+            return $"O(T²) today: left out of BenchmarkDotNet above T = {MaxQuadraticHorizon:N0}; one timed call instead";
+        }
+
         return quick && method == "FdHessian" && SlowFdHessian.Contains(type)
             ? "finite-difference Hessian left out of the quick run (seconds per call); run the full report"
             : string.Empty;
+    }
+
+    /// <summary>The size parameter of a loop family's case (T, Steps or Length), 0 for the other classes.</summary>
+    private static int Size(BenchmarkCase benchmark)
+    {
+        foreach (var p in benchmark.Parameters.Items)
+        {
+            if (p.Name is nameof(ControlHorizonCase.T) or nameof(PendulumRk4Benchmark.Steps) or nameof(RecurrentBenchmark.Length))
+            {
+                return Convert.ToInt32(p.Value, CultureInfo.InvariantCulture);
+            }
+        }
+
+        return 0;
     }
 
     /// <summary>The number of variables a case has, read from its parameters (the classes' own conventions).</summary>
@@ -84,7 +116,7 @@ internal static class BenchConfig
     /// iteration counts and times. Both time with <see cref="ThreadCpuClock"/> where it is available (Linux), so that
     /// waiting for a shared core is not counted. Both export JSON (read by the report) and CSV.
     /// </summary>
-    public static IConfig Report(bool quick, string artifactsPath, string? glob)
+    public static IConfig Report(bool quick, string artifactsPath, IReadOnlyList<string> globs, bool allSizes)
     {
         Job job = Job.Default.WithToolchain(InProcessEmitToolchain.Instance);
         if (quick)
@@ -110,12 +142,12 @@ internal static class BenchConfig
             .AddColumn(StatisticColumn.Median)
             .AddLogger(ConsoleLogger.Default)
             .AddExporter(JsonExporter.Full, CsvExporter.Default, MarkdownExporter.Console)
-            .AddFilter(new SimpleFilter(b => Include(b, quick)))
+            .AddFilter(new SimpleFilter(b => Include(b, quick, allSizes)))
             .WithArtifactsPath(artifactsPath)
             .WithOptions(ConfigOptions.JoinSummary | ConfigOptions.DisableLogFile);
-        if (glob is not null)
+        if (globs.Count > 0)
         {
-            config = config.AddFilter(new GlobFilter(new[] { glob }));
+            config = config.AddFilter(new GlobFilter(globs.ToArray()));
         }
 
         return config;

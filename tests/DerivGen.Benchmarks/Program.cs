@@ -4,6 +4,7 @@ using DerivGen.Benchmarks;
 using DerivGen.Benchmarks.Report;
 
 // dotnet run -c Release --project tests/DerivGen.Benchmarks -- report [--quick]     the report (docs/benchmarks/)
+// dotnet run -c Release --project tests/DerivGen.Benchmarks -- report --quick --large  also the control horizon at T = 10,000 and 100,000
 // dotnet run -c Release --project tests/DerivGen.Benchmarks -- generator-cost [--probe]  generator time per edit
 // dotnet run -c Release --project tests/DerivGen.Benchmarks -- probe                 accuracy and rough times, no BDN
 // dotnet run -c Release --project tests/DerivGen.Benchmarks -- --filter '*Huber*'    plain BenchmarkDotNet runs

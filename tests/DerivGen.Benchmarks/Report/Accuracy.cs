@@ -45,6 +45,13 @@ internal sealed class Accuracy
     /// <summary>Bytes allocated per call on the calling thread (GC.GetAllocatedBytesForCurrentThread), by method.</summary>
     public IReadOnlyDictionary<string, double> AllocatedBytesPerCall { get; init; } = new Dictionary<string, double>();
 
+    /// <summary>A call slower than this (seconds) is made once only: its allocation and time are those of that call.</summary>
+    public const double SlowCallSeconds = 1;
+
+    /// <summary>Methods that took longer than <see cref="SlowCallSeconds"/> per call: the time of their one call
+    /// (thread CPU time where available, else wall-clock), nanoseconds.</summary>
+    public IReadOnlyDictionary<string, double> OneCallNanoseconds { get; init; } = new Dictionary<string, double>();
+
     /// <summary>True if every generated method returned exactly (bit for bit) the user's value.</summary>
     public bool? GeneratedValueBitExact { get; init; }
 
@@ -62,15 +69,34 @@ internal sealed class Accuracy
         type.GetMethods().Single(m => m.GetCustomAttribute<GlobalSetupAttribute>() is not null).Invoke(bench, null);
         var allocated = new Dictionary<string, double>(StringComparer.Ordinal);
 
+        var oneCall = new Dictionary<string, double>(StringComparer.Ordinal);
+
         // Each method as a delegate (no boxing), and its allocation per call on this thread: a warm call, a full
         // collection, then the least bytes of three batches of AllocationCalls calls (an allocation the method makes
         // shows in every batch; the runtime's accounting of a collection that happens to fall in a batch does not).
-        // Finite differences: one call, they are slow and allocate anyway.
+        // Finite differences: one call, they are slow and allocate anyway. A method whose warm call takes longer than
+        // SlowCallSeconds (the O(T²) generated gradient of a long control horizon) is counted on that call alone, and
+        // its time (thread CPU time where available) is kept in OneCallNanoseconds.
         double Call(string name)
         {
             var f = type.GetMethod(name)!.CreateDelegate<Func<double>>(bench);
             bool slow = name.StartsWith("Fd", StringComparison.Ordinal);
-            double result = slow ? 0 : f();
+            double result = 0;
+            if (!slow)
+            {
+                GC.Collect();
+                GC.WaitForPendingFinalizers();
+                long bytes = GC.GetAllocatedBytesForCurrentThread();
+                var (ns, r) = Timed(f);
+                result = r;
+                if (ns > SlowCallSeconds * 1e9)
+                {
+                    oneCall[name] = ns;
+                    allocated[name] = GC.GetAllocatedBytesForCurrentThread() - bytes;
+                    return result;
+                }
+            }
+
             int calls = slow ? 1 : AllocationCalls;
             double least = double.PositiveInfinity;
             GC.Collect();
@@ -147,6 +173,7 @@ internal sealed class Accuracy
             FdHessianEvaluations = fdHessianEvaluations,
             GeneratedValueBitExact = bitExact,
             AllocatedBytesPerCall = allocated,
+            OneCallNanoseconds = oneCall,
         };
     }
 
@@ -182,6 +209,21 @@ internal sealed class Accuracy
         }
 
         return Math.Clamp(-Math.Log10(maxDiff / maxRef), 0, MaxDigits);
+    }
+
+    /// <summary>One call of <paramref name="f"/> and its time in nanoseconds (thread CPU time where available).</summary>
+    private static (double Ns, double Result) Timed(Func<double> f)
+    {
+        if (ThreadCpuClock.Instance.IsAvailable)
+        {
+            long start = ThreadCpuClock.Instance.GetTimestamp();
+            double r = f();
+            return (ThreadCpuClock.Instance.GetTimestamp() - start, r);
+        }
+
+        long t0 = System.Diagnostics.Stopwatch.GetTimestamp();
+        double result = f();
+        return (System.Diagnostics.Stopwatch.GetElapsedTime(t0).TotalMilliseconds * 1e6, result);
     }
 
     private static bool Same(double a, double b) => BitConverter.DoubleToInt64Bits(a) == BitConverter.DoubleToInt64Bits(b);

@@ -17,7 +17,7 @@ internal static class Probe
     public static int Run(string[] args)
     {
         string? only = args.Length > 0 ? args[0] : null;
-        foreach (Type type in ReportCommand.Corpus.Where(t => only is null || t.Name.Contains(only, StringComparison.OrdinalIgnoreCase)))
+        foreach (Type type in (only is null ? ReportCommand.Corpus : ReportCommand.AllTypes).Where(t => only is null || t.Name.Contains(only, StringComparison.OrdinalIgnoreCase)))
         {
             PropertyInfo? param = type.GetProperties().SingleOrDefault(p => p.GetCustomAttribute<ParamsAttribute>() is not null);
             object?[] values = param?.GetCustomAttribute<ParamsAttribute>()!.Values ?? new object?[] { null };
@@ -39,6 +39,12 @@ internal static class Probe
                 Console.WriteLine($"{type.Name} {string.Join(",", parameters.Select(kv => kv.Key + "=" + kv.Value))} n={a.VariableCount} (accuracy pass {sw.Elapsed.TotalSeconds:0.0} s)");
                 Console.WriteLine($"  digits: gen~hand grad {a.GeneratedVsHandWrittenGradient:0.0}, gen~hand Hess {a.GeneratedVsHandWrittenHessian:0.0}, FD grad {a.FdGradient:0.0} ({a.FdGradientEvaluations} evals), FD Hess {a.FdHessian:0.0} vs {a.FdHessianReference} ({a.FdHessianEvaluations} evals), value bit-exact {a.GeneratedValueBitExact}");
                 Console.WriteLine("  allocated per call: " + string.Join(", ", a.AllocatedBytesPerCall.Select(kv => $"{kv.Key} {kv.Value.ToString("0.#", CultureInfo.InvariantCulture)} B")));
+                foreach (var (name, ns) in a.OneCallNanoseconds)
+                {
+                    Console.WriteLine($"  {name,-20} {ReportWriter.Time(ns),12}  (one call; not repeated)");
+                    methods.Remove(name);
+                }
+
                 Time(type, parameters, methods);
             }
         }

@@ -8,10 +8,12 @@ using BenchmarkDotNet.Running;
 namespace DerivGen.Benchmarks.Report;
 
 /// <summary>
-/// <c>report [--quick] [--rounds R] [--filter GLOB] [--from ARTIFACTS_DIR] [--out DIR]</c>: runs the corpus with
+/// <c>report [--quick] [--large] [--all-sizes] [--rounds R] [--filter GLOB] [--from ARTIFACTS_DIR] [--out DIR] [--label TEXT]</c>: runs the corpus with
 /// BenchmarkDotNet R times (rounds; default 2 with --quick, 1 without), unless <c>--from</c> names the artifacts folder
 /// of an earlier run; measures accuracy once per case; and writes RESULTS.md and cost-vs-n.svg into DIR (default:
-/// docs/benchmarks of the repository).
+/// docs/benchmarks of the repository). <c>--large</c> adds the opt-in control horizon at T = 10,000 and 100,000;
+/// <c>--all-sizes</c> also measures its generated gradient at 100,000 with BenchmarkDotNet (left out by default: O(T²)
+/// today); <c>--filter</c> may be repeated; <c>--label</c> names the code measured (a branch, a merge) in the header.
 /// </summary>
 internal static class ReportCommand
 {
@@ -21,13 +23,22 @@ internal static class ReportCommand
     {
         typeof(RosenbrockBenchmark), typeof(TrigExpBenchmark), typeof(DecayFitBenchmark), typeof(LogisticBenchmark),
         typeof(TanhNetBenchmark), typeof(ExtendedRosenbrockBenchmark), typeof(TrajectoryBenchmark), typeof(HuberBenchmark),
+        typeof(ControlHorizonBenchmark), typeof(PendulumRk4Benchmark), typeof(RecurrentBenchmark),
     };
+
+    /// <summary>Opt-in cases (<c>--large</c>): the control horizon at T = 10,000 and 100,000, whose generated gradient
+    /// is O(T²) today (minutes per call at the largest size).</summary>
+    public static readonly Type[] LargeCorpus = { typeof(ControlHorizonLargeBenchmark) };
+
+    /// <summary>Every type the report knows, in report order.</summary>
+    public static IEnumerable<Type> AllTypes => Corpus.Concat(LargeCorpus);
 
     public static int Run(string[] args)
     {
-        bool quick = false;
+        bool quick = false, large = false, allSizes = false;
+        var globs = new List<string>();
         int? rounds = null;
-        string? glob = null, from = null, outDir = null;
+        string? from = null, outDir = null, label = null;
         for (int i = 0; i < args.Length; i++)
         {
             switch (args[i])
@@ -35,21 +46,30 @@ internal static class ReportCommand
                 case "--quick":
                     quick = true;
                     break;
+                case "--large":
+                    large = true;
+                    break;
+                case "--all-sizes":
+                    allSizes = true;
+                    break;
                 case "--rounds" when i + 1 < args.Length && int.TryParse(args[i + 1], NumberStyles.None, CultureInfo.InvariantCulture, out int r) && r > 0:
                     rounds = r;
                     i++;
                     break;
                 case "--filter" when i + 1 < args.Length:
-                    glob = args[++i];
+                    globs.Add(args[++i]);
                     break;
                 case "--from" when i + 1 < args.Length:
                     from = args[++i];
+                    break;
+                case "--label" when i + 1 < args.Length:
+                    label = args[++i];
                     break;
                 case "--out" when i + 1 < args.Length:
                     outDir = args[++i];
                     break;
                 default:
-                    Console.Error.WriteLine($"Unknown argument '{args[i]}'. Usage: report [--quick] [--rounds R] [--filter GLOB] [--from ARTIFACTS_DIR] [--out DIR]");
+                    Console.Error.WriteLine($"Unknown argument '{args[i]}'. Usage: report [--quick] [--large] [--all-sizes] [--rounds R] [--filter GLOB] [--from ARTIFACTS_DIR] [--out DIR] [--label TEXT]");
                     return 2;
             }
         }
@@ -57,7 +77,7 @@ internal static class ReportCommand
         string root = RepositoryRoot();
         outDir ??= Path.Combine(root, "docs", "benchmarks");
         rounds ??= quick ? 2 : 1;
-        IReadOnlyList<string> resultsDirs = from is null ? RunSuite(root, quick, rounds.Value, glob) : ResultsOf(from);
+        IReadOnlyList<string> resultsDirs = from is null ? RunSuite(root, quick, large, allSizes, rounds.Value, globs) : ResultsOf(from);
         rounds = resultsDirs.Count;
 
         // With --from, pass --quick too if that run was a quick one (it only changes the report's wording).
@@ -69,19 +89,25 @@ internal static class ReportCommand
         var cases = new List<Case>();
         foreach (var group in measurements
                      .GroupBy(m => (m.Type, m.Parameters))
-                     .OrderBy(g => Array.FindIndex(Corpus, t => t.Name == g.Key.Type))
+                     .OrderBy(g => Array.FindIndex(AllTypes.ToArray(), t => t.Name == g.Key.Type))
                      .ThenBy(g => SortKey(g.Key.Parameters)))
         {
-            Type type = Corpus.Single(t => t.Name == group.Key.Type);
+            Type type = AllTypes.Single(t => t.Name == group.Key.Type);
             var methods = group.ToDictionary(m => m.Method, StringComparer.Ordinal);
             Console.WriteLine($"Accuracy: {type.Name} {group.Key.Parameters}");
-            Accuracy accuracy = Accuracy.Measure(type, BdnResults.ParseParameters(group.Key.Parameters), methods.Keys.ToHashSet(StringComparer.Ordinal));
+            var checkedMethods = methods.Keys.ToHashSet(StringComparer.Ordinal);
+            if (type.IsSubclassOf(typeof(LoopBenchmark)))
+            {
+                checkedMethods.Add("GeneratedGradient");   // left out of BenchmarkDotNet where too slow: one timed call
+            }
+
+            Accuracy accuracy = Accuracy.Measure(type, BdnResults.ParseParameters(group.Key.Parameters), checkedMethods);
             CheckHandWritten(type, group.Key.Parameters, accuracy);
             cases.Add(new Case { Type = type, Parameters = group.Key.Parameters, Methods = methods, Accuracy = accuracy });
         }
 
         Directory.CreateDirectory(outDir);
-        string markdown = ReportWriter.Write(cases, machine, quick, rounds.Value, measured, ChartFile);
+        string markdown = ReportWriter.Write(cases, machine, quick, rounds.Value, measured, ChartFile, label);
         File.WriteAllText(Path.Combine(outDir, "RESULTS.md"), markdown.Replace("\r\n", "\n", StringComparison.Ordinal));
         string runtime = string.Join(" ", machine.Runtime.Split(' ').Take(2));
         string? svg = Chart(cases, string.Create(CultureInfo.InvariantCulture,
@@ -96,7 +122,7 @@ internal static class ReportCommand
     }
 
     /// <summary>Runs the corpus <paramref name="rounds"/> times; returns the results folders holding the JSON reports.</summary>
-    private static IReadOnlyList<string> RunSuite(string root, bool quick, int rounds, string? glob)
+    private static IReadOnlyList<string> RunSuite(string root, bool quick, bool large, bool allSizes, int rounds, IReadOnlyList<string> globs)
     {
         string artifacts = Path.Combine(root, "BenchmarkDotNet.Artifacts", quick ? "report-quick" : "report-full");
         if (Directory.Exists(artifacts))
@@ -109,7 +135,7 @@ internal static class ReportCommand
         {
             Console.WriteLine($"Round {round} of {rounds}");
             string roundDir = Path.Combine(artifacts, "round" + round.ToString(CultureInfo.InvariantCulture));
-            BenchmarkRunner.Run(Corpus, BenchConfig.Report(quick, roundDir, glob));
+            BenchmarkRunner.Run(large ? AllTypes.ToArray() : Corpus, BenchConfig.Report(quick, roundDir, globs, allSizes));
             results.Add(Path.Combine(roundDir, "results"));
         }
 
@@ -145,6 +171,13 @@ internal static class ReportCommand
     }
 
     private static string? Chart(IReadOnlyList<Case> cases, string subtitle)
+    {
+        string? loops = LoopReport.Chart(cases, subtitle);
+        string? rosenbrock = RosenbrockChart(cases, subtitle);
+        return rosenbrock is null ? loops : loops is null ? rosenbrock : SvgChart.Stack(rosenbrock, loops);
+    }
+
+    private static string? RosenbrockChart(IReadOnlyList<Case> cases, string subtitle)
     {
         var rosen = cases.Where(c => c.Type == typeof(ExtendedRosenbrockBenchmark)).OrderBy(c => c.N).ToList();
         if (rosen.Count < 2)

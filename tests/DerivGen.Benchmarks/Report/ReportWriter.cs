@@ -54,6 +54,9 @@ internal static class Describe
         nameof(ExtendedRosenbrockBenchmark) => "Extended Rosenbrock",
         nameof(TrajectoryBenchmark) => "Simulated trajectory",
         nameof(HuberBenchmark) => "Huber regression",
+        nameof(ControlHorizonBenchmark) or nameof(ControlHorizonLargeBenchmark) => "Control horizon",
+        nameof(PendulumRk4Benchmark) => "RK4 pendulum",
+        nameof(RecurrentBenchmark) => "Recurrent model",
         _ => type.Name,
     };
 
@@ -67,6 +70,9 @@ internal static class Describe
         nameof(ExtendedRosenbrockBenchmark) => "one vector variable (`ReadOnlySpan<double>`), a loop over pairs",
         nameof(TrajectoryBenchmark) => "a recurrence: 200 explicit Euler steps of a projectile with quadratic drag, 3 scalar variables",
         nameof(HuberBenchmark) => "10,000 samples, a vector of 8 coefficients, a branch (|r| ≤ δ) per sample",
+        nameof(ControlHorizonBenchmark) or nameof(ControlHorizonLargeBenchmark) => "T controls in one vector variable (`ReadOnlySpan<double>`) drive a position and a velocity carried by the loop (semi-implicit Euler, cubic restoring force), cost summed over every step; compared with a hand-written reverse sweep",
+        nameof(PendulumRk4Benchmark) => "a damped pendulum, classical RK4 over N steps with the state as scalar locals, squared misfit to observations after every step; 3 scalar variables (damping, stiffness, initial angle); compared with a hand-written reverse sweep",
+        nameof(RecurrentBenchmark) => "a one-unit recurrent model h ← tanh(w₀h + w₁xₜ + w₂) over a sequence, squared error after every step; a weight vector of 3; compared with a hand-written reverse sweep",
         _ => string.Empty,
     };
 
@@ -77,10 +83,16 @@ internal static class Describe
         {
             nameof(LogisticBenchmark) when p.TryGetValue("Features", out string? f) => $", {f} features",
             nameof(ExtendedRosenbrockBenchmark) when p.TryGetValue("N", out string? n) => $", n = {n}",
+            nameof(ControlHorizonBenchmark) or nameof(ControlHorizonLargeBenchmark) when p.TryGetValue("T", out string? t) => $", T = {Thousands(t)}",
+            nameof(PendulumRk4Benchmark) when p.TryGetValue("Steps", out string? n) => $", N = {Thousands(n)}",
+            nameof(RecurrentBenchmark) when p.TryGetValue("Length", out string? n) => $", length {Thousands(n)}",
             _ => string.Empty,
         };
         return Loss(type) + suffix;
     }
+
+    private static string Thousands(string n) =>
+        int.TryParse(n, NumberStyles.Integer, CultureInfo.InvariantCulture, out int v) ? v.ToString("N0", CultureInfo.InvariantCulture) : n;
 
     public static string Method(string method) => method switch
     {
@@ -107,12 +119,17 @@ internal static class ReportWriter
 {
     private static readonly CultureInfo Inv = CultureInfo.InvariantCulture;
 
-    public static string Write(IReadOnlyList<Case> cases, Machine machine, bool quick, int rounds, DateTime date, string chartFile)
+    public static string Write(IReadOnlyList<Case> cases, Machine machine, bool quick, int rounds, DateTime date, string chartFile, string? label = null)
     {
         var md = new StringBuilder();
         md.Append("# DerivGen benchmark results\n\n");
         md.Append("<!-- Written by scripts/bench-report.sh (tests/DerivGen.Benchmarks, `report` command). Do not edit by hand. -->\n\n");
         md.Append(Inv, $"- **Date:** {date:yyyy-MM-dd} (UTC)\n");
+        if (label is not null)
+        {
+            md.Append(Inv, $"- **Code:** {label}\n");
+        }
+
         md.Append(Inv, $"- **Machine:** {machine.Processor}; {Cores(machine)}; {machine.Os}\n");
         md.Append(Inv, $"- **Runtime:** {machine.Runtime}; BenchmarkDotNet {machine.BenchmarkDotNet}, MemoryDiagnoser\n");
         md.Append(quick
@@ -133,12 +150,15 @@ internal static class ReportWriter
         md.Append("- **What is quoted:** medians of the measured iterations, and ratios of medians within one loss (same run, same " +
                   "data, same point). All data and points are invented.\n\n");
 
-        WriteSummary(md, cases);
-        WriteTargets(md, cases);
+        // The summary and the first targets are those of the original corpus; the loop families have their own section.
+        var corpus = cases.Where(c => !LoopReport.IsLoop(c)).ToList();
+        WriteSummary(md, corpus);
+        WriteTargets(md, corpus);
 
         md.Append("## Cost versus n (extended Rosenbrock)\n\n");
         md.Append(Inv, $"![Median time per call versus n for the extended Rosenbrock function]({chartFile})\n\n");
         WriteChartTable(md, cases);
+        LoopReport.Write(md, cases, chartFile);
 
         md.Append("## Per loss\n\n");
         md.Append("Columns: median time per call; the spread (largest minus smallest median of the rounds, relative to the " +
@@ -147,10 +167,10 @@ internal static class ReportWriter
                   "differences → generated, or hand-written where nothing is generated); bytes allocated per call (counted exactly " +
                   "on the calling thread, see below); and " +
                   "correct digits against that reference.\n\n");
-        foreach (var group in cases.GroupBy(c => c.Type))
+        foreach (var group in cases.GroupBy(c => Describe.Loss(c.Type)))
         {
-            md.Append(Inv, $"### {Describe.Loss(group.Key)}\n\n");
-            md.Append(Inv, $"{Capitalise(Describe.Shape(group.Key))}.\n\n");
+            md.Append(Inv, $"### {group.Key}\n\n");
+            md.Append(Inv, $"{Capitalise(Describe.Shape(group.First().Type))}.\n\n");
             foreach (Case c in group)
             {
                 WriteCase(md, c, quick);
@@ -274,6 +294,15 @@ internal static class ReportWriter
         {
             if (!c.Methods.TryGetValue(method, out Measurement? m))
             {
+                if (c.Accuracy.OneCallNanoseconds.TryGetValue(method, out double once))
+                {
+                    string onceCompared = c.Reference(method) is string rr && c.Median(rr) is double refNs ? $"{X(once / refNs)} {Describe.Short(rr)}" : string.Empty;
+                    string onceValue = c.Median("Value") is double v ? X(once / v) : "—";
+                    md.Append(Inv, $"| {Describe.Method(method)} | {Time(once)} (one call) | — | {onceValue} | {onceCompared} | {Bytes(c.Allocated(method))} | {DigitsCell(c, method)} |\n");
+                    notes.Add($"The {Describe.Method(method)} is too slow for BenchmarkDotNet at this size: one call, timed in the accuracy pass ({BenchConfig.ExclusionNote(c.Type.Name, c.N, method, quick)}).");
+                    continue;
+                }
+
                 string? why = MissingReason(c, method, quick);
                 if (why is not null)
                 {
@@ -315,6 +344,11 @@ internal static class ReportWriter
 
     private static string? MissingReason(Case c, string method, bool quick)
     {
+        if (LoopReport.IsLoop(c) && c.Type.GetMethod(method) is null)
+        {
+            return null;   // the loop families measure gradients only
+        }
+
         if (method == "GeneratedHessian" && c.Type.GetMethod(method) is null)
         {
             return "not generated in the corpus (`Hessian = false`): a Hessian with respect to a vector variable is assembled pair by pair, n(n + 1)/2 passes over the loss, about a second per call at this size";
@@ -358,6 +392,11 @@ internal static class ReportWriter
                   "(the least of three such batches; one call of the finite differences), outside BenchmarkDotNet, so the count is exact. BenchmarkDotNet's " +
                   "MemoryDiagnoser figures are in the JSON and CSV it exports (under `BenchmarkDotNet.Artifacts/`); in process " +
                   "they can include a few bytes per call of the runtime's own background allocations.\n");
+        md.Append("- Gradients through loops: `LoopLosses.cs` (the user's code), `HandWrittenAdjoints.cs` (reverse sweeps " +
+                  "written by hand, checked against the generated gradient at setup and by this report) and " +
+                  "`LoopBenchmarks.cs`. The control horizon at T = 10,000 and 100,000 is opt-in (`--large`); a method whose " +
+                  "call takes over " + Accuracy.SlowCallSeconds.ToString(Inv) + " s in the accuracy pass is called once there, and that call's time is quoted " +
+                  "as \"(one call)\".\n");
         md.Append("- Regenerate with `scripts/bench-report.sh --quick` (a few minutes) or `scripts/bench-report.sh` (the " +
                   "full job; about two hours on 2 cores).\n");
     }

@@ -96,6 +96,28 @@ internal static class SvgChart
         return svg.ToString();
     }
 
+    /// <summary>Charts written by <see cref="LogLog"/>, one below the other in one SVG.</summary>
+    public static string Stack(params string[] charts)
+    {
+        var svg = new StringBuilder();
+        svg.Append(CultureInfo.InvariantCulture, $"<svg xmlns=\"http://www.w3.org/2000/svg\" width=\"{Width}\" height=\"{Height * charts.Length}\" viewBox=\"0 0 {Width} {Height * charts.Length}\" font-family=\"sans-serif\" font-size=\"12\">\n");
+        for (int i = 0; i < charts.Length; i++)
+        {
+            // Each chart without its own <svg> and </svg> lines, moved down by its height.
+            string[] lines = charts[i].TrimEnd('\n').Split('\n');
+            svg.Append(CultureInfo.InvariantCulture, $"  <g transform=\"translate(0 {Height * i})\">\n");
+            foreach (string line in lines[1..^1])
+            {
+                svg.Append("  ").Append(line).Append('\n');
+            }
+
+            svg.Append("  </g>\n");
+        }
+
+        svg.Append("</svg>\n");
+        return svg.ToString();
+    }
+
     private static string F(double v) => v.ToString("0.##", CultureInfo.InvariantCulture);
 
     private static string Escape(string s) =>
