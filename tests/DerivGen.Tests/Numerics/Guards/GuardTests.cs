@@ -103,6 +103,8 @@ public sealed class GuardTests : IClassFixture<GuardFixture>
 
     private delegate double NormG(double[] w, double scale, Span<double> gradient);
 
+    private delegate double NormP(double[] w, double scale, ReadOnlySpan<double> direction, Span<double> gradient, Span<double> product);
+
     private delegate double NormH(double[] w, double scale, Span<double> gradient, Span<double> hessian);
 
     private delegate double PowerF(double x, int shape);
@@ -154,11 +156,12 @@ public sealed class GuardTests : IClassFixture<GuardFixture>
     }
 
     [Fact]
-    public void ChecksOnAVectorOfVariablesRunInEveryGeneratedMethodIncludingThePairedHessian()
+    public void ChecksOnAVectorOfVariablesRunInEveryGeneratedMethodIncludingTheAssembledHessianAndTheProduct()
     {
         var f = _fixture.Assembly.Method<NormF>("Checked", "Norm");
         var g = _fixture.Assembly.Method<NormG>("Checked", "NormGradient");
         var h = _fixture.Assembly.Method<NormH>("Checked", "NormHessian");
+        var p = _fixture.Assembly.Method<NormP>("Checked", "NormHessianVectorProduct");
         double[] w = { 1.0, -2.0, 0.5 };
         var gradient = new double[3];
         var hessian = new double[9];
@@ -171,8 +174,11 @@ public sealed class GuardTests : IClassFixture<GuardFixture>
         foreach ((double[]? vector, double scale) in new (double[]?, double)[] { (null, 1.0), (w, 11.0), (w, double.NaN), (w, double.NegativeInfinity) })
         {
             var untouched = new[] { double.NaN, double.NaN, double.NaN };
-            SameException(() => f(vector!, scale), () => g(vector!, scale, untouched), () => h(vector!, scale, untouched, new double[9]));
+            var product = new[] { double.NaN, double.NaN, double.NaN };
+            SameException(() => f(vector!, scale), () => g(vector!, scale, untouched), () => h(vector!, scale, untouched, new double[9]),
+                () => p(vector!, scale, new double[3], untouched, product));
             Assert.All(untouched, v => Assert.True(double.IsNaN(v)));
+            Assert.All(product, v => Assert.True(double.IsNaN(v)));
         }
     }
 
