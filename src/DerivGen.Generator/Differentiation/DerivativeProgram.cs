@@ -125,6 +125,26 @@ internal sealed class DerivativeProgram
     /// <summary>Names of the locals that hold loop-carried values (their running derivatives are named by Emit).</summary>
     public IEnumerable<string> StateNames => Loops.SelectMany(l => l.States).Select(s => s.Name);
 
+    /// <summary>
+    /// A product method's program keeps H·d (<see cref="Product"/>); any other goes through its loops in reverse where the
+    /// rule says so (LoopReverse/ReverseLoopPolicy) — a product method keeps the forward running derivatives its
+    /// tangents are carried by.
+    /// </summary>
+    private void Finish(MethodSpec spec, Node[]? productEntries, List<VectorTerm> productVector, (string Direction, string Product) spanNames, System.Threading.CancellationToken cancellationToken)
+    {
+        if (productEntries is not null)
+        {
+            Product = productEntries;
+            ProductVector.AddRange(productVector);
+            DirectionName = spanNames.Direction;
+            ProductName = spanNames.Product;
+        }
+        else
+        {
+            Reverse = LoopReverse.ReverseGradient.TryCreate(spec, this, cancellationToken);
+        }
+    }
+
     /// <summary>The gradient method through the loops in reverse (<see cref="LoopReverse.ReverseGradient"/>), or null where
     /// forward running derivatives are kept (<see cref="LoopReverse.ReverseLoopPolicy"/>).</summary>
     public LoopReverse.ReverseGradient? Reverse { get; private set; }
@@ -331,20 +351,7 @@ internal sealed class DerivativeProgram
 
         // Mixed float/double code can give a derivative of the wider type; the spans hold the method's own type.
         var program = new DerivativeProgram(builder, graph, Typed(gradient, spec.ReturnType), hessian, variables, states, vectors, vectorGradient, locals);
-        if (productEntries is not null)
-        {
-            program.Product = productEntries;
-            program.ProductVector.AddRange(productVector);
-            program.DirectionName = spanNames.Direction;
-            program.ProductName = spanNames.Product;
-        }
-        else
-        {
-            // The gradient method goes through the loops in reverse where the rule says so (LoopReverse/ReverseLoopPolicy);
-            // a product method keeps the forward running derivatives its tangents are carried by.
-            program.Reverse = LoopReverse.ReverseGradient.TryCreate(spec, program, cancellationToken);
-        }
-
+        program.Finish(spec, productEntries, productVector, spanNames, cancellationToken);
         return program;
 
         Node[] Typed(Node[] nodes, ScalarType type) => nodes.Select(g => builder.Convert(g, type)).ToArray();

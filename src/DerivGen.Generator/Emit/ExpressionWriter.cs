@@ -95,6 +95,24 @@ internal sealed class ExpressionWriter
         return ok;
     }
 
+    private bool WriteConversion(Node node, StringBuilder text)
+    {
+        if (_formula)
+        {
+            return Write(node.Arguments[0], Primary, text);
+        }
+
+        if (node.Type == ScalarType.Generic)
+        {
+            // No cast converts to a type parameter; T.CreateTruncating(v) is v rounded to T (from int, float or double).
+            text.Append("T.CreateTruncating(");
+            return Write(node.Arguments[0], Conditional, text) && Append(text, ")");
+        }
+
+        text.Append('(').Append(TypeKeyword(node.Type)).Append(')');
+        return Write(node.Arguments[0], Primary, text);
+    }
+
     private bool WriteCore(Node node, StringBuilder text)
     {
         switch (node.Kind)
@@ -131,20 +149,7 @@ internal sealed class ExpressionWriter
             }
 
             case NodeKind.Convert:
-                if (_formula)
-                {
-                    return Write(node.Arguments[0], Primary, text);
-                }
-
-                if (node.Type == ScalarType.Generic)
-                {
-                    // No cast converts to a type parameter; T.CreateTruncating(v) is v rounded to T (from int, float or double).
-                    text.Append("T.CreateTruncating(");
-                    return Write(node.Arguments[0], Conditional, text) && Append(text, ")");
-                }
-
-                text.Append('(').Append(TypeKeyword(node.Type)).Append(')');
-                return Write(node.Arguments[0], Primary, text);
+                return WriteConversion(node, text);
 
             case NodeKind.Call:
                 text.Append(_formula ? FormulaName(node.Function) : CSharpHost(node) + "." + MathFunctions.CSharpName(node.Function)).Append('(');

@@ -766,6 +766,19 @@ internal sealed partial class BodyLowerer
         }
     }
 
+    /// <summary>A struct's field, vector function or member (BodyLowerer.Structs.cs), or a use of a local array whose
+    /// declaration was refused (null: reported there).</summary>
+    private bool TryLowerStructOrRefusedArray(IOperation operation, out IrExpression? result)
+    {
+        if (TryLowerStructScalar(operation, out result))
+        {
+            return true;
+        }
+
+        result = null;
+        return operation is IPropertyReferenceOperation or IArrayElementReferenceOperation or IImplicitIndexerReferenceOperation && IsRefusedArrayUse(operation);
+    }
+
     private IrExpression? LowerExpressionCore(IOperation operation)
     {
         if (operation.ConstantValue.HasValue && operation.Type is { } constantType && ValueTypeOf(constantType) is { } scalar
@@ -774,14 +787,9 @@ internal sealed partial class BodyLowerer
             return constant;
         }
 
-        if (TryLowerStructScalar(operation, out IrExpression? throughStruct))
+        if (TryLowerStructOrRefusedArray(operation, out IrExpression? lowered))
         {
-            return throughStruct; // BodyLowerer.Structs.cs
-        }
-
-        if (operation is IPropertyReferenceOperation or IArrayElementReferenceOperation or IImplicitIndexerReferenceOperation && IsRefusedArrayUse(operation))
-        {
-            return null; // a local array whose declaration was refused
+            return lowered;
         }
 
         switch (operation)
