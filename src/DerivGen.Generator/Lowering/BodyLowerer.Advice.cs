@@ -1,6 +1,9 @@
+using System.Globalization;
 using System.Linq;
 using DerivGen.Generator.Model;
 using Microsoft.CodeAnalysis;
+using Microsoft.CodeAnalysis.CSharp;
+using Microsoft.CodeAnalysis.CSharp.Syntax;
 using Microsoft.CodeAnalysis.Operations;
 
 namespace DerivGen.Generator.Lowering;
@@ -170,6 +173,7 @@ internal sealed partial class BodyLowerer
     {
         // The innermost source of a chain (xs in xs.Select(…).Sum()), named where it is a parameter, local or field.
         IOperation? source = invocation.Arguments.Length > 0 ? invocation.Arguments[0].Value : null;
+        IOperation? zipped = invocation.TargetMethod.Name == "Zip" && invocation.Arguments.Length > 1 ? invocation.Arguments[1].Value : null;
         while (true)
         {
             if (source is IConversionOperation conversion)
@@ -178,6 +182,7 @@ internal sealed partial class BodyLowerer
             }
             else if (source is IInvocationOperation { TargetMethod: { Name: not "Range", ContainingType.Name: "Enumerable" } } inner && inner.Arguments.Length > 0)
             {
+                zipped = inner.TargetMethod.Name == "Zip" && inner.Arguments.Length > 1 ? inner.Arguments[1].Value : zipped;
                 source = inner.Arguments[0].Value;
             }
             else
@@ -203,13 +208,17 @@ internal sealed partial class BodyLowerer
             return LinqPrefix + written;
         }
 
-        string loop, count;
+        string loop, count, item = "…";
         if (source is IInvocationOperation { TargetMethod: { Name: "Range", ContainingType.Name: "Enumerable" } } range && range.Arguments.Length == 2)
         {
             count = Text(range.Arguments[1].Value);
             loop = range.Arguments[0].Value.ConstantValue is { HasValue: true, Value: 0 }
                 ? "for (int i = 0; i < " + count + "; i++)"
                 : "for (int i = " + Text(range.Arguments[0].Value) + "; i < " + Text(range.Arguments[0].Value) + " + " + count + "; i++)";
+        }
+        else if (RangeLoop(source, zipped) is { } ranged)
+        {
+            (loop, count, item) = ranged;
         }
         else
         {
@@ -219,14 +228,77 @@ internal sealed partial class BodyLowerer
 
         string what = method switch
         {
-            "Sum" => "write the sum as a for loop over the array: `double s = 0; " + loop + " s += …;`",
-            "Average" => "write the mean as a for loop over the array: `double s = 0; " + loop + " s += …; double mean = s / " + count + ";`",
-            "Max" => "write the maximum as a for loop over the array: `double m = double.NegativeInfinity; " + loop + " m = Math.Max(m, …);`",
-            "Min" => "write the minimum as a for loop over the array: `double m = double.PositiveInfinity; " + loop + " m = Math.Min(m, …);`",
-            _ => "write the computation as a for loop over the array (over several arrays, one index for all): `double s = 0; " + loop + " s += …;`",
+            "Sum" => "write the sum as a for loop over the array: `double s = 0; " + loop + " s += " + item + ";`",
+            "Average" => "write the mean as a for loop over the array: `double s = 0; " + loop + " s += " + item + "; double mean = s / " + count + ";`",
+            "Max" => "write the maximum as a for loop over the array: `double m = double.NegativeInfinity; " + loop + " m = Math.Max(m, " + item + ");`",
+            "Min" => "write the minimum as a for loop over the array: `double m = double.PositiveInfinity; " + loop + " m = Math.Min(m, " + item + ");`",
+            _ => "write the computation as a for loop over the array (over several arrays, one index for all): `double s = 0; " + loop + " s += " + item + ";`",
         };
         return LinqPrefix + what;
     }
+
+    /// <summary>The remainder is refused; an int remainder is mostly an index wrapping past the end, written as a conditional.</summary>
+    private static string RemainderAdvice(IBinaryOperation binary)
+    {
+        if (binary.Type?.SpecialType != SpecialType.System_Int32)
+        {
+            return "the remainder operator is not supported; keep the remainder out of the differentiated values (compute it over ints, or over data at the top of the method)";
+        }
+
+        IOperation left = binary.LeftOperand;
+        while (left is IParenthesizedOperation parenthesized)
+        {
+            left = parenthesized.Operand;
+        }
+
+        string a = Text(left), n = Text(binary.RightOperand);
+        return "the remainder operator is not supported; where 0 <= " + a + " <= " + n + " (an index wrapping past the end) "
+            + "write the wrap as a conditional: `" + a + " < " + n + " ? " + a + " : 0`";
+    }
+
+    /// <summary>
+    /// A range of an array as the source (ys[1..], zipped with ys[..^1]): the loop over the range's indices of the array,
+    /// the element read as ys[i] and the zipped range's element at its offset (ys[i - 1]); null for any other source.
+    /// </summary>
+    private static (string Loop, string Count, string Item)? RangeLoop(IOperation? source, IOperation? zipped)
+    {
+        if (Range(source) is not { } range)
+        {
+            return null;
+        }
+
+        string start = Bound(range.Array, range.Range.LeftOperand, "0"), end = Bound(range.Array, range.Range.RightOperand, range.Array + ".Length");
+        string elements = "… " + range.Array + "[i] …";
+        if (Range(zipped is IConversionOperation c ? c.Operand : zipped) is { } other && other.Array == range.Array
+            && Literal(range.Range.LeftOperand) is { } a && Literal(other.Range.LeftOperand) is { } b)
+        {
+            string offset = b == a ? "" : b > a ? " + " + (b - a).ToString(CultureInfo.InvariantCulture) : " - " + (a - b).ToString(CultureInfo.InvariantCulture);
+            elements += " " + other.Array + "[i" + offset + "] …";
+        }
+
+        string count = start == "0" ? end : end + " - " + start;
+        return ("for (int i = " + start + "; i < " + end + "; i++)", count, elements);
+    }
+
+    private static (string Array, RangeExpressionSyntax Range)? Range(IOperation? source) =>
+        source?.Syntax is ElementAccessExpressionSyntax { ArgumentList.Arguments: { Count: 1 } arguments } access
+        && arguments[0].Expression is RangeExpressionSyntax range
+            ? (access.Expression.ToString(), range)
+            : null;
+
+    private static string Bound(string array, ExpressionSyntax? bound, string open) => bound switch
+    {
+        null => open,
+        PrefixUnaryExpressionSyntax { RawKind: (int)SyntaxKind.IndexExpression } fromEnd => array + ".Length - " + fromEnd.Operand,
+        _ => bound.ToString(),
+    };
+
+    private static int? Literal(ExpressionSyntax? bound) => bound switch
+    {
+        null => 0,
+        LiteralExpressionSyntax { Token.Value: int value } => value,
+        _ => null,
+    };
 
     private static string SourceName(IOperation? source) => source switch
     {

@@ -951,7 +951,7 @@ internal sealed partial class BodyLowerer
             || ScalarTypeOf(binary.Type!) is not { } type || type == ScalarType.Boolean)
         {
             string hint = binary.OperatorKind is BinaryOperatorKind.Remainder
-                ? "the remainder operator is not supported"
+                ? RemainderAdvice(binary)
                 : "only + - * / on double, float and int, comparisons, && and || are supported";
             return Unsupported(binary, $"the operator '{Text(binary)}'", hint);
         }

@@ -1335,4 +1335,111 @@ public sealed class RefusalAdviceTests
             """);
         Assert.True(asm.HasMethod("Arrays", "SumGradient") && asm.HasMethod("Arrays", "JumpGradient") && asm.HasMethod("Arrays", "VirtualGradient"));
     }
+
+    private delegate double Grad2Data1(double a, double b, double[] data, Span<double> gradient);
+
+    [Fact]
+    public async Task IntRemainderAsAWrappingIndexBecomesAConditionalWithTheHandGradient()
+    {
+        await RefusedWith(Usings + """
+            public static partial class Ring
+            {
+                [Differentiate(nameof(x), nameof(y))]
+                public static double Energy(double x, double y, double[] ring)
+                {
+                    double e = 0;
+                    for (int i = 0; i < ring.Length; i++)
+                    {
+                        double d = ring[(i + 1) % ring.Length] * x - ring[i] * y;
+                        e += d * d;
+                    }
+
+                    return e;
+                }
+            }
+            """,
+            "DG0001: The operator '(i + 1) % ring.Length' cannot be differentiated: the remainder operator is not supported; "
+            + "where 0 <= i + 1 <= ring.Length (an index wrapping past the end) write the wrap as a conditional: `i + 1 < ring.Length ? i + 1 : 0`");
+
+        using CompiledAssembly asm = await Accepted(Usings + """
+            public static partial class Ring
+            {
+                [Differentiate(nameof(x), nameof(y))]
+                public static double Energy(double x, double y, double[] ring)
+                {
+                    double e = 0;
+                    for (int i = 0; i < ring.Length; i++)
+                    {
+                        double d = ring[i + 1 < ring.Length ? i + 1 : 0] * x - ring[i] * y;
+                        e += d * d;
+                    }
+
+                    return e;
+                }
+            }
+            """);
+        double[] ring = { 0.7, -1.2, 2.5, 0.3, 1.9 }; // invented
+        const double X = 0.8, Y = -0.35;
+        var g = new double[2];
+        asm.Method<Grad2Data1>("Ring", "EnergyGradient")(X, Y, ring, g);
+
+        // Hand derivative (plain calculus): e = Σ d², d = r[i+1 mod n]·x − r[i]·y; ∂e/∂x = Σ 2d·r[i+1 mod n], ∂e/∂y = Σ −2d·r[i].
+        double gx = 0, gy = 0;
+        for (int i = 0; i < ring.Length; i++)
+        {
+            double next = ring[(i + 1) % ring.Length];
+            double d = next * X - ring[i] * Y;
+            gx += 2 * d * next;
+            gy -= 2 * d * ring[i];
+        }
+
+        Check.Close(new[] { gx, gy }, g, 1e-13, 1e-15, "gradient of the wrap written as the message says");
+    }
+
+    [Fact]
+    public async Task LinqZipOfTwoRangesBecomesALoopOverTheArrayWithTheHandGradient()
+    {
+        await RefusedWith(Usings + """
+            public static partial class Ar1
+            {
+                [Differentiate(nameof(phi), nameof(mean))]
+                public static double Sse(double phi, double mean, double[] ys) =>
+                    ys[1..].Zip(ys[..^1], (y, previous) => (y - mean - phi * (previous - mean)) * (y - mean - phi * (previous - mean))).Sum();
+            }
+            """,
+            Call("System.Linq.Enumerable.Sum",
+                "this version lowers Sum, Average, Max and Min (double) over arrays, Select, Zip and Enumerable.Range to loops, not this; write the sum as a for loop over the array: `double s = 0; for (int i = 1; i < ys.Length; i++) s += … ys[i] … ys[i - 1] …;`"));
+
+        using CompiledAssembly asm = await Accepted(Usings + """
+            public static partial class Ar1
+            {
+                [Differentiate(nameof(phi), nameof(mean))]
+                public static double Sse(double phi, double mean, double[] ys)
+                {
+                    double s = 0;
+                    for (int i = 1; i < ys.Length; i++)
+                    {
+                        s += (ys[i] - mean - phi * (ys[i - 1] - mean)) * (ys[i] - mean - phi * (ys[i - 1] - mean));
+                    }
+
+                    return s;
+                }
+            }
+            """);
+        double[] ys = { 10.2, 10.9, 11.3, 10.8, 11.9, 12.4 }; // invented
+        const double Phi = 0.6, Mean = 11.0;
+        var g = new double[2];
+        asm.Method<Grad2Data1>("Ar1", "SseGradient")(Phi, Mean, ys, g);
+
+        // Hand derivative (plain calculus): r = y_t − m − φ(y_t−1 − m); ∂r/∂φ = −(y_t−1 − m), ∂r/∂m = φ − 1; ∂(Σ r²) = Σ 2r·∂r.
+        double gPhi = 0, gMean = 0;
+        for (int t = 1; t < ys.Length; t++)
+        {
+            double r = ys[t] - Mean - Phi * (ys[t - 1] - Mean);
+            gPhi += 2 * r * -(ys[t - 1] - Mean);
+            gMean += 2 * r * (Phi - 1);
+        }
+
+        Check.Close(new[] { gPhi, gMean }, g, 1e-13, 1e-15, "gradient of the loop written as the message says");
+    }
 }

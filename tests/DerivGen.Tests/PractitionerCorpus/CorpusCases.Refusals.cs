@@ -36,9 +36,13 @@ internal static partial class CorpusCases
         // The advice works here: with Rate marked [Differentiate] the loss is accepted (checked on the edited source).
         ["PoissonRegressionInstanceHelper"] = (new[] { "DefectModel.Rate" }, null,
             new[] { ("private double Rate(", "[Differentiate] private double Rate(") }),
-        ["Ar1RangesZip"] = (new[] { "System.Linq.Enumerable.Sum" },
-            "the advice's loop reads xs.Length, but the sources are the ranges ys[1..] and ys[..^1] zipped: the loop it needs runs over ys from index 1 (ranges as LINQ sources are not lowered)",
-            NoEdit),
+        ["Ar1RangesZip"] = (new[] { "System.Linq.Enumerable.Sum" }, null,
+            // The advice followed: the Zip of ys[1..] and ys[..^1] as a loop over ys from index 1, reading ys[i] and ys[i - 1].
+            new[]
+            {
+                ("return ys[1..].Zip(ys[..^1], (y, previous) => (y - mean - phi * (previous - mean)) * (y - mean - phi * (previous - mean))).Sum();",
+                    "double s = 0; for (int i = 1; i < ys.Length; i++) s += (ys[i] - mean - phi * (ys[i - 1] - mean)) * (ys[i] - mean - phi * (ys[i - 1] - mean)); return s;"),
+            }),
         ["MeanVarianceQuadraticForm"] = (new[] { "Portfolio.QuadraticForm" }, null,
             // The advice works: the quadratic form written inline as a double loop is accepted.
             new[] { ("0.5 * riskAversion * QuadraticForm(Sigma, weights)", "0.5 * riskAversion * risk"), ("double budget =", "double risk = 0;\n        for (int i = 0; i < weights.Length; i++)\n        {\n            for (int j = 0; j < weights.Length; j++)\n            {\n                risk += weights[i] * Sigma[i, j] * weights[j];\n            }\n        }\n\n        double budget =") }),
@@ -47,9 +51,9 @@ internal static partial class CorpusCases
         ["FirEqualizerStackalloc"] = (new[] { "output", "Input.Length" }, null,
             // The advice followed: a constant length, and the loop that writes the elements given constant bounds (then unrolled).
             new[] { ("stackalloc double[Input.Length]", "stackalloc double[8]"), ("for (int n = 0; n < Input.Length; n++)", "for (int n = 0; n < 8; n++)") }),
-        ["MeshSmoothingMutableStruct"] = (new[] { "remainder", "Ring.Length" },
-            "the message names no rewrite for the remainder (i + 1) % n (the Vertex struct, its constructor and the 'in Vertex' helper are accepted since struct values are taken apart; only the remainder is left)",
-            NoEdit),
+        ["MeshSmoothingMutableStruct"] = (new[] { "remainder", "Ring.Length" }, null,
+            // The advice followed: the wrapping index as a conditional (i + 1 runs from 1 to Ring.Length).
+            new[] { ("Ring[(i + 1) % Ring.Length]", "Ring[i + 1 < Ring.Length ? i + 1 : 0]") }),
         ["ArrheniusZipTuples"] = (new[] { "System.Linq.Enumerable.Sum" }, null, NoEdit),
         ["ConsecutiveReactionRk4"] = (new[] { "double[]", "Rhs(c, k1, k2, s1)" }, null, NoEdit),
         ["PathEndClearanceMin"] = (new[] { "System.Linq.Enumerable.Min" }, null, NoEdit),

@@ -98,7 +98,7 @@ internal static class CorpusStatus
         }),
         ["Ar1RangesZip"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
         {
-            "DG0001: The call to 'System.Linq.Enumerable.Sum' cannot be differentiated: this version lowers Sum, Average, Max and Min (double) over arrays, Select, Zip and Enumerable.Range to loops, not this; write the sum as a for loop over the array: `double s = 0; for (int i = 0; i < xs.Length; i++) s += …;`",
+            "DG0001: The call to 'System.Linq.Enumerable.Sum' cannot be differentiated: this version lowers Sum, Average, Max and Min (double) over arrays, Select, Zip and Enumerable.Range to loops, not this; write the sum as a for loop over the array: `double s = 0; for (int i = 1; i < ys.Length; i++) s += … ys[i] … ys[i - 1] …;`",
         }),
         ["MeanVarianceQuadraticForm"] = new(Accepted: true, Hessian: true, Diagnostics: new string[]
         {
@@ -133,7 +133,7 @@ internal static class CorpusStatus
         }),
         ["MeshSmoothingMutableStruct"] = new(Accepted: false, Hessian: false, Diagnostics: new string[]
         {
-            "DG0001: The operator '(i + 1) % Ring.Length' cannot be differentiated: the remainder operator is not supported",
+            "DG0001: The operator '(i + 1) % Ring.Length' cannot be differentiated: the remainder operator is not supported; where 0 <= i + 1 <= Ring.Length (an index wrapping past the end) write the wrap as a conditional: `i + 1 < Ring.Length ? i + 1 : 0`",
         }),
         ["KeepOutBoxComponentwise"] = new(Accepted: true, Hessian: true, Diagnostics: new string[]
         {
