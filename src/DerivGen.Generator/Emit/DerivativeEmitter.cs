@@ -100,7 +100,6 @@ internal static class DerivativeEmitter
         using (SignatureWriter.DerivativeMethod(writer, context, withHessian, IsSmallStraightLine(program, withHessian)))
         {
             string thrower = context.ThrowerName;
-            MethodBodyWriter.WriteGuards(writer, spec);
             if (jacobian)
             {
                 SignatureWriter.LengthCheck(writer, context.JacobianName, "(long)" + spec.OutputName + ".Length * " + Text.Parenthesized(context.GradientLength),
@@ -128,7 +127,6 @@ internal static class DerivativeEmitter
         using (SignatureWriter.HessianVectorMethod(writer, context, IsSmallStraightLine(context.Program, withHessian: false)))
         {
             string thrower = context.ThrowerName;
-            MethodBodyWriter.WriteGuards(writer, context.Spec);
             SignatureWriter.LengthCheck(writer, context.DirectionName, context.GradientLength, "one per variable: " + variableList, thrower);
             SignatureWriter.LengthCheck(writer, context.GradientName, context.GradientLength, "one per variable: " + variableList, thrower);
             SignatureWriter.LengthCheck(writer, context.ProductName, context.GradientLength, "one per variable: " + variableList, thrower);

@@ -28,7 +28,6 @@ internal static class PairedHessianWriter
         using (SignatureWriter.PairedHessianMethod(writer, context))
         {
             string thrower = names.Claim(context.ThrowerName);
-            MethodBodyWriter.WriteGuards(writer, spec);
             writer.Line("int " + n + " = " + context.GradientLength + ";");
             SignatureWriter.LengthCheck(writer, context.GradientName, n, "one per variable: " + variableList, thrower);
             SignatureWriter.LengthCheck(writer, context.HessianName, n + " * " + n, "n × n, row-major", thrower);

@@ -192,9 +192,13 @@ internal static class SignatureWriter
 
         parameters.AddRange(spans.Select(span => "global::System.Span<" + type + "> " + span));
         string modifiers = spec.Accessibility + (spec.IsStatic ? " static " : " ");
-        return spec.GenericConstraints is { } constraints
+        IndentedWriter.Scope body = spec.GenericConstraints is { } constraints
             ? WriteGeneric(writer, modifiers + returnType + " " + name + "<T>(" + string.Join(", ", parameters) + ")", constraints)
             : writer.Block(modifiers + returnType + " " + name + "(" + string.Join(", ", parameters) + ")");
+
+        // Every generated method runs the user's checks that throw first, before its span checks and any write.
+        MethodBodyWriter.WriteGuards(writer, spec);
+        return body;
     }
 
     /// <summary>The signature of a method generic over T, its constraints on the next line (as the user's).</summary>
